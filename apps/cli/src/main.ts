@@ -1,0 +1,2 @@
+import { LEARNING_PLACEHOLDER } from '#learning';
+console.log(LEARNING_PLACEHOLDER);

@@ -1,0 +1,1 @@
+export const LEARNING_PLACEHOLDER = 1;
