@@ -1,2 +1,23 @@
-import { LEARNING_PLACEHOLDER } from '#learning';
-console.log(LEARNING_PLACEHOLDER);
+#!/usr/bin/env node
+/**
+ * Operator command line: `npm run cli -- <command> [options]`.
+ * Each command lives in its own `*.command.ts` file and returns an exit code.
+ */
+type Command = (argv: string[]) => Promise<number>;
+
+const commands: Record<string, () => Promise<Command>> = {
+};
+
+async function main(): Promise<void> {
+  const [name, ...rest] = process.argv.slice(2);
+  const load = name ? commands[name] : undefined;
+  if (!load) {
+    process.stderr.write(`usage: cribra <${Object.keys(commands).join('|')}> [options]\n`);
+    process.exitCode = 2;
+    return;
+  }
+  const run = await load();
+  process.exitCode = await run(rest);
+}
+
+await main();

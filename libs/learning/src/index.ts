@@ -1,1 +1,0 @@
-export const LEARNING_PLACEHOLDER = 1;
