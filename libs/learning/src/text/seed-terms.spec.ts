@@ -1,0 +1,74 @@
+import { describe, expect, it } from 'vitest';
+import { compileSeedTerms } from './seed-terms.js';
+
+function slices(text: string, matcher = compileSeedTerms({ x: ['cafe'] })) {
+  return matcher.match(text).map((m) => text.slice(m.start, m.end));
+}
+
+describe('compileSeedTerms', () => {
+  it('matches case- and accent-insensitively, with offsets into the original text', () => {
+    const matcher = compileSeedTerms({ place: ['café'] });
+    const text = 'Meet at the CAFE, the Café or the cafe\u0301.';
+    const matches = matcher.match(text);
+    expect(matches.map((m) => text.slice(m.start, m.end))).toEqual(['CAFE', 'Café', 'cafe\u0301']);
+    expect(matches.every((m) => m.category === 'place' && m.term === 'café')).toBe(true);
+    expect(matcher.count(text)).toBe(3);
+  });
+
+  it('matches full-width and ligature forms, keeping offsets right where length changes', () => {
+    const matcher = compileSeedTerms({ a: ['fire'], b: ['knife'] });
+    const text = 'ＦＩＲＥ! the ﬁre and a KNIFE… then ﬁre';
+    const matches = matcher.match(text);
+    expect(matches.map((m) => text.slice(m.start, m.end))).toEqual(['ＦＩＲＥ', 'ﬁre', 'KNIFE', 'ﬁre']);
+    expect(matches.map((m) => m.category)).toEqual(['a', 'a', 'b', 'a']);
+  });
+
+  it('keeps offsets exact around astral characters and sharp s', () => {
+    const matcher = compileSeedTerms({ s: ['strasse'] });
+    const text = '😀😀 die Straße 😀 STRASSE';
+    expect(slices(text, matcher)).toEqual(['Straße', 'STRASSE']);
+  });
+
+  it('matches whole words only', () => {
+    const matcher = compileSeedTerms({ v: ['kill'] });
+    expect(slices('skill killer kill, kill.', matcher)).toEqual(['kill', 'kill']);
+  });
+
+  it('matches multi-word terms across any spacing or punctuation, preferring the longer term', () => {
+    const matcher = compileSeedTerms({ threat: ['hurt you'], word: ['hurt'] });
+    const text = 'I will HURT\n  you; it does not hurt.';
+    const matches = matcher.match(text);
+    expect(matches.map((m) => [text.slice(m.start, m.end), m.category])).toEqual([
+      ['HURT\n  you', 'threat'],
+      ['hurt', 'word'],
+    ]);
+  });
+
+  it('returns sorted, non-overlapping matches (leftmost, then longest)', () => {
+    const matcher = compileSeedTerms({ a: ['a b'], b: ['b c d'], c: ['d'] });
+    const text = 'a b c d';
+    const matches = matcher.match(text);
+    expect(matches.map((m) => m.category)).toEqual(['a', 'c']);
+    for (let i = 1; i < matches.length; i++) expect(matches[i].start).toBeGreaterThanOrEqual(matches[i - 1].end);
+  });
+
+  it('keeps marks that are part of the letter in non-Latin scripts', () => {
+    const matcher = compileSeedTerms({ hi: ['काम'] });
+    // "कम" (kam) differs from "काम" (kaam) only by a vowel sign; they must not match.
+    expect(slices('कम काम', matcher)).toEqual(['काम']);
+    const greek = compileSeedTerms({ g: ['απειλή'] });
+    expect(slices('ΑΠΕΙΛΗ και απειλη', greek)).toEqual(['ΑΠΕΙΛΗ', 'απειλη']);
+  });
+
+  it('reports the first category when a term is listed twice, and ignores empty terms', () => {
+    const matcher = compileSeedTerms({ first: ['Bomb'], second: ['bomb', '  ', '!!'] });
+    expect(matcher.size).toBe(1);
+    expect(matcher.match('bomb')).toEqual([{ start: 0, end: 4, category: 'first', term: 'Bomb' }]);
+  });
+
+  it('rejects bad arguments with a named error', () => {
+    expect(() => compileSeedTerms(null as unknown as Record<string, string[]>)).toThrow(TypeError);
+    expect(() => compileSeedTerms({ a: 'x' as unknown as string[] })).toThrow(/seedTerms\["a"\]/);
+    expect(() => compileSeedTerms({ a: ['x'] }).match(3 as unknown as string)).toThrow(/text must be a string/);
+  });
+});
