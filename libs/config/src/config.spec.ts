@@ -1,0 +1,39 @@
+import { describe, expect, it } from 'vitest';
+import { ConfigError, parseConfig } from './config.js';
+
+describe('parseConfig', () => {
+  it('gives the documented defaults for an empty environment', () => {
+    const c = parseConfig({}, '/srv/cribra');
+    expect(c.port).toBe(8080);
+    expect(c.dataDir).toBe('/srv/cribra/data');
+    expect(c.database).toEqual({ kind: 'sqlite', file: '/srv/cribra/data/cribra.sqlite', url: 'sqlite:/srv/cribra/data/cribra.sqlite' });
+    expect(c.redisUrl).toBeNull();
+    expect(c.maxTextLength).toBe(100_000);
+    expect(c.undoWindowSeconds).toBe(300);
+  });
+
+  it('selects PostgreSQL from a postgres:// URL', () => {
+    const c = parseConfig({ DATABASE_URL: 'postgres://u@127.0.0.1:5432/test', REDIS_URL: 'redis://127.0.0.1:6379' });
+    expect(c.database.kind).toBe('postgres');
+    expect(c.redisUrl).toBe('redis://127.0.0.1:6379');
+  });
+
+  it('lists every bad variable in one error', () => {
+    let error: unknown;
+    try {
+      parseConfig({ PORT: 'eighty', DATABASE_URL: 'mysql://x', REDIS_URL: 'localhost:6379', COOKIE_SECURE: 'maybe', LOG_LEVEL: 'loud' });
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(ConfigError);
+    const problems = (error as ConfigError).problems;
+    expect(problems).toHaveLength(5);
+    expect(problems.map((p) => p.split(/[=:]/)[0])).toEqual(['PORT', 'DATABASE_URL', 'REDIS_URL', 'LOG_LEVEL', 'COOKIE_SECURE']);
+    expect((error as Error).message).toContain('PORT="eighty"');
+  });
+
+  it('rejects out-of-range numbers', () => {
+    expect(() => parseConfig({ PORT: '70000' })).toThrow(/PORT="70000": expected an integer from 1 to 65535/);
+    expect(() => parseConfig({ MAX_TEXT_LENGTH: '0' })).toThrow(/MAX_TEXT_LENGTH/);
+  });
+});

@@ -1,0 +1,161 @@
+import { isAbsolute, resolve } from 'node:path';
+
+/** How the service reaches its relational database. */
+export type DatabaseConfig =
+  | { kind: 'sqlite'; file: string; url: string }
+  | { kind: 'postgres'; url: string };
+
+/** The one typed configuration object of every Cribra process. */
+export interface AppConfig {
+  readonly port: number;
+  readonly host: string;
+  readonly dataDir: string;
+  readonly database: DatabaseConfig;
+  /** `null` means: the launcher starts a private redis-server under `dataDir`. */
+  readonly redisUrl: string | null;
+  /** Prefix of every BullMQ key, so several deployments (or test runs) can share one Redis. */
+  readonly queuePrefix: string;
+  readonly maxTextLength: number;
+  readonly sessionHours: number;
+  readonly cookieSecure: boolean;
+  readonly undoWindowSeconds: number;
+  readonly importBatchSize: number;
+  readonly logLevel: 'error' | 'warn' | 'log' | 'debug';
+  readonly demo: boolean;
+}
+
+/** Raised at boot when one or more variables are wrong; lists every bad variable at once. */
+export class ConfigError extends Error {
+  constructor(readonly problems: string[]) {
+    super(`Invalid configuration:\n${problems.map((p) => `  - ${p}`).join('\n')}`);
+    this.name = 'ConfigError';
+  }
+}
+
+type Env = Record<string, string | undefined>;
+
+/** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
+export const CONFIG_VARIABLES = [
+  'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'DEMO',
+] as const;
+
+/**
+ * Builds and validates the configuration from an environment map.
+ * Pure: takes the map as an argument so tests can pass their own.
+ */
+export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
+  const problems: string[] = [];
+  const str = (name: string): string | undefined => {
+    const v = env[name];
+    return v === undefined || v.trim() === '' ? undefined : v.trim();
+  };
+  const int = (name: string, def: number, min: number, max: number): number => {
+    const raw = str(name);
+    if (raw === undefined) return def;
+    if (!/^\d+$/.test(raw) || Number(raw) < min || Number(raw) > max) {
+      problems.push(`${name}=${JSON.stringify(raw)}: expected an integer from ${min} to ${max}`);
+      return def;
+    }
+    return Number(raw);
+  };
+  const bool = (name: string, def: boolean): boolean => {
+    const raw = str(name)?.toLowerCase();
+    if (raw === undefined) return def;
+    if (['1', 'true', 'yes', 'on'].includes(raw)) return true;
+    if (['0', 'false', 'no', 'off'].includes(raw)) return false;
+    problems.push(`${name}=${JSON.stringify(env[name])}: expected on/off, true/false, yes/no or 1/0`);
+    return def;
+  };
+
+  const port = int('PORT', 8080, 1, 65535);
+  const host = str('HOST') ?? '127.0.0.1';
+  const dataDirRaw = str('DATA_DIR') ?? './data';
+  const dataDir = isAbsolute(dataDirRaw) ? dataDirRaw : resolve(cwd, dataDirRaw);
+
+  let database: DatabaseConfig;
+  const dbUrl = str('DATABASE_URL');
+  if (dbUrl === undefined) {
+    const file = resolve(dataDir, 'cribra.sqlite');
+    database = { kind: 'sqlite', file, url: `sqlite:${file}` };
+  } else if (/^postgres(ql)?:\/\//.test(dbUrl)) {
+    try {
+      new URL(dbUrl);
+      database = { kind: 'postgres', url: dbUrl };
+    } catch {
+      problems.push(`DATABASE_URL: not a valid URL`);
+      database = { kind: 'postgres', url: dbUrl };
+    }
+  } else if (dbUrl.startsWith('sqlite:')) {
+    const path = dbUrl.slice('sqlite:'.length).replace(/^\/\//, '');
+    if (path === '') problems.push('DATABASE_URL: sqlite: needs a file path, e.g. sqlite:./data/cribra.sqlite');
+    const file = isAbsolute(path) ? path : resolve(cwd, path);
+    database = { kind: 'sqlite', file, url: `sqlite:${file}` };
+  } else {
+    problems.push(`DATABASE_URL: expected postgres://… or sqlite:PATH (got a value starting ${JSON.stringify(dbUrl.slice(0, 12))})`);
+    database = { kind: 'sqlite', file: resolve(dataDir, 'cribra.sqlite'), url: '' };
+  }
+
+  const redisRaw = str('REDIS_URL');
+  let redisUrl: string | null = null;
+  if (redisRaw !== undefined) {
+    if (!/^rediss?:\/\//.test(redisRaw)) problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: expected redis://host:port or rediss://…`);
+    else {
+      try { new URL(redisRaw); redisUrl = redisRaw; } catch { problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: not a valid URL`); }
+    }
+  }
+
+  const queuePrefix = str('QUEUE_PREFIX') ?? 'cribra';
+  if (!/^[A-Za-z0-9_.-]{1,64}$/.test(queuePrefix)) problems.push(`QUEUE_PREFIX=${JSON.stringify(queuePrefix)}: use 1–64 letters, digits, '_', '.', '-'`);
+
+  const logLevel = (str('LOG_LEVEL') ?? 'log') as AppConfig['logLevel'];
+  if (!['error', 'warn', 'log', 'debug'].includes(logLevel)) problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
+
+  const config: AppConfig = {
+    port,
+    host,
+    dataDir,
+    database,
+    redisUrl,
+    queuePrefix,
+    maxTextLength: int('MAX_TEXT_LENGTH', 100_000, 1, 10_000_000),
+    sessionHours: int('SESSION_HOURS', 12, 1, 24 * 30),
+    cookieSecure: bool('COOKIE_SECURE', false),
+    undoWindowSeconds: int('UNDO_WINDOW_SECONDS', 300, 1, 86_400),
+    importBatchSize: int('IMPORT_BATCH_SIZE', 1000, 1, 50_000),
+    logLevel,
+    demo: bool('DEMO', true),
+  };
+  if (problems.length > 0) throw new ConfigError(problems);
+  return config;
+}
+
+let cached: AppConfig | undefined;
+
+/**
+ * The process's configuration, read from `process.env` once. This is the only
+ * place in the code base that reads `process.env` for settings.
+ */
+export function loadConfig(): AppConfig {
+  cached ??= parseConfig(process.env);
+  return cached;
+}
+
+/** Environment variables for a child process, derived from a configuration. */
+export function configToEnv(config: AppConfig): Record<string, string> {
+  return {
+    PORT: String(config.port),
+    HOST: config.host,
+    DATA_DIR: config.dataDir,
+    DATABASE_URL: config.database.url,
+    ...(config.redisUrl ? { REDIS_URL: config.redisUrl } : {}),
+    QUEUE_PREFIX: config.queuePrefix,
+    MAX_TEXT_LENGTH: String(config.maxTextLength),
+    SESSION_HOURS: String(config.sessionHours),
+    COOKIE_SECURE: String(config.cookieSecure),
+    UNDO_WINDOW_SECONDS: String(config.undoWindowSeconds),
+    IMPORT_BATCH_SIZE: String(config.importBatchSize),
+    LOG_LEVEL: config.logLevel,
+    DEMO: String(config.demo),
+  };
+}

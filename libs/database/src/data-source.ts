@@ -1,0 +1,49 @@
+import { DataSource, type DataSourceOptions } from 'typeorm';
+import type { DatabaseConfig } from '#config';
+import type { Dialect } from './dialect.js';
+import { auditEventSchema } from './entities/audit-event.entity.js';
+import { categorySchema } from './entities/category.entity.js';
+import { credentialSchema } from './entities/credential.entity.js';
+import { deskSchema } from './entities/desk.entity.js';
+import { importSchema } from './entities/import.entity.js';
+import { itemSchema } from './entities/item.entity.js';
+import { leaseSchema } from './entities/lease.entity.js';
+import { userSchema } from './entities/user.entity.js';
+import { verdictSchema } from './entities/verdict.entity.js';
+import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
+
+/** Every entity, listed explicitly. */
+export function entitySchemas(dialect: Dialect) {
+  return [userSchema, credentialSchema, deskSchema, categorySchema, importSchema, itemSchema, leaseSchema, verdictSchema, auditEventSchema].map((f) => f(dialect));
+}
+
+/** Every migration, in order. */
+export const MIGRATIONS = [Foundation1764600000000];
+
+/** Builds (does not connect) the TypeORM data source for a database configuration. */
+export function createDataSource(db: DatabaseConfig, options: { poolSize?: number } = {}): DataSource {
+  const common = { entities: entitySchemas(db.kind), migrations: MIGRATIONS, synchronize: false, migrationsRun: false, logging: false } as const;
+  const opts: DataSourceOptions =
+    db.kind === 'postgres'
+      ? { ...common, type: 'postgres', url: db.url, extra: { max: options.poolSize ?? 20 } }
+      : {
+          ...common,
+          type: 'better-sqlite3',
+          database: db.file,
+          enableWAL: true,
+          // Several processes (API, workers) share the file: wait for a lock rather than fail at once.
+          timeout: 15_000,
+          prepareDatabase: (conn: { pragma: (s: string) => unknown }) => {
+            conn.pragma('synchronous = NORMAL');
+          },
+        };
+  return new DataSource(opts);
+}
+
+/** Connects and brings the schema up to date. */
+export async function openDatabase(db: DatabaseConfig, options: { poolSize?: number; migrate?: boolean } = {}): Promise<DataSource> {
+  const ds = createDataSource(db, options);
+  await ds.initialize();
+  if (options.migrate !== false) await ds.runMigrations({ transaction: 'each' });
+  return ds;
+}

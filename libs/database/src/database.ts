@@ -1,0 +1,84 @@
+import type { DataSource, EntityManager } from 'typeorm';
+import type { Dialect } from './dialect.js';
+import { Mutex } from './mutex.js';
+
+/**
+ * The process's database handle: the data source plus write transactions that
+ * behave the same on both databases.
+ *
+ * PostgreSQL: ordinary READ COMMITTED transactions from the pool.
+ * SQLite: better-sqlite3 has one connection per process, so transactions of
+ * concurrent requests are serialised by a mutex, and each one starts with
+ * `BEGIN IMMEDIATE` so that it takes the file's write lock up front; a deferred
+ * transaction that upgrades to a writer would fail with SQLITE_BUSY when
+ * another process (a worker) wrote in between.
+ */
+export class Database {
+  readonly dialect: Dialect;
+  private readonly mutex = new Mutex();
+
+  constructor(readonly dataSource: DataSource) {
+    this.dialect = dataSource.options.type === 'postgres' ? 'postgres' : 'sqlite';
+  }
+
+  get pg(): boolean {
+    return this.dialect === 'postgres';
+  }
+
+  get manager(): EntityManager {
+    return this.dataSource.manager;
+  }
+
+  /** Runs `fn` in one write transaction; retries a few times when SQLite reports the file busy. */
+  async write<T>(fn: (m: EntityManager) => Promise<T>): Promise<T> {
+    if (this.pg) return this.dataSource.transaction('READ COMMITTED', fn);
+    return this.mutex.run(async () => {
+      const qr = this.dataSource.createQueryRunner();
+      for (let attempt = 0; ; attempt++) {
+        try {
+          await qr.query('BEGIN IMMEDIATE');
+          break;
+        } catch (e) {
+          if (attempt >= 20 || !/SQLITE_BUSY|database is locked/i.test(String(e))) throw e;
+          await new Promise((r) => setTimeout(r, 25 * (attempt + 1)));
+        }
+      }
+      // TypeORM's SQLite runner tracks its own transaction state: mark ours as
+      // open so nested save() calls use savepoints instead of a second BEGIN.
+      const state = qr as unknown as { isTransactionActive: boolean; transactionDepth: number };
+      state.isTransactionActive = true;
+      state.transactionDepth = 1;
+      try {
+        const result = await fn(qr.manager);
+        await qr.commitTransaction();
+        return result;
+      } catch (e) {
+        if (state.isTransactionActive) await qr.rollbackTransaction();
+        throw e;
+      }
+    });
+  }
+
+  /** A query parameter for a timestamp, in the form the database compares correctly. */
+  time(date: Date): Date | string {
+    // TypeORM stores SQLite datetimes as UTC 'YYYY-MM-DD HH:MM:SS.SSS' text; compare like with like.
+    return this.pg ? date : date.toISOString().replace('T', ' ').replace('Z', '');
+  }
+
+  /** Reads a timestamp returned by a raw query. */
+  parseTime(value: unknown): Date | null {
+    if (value === null || value === undefined) return null;
+    if (value instanceof Date) return value;
+    const s = String(value);
+    return new Date(/[zZ]|[+-]\d\d:?\d\d$/.test(s) ? s : `${s.replace(' ', 'T')}Z`);
+  }
+
+  /** Placeholder for the n-th (1-based) parameter of a raw query. */
+  p(n: number): string {
+    return this.pg ? `$${n}` : '?';
+  }
+
+  async close(): Promise<void> {
+    if (this.dataSource.isInitialized) await this.dataSource.destroy();
+  }
+}

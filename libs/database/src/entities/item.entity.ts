@@ -1,0 +1,61 @@
+import { EntitySchema } from 'typeorm';
+import type { Dialect } from '../dialect.js';
+import { columns } from './columns.js';
+
+export const ITEM_STATES = ['open', 'decided'] as const;
+export type ItemState = (typeof ITEM_STATES)[number];
+
+export class ItemEntity {
+  id!: number;
+  deskId!: number;
+  importId!: string | null;
+  externalId!: string | null;
+  source!: string | null;
+  /** The text exactly as received. */
+  text!: string;
+  /** NFKC, case-folded, whitespace-collapsed form, kept for de-duplication. */
+  normalizedText!: string;
+  normalizedHash!: string;
+  meta!: Record<string, unknown>;
+  /** The item's own timestamp (`created_at` of the import row), if it had one. */
+  postedAt!: Date | null;
+  importedAt!: Date;
+  state!: ItemState;
+  /** Number of seed-term matches, for the cold start. */
+  seedHits!: number;
+  /** Queue priority: higher is served first. */
+  priority!: number;
+  /** The model version the priority comes from; null for the cold-start (seed) priority. */
+  priorityModelVersion!: number | null;
+  /** Uniform key in [0, 1) for uniform random draws by index. */
+  randKey!: number;
+  leaseId!: string | null;
+  leasedUntil!: Date | null;
+}
+
+export const itemSchema = (d: Dialect) => {
+  const c = columns(d);
+  return new EntitySchema<ItemEntity>({
+    name: 'ItemEntity', target: ItemEntity, tableName: 'items',
+    columns: {
+      id: c.id(),
+      deskId: c.int('desk_id'),
+      importId: c.varchar('import_id', 36, true),
+      externalId: c.varchar('external_id', 200, true),
+      source: c.varchar('source', 200, true),
+      text: c.text('text'),
+      normalizedText: c.text('normalized_text'),
+      normalizedHash: c.varchar('normalized_hash', 64),
+      meta: c.json('meta'),
+      postedAt: c.time('posted_at', true),
+      importedAt: c.time('imported_at'),
+      state: c.varchar('state', 10),
+      seedHits: c.int('seed_hits'),
+      priority: c.double('priority'),
+      priorityModelVersion: c.int('priority_model_version', true),
+      randKey: c.double('rand_key'),
+      leaseId: c.varchar('lease_id', 36, true),
+      leasedUntil: c.time('leased_until', true),
+    },
+  });
+};

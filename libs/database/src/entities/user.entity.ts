@@ -1,0 +1,31 @@
+import { EntitySchema } from 'typeorm';
+import type { Dialect } from '../dialect.js';
+import { columns } from './columns.js';
+
+export const ROLES = ['reviewer', 'supervisor', 'auditor', 'admin'] as const;
+export type Role = (typeof ROLES)[number];
+
+export class UserEntity {
+  id!: number;
+  name!: string;
+  role!: Role;
+  /** scrypt hash in the form `scrypt$N$r$p$salt$hash`; null when the user signs in with tokens only. */
+  passwordHash!: string | null;
+  disabled!: boolean;
+  createdAt!: Date;
+}
+
+export const userSchema = (d: Dialect) => {
+  const c = columns(d);
+  return new EntitySchema<UserEntity>({
+    name: 'UserEntity', target: UserEntity, tableName: 'users',
+    columns: {
+      id: c.id(),
+      name: c.varchar('name', 100),
+      role: c.varchar('role', 20),
+      passwordHash: c.varchar('password_hash', 200, true),
+      disabled: c.bool('disabled'),
+      createdAt: c.time('created_at'),
+    },
+  });
+};

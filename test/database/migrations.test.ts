@@ -1,0 +1,76 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openDatabase } from '#database';
+import type { DataSource } from 'typeorm';
+import { createTestDatabase, DATABASE_KINDS, type TestDatabase } from '../support/databases.js';
+
+const now = '2026-01-01 00:00:00.000';
+
+describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
+  let tdb: TestDatabase;
+  let ds: DataSource;
+  const q = (sql: string, params: unknown[] = []) => {
+    // Same SQL on both databases: translate ? placeholders for PostgreSQL.
+    let i = 0;
+    return ds.query(kind === 'postgres' ? sql.replace(/\?/g, () => `$${++i}`) : sql, params);
+  };
+
+  beforeAll(async () => {
+    tdb = await createTestDatabase(kind);
+    ds = await openDatabase(tdb.config);
+    await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('sam', 'supervisor', false, ?)`, [now]);
+    await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('rae', 'reviewer', false, ?)`, [now]);
+    for (const name of ['alpha', 'beta']) {
+      await q(`INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES (?, '{}', 0.9, 'per-category', 0.2, 600, 1, ?, ?)`, [name, now, now]);
+      await q(`INSERT INTO categories (desk_id, name, position, created_at) VALUES ((SELECT id FROM desks WHERE name = ?), 'ok', 1, ?)`, [name, now]);
+    }
+    await q(`INSERT INTO items (desk_id, text, normalized_text, normalized_hash, meta, imported_at, state, seed_hits, priority, rand_key) VALUES (1, 'hello', 'hello', 'h1', '{}', ?, 'open', 0, 0, 0.5)`, [now]);
+  });
+  afterAll(async () => {
+    await ds?.destroy();
+    await tdb?.drop();
+  });
+
+  const verdict = (categoryId: number | null, abstain: boolean, clientId: string, reviewer = 2) =>
+    q(`INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, simulated, created_at) VALUES (1, 1, ?, ?, ?, ?, 'random', false, ?)`, [reviewer, clientId, categoryId, abstain, now]);
+
+  it('refuses a role outside the list', async () => {
+    await expect(q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('x', 'owner', false, ?)`, [now])).rejects.toThrow(/ck_users_role|CHECK/i);
+  });
+
+  it('refuses a coverage target outside 0.5..0.999', async () => {
+    await expect(q(`INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES ('g', '{}', 1.0, 'marginal', 0.2, 600, 1, ?, ?)`, [now, now])).rejects.toThrow();
+  });
+
+  it('refuses a verdict whose category belongs to another desk', async () => {
+    // category 2 belongs to desk 2, the item to desk 1.
+    await expect(verdict(2, false, 'c-foreign')).rejects.toThrow(/foreign key|FOREIGN KEY/i);
+  });
+
+  it('refuses a verdict with both or neither of category and abstain', async () => {
+    await expect(verdict(1, true, 'c-both')).rejects.toThrow(/ck_verdicts_decision|CHECK/i);
+    await expect(verdict(null, false, 'c-neither')).rejects.toThrow(/ck_verdicts_decision|CHECK/i);
+  });
+
+  it('allows one live verdict per item and reviewer, and one use of a client id', async () => {
+    await verdict(1, false, 'c-1');
+    await expect(verdict(null, true, 'c-2')).rejects.toThrow(/unique|UNIQUE/i);
+    await expect(verdict(1, false, 'c-1')).rejects.toThrow(/unique|UNIQUE/i);
+    await q(`UPDATE verdicts SET undone_at = ? WHERE client_id = 'c-1'`, [now]);
+    await verdict(null, true, 'c-3');
+  });
+
+  it('keeps the audit trail append-only', async () => {
+    await q(`INSERT INTO audit_events (at, actor_name, action, entity_type, entity_id) VALUES (?, 'sam', 'desk.create', 'desk', '1')`, [now]);
+    await expect(q(`UPDATE audit_events SET action = 'x'`)).rejects.toThrow(/append-only/);
+    await expect(q(`DELETE FROM audit_events`)).rejects.toThrow(/append-only/);
+  });
+
+  it('reverts every migration with down()', async () => {
+    await ds.undoLastMigration({ transaction: 'each' });
+    const tables: Array<{ name: string }> = await q(
+      kind === 'postgres' ? `SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public' AND table_name <> 'migrations'` : `SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT IN ('migrations', 'sqlite_sequence')`,
+    );
+    expect(tables).toEqual([]);
+    await ds.runMigrations();
+  });
+});
