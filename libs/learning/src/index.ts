@@ -5,3 +5,15 @@
  */
 export { compileSeedTerms } from './text/seed-terms.js';
 export type { SeedMatch, SeedTermMatcher } from './text/seed-terms.js';
+
+export { murmur3String, murmur3x86_32 } from './hashing/murmur3.js';
+export { createRng, randomInt, shuffleInPlace } from './random/rng.js';
+export type { Rng } from './random/rng.js';
+export { assertSparseVector, cosineSimilarity, sparseDot, sparseNorm } from './features/sparse-vector.js';
+export type { SparseVector } from './features/sparse-vector.js';
+export { createFeaturizer, DEFAULT_HASH_BITS, normalizeForFeatures } from './features/hashed-featurizer.js';
+export type { Featurizer, FeaturizerOptions } from './features/hashed-featurizer.js';
+export { IdfTable } from './features/idf-table.js';
+export type { IdfTableJson } from './features/idf-table.js';
+export { tfidf } from './features/tfidf.js';
+export type { TfidfOptions } from './features/tfidf.js';
