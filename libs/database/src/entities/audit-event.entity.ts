@@ -12,8 +12,8 @@ export class AuditEventEntity {
   entityType!: string;
   entityId!: string;
   deskId!: number | null;
-  before!: unknown;
-  after!: unknown;
+  before!: Record<string, unknown> | null;
+  after!: Record<string, unknown> | null;
 }
 
 export const auditEventSchema = (d: Dialect) => {

@@ -75,7 +75,6 @@ export class Foundation1764600000000 implements MigrationInterface {
       columns: [c.id(), c.int('desk_id'), c.varchar('name', 100), c.int('position'), c.time('created_at')],
       uniques: [
         { name: 'uq_categories_name', columnNames: ['desk_id', 'name'] },
-        { name: 'uq_categories_position', columnNames: ['desk_id', 'position'] },
         // Target of the composite foreign keys that pin a verdict's category to its desk.
         { name: 'uq_categories_desk', columnNames: ['id', 'desk_id'] },
       ],

@@ -1,0 +1,17 @@
+import { Module } from '@nestjs/common';
+import { APP_GUARD } from '@nestjs/core';
+import { AuthController, UsersController } from './auth.controller.js';
+import { AuthGuard } from './auth.guard.js';
+import { AuthService } from './auth.service.js';
+
+/** Accounts and the global guard; the HTTP app imports it. */
+@Module({
+  controllers: [AuthController, UsersController],
+  providers: [AuthService, { provide: APP_GUARD, useClass: AuthGuard }],
+  exports: [AuthService],
+})
+export class AuthModule {}
+
+/** Accounts without HTTP, for the operator command line. */
+@Module({ providers: [AuthService], exports: [AuthService] })
+export class AuthCoreModule {}

@@ -1,0 +1,6 @@
+export { QUEUES, JOBS, JOB_QUEUE, type QueueName, type JobName, type JobPayloads, type ImportFilePayload, type ReseedDeskPayload } from './queue-names.js';
+export { jobOptions } from './job-options.js';
+export { createRedis } from './redis.js';
+export { JobQueueService, REDIS } from './job-queue.service.js';
+export { QueuesModule } from './queues.module.js';
+export { handlerTable, type JobHandler } from './job-handler.js';
