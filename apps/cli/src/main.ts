@@ -6,6 +6,9 @@
 type Command = (argv: string[]) => Promise<number>;
 
 const commands: Record<string, () => Promise<Command>> = {
+  start: async () => (await import('./start.command.js')).startCommand,
+  user: async () => (await import('./user.command.js')).userCommand,
+  migrate: async () => (await import('./migrate.command.js')).migrateCommand,
 };
 
 async function main(): Promise<void> {

@@ -108,7 +108,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
   const queuePrefix = str('QUEUE_PREFIX') ?? 'cribra';
   if (!/^[A-Za-z0-9_.-]{1,64}$/.test(queuePrefix)) problems.push(`QUEUE_PREFIX=${JSON.stringify(queuePrefix)}: use 1–64 letters, digits, '_', '.', '-'`);
 
-  const logLevel = (str('LOG_LEVEL') ?? 'log') as AppConfig['logLevel'];
+  const logLevel = (str('LOG_LEVEL') ?? 'warn') as AppConfig['logLevel'];
   if (!['error', 'warn', 'log', 'debug'].includes(logLevel)) problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
 
   const config: AppConfig = {

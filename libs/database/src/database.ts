@@ -73,9 +73,27 @@ export class Database {
     return new Date(/[zZ]|[+-]\d\d:?\d\d$/.test(s) ? s : `${s.replace(' ', 'T')}Z`);
   }
 
-  /** Placeholder for the n-th (1-based) parameter of a raw query. */
+  /** Placeholder for the n-th (1-based) parameter of a raw query run through {@link query}. */
   p(n: number): string {
-    return this.pg ? `$${n}` : '?';
+    return `$${n}`;
+  }
+
+  /**
+   * Runs raw SQL written with PostgreSQL's numbered placeholders (`$1`, `$2`…)
+   * on either database: for SQLite each `$n` becomes `?` with its parameter
+   * repeated in order, so one SQL text serves both.
+   */
+  async query<T = Record<string, unknown>>(m: EntityManager | null, sql: string, params: unknown[] = []): Promise<T[]> {
+    const runner = m ?? this.dataSource.manager;
+    if (this.pg) return runner.query(sql, params) as Promise<T[]>;
+    const ordered: unknown[] = [];
+    const text = sql.replace(/\$(\d+)/g, (_, n: string) => {
+      const i = Number(n) - 1;
+      if (i < 0 || i >= params.length) throw new RangeError(`query: placeholder $${n} has no parameter (got ${params.length})`);
+      ordered.push(params[i]);
+      return '?';
+    });
+    return runner.query(text, ordered) as Promise<T[]>;
   }
 
   async close(): Promise<void> {

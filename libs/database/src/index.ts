@@ -12,3 +12,4 @@ export { ItemEntity, ITEM_STATES, type ItemState } from './entities/item.entity.
 export { LeaseEntity, DRAW_KINDS, TRIAGE_CALLS, type DrawKind, type TriageCall, type ShownPrediction } from './entities/lease.entity.js';
 export { VerdictEntity } from './entities/verdict.entity.js';
 export { AuditEventEntity } from './entities/audit-event.entity.js';
+export { isUniqueViolation } from './errors.js';

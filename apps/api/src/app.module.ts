@@ -1,0 +1,24 @@
+import { Module, type DynamicModule } from '@nestjs/common';
+import { ConfigModule, type AppConfig } from '#config';
+import { AuditModule } from '#audit';
+import { AuthModule } from '#auth';
+import { DatabaseModule } from '#database';
+import { DesksModule } from '#desks';
+import { ImportsModule } from '#imports';
+import { LeasesModule } from '#leases';
+import { QueuesModule } from '#queues';
+import { VerdictsModule } from '#verdicts';
+import { AuditController } from './audit.controller.js';
+import { HealthController } from './health.controller.js';
+
+/** The HTTP application: every route of the API. It registers no queue processors. */
+@Module({})
+export class ApiModule {
+  static forRoot(config: AppConfig): DynamicModule {
+    return {
+      module: ApiModule,
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule],
+      controllers: [HealthController, AuditController],
+    };
+  }
+}

@@ -1,0 +1,74 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+import { ConfigError, configToEnv, loadConfig, type AppConfig } from '#config';
+import { openDatabase } from '#database';
+import { parseFlags } from './args.js';
+import { RedisMissingError, startPrivateRedis } from './redis-launcher.js';
+
+const apiMain = fileURLToPath(new URL('../../api/src/main.js', import.meta.url));
+const workerMain = fileURLToPath(new URL('../../worker/src/main.js', import.meta.url));
+
+/**
+ * `start`: runs the whole service on one machine: a private Redis when
+ * REDIS_URL is not set, the migrations, then the API and `--workers N`
+ * worker processes. Stops them all on SIGINT/SIGTERM or when one dies.
+ */
+export async function startCommand(argv: string[]): Promise<number> {
+  let flags;
+  let config: AppConfig;
+  try {
+    flags = parseFlags(argv, { workers: 'string' });
+    config = loadConfig();
+  } catch (e) {
+    process.stderr.write(`${(e as Error).message}\n`);
+    return 2;
+  }
+  const workers = flags.workers === undefined ? 1 : Number(flags.workers);
+  if (!Number.isInteger(workers) || workers < 0 || workers > 16) {
+    process.stderr.write(`--workers ${JSON.stringify(flags.workers)}: expected a whole number from 0 to 16\n`);
+    return 2;
+  }
+  let redis: Awaited<ReturnType<typeof startPrivateRedis>> | null = null;
+  if (!config.redisUrl) {
+    try {
+      redis = await startPrivateRedis(config.dataDir);
+    } catch (e) {
+      process.stderr.write(`${(e as Error).message}\n`);
+      return e instanceof RedisMissingError ? 3 : 1;
+    }
+    config = { ...config, redisUrl: redis.url };
+    process.stdout.write(`private redis-server at ${redis.url} (files in ${config.dataDir}/redis)\n`);
+  }
+  const ds = await openDatabase(config.database);
+  await ds.destroy();
+
+  const env = { ...process.env, ...configToEnv(config) };
+  const children: ChildProcess[] = [];
+  let stopping = false;
+  const stopAll = async (code: number) => {
+    if (stopping) return;
+    stopping = true;
+    for (const c of children) if (c.exitCode === null) c.kill('SIGTERM');
+    await Promise.all(children.map((c) => (c.exitCode !== null ? Promise.resolve() : new Promise((r) => c.once('exit', r)))));
+    await redis?.stop();
+    process.exit(code);
+  };
+  const run = (name: string, file: string) => {
+    const child = spawn(process.execPath, ['--enable-source-maps', file], { env, stdio: 'inherit' });
+    child.on('exit', (code, signal) => {
+      if (!stopping) {
+        process.stderr.write(`${name} stopped (${signal ?? `code ${code}`}); stopping the rest\n`);
+        void stopAll(code ?? 1);
+      }
+    });
+    children.push(child);
+  };
+  run('api', apiMain);
+  for (let i = 0; i < workers; i++) run(`worker ${i + 1}`, workerMain);
+  process.on('SIGINT', () => void stopAll(0));
+  process.on('SIGTERM', () => void stopAll(0));
+  process.stdout.write(`Cribra is starting at http://${config.host}:${config.port}/ (API document: /api/docs; Ctrl+C stops)\n`);
+  return new Promise<number>(() => undefined);
+}
+
+export { ConfigError };

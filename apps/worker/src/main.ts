@@ -1,0 +1,33 @@
+import 'reflect-metadata';
+import { Logger } from '@nestjs/common';
+import { NestFactory } from '@nestjs/core';
+import { ConfigError, loadConfig } from '#config';
+import { WorkerModule } from './worker.module.js';
+
+async function main(): Promise<void> {
+  let config;
+  try {
+    config = loadConfig();
+  } catch (e) {
+    if (e instanceof ConfigError) {
+      process.stderr.write(`${e.message}\n`);
+      process.exit(2);
+    }
+    throw e;
+  }
+  const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['fatal', 'error', 'warn', 'log'] });
+  const logger = new Logger('Worker');
+  let closing = false;
+  const stop = async (signal: string) => {
+    if (closing) return;
+    closing = true;
+    logger.log(`${signal}: finishing current jobs, then stopping`);
+    await app.close();
+    process.exit(0);
+  };
+  process.on('SIGINT', () => void stop('SIGINT'));
+  process.on('SIGTERM', () => void stop('SIGTERM'));
+  logger.log('worker started');
+}
+
+await main();

@@ -1,0 +1,48 @@
+import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
+import { UnrecoverableError, Worker } from 'bullmq';
+import { APP_CONFIG, type AppConfig } from '#config';
+import { createRedis, handlerTable, JOB_QUEUE, QUEUES, type JobHandler, type JobName } from '#queues';
+import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
+
+export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
+
+/**
+ * Runs one BullMQ worker per queue and dispatches each job to the one handler
+ * of its name. The handler table is checked at start-up.
+ */
+@Injectable()
+export class WorkersService implements OnApplicationBootstrap, OnApplicationShutdown {
+  private readonly logger = new Logger('Workers');
+  private readonly workers: Worker[] = [];
+  private readonly table: Map<JobName, JobHandler>;
+
+  constructor(@Inject(APP_CONFIG) private readonly config: AppConfig, @Inject(JOB_HANDLERS) handlers: JobHandler[]) {
+    this.table = handlerTable(handlers);
+  }
+
+  onApplicationBootstrap(): void {
+    if (!this.config.redisUrl) throw new Error('REDIS_URL is not set');
+    for (const queue of Object.values(QUEUES)) {
+      const connection = createRedis(this.config.redisUrl, `cribra-worker-${queue}-${process.pid}`);
+      const worker = new Worker(
+        queue,
+        async (job) => {
+          const handler = this.table.get(job.name as JobName);
+          if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
+          return handler.handle(job as never);
+        },
+        { connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: 60_000 },
+      );
+      worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
+      worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));
+      this.workers.push(worker);
+    }
+    this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
+  }
+
+  async onApplicationShutdown(): Promise<void> {
+    await Promise.all(this.workers.map((w) => w.close()));
+  }
+}
+
+export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor];

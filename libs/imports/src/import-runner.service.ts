@@ -1,0 +1,116 @@
+import { createReadStream, existsSync, rmSync } from 'node:fs';
+import { Inject, Injectable, Logger } from '@nestjs/common';
+import { UnrecoverableError } from 'bullmq';
+import type { EntityManager } from 'typeorm';
+import { APP_CONFIG, type AppConfig } from '#config';
+import { Database, DeskEntity, ImportEntity, type ImportRowError } from '#database';
+import { compileSeedTerms, type SeedTermMatcher } from '#learning';
+import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } from './parsing/index.js';
+import { uploadPath } from './imports.service.js';
+
+const MAX_STORED_ERRORS = 1000;
+const ITEM_COLUMNS = ['desk_id', 'import_id', 'external_id', 'source', 'text', 'normalized_text', 'normalized_hash', 'meta', 'posted_at', 'imported_at', 'state', 'seed_hits', 'priority', 'rand_key'] as const;
+
+/**
+ * The worker side of imports: reads the uploaded file row by row and writes
+ * items in batches. Each batch and the import's counters commit in one
+ * transaction, so a crash leaves whole batches and counters that say what
+ * landed; a retried job resumes after the last committed row.
+ */
+@Injectable()
+export class ImportRunner {
+  private readonly logger = new Logger('ImportRunner');
+
+  constructor(@Inject(Database) private readonly db: Database, @Inject(APP_CONFIG) private readonly config: AppConfig) {}
+
+  async run(importId: string, reportProgress: (rowsRead: number) => Promise<void> = async () => undefined): Promise<ImportEntity> {
+    const imp = await this.db.manager.findOneBy(ImportEntity, { id: importId });
+    if (!imp) throw new UnrecoverableError(`no import ${importId}`);
+    if (imp.state === 'done' || imp.state === 'failed') return imp;
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: imp.deskId });
+    if (!desk) throw new UnrecoverableError(`desk ${imp.deskId} of import ${importId} is gone`);
+    const path = uploadPath(this.config, importId);
+    if (!existsSync(path)) {
+      await this.fail(importId, 'the uploaded file is missing from the data folder');
+      throw new UnrecoverableError(`upload of import ${importId} is missing`);
+    }
+    await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'running', ...(imp.startedAt ? {} : { startedAt: new Date() }) }));
+    const matcher = compileSeedTerms(desk.seedTerms);
+    const resumeAfter = imp.rowsCommitted;
+    let records: ImportRecord[] = [];
+    let rejected: RejectedRow[] = [];
+    let lastRow = resumeAfter;
+    let storedErrors = imp.errors.length;
+    const flush = async () => {
+      if (records.length === 0 && rejected.length === 0) return;
+      const batch = records;
+      const bad = rejected;
+      const upTo = lastRow;
+      records = [];
+      rejected = [];
+      await this.db.write(async (m) => {
+        const inserted = batch.length ? await this.insertItems(m, desk.id, importId, batch, matcher) : 0;
+        const cur = (await m.findOneBy(ImportEntity, { id: importId }))!;
+        const room = Math.max(0, MAX_STORED_ERRORS - cur.errors.length);
+        const errors: ImportRowError[] = room > 0 ? [...cur.errors, ...bad.slice(0, room)] : cur.errors;
+        storedErrors = errors.length;
+        await m.update(ImportEntity, { id: importId }, {
+          rowsRead: cur.rowsRead + batch.length + bad.length,
+          imported: cur.imported + inserted,
+          duplicates: cur.duplicates + batch.length - inserted,
+          rejected: cur.rejected + bad.length,
+          errors: errors as never,
+          rowsCommitted: upTo,
+        });
+      });
+      await reportProgress(upTo);
+    };
+
+    try {
+      for await (const row of parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, { maxTextLength: this.config.maxTextLength })) {
+        const n = row.ok ? row.record.row : row.rejected.row;
+        if (n <= resumeAfter) continue;
+        lastRow = n;
+        if (row.ok) records.push(row.record);
+        else rejected.push(row.rejected);
+        if (records.length + rejected.length >= this.config.importBatchSize) await flush();
+      }
+      await flush();
+    } catch (e) {
+      if (e instanceof ImportFileError) {
+        await flush().catch(() => undefined);
+        await this.fail(importId, `row ${e.row}: ${e.message}`);
+        rmSync(path, { force: true });
+        throw new UnrecoverableError(e.message);
+      }
+      throw e;
+    }
+    void storedErrors;
+    await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'done', finishedAt: new Date() }));
+    rmSync(path, { force: true });
+    const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
+    this.logger.log(`import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`);
+    return done;
+  }
+
+  private async fail(importId: string, failure: string): Promise<void> {
+    await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'failed', failure, finishedAt: new Date() }));
+  }
+
+  /** Inserts a batch; rows that collide with an existing external id or text are skipped and counted as duplicates. */
+  private async insertItems(m: EntityManager, deskId: number, importId: string, batch: ImportRecord[], matcher: SeedTermMatcher): Promise<number> {
+    const now = this.db.time(new Date());
+    const params: unknown[] = [];
+    const tuples: string[] = [];
+    for (const r of batch) {
+      const hits = matcher.count(r.text);
+      const values = [deskId, importId, r.externalId, r.source, r.text, r.normalizedText, r.textHash, JSON.stringify(r.meta), r.createdAt ? this.db.time(r.createdAt) : null, now, 'open', hits, hits, Math.random()];
+      tuples.push(`(${values.map((v) => { params.push(v); return this.db.p(params.length); }).join(', ')})`);
+    }
+    const rows: Array<{ id: number }> = await this.db.query(m, 
+      `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING id`,
+      params,
+    );
+    return rows.length;
+  }
+}

@@ -1,0 +1,13 @@
+import { Module } from '@nestjs/common';
+import { ImportRunner } from './import-runner.service.js';
+import { ImportsController } from './imports.controller.js';
+import { ImportsService } from './imports.service.js';
+import { ReseedService } from './reseed.service.js';
+
+/** HTTP side: upload and status. */
+@Module({ controllers: [ImportsController], providers: [ImportsService], exports: [ImportsService] })
+export class ImportsModule {}
+
+/** Worker side: reading files into items, recounting seed terms. */
+@Module({ providers: [ImportRunner, ReseedService], exports: [ImportRunner, ReseedService] })
+export class ImportsWorkModule {}

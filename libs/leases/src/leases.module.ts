@@ -1,0 +1,11 @@
+import { Module } from '@nestjs/common';
+import { HighlightService } from './highlight.service.js';
+import { LeasesController } from './leases.controller.js';
+import { LEASE_RANDOM, LeasesService } from './leases.service.js';
+
+@Module({
+  controllers: [LeasesController],
+  providers: [LeasesService, HighlightService, { provide: LEASE_RANDOM, useValue: Math.random }],
+  exports: [LeasesService, HighlightService],
+})
+export class LeasesModule {}

@@ -1,0 +1,68 @@
+import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Database, DeskEntity } from '#database';
+
+export interface DeskProgress {
+  deskId: number;
+  items: { total: number; open: number; leased: number; decided: number };
+  verdicts: { total: number; byCategory: Record<string, number>; abstain: number; byDraw: Record<string, number>; undone: number };
+  reviewersActiveLastHour: number;
+  /** Per reviewer counts; only for roles that may see other reviewers' work. */
+  reviewers?: Array<{ name: string; verdicts: number; lastAt: Date | null }>;
+  currentModelVersion: number | null;
+}
+
+/** Counts behind `GET /api/desks/:deskId/progress`. */
+@Injectable()
+export class ProgressService {
+  constructor(@Inject(Database) private readonly db: Database) {}
+
+  async progress(deskId: number, withReviewers: boolean): Promise<DeskProgress> {
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
+    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    const p = (n: number) => this.db.p(n);
+    const q = <T>(sql: string, params: unknown[]) => this.db.query<T>(null, sql, params);
+    const now = this.db.time(new Date());
+    const [states, cats, draws, undone, active] = await Promise.all([
+      q<{ state: string; leased: number | string; n: number | string }>(
+        `SELECT state, CASE WHEN leased_until IS NOT NULL AND leased_until > ${p(2)} THEN 1 ELSE 0 END AS leased, COUNT(*) AS n FROM items WHERE desk_id = ${p(1)} GROUP BY state, CASE WHEN leased_until IS NOT NULL AND leased_until > ${p(2)} THEN 1 ELSE 0 END`,
+        [deskId, now],
+      ),
+      q<{ name: string | null; n: number | string }>(
+        `SELECT c.name, COUNT(*) AS n FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = ${p(1)} AND v.undone_at IS NULL GROUP BY c.name`,
+        [deskId],
+      ),
+      q<{ draw: string; n: number | string }>(`SELECT draw, COUNT(*) AS n FROM verdicts WHERE desk_id = ${p(1)} AND undone_at IS NULL GROUP BY draw`, [deskId]),
+      q<{ n: number | string }>(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = ${p(1)} AND undone_at IS NOT NULL`, [deskId]),
+      q<{ n: number | string }>(`SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = ${p(1)} AND created_at > ${p(2)}`, [deskId, this.db.time(new Date(Date.now() - 3600_000))]),
+    ]);
+    const items = { total: 0, open: 0, leased: 0, decided: 0 };
+    for (const s of states) {
+      const n = Number(s.n);
+      items.total += n;
+      if (s.state === 'decided') items.decided += n;
+      else if (Number(s.leased) === 1) items.leased += n;
+      else items.open += n;
+    }
+    const byCategory: Record<string, number> = {};
+    let abstain = 0;
+    for (const c of cats) {
+      if (c.name === null) abstain += Number(c.n);
+      else byCategory[c.name] = Number(c.n);
+    }
+    const byDraw: Record<string, number> = { seed: 0, uncertainty: 0, random: 0, 'second-opinion': 0 };
+    for (const d of draws) byDraw[d.draw] = Number(d.n);
+    const total = Object.values(byCategory).reduce((a, b) => a + b, 0) + abstain;
+    const out: DeskProgress = {
+      deskId, items, verdicts: { total, byCategory, abstain, byDraw, undone: Number(undone[0]?.n ?? 0) },
+      reviewersActiveLastHour: Number(active[0]?.n ?? 0), currentModelVersion: desk.currentModelVersion,
+    };
+    if (withReviewers) {
+      const rows = await q<{ name: string; n: number | string; last_at: unknown }>(
+        `SELECT u.name, COUNT(*) AS n, MAX(v.created_at) AS last_at FROM verdicts v JOIN users u ON u.id = v.reviewer_id WHERE v.desk_id = ${p(1)} AND v.undone_at IS NULL GROUP BY u.name ORDER BY u.name`,
+        [deskId],
+      );
+      out.reviewers = rows.map((r) => ({ name: r.name, verdicts: Number(r.n), lastAt: this.db.parseTime(r.last_at) }));
+    }
+    return out;
+  }
+}

@@ -1,0 +1,56 @@
+import { BadRequestException, Body, Controller, Get, Inject, Param, ParseIntPipe, Post, Query, Res } from '@nestjs/common';
+import { ApiTags } from '@nestjs/swagger';
+import type { Response } from 'express';
+import { CurrentUser, Roles, type Principal } from '#auth';
+import { CreateVerdictDto } from './verdict.dto.js';
+import { ProgressService } from './progress.service.js';
+import { VerdictsService } from './verdicts.service.js';
+
+const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SAFE_INTEGER): number | undefined => {
+  if (v === undefined || v === '') return undefined;
+  if (!/^\d+$/.test(v) || Number(v) < 1 || Number(v) > max) throw new BadRequestException(`${name}: expected a whole number from 1 to ${max}`);
+  return Number(v);
+};
+
+@ApiTags('verdicts')
+@Controller('api')
+export class VerdictsController {
+  constructor(@Inject(VerdictsService) private readonly verdicts: VerdictsService, @Inject(ProgressService) private readonly progressService: ProgressService) {}
+
+  /** 201 with the new verdict; 200 with the stored one when the clientId was seen before. */
+  @Roles('reviewer')
+  @Post('desks/:deskId/verdicts')
+  async create(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Body() body: CreateVerdictDto, @Res({ passthrough: true }) res: Response) {
+    const { verdict, replayed } = await this.verdicts.submit(user, deskId, body);
+    res.status(replayed ? 200 : 201);
+    return { verdict };
+  }
+
+  @Roles('reviewer')
+  @Post('verdicts/:verdictId/undo')
+  async undo(@CurrentUser() user: Principal, @Param('verdictId', ParseIntPipe) verdictId: number) {
+    return { verdict: await this.verdicts.undo(user, verdictId) };
+  }
+
+  /** Every reviewer's verdicts on a desk: for supervisors and auditors only. */
+  @Roles('supervisor', 'auditor')
+  @Get('desks/:deskId/verdicts')
+  async list(@Param('deskId', ParseIntPipe) deskId: number, @Query('before') before?: string, @Query('limit') limit?: string, @Query('reviewer') reviewer?: string) {
+    const reviewerId = reviewer ? await this.verdicts.userId(reviewer) : undefined;
+    if (reviewer && reviewerId === null) return { verdicts: [] };
+    return { verdicts: await this.verdicts.listForDesk(deskId, { before: intOrUndefined('before', before), limit: intOrUndefined('limit', limit, 1000) ?? 100, reviewerId: reviewerId ?? undefined }) };
+  }
+
+  /** The signed-in reviewer's own verdicts on a desk, newest first. */
+  @Roles('reviewer')
+  @Get('desks/:deskId/verdicts/mine')
+  async mine(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Query('limit') limit?: string) {
+    return { verdicts: await this.verdicts.listForDesk(deskId, { limit: intOrUndefined('limit', limit, 1000) ?? 20, reviewerId: user.id }) };
+  }
+
+  @Roles('reviewer', 'supervisor', 'auditor', 'admin')
+  @Get('desks/:deskId/progress')
+  progress(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number) {
+    return this.progressService.progress(deskId, user.role === 'supervisor' || user.role === 'auditor');
+  }
+}

@@ -1,0 +1,7 @@
+import { Module } from '@nestjs/common';
+import { ProgressService } from './progress.service.js';
+import { VerdictsController } from './verdicts.controller.js';
+import { VerdictsService } from './verdicts.service.js';
+
+@Module({ controllers: [VerdictsController], providers: [VerdictsService, ProgressService], exports: [VerdictsService, ProgressService] })
+export class VerdictsModule {}
