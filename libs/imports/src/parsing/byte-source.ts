@@ -1,10 +1,11 @@
 /**
  * What {@link parseImport} reads: any async iterable of byte chunks, such as
- * an HTTP request, a multipart file stream or `fs.createReadStream`. A Node
- * stream must not have an encoding set: string chunks are accepted but have
- * already been decoded, so invalid UTF-8 in them can no longer be detected.
+ * an HTTP request, a multipart file stream or `fs.createReadStream`, or an
+ * array (any iterable) of byte chunks already in memory. A Node stream must
+ * not have an encoding set: string chunks are accepted but have already
+ * been decoded, so invalid UTF-8 in them can no longer be detected.
  */
-export type ImportInput = AsyncIterable<Uint8Array | string> | NodeJS.ReadableStream;
+export type ImportInput = AsyncIterable<Uint8Array | string> | Iterable<Uint8Array> | NodeJS.ReadableStream;
 
 const BOM = [0xef, 0xbb, 0xbf] as const;
 
@@ -39,7 +40,7 @@ function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
 export async function* readByteChunks(input: ImportInput, signal: AbortSignal | undefined): AsyncGenerator<Uint8Array> {
   let head: Uint8Array | null = new Uint8Array(0);
   signal?.throwIfAborted();
-  for await (const raw of input as AsyncIterable<Uint8Array | string>) {
+  for await (const raw of input as AsyncIterable<Uint8Array | string> | Iterable<Uint8Array>) {
     signal?.throwIfAborted();
     let chunk = toBytes(raw);
     if (head !== null) {
