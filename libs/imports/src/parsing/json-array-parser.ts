@@ -1,6 +1,6 @@
 import { ByteBuffer } from './byte-buffer.js';
 import { ImportFileError, type ParsedRow, type ResolvedParseOptions } from './import-record.js';
-import { parseJsonRow } from './ndjson-parser.js';
+import { parseJsonRow } from './json-row.js';
 import { rejectedRow } from './record-builder.js';
 
 const OPEN_BRACKET = 0x5b;

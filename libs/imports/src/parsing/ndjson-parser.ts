@@ -1,7 +1,7 @@
 import { ByteBuffer } from './byte-buffer.js';
 import type { ParsedRow, ResolvedParseOptions } from './import-record.js';
-import { buildRecord, rejectedRow } from './record-builder.js';
-import { decodeUtf8, describeInvalidByte, findInvalidUtf8 } from './utf8.js';
+import { parseJsonRow } from './json-row.js';
+import { rejectedRow } from './record-builder.js';
 
 const LF = 0x0a;
 const CR = 0x0d;
@@ -73,33 +73,6 @@ function isBlank(bytes: Uint8Array): boolean {
     if (b !== 0x20 && b !== 0x09 && b !== CR && b !== LF) return false;
   }
   return true;
-}
-
-/** Describes a parsed JSON value that is not an object, for a rejection reason. */
-export function describeJsonValue(value: unknown): string {
-  if (value === null) return 'null';
-  if (Array.isArray(value)) return 'an array';
-  return `a ${typeof value}`;
-}
-
-/**
- * Parses one JSON document (an NDJSON line, a JSON array element) into a
- * row; `where` names it in the invalid-UTF-8 reason ("line", "element").
- */
-export function parseJsonRow(row: number, bytes: Uint8Array, where: string, format: 'ndjson' | 'json', options: ResolvedParseOptions): ParsedRow {
-  const invalid = findInvalidUtf8(bytes);
-  if (invalid >= 0) return rejectedRow(row, `invalid UTF-8 (${describeInvalidByte(bytes, invalid)} of the ${where})`);
-  let value: unknown;
-  try {
-    value = JSON.parse(decodeUtf8(bytes));
-  } catch (error) {
-    if (error instanceof SyntaxError) return rejectedRow(row, `malformed JSON: ${error.message}`);
-    throw error;
-  }
-  if (value === null || typeof value !== 'object' || Array.isArray(value)) {
-    return rejectedRow(row, `expected a JSON object, got ${describeJsonValue(value)}`);
-  }
-  return buildRecord(row, Object.entries(value), format, options);
 }
 
 /**

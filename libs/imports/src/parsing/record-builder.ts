@@ -10,7 +10,8 @@ export const MAX_SHORT_FIELD_LENGTH = 1000;
 // matches only unpaired surrogates, which no UTF-8 database column can hold.
 const LONE_SURROGATE = /\p{Cs}/u;
 
-function describeType(value: unknown): string {
+/** The kind of a JSON value, with its article, for rejection reasons ("an array", "null"). */
+export function describeType(value: unknown): string {
   if (value === null) return 'null';
   if (Array.isArray(value)) return 'an array';
   if (typeof value === 'object') return 'an object';
