@@ -1,0 +1,128 @@
+import { randomBytes } from 'node:crypto';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { INestApplication, INestApplicationContext } from '@nestjs/common';
+import { NestFactory } from '@nestjs/core';
+import { Queue } from 'bullmq';
+import { Redis } from 'ioredis';
+import { createHttpApp } from '../../apps/api/src/http-app.js';
+import { WorkerModule } from '../../apps/worker/src/worker.module.js';
+import { AuthService } from '#auth';
+import { parseConfig, type AppConfig } from '#config';
+import { Database, type Role } from '#database';
+import { QUEUES } from '#queues';
+import { createTestDatabase, type TestDatabase } from './databases.js';
+
+export const TEST_REDIS_URL = process.env.TEST_REDIS_URL ?? 'redis://127.0.0.1:6379';
+
+export interface Reply<T = any> {
+  status: number;
+  body: T;
+  headers: Headers;
+}
+
+/** A running API (and, unless asked otherwise, a worker) on a fresh database, a fresh data folder and its own queue prefix. */
+export interface Stack {
+  kind: 'sqlite' | 'postgres';
+  config: AppConfig;
+  base: string;
+  api: INestApplication;
+  worker: INestApplicationContext | null;
+  db: Database;
+  tokens: Record<string, string>;
+  /** Creates a user directly; returns its API token. */
+  user(name: string, role: Role, password?: string): Promise<string>;
+  call<T = any>(token: string | null, method: string, path: string, body?: unknown, headers?: Record<string, string>): Promise<Reply<T>>;
+  waitForQueuesIdle(timeoutMs?: number): Promise<void>;
+  stop(): Promise<void>;
+}
+
+export interface StackOptions {
+  worker?: boolean;
+  env?: Record<string, string>;
+}
+
+export async function startStack(kind: 'sqlite' | 'postgres', options: StackOptions = {}): Promise<Stack> {
+  const tdb: TestDatabase = await createTestDatabase(kind);
+  const dataDir = mkdtempSync(join(tmpdir(), 'cribra-data-'));
+  // Its own queue prefix: this test's jobs never meet another test's.
+  const queuePrefix = `cribra-test-${randomBytes(4).toString('hex')}`;
+  const config = parseConfig({ DATA_DIR: dataDir, DATABASE_URL: tdb.config.url, REDIS_URL: TEST_REDIS_URL, QUEUE_PREFIX: queuePrefix, LOG_LEVEL: 'error', DEMO: 'off', ...options.env });
+  const api = await createHttpApp(config);
+  await api.listen(0, '127.0.0.1');
+  const server = api.getHttpServer();
+  const addr = server.address() as { port: number };
+  const base = `http://127.0.0.1:${addr.port}`;
+  const worker = options.worker === false ? null : await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['error'] });
+  const auth = api.get(AuthService);
+  const db = api.get(Database);
+  const tokens: Record<string, string> = {};
+  const user = async (name: string, role: Role, password?: string) => {
+    const { token } = await auth.createUser({ id: null, name: 'test' }, { name, role, password });
+    tokens[name] = token;
+    return token;
+  };
+  const call = async <T>(token: string | null, method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<Reply<T>> => {
+    const h: Record<string, string> = { ...headers };
+    if (token) h.authorization = `Bearer ${token}`;
+    let payload: BodyInit | undefined;
+    if (body !== undefined) {
+      if (typeof body === 'string' || body instanceof Uint8Array || body instanceof FormData) payload = body as BodyInit;
+      else {
+        payload = JSON.stringify(body);
+        h['content-type'] ??= 'application/json';
+      }
+    }
+    const res = await fetch(`${base}${path}`, { method, headers: h, body: payload });
+    const text = await res.text();
+    let parsed: unknown = text;
+    try {
+      parsed = text ? JSON.parse(text) : null;
+    } catch {
+      /* not JSON: keep the text */
+    }
+    return { status: res.status, body: parsed as T, headers: res.headers };
+  };
+  const waitForQueuesIdle = async (timeoutMs = 60_000) => {
+    const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
+    const queues = Object.values(QUEUES).map((q) => new Queue(q, { connection, prefix: queuePrefix }));
+    try {
+      const deadline = Date.now() + timeoutMs;
+      for (;;) {
+        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'delayed', 'prioritized', 'waiting-children')));
+        if (counts.every((c) => Object.values(c).every((n) => n === 0))) return;
+        if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}`);
+        await new Promise((r) => setTimeout(r, 50));
+      }
+    } finally {
+      await Promise.all(queues.map((q) => q.close()));
+      connection.disconnect();
+    }
+  };
+  const stop = async () => {
+    await worker?.close();
+    await api.close();
+    const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
+    for (const q of Object.values(QUEUES)) {
+      const queue = new Queue(q, { connection, prefix: queuePrefix });
+      await queue.obliterate({ force: true });
+      await queue.close();
+    }
+    connection.disconnect();
+    rmSync(dataDir, { recursive: true, force: true });
+    await tdb.drop();
+  };
+  return { kind, config, base, api, worker, db, tokens, user, call, waitForQueuesIdle, stop };
+}
+
+/** Polls until `probe` returns a value other than undefined. */
+export async function eventually<T>(probe: () => Promise<T | undefined>, timeoutMs = 30_000, what = 'condition'): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > deadline) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
