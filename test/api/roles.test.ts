@@ -1,0 +1,122 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DATABASE_KINDS } from '../support/databases.js';
+import { eventually, startStack, type Stack } from '../support/stack.js';
+
+type Who = 'anonymous' | 'reviewer' | 'supervisor' | 'auditor' | 'admin';
+const ROLES: Who[] = ['reviewer', 'supervisor', 'auditor', 'admin'];
+const ALL: Who[] = [...ROLES];
+
+interface Route {
+  method: string;
+  path: string;
+  allowed: Who[];
+  body?: () => unknown;
+  headers?: Record<string, string>;
+}
+
+describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
+  let s: Stack;
+  const token: Partial<Record<Who, string>> = {};
+  let deskId = 0;
+  let importId = '';
+  let leaseId = '';
+  let verdictId = 0;
+  let n = 0;
+
+  beforeAll(async () => {
+    s = await startStack(kind);
+    for (const r of ROLES) token[r] = await s.user(`the-${r}`, r, 'a-long-password');
+    const d = await s.call(token.supervisor!, 'POST', '/api/desks', { name: 'matrix', categories: ['threat', 'ok'] });
+    deskId = d.body.id;
+    const imp = await s.call(token.supervisor!, 'POST', `/api/desks/${deskId}/imports`, Array.from({ length: 50 }, (_, i) => JSON.stringify({ text: `post ${i}` })).join('\n'), { 'content-type': 'application/x-ndjson' });
+    importId = imp.body.importId;
+    await eventually(async () => ((await s.call(token.supervisor!, 'GET', `/api/imports/${importId}`)).body.state === 'done' ? true : undefined));
+    const l = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/leases`);
+    leaseId = l.body.lease.id;
+    const v = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId, itemId: l.body.item.id, category: 'ok', clientId: 'matrix-0' });
+    verdictId = v.body.verdict.id;
+  });
+  afterAll(async () => s?.stop());
+
+  // Who may do what. Reviewers decide but cannot change settings or read others' verdicts;
+  // auditors read but cannot decide; admins manage accounts.
+  const routes = (): Route[] => [
+    { method: 'GET', path: '/api/auth/me', allowed: ALL },
+    { method: 'POST', path: '/api/auth/tokens', allowed: ALL, body: () => ({ label: 'matrix' }) },
+    { method: 'POST', path: '/api/auth/logout', allowed: ALL },
+    { method: 'GET', path: '/api/users', allowed: ['admin'] },
+    { method: 'POST', path: '/api/users', allowed: ['admin'], body: () => ({ name: `made-${n++}`, role: 'reviewer' }) },
+    { method: 'PATCH', path: '/api/users/1', allowed: ['admin'], body: () => ({ role: 'reviewer' }) },
+    { method: 'POST', path: '/api/desks', allowed: ['supervisor'], body: () => ({ name: `desk-${n++}`, categories: ['a', 'b'] }) },
+    { method: 'GET', path: '/api/desks', allowed: ['reviewer', 'supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}`, allowed: ['reviewer', 'supervisor', 'auditor'] },
+    { method: 'PATCH', path: `/api/desks/${deskId}`, allowed: ['supervisor'], body: () => ({ randomShare: 0.2 }) },
+    { method: 'POST', path: `/api/desks/${deskId}/imports`, allowed: ['supervisor'], body: () => `{"text":"row ${n++}"}\n`, headers: { 'content-type': 'application/x-ndjson' } },
+    { method: 'GET', path: `/api/desks/${deskId}/imports`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/imports/${importId}`, allowed: ['supervisor', 'auditor'] },
+    { method: 'POST', path: `/api/desks/${deskId}/leases`, allowed: ['reviewer'] },
+    { method: 'GET', path: `/api/desks/${deskId}/leases/mine`, allowed: ['reviewer'] },
+    { method: 'DELETE', path: `/api/leases/${leaseId}`, allowed: ['reviewer'] },
+    { method: 'POST', path: `/api/desks/${deskId}/verdicts`, allowed: ['reviewer'], body: () => ({ leaseId, itemId: 1, category: 'ok', clientId: 'matrix-0' }) },
+    { method: 'POST', path: `/api/verdicts/${verdictId}/undo`, allowed: ['reviewer'] },
+    { method: 'GET', path: `/api/desks/${deskId}/verdicts`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/verdicts/mine`, allowed: ['reviewer'] },
+    { method: 'GET', path: `/api/desks/${deskId}/progress`, allowed: ['reviewer', 'supervisor', 'auditor', 'admin'] },
+    { method: 'GET', path: '/api/audit', allowed: ['auditor', 'admin', 'supervisor'] },
+    { method: 'GET', path: '/api/docs-json', allowed: ALL },
+  ];
+
+  it('allows each role exactly its routes, and nobody unauthenticated', async () => {
+    const failures: string[] = [];
+    for (const r of routes()) {
+      for (const who of ['anonymous', ...ROLES] as Who[]) {
+        // A fresh token per call: logout revokes nothing for bearer tokens, but keep calls independent.
+        const t = who === 'anonymous' ? null : token[who]!;
+        const res = await s.call(t, r.method, r.path, r.body?.(), r.headers);
+        const expected = who === 'anonymous' ? [401] : r.allowed.includes(who) ? null : [403];
+        const ok = expected ? expected.includes(res.status) : res.status !== 401 && res.status !== 403 && res.status < 500;
+        if (!ok) failures.push(`${r.method} ${r.path} as ${who}: ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
+      }
+    }
+    expect(failures).toEqual([]);
+  });
+
+  it('covers every route of the API document', async () => {
+    const doc = await s.call(token.admin!, 'GET', '/api/docs-json');
+    const documented = Object.entries(doc.body.paths as Record<string, Record<string, unknown>>).flatMap(([path, ops]) => Object.keys(ops).map((m) => `${m.toUpperCase()} ${path}`));
+    const pattern = (p: string) => p.replace(/\{[^}]+\}/g, '[^/]+');
+    const tested = routes().map((r) => `${r.method} ${r.path}`);
+    const public_ = ['GET /healthz', 'GET /readyz', 'POST /api/auth/login'];
+    const untested = documented.filter((d) => !public_.includes(d) && !tested.some((t) => new RegExp(`^${pattern(d)}$`).test(t)));
+    expect(untested).toEqual([]);
+  });
+
+  it('lets anyone reach only the health checks and the sign-in', async () => {
+    expect((await s.call(null, 'GET', '/healthz')).status).toBe(200);
+    expect((await s.call(null, 'GET', '/readyz')).status).toBe(200);
+    expect((await s.call(null, 'GET', '/api/docs')).status).toBe(401);
+    const bad = await s.call(null, 'POST', '/api/auth/login', { name: 'the-reviewer', password: 'wrong-password' });
+    expect(bad.status).toBe(401);
+    const good = await s.call(null, 'POST', '/api/auth/login', { name: 'the-reviewer', password: 'a-long-password' });
+    expect(good.status).toBe(200);
+    const cookie = good.headers.get('set-cookie') ?? '';
+    expect(cookie).toMatch(/^cribra_session=cbs_[A-Za-z0-9_-]{43};/);
+    expect(cookie).toMatch(/HttpOnly/);
+    expect(cookie).toMatch(/SameSite=Strict/);
+    const session = cookie.split(';')[0]!;
+    const me = await s.call(null, 'GET', '/api/auth/me', undefined, { cookie: session });
+    expect(me.body).toMatchObject({ name: 'the-reviewer', role: 'reviewer', via: 'session' });
+    expect((await s.call(null, 'POST', '/api/auth/logout', undefined, { cookie: session })).status).toBe(204);
+    expect((await s.call(null, 'GET', '/api/auth/me', undefined, { cookie: session })).status).toBe(401);
+    expect((await s.call('cbt_' + 'x'.repeat(43), 'GET', '/api/auth/me')).status).toBe(401);
+  });
+
+  it('shuts out a disabled user at once', async () => {
+    const t = await s.user('leaver', 'reviewer');
+    expect((await s.call(t, 'GET', '/api/auth/me')).status).toBe(200);
+    const users = await s.call(token.admin!, 'GET', '/api/users');
+    const id = users.body.users.find((u: { name: string }) => u.name === 'leaver').id;
+    expect((await s.call(token.admin!, 'PATCH', `/api/users/${id}`, { disabled: true })).status).toBe(200);
+    expect((await s.call(t, 'GET', '/api/auth/me')).status).toBe(401);
+  });
+});
