@@ -3,7 +3,7 @@ import { DATABASE_KINDS } from '../support/databases.js';
 import { eventually, startStack, type Stack } from '../support/stack.js';
 
 type Who = 'anonymous' | 'reviewer' | 'supervisor' | 'auditor' | 'admin';
-const ROLES: Who[] = ['reviewer', 'supervisor', 'auditor', 'admin'];
+const ROLES = ['reviewer', 'supervisor', 'auditor', 'admin'] as const;
 const ALL: Who[] = [...ROLES];
 
 interface Route {

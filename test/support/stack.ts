@@ -66,9 +66,9 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const call = async <T>(token: string | null, method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<Reply<T>> => {
     const h: Record<string, string> = { ...headers };
     if (token) h.authorization = `Bearer ${token}`;
-    let payload: BodyInit | undefined;
+    let payload: RequestInit['body'];
     if (body !== undefined) {
-      if (typeof body === 'string' || body instanceof Uint8Array || body instanceof FormData) payload = body as BodyInit;
+      if (typeof body === 'string' || body instanceof Uint8Array || body instanceof FormData) payload = body as RequestInit['body'];
       else {
         payload = JSON.stringify(body);
         h['content-type'] ??= 'application/json';

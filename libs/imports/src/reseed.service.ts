@@ -22,7 +22,7 @@ export class ReseedService {
     let updated = 0;
     for (;;) {
       const rows: Array<{ id: number; text: string; seed_hits: number; priority_model_version: number | null }> = await this.db.query(null, 
-        `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = ${p(1)} AND state = 'open' AND id > ${p(2)} ORDER BY id LIMIT ${CHUNK}`,
+        `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = ${p(1)} AND state <> 'decided' AND id > ${p(2)} ORDER BY id LIMIT ${CHUNK}`,
         [deskId, after],
       );
       if (rows.length === 0) return updated;

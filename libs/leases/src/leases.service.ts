@@ -55,6 +55,9 @@ export class LeasesService {
       let draw: DrawKind = wantRandom ? 'random' : desk.currentModelVersion === null ? 'seed' : 'uncertainty';
       let row: PickedRow | null = null;
       if (draw !== 'random') {
+        // An item whose lease expired goes out again first, under the draw it was first served by.
+        const reclaimed = await this.pickExpired(m, deskId, now);
+        if (reclaimed) return this.grant(m, desk, reviewer, reclaimed.row, reclaimed.draw, now);
         row = await this.pickByPriority(m, deskId, now);
         // Before a model exists, priority is the seed-term count; once no open
         // item matches a seed term, a uniform draw is the honest choice, and it
@@ -62,18 +65,13 @@ export class LeasesService {
         if (row && draw === 'seed' && Number(row.seed_hits) === 0) row = null;
         if (!row && draw === 'seed') draw = 'random';
       }
-      if (draw === 'random') row = await this.pickUniform(m, deskId, now, r);
+      if (draw === 'random') row = await this.pickUniform(m, deskId, r);
       if (!row) return null;
-      const lease: LeaseEntity = {
-        id: randomUUID(), deskId, itemId: row.id, reviewerId: reviewer.id, draw, prediction: null,
-        createdAt: now, expiresAt: new Date(now.getTime() + desk.leaseSeconds * 1000), closedAt: null, closedReason: null,
-      };
-      await this.db.query(m, `UPDATE items SET lease_id = ${this.db.p(1)}, leased_until = ${this.db.p(2)} WHERE id = ${this.db.p(3)}`, [lease.id, this.db.time(lease.expiresAt), row.id]);
-      await m.insert(LeaseEntity, lease as never);
-      return { lease, row };
+      return this.grant(m, desk, reviewer, row, draw, now);
     });
     if (!grant) return null;
     const { lease, row } = grant;
+    void r;
     return {
       lease: { id: lease.id, expiresAt: lease.expiresAt },
       item: { id: row.id, text: row.text, meta: JSON.parse(row.meta) as Record<string, unknown>, externalId: row.external_id, source: row.source, postedAt: this.db.parseTime(row.posted_at) },
@@ -82,14 +80,33 @@ export class LeasesService {
     };
   }
 
-  /** The highest-priority open item nobody holds. */
-  private async pickByPriority(m: EntityManager, deskId: number, now: Date): Promise<PickedRow | null> {
-    const p = (n: number) => this.db.p(n);
+  private async grant(m: EntityManager, desk: DeskEntity, reviewer: Principal, row: PickedRow, draw: DrawKind, now: Date): Promise<{ lease: LeaseEntity; row: PickedRow }> {
+    const lease: LeaseEntity = {
+      id: randomUUID(), deskId: desk.id, itemId: row.id, reviewerId: reviewer.id, draw, prediction: null,
+      createdAt: now, expiresAt: new Date(now.getTime() + desk.leaseSeconds * 1000), closedAt: null, closedReason: null,
+    };
+    await this.db.query(m, `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3`, [lease.id, this.db.time(lease.expiresAt), row.id]);
+    await m.insert(LeaseEntity, lease as never);
+    return { lease, row };
+  }
+
+  /** The item whose lease expired longest ago, with the draw kind of that lease. */
+  private async pickExpired(m: EntityManager, deskId: number, now: Date): Promise<{ row: PickedRow; draw: DrawKind } | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const rows: PickedRow[] = await this.db.query(m, 
-      `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = ${p(1)} AND state = 'open' AND (leased_until IS NULL OR leased_until < ${p(2)}) ORDER BY priority DESC, id DESC LIMIT 1${lock}`,
+    const rows = await this.db.query<PickedRow & { lease_id: string }>(m,
+      `SELECT ${PICK_COLUMNS}, lease_id FROM items WHERE desk_id = $1 AND state = 'leased' AND leased_until < $2 ORDER BY leased_until LIMIT 1${lock}`,
       [deskId, this.db.time(now)],
     );
+    const row = rows[0];
+    if (!row) return null;
+    const [prev] = await this.db.query<{ draw: DrawKind }>(m, 'SELECT draw FROM leases WHERE id = $1', [row.lease_id]);
+    return { row, draw: prev?.draw ?? 'random' };
+  }
+
+  /** The highest-priority open item. Leased items have their own state, so the index scan never wades through them. */
+  private async pickByPriority(m: EntityManager, deskId: number, _now: Date): Promise<PickedRow | null> {
+    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const rows = await this.db.query<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT 1${lock}`, [deskId]);
     return rows[0] ?? null;
   }
 
@@ -99,13 +116,12 @@ export class LeasesService {
    * independently of content, so the drawn text is distributed as the pool
    * is — which is what calibration needs (exchangeability).
    */
-  private async pickUniform(m: EntityManager, deskId: number, now: Date, r: number): Promise<PickedRow | null> {
-    const p = (n: number) => this.db.p(n);
+  private async pickUniform(m: EntityManager, deskId: number, r: number): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const base = `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = ${p(1)} AND state = 'open' AND (leased_until IS NULL OR leased_until < ${p(2)})`;
-    const after: PickedRow[] = await this.db.query(m, `${base} AND rand_key >= ${p(3)} ORDER BY rand_key LIMIT 1${lock}`, [deskId, this.db.time(now), r]);
+    const base = `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = $1 AND state = 'open'`;
+    const after = await this.db.query<PickedRow>(m, `${base} AND rand_key >= $2 ORDER BY rand_key LIMIT 1${lock}`, [deskId, r]);
     if (after[0]) return after[0];
-    const before: PickedRow[] = await this.db.query(m, `${base} AND rand_key < ${p(3)} ORDER BY rand_key LIMIT 1${lock}`, [deskId, this.db.time(now), r]);
+    const before = await this.db.query<PickedRow>(m, `${base} AND rand_key < $2 ORDER BY rand_key LIMIT 1${lock}`, [deskId, r]);
     return before[0] ?? null;
   }
 
@@ -118,7 +134,7 @@ export class LeasesService {
       if (lease.closedAt) return;
       const now = new Date();
       await m.update(LeaseEntity, { id: leaseId }, { closedAt: now, closedReason: 'returned' });
-      await this.db.query(m, `UPDATE items SET lease_id = NULL, leased_until = NULL WHERE id = ${this.db.p(1)} AND lease_id = ${this.db.p(2)}`, [lease.itemId, leaseId]);
+      await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1 AND lease_id = $2`, [lease.itemId, leaseId]);
       await this.audit.record(m, reviewer, { action: 'lease.return', entityType: 'lease', entityId: leaseId, deskId: lease.deskId, after: { itemId: lease.itemId } });
     });
   }

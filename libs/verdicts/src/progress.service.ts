@@ -24,7 +24,7 @@ export class ProgressService {
     const now = this.db.time(new Date());
     const [states, cats, draws, undone, active] = await Promise.all([
       q<{ state: string; leased: number | string; n: number | string }>(
-        `SELECT state, CASE WHEN leased_until IS NOT NULL AND leased_until > ${p(2)} THEN 1 ELSE 0 END AS leased, COUNT(*) AS n FROM items WHERE desk_id = ${p(1)} GROUP BY state, CASE WHEN leased_until IS NOT NULL AND leased_until > ${p(2)} THEN 1 ELSE 0 END`,
+        `SELECT state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END AS leased, COUNT(*) AS n FROM items WHERE desk_id = $1 GROUP BY state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END`,
         [deskId, now],
       ),
       q<{ name: string | null; n: number | string }>(

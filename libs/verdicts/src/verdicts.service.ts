@@ -67,8 +67,11 @@ export class VerdictsService {
         const lock = this.db.pg ? ' FOR UPDATE' : '';
         const [item] = (await this.db.query(m, `SELECT id, desk_id, state, lease_id, leased_until FROM items WHERE id = ${p(1)}${lock}`, [dto.itemId])) as ItemLock[];
         if (!item) throw new NotFoundException(`no item ${dto.itemId}`);
+        // A concurrent request with the same client id may have committed while this one waited for the item.
+        const raced = await m.findOneBy(VerdictEntity, { reviewerId: reviewer.id, clientId: dto.clientId });
+        if (raced) return -raced.id;
         const now = new Date();
-        const heldByOther = item.lease_id !== null && item.lease_id !== lease.id && this.db.parseTime(item.leased_until)!.getTime() > now.getTime();
+        const heldByOther = item.state === 'leased' && item.lease_id !== lease.id && this.db.parseTime(item.leased_until)!.getTime() > now.getTime();
         if (heldByOther) throw new ConflictException('your lease on this item expired and another reviewer holds it now; your verdict was not recorded');
         if (item.state === 'decided' && lease.draw !== 'second-opinion') throw new ConflictException('your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded');
         const prediction = lease.prediction;
@@ -87,7 +90,7 @@ export class VerdictsService {
         });
         return verdictId;
       });
-      return { verdict: await this.view(id), replayed: false };
+      return id < 0 ? { verdict: await this.view(-id), replayed: true } : { verdict: await this.view(id), replayed: false };
     } catch (e) {
       if (isUniqueViolation(e)) {
         // A concurrent replay of the same client id won the race: answer as a replay.
@@ -121,7 +124,7 @@ export class VerdictsService {
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
       const p = (n: number) => this.db.p(n);
       const [{ n }] = (await this.db.query(m, `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = ${p(1)} AND undone_at IS NULL`, [v.itemId])) as Array<{ n: number | string }>;
-      if (Number(n) === 0) await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = ${p(1)}`, [v.itemId]);
+      if (Number(n) === 0) await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
       await this.audit.record(m, reviewer, { action: 'verdict.undo', entityType: 'verdict', entityId: v.id, deskId: v.deskId, before: { undoneAt: null }, after: { undoneAt: now.toISOString() } });
     });
     return this.view(verdictId);

@@ -2,7 +2,8 @@ import { EntitySchema } from 'typeorm';
 import type { Dialect } from '../dialect.js';
 import { columns } from './columns.js';
 
-export const ITEM_STATES = ['open', 'decided'] as const;
+/** `leased` items stay leased after the lease expires, until someone else is handed them. */
+export const ITEM_STATES = ['open', 'leased', 'decided'] as const;
 export type ItemState = (typeof ITEM_STATES)[number];
 
 export class ItemEntity {

@@ -112,10 +112,11 @@ export class Foundation1764600000000 implements MigrationInterface {
         { name: 'uq_items_desk', columnNames: ['id', 'desk_id'] },
       ],
       checks: [
-        { name: 'ck_items_state', expression: inList('state', ['open', 'decided']) },
+        { name: 'ck_items_state', expression: inList('state', ['open', 'leased', 'decided']) },
         { name: 'ck_items_text', expression: 'length(text) > 0' },
         { name: 'ck_items_rand', expression: 'rand_key >= 0 AND rand_key < 1' },
         { name: 'ck_items_lease', expression: '(lease_id IS NULL) = (leased_until IS NULL)' },
+        { name: 'ck_items_leased', expression: "(state = 'leased') = (lease_id IS NOT NULL)" },
       ],
       foreignKeys: [fk(['desk_id'], 'desks', ['id'], 'CASCADE'), fk(['import_id'], 'imports', ['id'], 'SET NULL')],
       indices: [
@@ -123,6 +124,8 @@ export class Foundation1764600000000 implements MigrationInterface {
         { name: 'ix_items_queue', columnNames: ['desk_id', 'state', 'priority', 'id'] },
         // Uniform random draws: the first open item at or after a random key.
         { name: 'ix_items_random', columnNames: ['desk_id', 'state', 'rand_key'] },
+        // Expired leases, oldest first, to hand their items out again.
+        { name: 'ix_items_expiry', columnNames: ['desk_id', 'state', 'leased_until'] },
       ],
     }));
 
