@@ -37,7 +37,7 @@ describe.each(DATABASE_KINDS)('SIGKILL of the API during verdicts on %s', (kind)
     await waitReady(base);
     const post = async (token: string, path: string, body?: unknown) => {
       const res = await fetch(`${base}${path}`, { method: 'POST', headers: { authorization: `Bearer ${token}`, 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
-      return { status: res.status, body: res.status === 204 ? null : await res.json() };
+      return { status: res.status, body: (res.status === 204 ? null : await res.json()) as any };
     };
     const attempts: Attempt[][] = tokens.map(() => []);
     let killed = false;
