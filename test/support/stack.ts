@@ -48,7 +48,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const dataDir = mkdtempSync(join(tmpdir(), 'cribra-data-'));
   // Its own queue prefix: this test's jobs never meet another test's.
   const queuePrefix = `cribra-test-${randomBytes(4).toString('hex')}`;
-  const config = parseConfig({ DATA_DIR: dataDir, DATABASE_URL: tdb.config.url, REDIS_URL: TEST_REDIS_URL, QUEUE_PREFIX: queuePrefix, LOG_LEVEL: 'error', DEMO: 'off', ...options.env });
+  const config = parseConfig({ DATA_DIR: dataDir, DATABASE_URL: tdb.config.url, REDIS_URL: TEST_REDIS_URL, QUEUE_PREFIX: queuePrefix, LOG_LEVEL: 'error', ...options.env });
   const api = await createHttpApp(config);
   await api.listen(0, '127.0.0.1');
   const server = api.getHttpServer();

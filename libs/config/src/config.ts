@@ -21,7 +21,6 @@ export interface AppConfig {
   readonly undoWindowSeconds: number;
   readonly importBatchSize: number;
   readonly logLevel: 'error' | 'warn' | 'log' | 'debug';
-  readonly demo: boolean;
 }
 
 /** Raised at boot when one or more variables are wrong; lists every bad variable at once. */
@@ -37,7 +36,7 @@ type Env = Record<string, string | undefined>;
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
   'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'DEMO',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL',
 ] as const;
 
 /**
@@ -124,7 +123,6 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     undoWindowSeconds: int('UNDO_WINDOW_SECONDS', 300, 1, 86_400),
     importBatchSize: int('IMPORT_BATCH_SIZE', 1000, 1, 50_000),
     logLevel,
-    demo: bool('DEMO', true),
   };
   if (problems.length > 0) throw new ConfigError(problems);
   return config;
@@ -156,6 +154,5 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     UNDO_WINDOW_SECONDS: String(config.undoWindowSeconds),
     IMPORT_BATCH_SIZE: String(config.importBatchSize),
     LOG_LEVEL: config.logLevel,
-    DEMO: String(config.demo),
   };
 }
