@@ -8,11 +8,15 @@ import { hashPassword, newSecret, secretHash, verifyPassword } from './secrets.j
 
 export class AuthError extends Error {}
 
+/** How long an authentication answer is reused within one process. */
+export const AUTH_CACHE_MS = 3000;
+
 /** Users, passwords, sessions and personal API tokens. */
 @Injectable()
 export class AuthService {
   /** Failed sign-ins per user name in the current minute, to slow down guessing. */
   private readonly failures = new Map<string, { minute: number; count: number }>();
+  private readonly cache = new Map<string, { principal: Principal | null; until: number; userId: number | null }>();
 
   constructor(
     @Inject(Database) private readonly db: Database,
@@ -50,6 +54,7 @@ export class AuthService {
       if (passwordHash !== undefined) user.passwordHash = passwordHash;
       await m.update(UserEntity, { id }, { role: user.role, disabled: user.disabled, ...(passwordHash ? { passwordHash } : {}) });
       if (change.disabled) await m.update(CredentialEntity, { userId: id, revokedAt: IsNull() }, { revokedAt: new Date() });
+      this.forgetUser(id);
       await this.audit.record(m, actor, { action: 'user.update', entityType: 'user', entityId: id, before, after: { role: user.role, disabled: user.disabled, passwordChanged: passwordHash !== undefined } });
       return user;
     });
@@ -81,19 +86,40 @@ export class AuthService {
       const cred = await m.findOneBy(CredentialEntity, { secretHash: secretHash(secret), kind: 'session' });
       if (!cred || cred.revokedAt) return;
       await m.update(CredentialEntity, { id: cred.id }, { revokedAt: new Date() });
+      this.cache.delete(cred.secretHash);
       const user = await m.findOneBy(UserEntity, { id: cred.userId });
       await this.audit.record(m, { id: cred.userId, name: user?.name ?? '?' }, { action: 'session.end', entityType: 'user', entityId: cred.userId });
     });
   }
 
-  /** Resolves a session or token secret to its user; null when unknown, expired, revoked or disabled. */
+  /**
+   * Resolves a session or token secret to its user; null when unknown,
+   * expired, revoked or disabled. Answers are kept for a few seconds so a
+   * reviewer's stream of requests does not cost a lookup each; sign-out and
+   * account changes in this process drop them at once, other processes see
+   * them within {@link AUTH_CACHE_MS}.
+   */
   async authenticate(secret: string): Promise<Principal | null> {
     if (!/^cb[ts]_[A-Za-z0-9_-]{43}$/.test(secret)) return null;
-    const cred = await this.db.manager.findOneBy(CredentialEntity, { secretHash: secretHash(secret) });
-    if (!cred || cred.revokedAt || (cred.expiresAt && cred.expiresAt.getTime() <= Date.now())) return null;
-    const user = await this.db.manager.findOneBy(UserEntity, { id: cred.userId });
-    if (!user || user.disabled) return null;
-    return { id: user.id, name: user.name, role: user.role, via: cred.kind };
+    const hash = secretHash(secret);
+    const now = Date.now();
+    const hit = this.cache.get(hash);
+    if (hit && hit.until > now) return hit.principal;
+    const [row] = await this.db.query<{ id: number; name: string; role: Role; disabled: boolean | number; kind: 'token' | 'session'; expires_at: unknown; revoked_at: unknown }>(
+      null,
+      'SELECT u.id, u.name, u.role, u.disabled, c.kind, c.expires_at, c.revoked_at FROM credentials c JOIN users u ON u.id = c.user_id WHERE c.secret_hash = $1',
+      [hash],
+    );
+    const expires = row ? this.db.parseTime(row.expires_at) : null;
+    const valid = row && row.revoked_at === null && !(row.disabled === true || row.disabled === 1) && !(expires && expires.getTime() <= now);
+    const principal: Principal | null = valid ? { id: Number(row.id), name: row.name, role: row.role, via: row.kind } : null;
+    if (this.cache.size > 10_000) this.cache.clear();
+    this.cache.set(hash, { principal, until: now + AUTH_CACHE_MS, userId: principal?.id ?? null });
+    return principal;
+  }
+
+  private forgetUser(userId: number): void {
+    for (const [k, v] of this.cache) if (v.userId === userId) this.cache.delete(k);
   }
 
   /** A new personal API token for the user; the secret is returned once and stored hashed. */

@@ -31,7 +31,8 @@ export class Database {
 
   /** Runs `fn` in one write transaction; retries a few times when SQLite reports the file busy. */
   async write<T>(fn: (m: EntityManager) => Promise<T>): Promise<T> {
-    if (this.pg) return this.dataSource.transaction('READ COMMITTED', fn);
+    // READ COMMITTED is PostgreSQL's default: naming it would cost one more statement per transaction.
+    if (this.pg) return this.dataSource.transaction(fn);
     return this.mutex.run(async () => {
       const qr = this.dataSource.createQueryRunner();
       for (let attempt = 0; ; attempt++) {
@@ -85,7 +86,12 @@ export class Database {
    */
   async query<T = Record<string, unknown>>(m: EntityManager | null, sql: string, params: unknown[] = []): Promise<T[]> {
     const runner = m ?? this.dataSource.manager;
-    if (this.pg) return runner.query(sql, params) as Promise<T[]>;
+    if (this.pg) {
+      const res: unknown = await runner.query(sql, params);
+      // TypeORM answers UPDATE and DELETE on PostgreSQL with [rows, affectedCount]; give every statement the same shape.
+      if (/^\s*(UPDATE|DELETE)\b/i.test(sql) && Array.isArray(res) && res.length === 2 && Array.isArray(res[0]) && typeof res[1] === 'number') return res[0] as T[];
+      return res as T[];
+    }
     const ordered: unknown[] = [];
     const text = sql.replace(/\$(\d+)/g, (_, n: string) => {
       const i = Number(n) - 1;

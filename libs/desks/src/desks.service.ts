@@ -4,6 +4,7 @@ import { AuditService, type AuditActor } from '#audit';
 import { CategoryEntity, Database, DeskEntity, VerdictEntity } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
+import { DeskDirectory } from './desk-directory.service.js';
 
 /** A desk with its categories in display order: what the API returns. */
 export interface DeskView {
@@ -55,6 +56,7 @@ export class DesksService {
     @Inject(Database) private readonly db: Database,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
+    @Inject(DeskDirectory) private readonly directory: DeskDirectory,
   ) {}
 
   async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
@@ -135,6 +137,7 @@ export class DesksService {
         });
       }
     });
+    this.directory.forget(deskId);
     if (seedTermsChanged) await this.jobs.add(JOBS.reseedDesk, { deskId });
     return this.get(deskId);
   }

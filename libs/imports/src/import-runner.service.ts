@@ -87,6 +87,9 @@ export class ImportRunner {
     }
     void storedErrors;
     await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'done', finishedAt: new Date() }));
+    // Fresh planner statistics: without them the queue's lease queries can choose a full sort of the pool
+    // (autovacuum may be off or late; SQLite has no automatic statistics at all).
+    await this.db.query(null, 'ANALYZE items');
     rmSync(path, { force: true });
     const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
     this.logger.log(`import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`);

@@ -3,7 +3,8 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, DeskEntity, LeaseEntity, type DrawKind, type ShownPrediction } from '#database';
+import { Database, LeaseEntity, type DrawKind, type ShownPrediction } from '#database';
+import { DeskDirectory } from '#desks';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
 export interface LeaseGrant {
@@ -42,88 +43,82 @@ export class LeasesService {
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(HighlightService) private readonly highlighter: HighlightService,
     @Inject(LEASE_RANDOM) private readonly random: UniformSource,
+    @Inject(DeskDirectory) private readonly directory: DeskDirectory,
   ) {}
 
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
   async lease(reviewer: Principal, deskId: number): Promise<LeaseGrant | null> {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    const entry = await this.directory.get(deskId);
+    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    const { desk } = entry;
     const wantRandom = this.random() < desk.randomShare;
     const r = this.random();
-    const grant = await this.db.write(async (m) => {
-      const now = new Date();
-      let draw: DrawKind = wantRandom ? 'random' : desk.currentModelVersion === null ? 'seed' : 'uncertainty';
-      let row: PickedRow | null = null;
-      if (draw !== 'random') {
-        // An item whose lease expired goes out again first, under the draw it was first served by.
-        const reclaimed = await this.pickExpired(m, deskId, now);
-        if (reclaimed) return this.grant(m, desk, reviewer, reclaimed.row, reclaimed.draw, now);
-        row = await this.pickByPriority(m, deskId, now);
-        // Before a model exists, priority is the seed-term count; once no open
-        // item matches a seed term, a uniform draw is the honest choice, and it
-        // is recorded as one.
-        if (row && draw === 'seed' && Number(row.seed_hits) === 0) row = null;
+    const coldStart = desk.currentModelVersion === null;
+    const hasSeeds = Object.values(desk.seedTerms).some((t) => t.length > 0);
+    const leaseId = randomUUID();
+    const now = new Date();
+    const expiresAt = new Date(now.getTime() + desk.leaseSeconds * 1000);
+    const picked = await this.db.write(async (m) => {
+      const claim = (where: string, order: string, params: unknown[]) => this.claim(m, leaseId, expiresAt, deskId, where, order, params);
+      let draw: DrawKind = wantRandom ? 'random' : coldStart ? 'seed' : 'uncertainty';
+      // An item whose lease expired goes out again first, under the draw it was first served by;
+      // the uniform draws below stay uniform over the open items.
+      let row = await claim(`state = 'leased' AND leased_until < $4`, 'leased_until', [this.db.time(now)]);
+      if (row) {
+        const [prev] = await this.db.query<{ draw: DrawKind }>(m, 'SELECT draw FROM leases WHERE item_id = $1 ORDER BY created_at DESC LIMIT 1', [row.id]);
+        draw = prev?.draw ?? 'random';
+      } else if (draw !== 'random') {
+        if (draw === 'uncertainty') {
+          row = await claim(`state = 'open'`, 'priority DESC, id DESC', []);
+        } else if (hasSeeds) {
+          // Cold start: most seed-term matches first.
+          row = await claim(`state = 'open' AND seed_hits > 0`, 'priority DESC, id DESC', []);
+        }
+        // Once no open item matches a seed term, a uniform draw is the honest choice, and it is recorded as one.
         if (!row && draw === 'seed') draw = 'random';
       }
-      if (draw === 'random') row = await this.pickUniform(m, deskId, r);
+      if (!row && draw === 'random') {
+        row = (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ?? (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
+      }
       if (!row) return null;
-      return this.grant(m, desk, reviewer, row, draw, now);
+      await this.db.query(m, 'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, NULL, $6, $7, NULL, NULL)', [
+        leaseId, deskId, row.id, reviewer.id, draw, this.db.time(now), this.db.time(expiresAt),
+      ]);
+      return row;
     });
-    if (!grant) return null;
-    const { lease, row } = grant;
-    void r;
+    if (!picked) return null;
     return {
-      lease: { id: lease.id, expiresAt: lease.expiresAt },
-      item: { id: row.id, text: row.text, meta: JSON.parse(row.meta) as Record<string, unknown>, externalId: row.external_id, source: row.source, postedAt: this.db.parseTime(row.posted_at) },
-      highlights: this.highlighter.highlights(desk, row.text),
-      prediction: lease.prediction,
+      lease: { id: leaseId, expiresAt },
+      item: { id: Number(picked.id), text: picked.text, meta: JSON.parse(picked.meta) as Record<string, unknown>, externalId: picked.external_id, source: picked.source, postedAt: this.db.parseTime(picked.posted_at) },
+      highlights: this.highlighter.highlights(desk, picked.text),
+      prediction: null,
     };
-  }
-
-  private async grant(m: EntityManager, desk: DeskEntity, reviewer: Principal, row: PickedRow, draw: DrawKind, now: Date): Promise<{ lease: LeaseEntity; row: PickedRow }> {
-    const lease: LeaseEntity = {
-      id: randomUUID(), deskId: desk.id, itemId: row.id, reviewerId: reviewer.id, draw, prediction: null,
-      createdAt: now, expiresAt: new Date(now.getTime() + desk.leaseSeconds * 1000), closedAt: null, closedReason: null,
-    };
-    await this.db.query(m, `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3`, [lease.id, this.db.time(lease.expiresAt), row.id]);
-    await m.insert(LeaseEntity, lease as never);
-    return { lease, row };
-  }
-
-  /** The item whose lease expired longest ago, with the draw kind of that lease. */
-  private async pickExpired(m: EntityManager, deskId: number, now: Date): Promise<{ row: PickedRow; draw: DrawKind } | null> {
-    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const rows = await this.db.query<PickedRow & { lease_id: string }>(m,
-      `SELECT ${PICK_COLUMNS}, lease_id FROM items WHERE desk_id = $1 AND state = 'leased' AND leased_until < $2 ORDER BY leased_until LIMIT 1${lock}`,
-      [deskId, this.db.time(now)],
-    );
-    const row = rows[0];
-    if (!row) return null;
-    const [prev] = await this.db.query<{ draw: DrawKind }>(m, 'SELECT draw FROM leases WHERE id = $1', [row.lease_id]);
-    return { row, draw: prev?.draw ?? 'random' };
-  }
-
-  /** The highest-priority open item. Leased items have their own state, so the index scan never wades through them. */
-  private async pickByPriority(m: EntityManager, deskId: number, _now: Date): Promise<PickedRow | null> {
-    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const rows = await this.db.query<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT 1${lock}`, [deskId]);
-    return rows[0] ?? null;
   }
 
   /**
-   * A uniform draw from the open items nobody holds: the first item whose
-   * random key is at or after r, wrapping around. Keys are assigned at import
-   * independently of content, so the drawn text is distributed as the pool
-   * is — which is what calibration needs (exchangeability).
+   * Takes the first item of a desk matching `where` in `order` and marks it
+   * leased, in one statement. On PostgreSQL the inner select locks the row
+   * and skips rows other transactions hold (`FOR UPDATE SKIP LOCKED`), so
+   * concurrent reviewers never get the same item; on SQLite the surrounding
+   * write transaction is already serialised. Extra parameters start at `$4`.
    */
-  private async pickUniform(m: EntityManager, deskId: number, r: number): Promise<PickedRow | null> {
+  private async claim(m: EntityManager, leaseId: string, expiresAt: Date, deskId: number, where: string, order: string, params: unknown[]): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const base = `SELECT ${PICK_COLUMNS} FROM items WHERE desk_id = $1 AND state = 'open'`;
-    const after = await this.db.query<PickedRow>(m, `${base} AND rand_key >= $2 ORDER BY rand_key LIMIT 1${lock}`, [deskId, r]);
-    if (after[0]) return after[0];
-    const before = await this.db.query<PickedRow>(m, `${base} AND rand_key < $2 ORDER BY rand_key LIMIT 1${lock}`, [deskId, r]);
-    return before[0] ?? null;
+    const rows = await this.db.query<PickedRow>(m,
+      `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2
+       WHERE id = (SELECT id FROM items WHERE desk_id = $3 AND ${where} ORDER BY ${order} LIMIT 1${lock})
+       RETURNING ${PICK_COLUMNS}`,
+      [leaseId, this.db.time(expiresAt), deskId, ...params],
+    );
+    return rows[0] ?? null;
   }
+
+  /*
+   * Uniform draws take the first open item whose random key is at or after
+   * r, wrapping around. Keys are assigned at import independently of content,
+   * so the drawn text is distributed as the pool is — which is what
+   * calibration needs (exchangeability).
+   */
 
   /** Hands a leased item back to the queue. */
   async giveBack(reviewer: Principal, leaseId: string): Promise<void> {

@@ -2,7 +2,8 @@ import { BadRequestException, ConflictException, ForbiddenException, Inject, Inj
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { CategoryEntity, Database, isUniqueViolation, LeaseEntity, UserEntity, VerdictEntity } from '#database';
+import { Database, isUniqueViolation, UserEntity, VerdictEntity, type DrawKind, type ShownPrediction } from '#database';
+import { DeskDirectory } from '#desks';
 import type { CreateVerdictDto } from './verdict.dto.js';
 
 /** A verdict as the API shows it. */
@@ -24,12 +25,18 @@ export interface VerdictView {
   undoneAt: Date | null;
 }
 
-interface ItemLock {
-  id: number;
+interface LeaseAndItem {
   desk_id: number;
+  item_id: number;
+  reviewer_id: number;
+  draw: DrawKind;
+  prediction: string | null;
+  closed_at: unknown;
   state: string;
-  lease_id: string | null;
+  item_lease_id: string | null;
   leased_until: unknown;
+  existing_id: number | null;
+  existing_item: number | null;
 }
 
 /** Receives verdicts: idempotent by client id, never lost, with what was shown at the time. */
@@ -39,6 +46,7 @@ export class VerdictsService {
     @Inject(Database) private readonly db: Database,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(DeskDirectory) private readonly directory: DeskDirectory,
   ) {}
 
   /** Records a verdict; `replayed` is true when the client id was seen before and nothing was written. */
@@ -46,67 +54,81 @@ export class VerdictsService {
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
       throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
     }
-    const replay = await this.findReplay(reviewer, dto);
-    if (replay) return { verdict: replay, replayed: true };
+    const entry = await this.directory.get(deskId);
+    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    let categoryId: number | null = null;
+    if (dto.category !== undefined) {
+      const cat = entry.categories.find((c) => c.name === dto.category);
+      if (!cat) throw new BadRequestException(`unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`);
+      categoryId = cat.id;
+    }
     try {
-      const id = await this.db.write(async (m) => {
-        const p = (n: number) => this.db.p(n);
-        const lease = await m.findOneBy(LeaseEntity, { id: dto.leaseId });
-        if (!lease) throw new NotFoundException(`no lease ${dto.leaseId}`);
-        if (lease.reviewerId !== reviewer.id) throw new ForbiddenException('this lease belongs to another reviewer');
-        if (lease.deskId !== deskId || lease.itemId !== dto.itemId) throw new BadRequestException(`lease ${dto.leaseId} is for item ${lease.itemId} of desk ${lease.deskId}, not item ${dto.itemId} of desk ${deskId}`);
-        let categoryId: number | null = null;
-        if (dto.category !== undefined) {
-          const cat = await m.findOneBy(CategoryEntity, { deskId, name: dto.category });
-          if (!cat) {
-            const names = (await m.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } })).map((c) => c.name);
-            throw new BadRequestException(`unknown category ${JSON.stringify(dto.category)}; this desk has: ${names.join(', ')}`);
-          }
-          categoryId = cat.id;
+      const result = await this.db.write(async (m) => {
+        // One statement: the lease, its item (locked until commit on PostgreSQL), and any verdict already stored under this client id.
+        const lock = this.db.pg ? ' FOR UPDATE OF i' : '';
+        const [row] = await this.db.query<LeaseAndItem>(m,
+          `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until,
+                  (SELECT v.id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_id,
+                  (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item
+           FROM leases l JOIN items i ON i.id = l.item_id WHERE l.id = $1${lock}`,
+          [dto.leaseId, reviewer.id, dto.clientId],
+        );
+        if (row && row.existing_id !== null) {
+          if (Number(row.existing_item) !== dto.itemId) throw new ConflictException(`clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${row.existing_item}`);
+          return { replayOf: Number(row.existing_id) };
         }
-        const lock = this.db.pg ? ' FOR UPDATE' : '';
-        const [item] = (await this.db.query(m, `SELECT id, desk_id, state, lease_id, leased_until FROM items WHERE id = ${p(1)}${lock}`, [dto.itemId])) as ItemLock[];
-        if (!item) throw new NotFoundException(`no item ${dto.itemId}`);
-        // A concurrent request with the same client id may have committed while this one waited for the item.
-        const raced = await m.findOneBy(VerdictEntity, { reviewerId: reviewer.id, clientId: dto.clientId });
-        if (raced) return -raced.id;
+        if (!row) {
+          const [other] = await this.db.query<{ item_id: number }>(m, 'SELECT item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
+          if (other) throw new ConflictException(`clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${other.item_id}`);
+          throw new NotFoundException(`no lease ${dto.leaseId}`);
+        }
+        if (Number(row.reviewer_id) !== reviewer.id) throw new ForbiddenException('this lease belongs to another reviewer');
+        if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId) throw new BadRequestException(`lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`);
         const now = new Date();
-        const heldByOther = item.state === 'leased' && item.lease_id !== lease.id && this.db.parseTime(item.leased_until)!.getTime() > now.getTime();
-        if (heldByOther) throw new ConflictException('your lease on this item expired and another reviewer holds it now; your verdict was not recorded');
-        if (item.state === 'decided' && lease.draw !== 'second-opinion') throw new ConflictException('your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded');
-        const prediction = lease.prediction;
-        const row: Omit<VerdictEntity, 'id'> = {
-          deskId, itemId: item.id, reviewerId: reviewer.id, leaseId: lease.id, clientId: dto.clientId, categoryId, abstain: dto.abstain === true,
-          draw: lease.draw, modelVersion: prediction?.modelVersion ?? null, shownSet: prediction?.set ?? null, shownCall: prediction?.call ?? null,
-          shownProbabilities: prediction?.probabilities ?? null, elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated: false, createdAt: now, undoneAt: null,
+        const heldByOther = row.state === 'leased' && row.item_lease_id !== dto.leaseId && this.db.parseTime(row.leased_until)!.getTime() > now.getTime();
+        const decided = row.state === 'decided' && row.draw !== 'second-opinion';
+        if (heldByOther || decided) {
+          // On PostgreSQL the statement above may have waited for the item's lock while a request with the same
+          // client id committed; its snapshot predates that verdict, so look again before refusing.
+          const [mine] = await this.db.query<{ id: number; item_id: number }>(m, 'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
+          if (mine && Number(mine.item_id) === dto.itemId) return { replayOf: Number(mine.id) };
+          throw new ConflictException(heldByOther
+            ? 'your lease on this item expired and another reviewer holds it now; your verdict was not recorded'
+            : 'your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded');
+        }
+        const prediction = row.prediction ? (JSON.parse(row.prediction) as ShownPrediction) : null;
+        const view: Omit<VerdictView, 'id'> = {
+          deskId, itemId: dto.itemId, reviewer: reviewer.name, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId,
+          modelVersion: prediction?.modelVersion ?? null, shownSet: prediction?.set ?? null, shownCall: prediction?.call ?? null,
+          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated: false, createdAt: now, undoneAt: null,
         };
-        const ins = await m.insert(VerdictEntity, row as never);
-        const verdictId = Number(ins.identifiers[0]!.id);
-        await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = ${p(1)}`, [item.id]);
-        if (!lease.closedAt) await m.update(LeaseEntity, { id: lease.id }, { closedAt: now, closedReason: 'verdict' });
+        const [ins] = await this.db.query<{ id: number }>(m,
+          `INSERT INTO verdicts (desk_id, item_id, reviewer_id, lease_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, shown_probabilities, elapsed_ms, note, simulated, created_at, undone_at)
+           VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, NULL) RETURNING id`,
+          [deskId, dto.itemId, reviewer.id, dto.leaseId, dto.clientId, categoryId, view.abstain, row.draw, view.modelVersion,
+            prediction ? JSON.stringify(prediction.set) : null, view.shownCall, prediction ? JSON.stringify(prediction.probabilities) : null,
+            view.elapsedMs, view.note, false, this.db.time(now)],
+        );
+        const verdictId = Number(ins!.id);
+        await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`, [dto.itemId]);
+        if (row.closed_at === null) await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [this.db.time(now), dto.leaseId]);
         await this.audit.record(m, reviewer, {
           action: 'verdict.create', entityType: 'verdict', entityId: verdictId, deskId,
-          after: { itemId: item.id, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId },
+          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId },
         });
-        return verdictId;
+        return { created: { id: verdictId, ...view } };
       });
-      return id < 0 ? { verdict: await this.view(-id), replayed: true } : { verdict: await this.view(id), replayed: false };
+      if (result.replayOf !== undefined) return { verdict: await this.view(result.replayOf), replayed: true };
+      return { verdict: result.created!, replayed: false };
     } catch (e) {
       if (isUniqueViolation(e)) {
-        // A concurrent replay of the same client id won the race: answer as a replay.
-        const again = await this.findReplay(reviewer, dto);
-        if (again) return { verdict: again, replayed: true };
+        // A concurrent request with the same client id won the race: answer as a replay.
+        const [again] = await this.db.query<{ id: number; item_id: number }>(null, 'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
+        if (again && Number(again.item_id) === dto.itemId) return { verdict: await this.view(Number(again.id)), replayed: true };
         throw new ConflictException('you have already given a verdict on this item');
       }
       throw e;
     }
-  }
-
-  private async findReplay(reviewer: Principal, dto: CreateVerdictDto): Promise<VerdictView | null> {
-    const existing = await this.db.manager.findOneBy(VerdictEntity, { reviewerId: reviewer.id, clientId: dto.clientId });
-    if (!existing) return null;
-    if (existing.itemId !== dto.itemId) throw new ConflictException(`clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${existing.itemId}`);
-    return this.view(existing.id);
   }
 
   /** Takes back the author's last verdict within the undo window; the item returns to the queue. */
