@@ -17,3 +17,9 @@ export { IdfTable } from './features/idf-table.js';
 export type { IdfTableJson } from './features/idf-table.js';
 export { tfidf } from './features/tfidf.js';
 export type { TfidfOptions } from './features/tfidf.js';
+
+export { LogisticModel } from './classifier/logistic-model.js';
+export type { LogisticModelJson, TrainingSummary } from './classifier/logistic-model.js';
+export { DEFAULT_MAX_FEATURES, defaultMaxSteps, trainLogisticModel } from './classifier/train-logistic.js';
+export type { TrainOptions } from './classifier/train-logistic.js';
+export { DenseColumn, SparseDesignMatrix } from './classifier/sparse-design-matrix.js';
