@@ -23,3 +23,13 @@ export type { LogisticModelJson, TrainingSummary } from './classifier/logistic-m
 export { DEFAULT_MAX_FEATURES, defaultMaxSteps, trainLogisticModel } from './classifier/train-logistic.js';
 export type { TrainOptions } from './classifier/train-logistic.js';
 export { DenseColumn, SparseDesignMatrix } from './classifier/sparse-design-matrix.js';
+
+export { assertAlpha, assertLabel, assertProbabilities, PROBABILITY_SUM_TOLERANCE } from './probability-checks.js';
+export { entropy, leastConfidence, margin, uncertainty } from './uncertainty/uncertainty-scores.js';
+export type { UncertaintyStrategy } from './uncertainty/uncertainty-scores.js';
+export { apsScore, lacScore, rankByProbability } from './conformal/nonconformity.js';
+export { calibrationSizeNeeded, conformalRank, conformalThreshold, RANK_TOLERANCE } from './conformal/conformal-quantile.js';
+export { ConformalCalibration } from './conformal/conformal-calibration.js';
+export type { CalibrationMode, ConformalCalibrationJson, ConformalThreshold, NonconformityScore } from './conformal/conformal-calibration.js';
+export { predictionSet, SCORE_TIE_TOLERANCE, triageCall } from './conformal/prediction-set.js';
+export type { PredictionSet, PredictionSetOptions, TriageCall } from './conformal/prediction-set.js';
