@@ -33,3 +33,16 @@ export { ConformalCalibration } from './conformal/conformal-calibration.js';
 export type { CalibrationMode, ConformalCalibrationJson, ConformalThreshold, NonconformityScore } from './conformal/conformal-calibration.js';
 export { predictionSet, SCORE_TIE_TOLERANCE, triageCall } from './conformal/prediction-set.js';
 export type { PredictionSet, PredictionSetOptions, TriageCall } from './conformal/prediction-set.js';
+
+export { clopperPearsonInterval, wilsonContinuityCorrectedInterval, wilsonInterval, Z_95 } from './intervals/binomial-intervals.js';
+export type { ProportionInterval } from './intervals/binomial-intervals.js';
+export { inverseRegularizedIncompleteBeta, logGamma, regularizedIncompleteBeta } from './intervals/incomplete-beta.js';
+export { accuracy } from './metrics/accuracy.js';
+export { macroF1 } from './metrics/macro-f1.js';
+export { LOG_LOSS_EPSILON, logLoss } from './metrics/log-loss.js';
+export { brierScore } from './metrics/brier-score.js';
+export { expectedCalibrationError, reliabilityBins, topLabelConfidence } from './metrics/calibration-error.js';
+export type { ReliabilityBin } from './metrics/calibration-error.js';
+export { normalizedTextHash, normalizeForDuplicates } from './text/normalized-text-hash.js';
+export { pickBatch } from './uncertainty/batch-picker.js';
+export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncertainty/batch-picker.js';
