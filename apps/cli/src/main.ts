@@ -9,6 +9,7 @@ const commands: Record<string, () => Promise<Command>> = {
   start: async () => (await import('./start.command.js')).startCommand,
   user: async () => (await import('./user.command.js')).userCommand,
   migrate: async () => (await import('./migrate.command.js')).migrateCommand,
+  rehearse: async () => (await import('./rehearse.command.js')).rehearseCommand,
 };
 
 async function main(): Promise<void> {

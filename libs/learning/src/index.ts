@@ -46,3 +46,6 @@ export type { ReliabilityBin } from './metrics/calibration-error.js';
 export { normalizedTextHash, normalizeForDuplicates } from './text/normalized-text-hash.js';
 export { pickBatch } from './uncertainty/batch-picker.js';
 export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncertainty/batch-picker.js';
+
+export { prepareRehearsal, runRehearsal } from './rehearsal/rehearsal.js';
+export type { CurvePoint, LabelledItem, RehearsalCurve, RehearsalData, RehearsalOptions, RehearsalResult } from './rehearsal/rehearsal.js';

@@ -1,0 +1,308 @@
+import { createFeaturizer, type FeaturizerOptions } from '../features/hashed-featurizer.js';
+import { IdfTable } from '../features/idf-table.js';
+import type { SparseVector } from '../features/sparse-vector.js';
+import { tfidf } from '../features/tfidf.js';
+import { trainLogisticModel, type TrainOptions } from '../classifier/train-logistic.js';
+import type { LogisticModel } from '../classifier/logistic-model.js';
+import { ConformalCalibration, type CalibrationMode, type NonconformityScore } from '../conformal/conformal-calibration.js';
+import { predictionSet } from '../conformal/prediction-set.js';
+import { accuracy } from '../metrics/accuracy.js';
+import { macroF1 } from '../metrics/macro-f1.js';
+import { createRng, shuffleInPlace, type Rng } from '../random/rng.js';
+import { pickBatch, type BatchCandidate } from '../uncertainty/batch-picker.js';
+import type { UncertaintyStrategy } from '../uncertainty/uncertainty-scores.js';
+
+export interface RehearsalOptions {
+  /** Target coverage 1 − α. */
+  target: number;
+  calibration: CalibrationMode;
+  score: NonconformityScore;
+  strategy: UncertaintyStrategy | 'random';
+  randomShare: number;
+  /** Uniform random verdicts before the first model (they train it). */
+  start: number;
+  batch: number;
+  /** Total verdicts (training + calibration) to simulate. */
+  budget: number;
+  testShare: number;
+  seed: number;
+  /** Also run the uniform-random baseline. */
+  compareRandom: boolean;
+  featurizer?: FeaturizerOptions;
+  training?: Omit<TrainOptions, 'categories' | 'hashBits'>;
+  /** Called after each curve point: points done, points expected. */
+  onProgress?: (done: number, total: number) => void;
+}
+
+export interface CurvePoint {
+  labels: number;
+  trainLabels: number;
+  calibrationLabels: number;
+  accuracy: number;
+  macroF1: number;
+  /** Share of test items whose true category is in their prediction set. */
+  coverage: number;
+  meanSetSize: number;
+  sureShare: number;
+  unfamiliarShare: number;
+  /** Coverage among the test items of each category (null if it has none). */
+  perCategoryCoverage: Record<string, number | null>;
+}
+
+export interface RehearsalCurve {
+  curve: CurvePoint[];
+  /** First curve point whose macro-F1 reaches that share of the full-pool model's (null: never). */
+  labelsToReach: { '0.95': number | null; '0.98': number | null };
+}
+
+export interface RehearsalResult extends RehearsalCurve {
+  classes: string[];
+  pool: number;
+  test: number;
+  target: number;
+  full: { accuracy: number; macroF1: number };
+  random?: RehearsalCurve;
+  timings: { featurizeMs: number; trainMsMean: number; scoreMsMean: number };
+}
+
+export interface LabelledItem {
+  text: string;
+  label: string;
+}
+
+/** Prepared data shared by several rehearsals (featurised once). */
+export interface RehearsalData {
+  classes: string[];
+  /** Category index of every item. */
+  labels: Int32Array;
+  vectors: SparseVector[];
+  pool: number[];
+  test: number[];
+  hashBits: number;
+  featurizeMs: number;
+}
+
+function checkOptions(o: RehearsalOptions): void {
+  const fail = (flag: string, value: unknown, rule: string): never => {
+    throw new RangeError(`${flag} ${rule}, got ${String(value)}`);
+  };
+  if (!(o.target > 0 && o.target < 1)) fail('target', o.target, 'must be in (0, 1)');
+  if (o.calibration !== 'marginal' && o.calibration !== 'per-category') fail('calibration', o.calibration, 'must be marginal or per-category');
+  if (o.score !== 'lac' && o.score !== 'aps') fail('score', o.score, 'must be lac or aps');
+  if (!['entropy', 'margin', 'least-confidence', 'random'].includes(o.strategy)) {
+    fail('strategy', o.strategy, 'must be entropy, margin, least-confidence or random');
+  }
+  if (!(o.randomShare >= 0 && o.randomShare <= 1)) fail('randomShare', o.randomShare, 'must be in [0, 1]');
+  if (!Number.isInteger(o.start) || o.start < 1) fail('start', o.start, 'must be a positive integer');
+  if (!Number.isInteger(o.batch) || o.batch < 1) fail('batch', o.batch, 'must be a positive integer');
+  if (!Number.isInteger(o.budget) || o.budget < o.start) fail('budget', o.budget, `must be an integer ≥ start (${o.start})`);
+  if (!(o.testShare > 0 && o.testShare < 1)) fail('testShare', o.testShare, 'must be in (0, 1)');
+  if (!Number.isInteger(o.seed)) fail('seed', o.seed, 'must be an integer');
+}
+
+/**
+ * Shuffles with the seed, holds out `testShare` of the items as a test set,
+ * and featurises everything once: hashed counts, idf from the pool's
+ * document frequencies (test items are never drawn and do not inform idf),
+ * tf-idf.
+ */
+export function prepareRehearsal(items: readonly LabelledItem[], options: Pick<RehearsalOptions, 'testShare' | 'seed' | 'featurizer'>): RehearsalData {
+  const classes = [...new Set(items.map((i) => i.label))].sort();
+  if (classes.length < 2) throw new RangeError(`the labels hold ${classes.length} class(es); a rehearsal needs at least 2`);
+  const index = new Map(classes.map((c, i) => [c, i]));
+  const labels = Int32Array.from(items, (i) => index.get(i.label)!);
+  const order = shuffleInPlace(
+    items.map((_, i) => i),
+    createRng(options.seed),
+  );
+  const nTest = Math.round(items.length * options.testShare);
+  if (nTest < 1 || nTest >= items.length) throw new RangeError(`testShare ${options.testShare} leaves no test or no pool items of ${items.length}`);
+  const test = order.slice(0, nTest);
+  const pool = order.slice(nTest);
+  const started = performance.now();
+  const featurizer = createFeaturizer(options.featurizer);
+  const counts = items.map((i) => featurizer.counts(i.text));
+  const idf = IdfTable.create(featurizer.hashBits);
+  for (const i of pool) idf.addDocument(counts[i]);
+  const vectors = counts.map((c) => tfidf(c, idf));
+  return { classes, labels, vectors, pool, test, hashBits: featurizer.hashBits, featurizeMs: performance.now() - started };
+}
+
+interface Timing {
+  trainMs: number[];
+  scoreMs: number[];
+}
+
+function train(data: RehearsalData, rows: number[], options: RehearsalOptions, timing: Timing): LogisticModel {
+  const started = performance.now();
+  const model = trainLogisticModel(
+    rows.map((i) => data.vectors[i]),
+    rows.map((i) => data.classes[data.labels[i]]),
+    { categories: data.classes, hashBits: data.hashBits, ...options.training },
+  );
+  timing.trainMs.push(performance.now() - started);
+  return model;
+}
+
+function measure(
+  data: RehearsalData,
+  trainRows: number[],
+  calibrationRows: number[],
+  probabilities: Map<number, Float64Array>,
+  options: RehearsalOptions,
+): CurvePoint {
+  const calibration = ConformalCalibration.fromScores(
+    data.classes,
+    calibrationRows.map((i) => probabilities.get(i)!),
+    calibrationRows.map((i) => data.labels[i]),
+  );
+  const alpha = 1 - options.target;
+  const k = data.classes.length;
+  const truth: number[] = [];
+  const predicted: number[] = [];
+  let covered = 0;
+  let setSizes = 0;
+  let sure = 0;
+  let unfamiliar = 0;
+  const catCovered = new Float64Array(k);
+  const catTotal = new Float64Array(k);
+  for (const i of data.test) {
+    const p = probabilities.get(i)!;
+    const y = data.labels[i];
+    let best = 0;
+    for (let c = 1; c < k; c++) if (p[c] > p[best]) best = c;
+    truth.push(y);
+    predicted.push(best);
+    const set = predictionSet(p, calibration, { alpha, score: options.score, mode: options.calibration });
+    const hit = set.categories.includes(y) ? 1 : 0;
+    covered += hit;
+    catCovered[y] += hit;
+    catTotal[y]++;
+    setSizes += set.categories.length;
+    if (set.call === 'sure') sure++;
+    if (set.call === 'unfamiliar') unfamiliar++;
+  }
+  const n = data.test.length;
+  const perCategoryCoverage: Record<string, number | null> = {};
+  data.classes.forEach((c, j) => (perCategoryCoverage[c] = catTotal[j] > 0 ? catCovered[j] / catTotal[j] : null));
+  return {
+    labels: trainRows.length + calibrationRows.length,
+    trainLabels: trainRows.length,
+    calibrationLabels: calibrationRows.length,
+    accuracy: accuracy(truth, predicted, k),
+    macroF1: macroF1(truth, predicted, k),
+    coverage: covered / n,
+    meanSetSize: setSizes / n,
+    sureShare: sure / n,
+    unfamiliarShare: unfamiliar / n,
+    perCategoryCoverage,
+  };
+}
+
+/** Number of curve points a run produces. */
+function pointsOf(options: RehearsalOptions, poolSize: number): number {
+  const budget = Math.min(options.budget, poolSize);
+  return 1 + Math.ceil(Math.max(0, budget - Math.min(options.start, budget)) / options.batch);
+}
+
+function runCurve(
+  data: RehearsalData,
+  options: RehearsalOptions,
+  strategy: UncertaintyStrategy | 'random',
+  rng: Rng,
+  timing: Timing,
+  progress: () => void,
+): CurvePoint[] {
+  const budget = Math.min(options.budget, data.pool.length);
+  // The pool is already in seeded random order: its head is a uniform sample,
+  // the same start set for every strategy of this seed.
+  const trainRows = data.pool.slice(0, Math.min(options.start, budget));
+  const calibrationRows: number[] = [];
+  const labelled = new Set(trainRows);
+  const curve: CurvePoint[] = [];
+  for (;;) {
+    const model = train(data, trainRows, options, timing);
+    const started = performance.now();
+    const probabilities = new Map<number, Float64Array>();
+    // Score what the service scores: the unlabelled pool (for the next draw),
+    // the calibration items (the current model never trained on them), and here
+    // the test set.
+    for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
+    for (const i of calibrationRows) probabilities.set(i, model.predictProba(data.vectors[i]));
+    for (const i of data.test) probabilities.set(i, model.predictProba(data.vectors[i]));
+    timing.scoreMs.push(performance.now() - started);
+    curve.push(measure(data, trainRows, calibrationRows, probabilities, options));
+    progress();
+    const labels = trainRows.length + calibrationRows.length;
+    if (labels >= budget) break;
+    const size = Math.min(options.batch, budget - labels);
+    const unlabelled = data.pool.filter((i) => !labelled.has(i));
+    if (strategy === 'random') {
+      // Baseline: the same random share calibrates; the rest trains, drawn uniformly too.
+      const exact = size * options.randomShare;
+      let nCal = Math.floor(exact);
+      if (rng.next() < exact - nCal) nCal++;
+      const drawn = shuffleInPlace(unlabelled, rng).slice(0, size);
+      drawn.forEach((i, j) => (j < nCal ? calibrationRows : trainRows).push(i));
+      drawn.forEach((i) => labelled.add(i));
+    } else {
+      const candidates: BatchCandidate[] = unlabelled.map((i) => ({ id: i, probabilities: probabilities.get(i)!, vector: data.vectors[i] }));
+      for (const pick of pickBatch(candidates, { size, randomShare: options.randomShare, strategy, rng })) {
+        (pick.draw === 'random' ? calibrationRows : trainRows).push(pick.id);
+        labelled.add(pick.id);
+      }
+    }
+  }
+  return curve;
+}
+
+function labelsToReach(curve: CurvePoint[], fullF1: number): RehearsalCurve['labelsToReach'] {
+  const first = (share: number): number | null => curve.find((p) => p.macroF1 >= share * fullF1)?.labels ?? null;
+  return { '0.95': first(0.95), '0.98': first(0.98) };
+}
+
+/**
+ * Rehearses a desk on labelled data: after `start` uniform random verdicts
+ * (the cold start: they train the first model), batches are drawn as the
+ * service draws them — a `randomShare` of each batch uniformly at random
+ * (these calibrate and never train), the rest by uncertainty (these train) —
+ * until `budget` verdicts. After each batch the model is retrained, the
+ * calibration recomputed and the test set measured.
+ */
+export function runRehearsal(data: RehearsalData, options: RehearsalOptions): RehearsalResult {
+  checkOptions(options);
+  const timing: Timing = { trainMs: [], scoreMs: [] };
+  const perCurve = pointsOf(options, data.pool.length);
+  const total = perCurve * (options.compareRandom ? 2 : 1) + 1;
+  let done = 0;
+  const progress = (): void => options.onProgress?.(++done, total);
+  const curve = runCurve(data, options, options.strategy, createRng(options.seed * 31 + 7), timing, progress);
+  const mainTiming = { trainMs: [...timing.trainMs], scoreMs: [...timing.scoreMs] };
+  let random: RehearsalCurve | undefined;
+  let randomCurve: CurvePoint[] | undefined;
+  if (options.compareRandom) randomCurve = runCurve(data, options, 'random', createRng(options.seed * 31 + 8), timing, progress);
+  const fullModel = train(data, data.pool, options, { trainMs: [], scoreMs: [] });
+  const truth = data.test.map((i) => data.labels[i]);
+  const predicted = data.test.map((i) => {
+    const p = fullModel.predictProba(data.vectors[i]);
+    let best = 0;
+    for (let c = 1; c < p.length; c++) if (p[c] > p[best]) best = c;
+    return best;
+  });
+  const k = data.classes.length;
+  const full = { accuracy: accuracy(truth, predicted, k), macroF1: macroF1(truth, predicted, k) };
+  progress();
+  if (randomCurve) random = { curve: randomCurve, labelsToReach: labelsToReach(randomCurve, full.macroF1) };
+  const mean = (xs: number[]): number => (xs.length ? xs.reduce((s, x) => s + x, 0) / xs.length : 0);
+  return {
+    classes: data.classes,
+    pool: data.pool.length,
+    test: data.test.length,
+    target: options.target,
+    curve,
+    full,
+    labelsToReach: labelsToReach(curve, full.macroF1),
+    ...(random ? { random } : {}),
+    timings: { featurizeMs: data.featurizeMs, trainMsMean: mean(mainTiming.trainMs), scoreMsMean: mean(mainTiming.scoreMs) },
+  };
+}
