@@ -63,6 +63,11 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/verdicts/mine`, allowed: ['reviewer'] },
     { method: 'GET', path: `/api/desks/${deskId}/progress`, allowed: ['reviewer', 'supervisor', 'auditor', 'admin'] },
     { method: 'GET', path: '/api/audit', allowed: ['auditor', 'admin', 'supervisor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/coverage`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/coverage-preview`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/items`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 

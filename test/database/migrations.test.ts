@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase } from '#database';
+import { MIGRATIONS, openDatabase } from '#database';
 import type { DataSource } from 'typeorm';
 import { createTestDatabase, DATABASE_KINDS, type TestDatabase } from '../support/databases.js';
 
@@ -66,7 +66,7 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
   });
 
   it('reverts every migration with down()', async () => {
-    await ds.undoLastMigration({ transaction: 'each' });
+    for (let i = 0; i < MIGRATIONS.length; i++) await ds.undoLastMigration({ transaction: 'each' });
     const tables: Array<{ name: string }> = await q(
       kind === 'postgres' ? `SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public' AND table_name <> 'migrations'` : `SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT IN ('migrations', 'sqlite_sequence')`,
     );

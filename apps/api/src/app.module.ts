@@ -6,6 +6,7 @@ import { DatabaseModule } from '#database';
 import { DesksModule } from '#desks';
 import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
+import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
 import { VerdictsModule } from '#verdicts';
 import { AuditController } from './audit.controller.js';
@@ -17,7 +18,7 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule],
       controllers: [HealthController, AuditController],
     };
   }

@@ -3,9 +3,10 @@ import { ConfigModule, type AppConfig } from '#config';
 import { AuditModule } from '#audit';
 import { DatabaseModule } from '#database';
 import { ImportsWorkModule } from '#imports';
+import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
-import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
+import { pauseHook } from './pause-hook.js';
 
 /** The worker process: BullMQ processors, no HTTP. The only place processors are registered. */
 @Module({})
@@ -13,10 +14,10 @@ export class WorkerModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: WorkerModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) })],
       providers: [
         ...PROCESSORS,
-        { provide: JOB_HANDLERS, inject: [ImportFileProcessor, ReseedDeskProcessor], useFactory: (...handlers: unknown[]) => handlers },
+        { provide: JOB_HANDLERS, inject: PROCESSORS, useFactory: (...handlers: unknown[]) => handlers },
         WorkersService,
       ],
     };

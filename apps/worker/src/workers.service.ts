@@ -1,8 +1,9 @@
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
 import { UnrecoverableError, Worker } from 'bullmq';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { createRedis, handlerTable, JOB_QUEUE, QUEUES, type JobHandler, type JobName } from '#queues';
+import { createRedis, handlerTable, JOB_QUEUE, JOBS, JobQueueService, QUEUES, type JobHandler, type JobName } from '#queues';
 import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
+import { PublishVersionProcessor, RetrainDeskProcessor, ScoreChunkProcessor, SweepDesksProcessor } from './learning.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 
@@ -16,11 +17,11 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   private readonly workers: Worker[] = [];
   private readonly table: Map<JobName, JobHandler>;
 
-  constructor(@Inject(APP_CONFIG) private readonly config: AppConfig, @Inject(JOB_HANDLERS) handlers: JobHandler[]) {
+  constructor(@Inject(APP_CONFIG) private readonly config: AppConfig, @Inject(JOB_HANDLERS) handlers: JobHandler[], @Inject(JobQueueService) private readonly jobs: JobQueueService) {
     this.table = handlerTable(handlers);
   }
 
-  onApplicationBootstrap(): void {
+  async onApplicationBootstrap(): Promise<void> {
     if (!this.config.redisUrl) throw new Error('REDIS_URL is not set');
     for (const queue of Object.values(QUEUES)) {
       const connection = createRedis(this.config.redisUrl, `cribra-worker-${queue}-${process.pid}`);
@@ -31,12 +32,14 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: 60_000 },
+        { connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));
       this.workers.push(worker);
     }
+    // Every minute, one worker (whichever takes the job) looks for desks whose verdicts no version has learned from.
+    await this.jobs.queue(QUEUES.maintenance).upsertJobScheduler('sweep-desks', { every: 60_000 }, { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } });
     this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
   }
 
@@ -45,4 +48,4 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   }
 }
 
-export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor];
+export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor];

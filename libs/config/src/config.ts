@@ -21,6 +21,12 @@ export interface AppConfig {
   readonly undoWindowSeconds: number;
   readonly importBatchSize: number;
   readonly logLevel: 'error' | 'warn' | 'log' | 'debug';
+  /** Open items per scoring job. */
+  readonly scoringChunkSize: number;
+  /** How long a worker holds a job before another may take it over when it stops renewing (a crashed worker). */
+  readonly jobLockSeconds: number;
+  /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
+  readonly testPauseAt: 'training' | 'scoring' | null;
 }
 
 /** Raised at boot when one or more variables are wrong; lists every bad variable at once. */
@@ -36,7 +42,7 @@ type Env = Record<string, string | undefined>;
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
   'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'CRIBRA_TEST_PAUSE',
 ] as const;
 
 /**
@@ -110,6 +116,9 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
   const logLevel = (str('LOG_LEVEL') ?? 'warn') as AppConfig['logLevel'];
   if (!['error', 'warn', 'log', 'debug'].includes(logLevel)) problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
 
+  const pause = str('CRIBRA_TEST_PAUSE') ?? null;
+  if (pause !== null && pause !== 'training' && pause !== 'scoring') problems.push(`CRIBRA_TEST_PAUSE=${JSON.stringify(pause)}: expected training or scoring`);
+
   const config: AppConfig = {
     port,
     host,
@@ -123,6 +132,9 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     undoWindowSeconds: int('UNDO_WINDOW_SECONDS', 300, 1, 86_400),
     importBatchSize: int('IMPORT_BATCH_SIZE', 1000, 1, 50_000),
     logLevel,
+    scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
+    jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
+    testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
   return config;
@@ -154,5 +166,8 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     UNDO_WINDOW_SECONDS: String(config.undoWindowSeconds),
     IMPORT_BATCH_SIZE: String(config.importBatchSize),
     LOG_LEVEL: config.logLevel,
+    SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
+    JOB_LOCK_SECONDS: String(config.jobLockSeconds),
+    ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

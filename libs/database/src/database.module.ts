@@ -2,6 +2,7 @@ import { Global, Inject, Module, type DynamicModule, type OnApplicationShutdown 
 import { APP_CONFIG, type AppConfig } from '#config';
 import { openDatabase } from './data-source.js';
 import { Database } from './database.js';
+import { DeskDirectory } from './desk-directory.service.js';
 
 /** Provides the {@link Database}; migrations run when it connects. */
 @Global()
@@ -18,8 +19,9 @@ export class DatabaseModule implements OnApplicationShutdown {
           inject: [APP_CONFIG],
           useFactory: async (config: AppConfig) => new Database(await openDatabase(config.database, options)),
         },
+        DeskDirectory,
       ],
-      exports: [Database],
+      exports: [Database, DeskDirectory],
     };
   }
 

@@ -1,7 +1,7 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
 import { Transform } from 'class-transformer';
 import { ArrayMaxSize, ArrayMinSize, ArrayUnique, IsArray, IsIn, IsInt, IsNumber, IsObject, IsOptional, IsString, Length, Max, Min, NotContains } from 'class-validator';
-import { CALIBRATION_MODES, type CalibrationMode } from '#database';
+import { CALIBRATION_MODES, SCORES, STRATEGIES, type CalibrationMode, type ScoreKind, type Strategy } from '#database';
 
 const trimAll = ({ value }: { value: unknown }) => (Array.isArray(value) ? value.map((v) => (typeof v === 'string' ? v.trim() : v)) : value);
 
@@ -20,6 +20,10 @@ export class CreateDeskDto {
   @ApiPropertyOptional({ enum: CALIBRATION_MODES, default: 'per-category' }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.2 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400, default: 600 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
+  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
+  @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;
+  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 }) @IsOptional() @IsInt() @Min(1) @Max(100000) retrainEvery?: number;
+  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 }) @IsOptional() @IsInt() @Min(1) @Max(86400) retrainAfterSeconds?: number;
 }
 
 export class UpdateDeskDto {
@@ -35,4 +39,8 @@ export class UpdateDeskDto {
   @ApiPropertyOptional({ enum: CALIBRATION_MODES }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
+  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
+  @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;
+  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 }) @IsOptional() @IsInt() @Min(1) @Max(100000) retrainEvery?: number;
+  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 }) @IsOptional() @IsInt() @Min(1) @Max(86400) retrainAfterSeconds?: number;
 }

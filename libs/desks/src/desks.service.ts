@@ -1,10 +1,10 @@
 import { BadRequestException, ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
-import { CategoryEntity, Database, DeskEntity, VerdictEntity } from '#database';
+import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity } from '#database';
 import { JOBS, JobQueueService } from '#queues';
+import { PredictionsService, type CalibrationStatus } from '#models';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
-import { DeskDirectory } from './desk-directory.service.js';
 
 /** A desk with its categories in display order: what the API returns. */
 export interface DeskView {
@@ -16,6 +16,10 @@ export interface DeskView {
   calibration: DeskEntity['calibration'];
   randomShare: number;
   leaseSeconds: number;
+  strategy: DeskEntity['strategy'];
+  score: DeskEntity['score'];
+  retrainEvery: number;
+  retrainAfterSeconds: number;
   currentModelVersion: number | null;
   createdAt: Date;
   updatedAt: Date;
@@ -57,6 +61,7 @@ export class DesksService {
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
+    @Inject(PredictionsService) private readonly predictions: PredictionsService,
   ) {}
 
   async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
@@ -67,7 +72,8 @@ export class DesksService {
       const now = new Date();
       const desk = await m.save(DeskEntity, m.create(DeskEntity, {
         name: dto.name, seedTerms, coverageTarget: dto.coverageTarget ?? 0.9, calibration: dto.calibration ?? 'per-category',
-        randomShare: dto.randomShare ?? 0.2, leaseSeconds: dto.leaseSeconds ?? 600, currentModelVersion: null, createdBy: actor.id ?? 0, createdAt: now, updatedAt: now,
+        randomShare: dto.randomShare ?? 0.2, leaseSeconds: dto.leaseSeconds ?? 600, currentModelVersion: null,
+        strategy: dto.strategy ?? 'entropy', score: dto.score ?? 'lac', retrainEvery: dto.retrainEvery ?? 10, retrainAfterSeconds: dto.retrainAfterSeconds ?? 30, createdBy: actor.id ?? 0, createdAt: now, updatedAt: now,
       }));
       await m.insert(CategoryEntity, dto.categories.map((name, i) => ({ deskId: desk.id, name, position: i + 1, createdAt: now })));
       const view = await this.viewIn(m, desk.id);
@@ -87,7 +93,12 @@ export class DesksService {
     return this.viewIn(this.db.manager, deskId);
   }
 
-  async update(actor: AuditActor, deskId: number, dto: UpdateDeskDto): Promise<DeskView> {
+  /**
+   * Changes settings. A new coverage target or calibration mode changes every
+   * set at once (sets are read from the stored calibration scores); the
+   * answer then says what backs the new thresholds.
+   */
+  async update(actor: AuditActor, deskId: number, dto: UpdateDeskDto): Promise<DeskView & { calibrationStatus?: CalibrationStatus | null }> {
     let seedTermsChanged = false;
     await this.db.write(async (m) => {
       const before = await this.viewIn(m, deskId);
@@ -125,6 +136,10 @@ export class DesksService {
       if (dto.calibration !== undefined) desk.calibration = dto.calibration;
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
       if (dto.leaseSeconds !== undefined) desk.leaseSeconds = dto.leaseSeconds;
+      if (dto.strategy !== undefined) desk.strategy = dto.strategy;
+      if (dto.score !== undefined) desk.score = dto.score;
+      if (dto.retrainEvery !== undefined) desk.retrainEvery = dto.retrainEvery;
+      if (dto.retrainAfterSeconds !== undefined) desk.retrainAfterSeconds = dto.retrainAfterSeconds;
       desk.updatedAt = now;
       await m.save(DeskEntity, desk);
       const after = await this.viewIn(m, deskId);
@@ -139,7 +154,11 @@ export class DesksService {
     });
     this.directory.forget(deskId);
     if (seedTermsChanged) await this.jobs.add(JOBS.reseedDesk, { deskId });
-    return this.get(deskId);
+    const view = await this.get(deskId);
+    if (dto.coverageTarget === undefined && dto.calibration === undefined && dto.strategy === undefined) return view;
+    const desk = (await this.db.manager.findOneBy(DeskEntity, { id: deskId }))!;
+    const model = await this.predictions.current(desk);
+    return { ...view, calibrationStatus: model ? this.predictions.calibrationStatus(desk, model) : null };
   }
 
   private async viewIn(m: EntityManager, deskId: number): Promise<DeskView> {
@@ -154,10 +173,14 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
   return {
     id: d.id, name: d.name, categories: cats.map((c) => ({ id: c.id, name: c.name, position: c.position })), seedTerms: d.seedTerms,
     coverageTarget: d.coverageTarget, calibration: d.calibration, randomShare: d.randomShare, leaseSeconds: d.leaseSeconds,
+    strategy: d.strategy, score: d.score, retrainEvery: d.retrainEvery, retrainAfterSeconds: d.retrainAfterSeconds,
     currentModelVersion: d.currentModelVersion, createdAt: d.createdAt, updatedAt: d.updatedAt,
   };
 }
 
 function settingsOf(v: DeskView): Record<string, unknown> {
-  return { name: v.name, categories: v.categories.map((c) => c.name), seedTerms: v.seedTerms, coverageTarget: v.coverageTarget, calibration: v.calibration, randomShare: v.randomShare, leaseSeconds: v.leaseSeconds };
+  return {
+    name: v.name, categories: v.categories.map((c) => c.name), seedTerms: v.seedTerms, coverageTarget: v.coverageTarget, calibration: v.calibration, randomShare: v.randomShare,
+    leaseSeconds: v.leaseSeconds, strategy: v.strategy, score: v.score, retrainEvery: v.retrainEvery, retrainAfterSeconds: v.retrainAfterSeconds,
+  };
 }

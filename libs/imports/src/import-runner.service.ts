@@ -5,6 +5,7 @@ import type { EntityManager } from 'typeorm';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { Database, DeskEntity, ImportEntity, type ImportRowError } from '#database';
 import { compileSeedTerms, type SeedTermMatcher } from '#learning';
+import { DeskFeaturesService, RetrainScheduler } from '#models';
 import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } from './parsing/index.js';
 import { uploadPath } from './imports.service.js';
 
@@ -21,7 +22,12 @@ const ITEM_COLUMNS = ['desk_id', 'import_id', 'external_id', 'source', 'text', '
 export class ImportRunner {
   private readonly logger = new Logger('ImportRunner');
 
-  constructor(@Inject(Database) private readonly db: Database, @Inject(APP_CONFIG) private readonly config: AppConfig) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
+    @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
+  ) {}
 
   async run(importId: string, reportProgress: (rowsRead: number) => Promise<void> = async () => undefined): Promise<ImportEntity> {
     const imp = await this.db.manager.findOneBy(ImportEntity, { id: importId });
@@ -90,6 +96,8 @@ export class ImportRunner {
     // Fresh planner statistics: without them the queue's lease queries can choose a full sort of the pool
     // (autovacuum may be off or late; SQLite has no automatic statistics at all).
     await this.db.query(null, 'ANALYZE items');
+    // New items need scoring: with a model, that is a retrain request.
+    await this.retrain.check(imp.deskId, 'import').catch((e) => this.logger.warn(`retrain request after import failed: ${(e as Error).message}`));
     rmSync(path, { force: true });
     const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
     this.logger.log(`import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`);
@@ -110,10 +118,13 @@ export class ImportRunner {
       const values = [deskId, importId, r.externalId, r.source, r.text, r.normalizedText, r.textHash, JSON.stringify(r.meta), r.createdAt ? this.db.time(r.createdAt) : null, now, 'open', hits, hits, Math.random()];
       tuples.push(`(${values.map((v) => { params.push(v); return this.db.p(params.length); }).join(', ')})`);
     }
-    const rows: Array<{ id: number }> = await this.db.query(m, 
-      `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING id`,
+    const rows = await this.db.query<{ normalized_hash: string }>(m,
+      `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING normalized_hash`,
       params,
     );
+    // The pool's document frequencies grow with exactly the items that landed.
+    const landed = new Set(rows.map((r) => r.normalized_hash));
+    await this.features.addDocuments(m, deskId, batch.filter((r) => landed.delete(r.textHash)).map((r) => r.text));
     return rows.length;
   }
 }

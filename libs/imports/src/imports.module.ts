@@ -1,4 +1,5 @@
 import { Module } from '@nestjs/common';
+import { ModelsCoreModule } from '#models';
 import { ImportRunner } from './import-runner.service.js';
 import { ImportsController } from './imports.controller.js';
 import { ImportsService } from './imports.service.js';
@@ -9,5 +10,5 @@ import { ReseedService } from './reseed.service.js';
 export class ImportsModule {}
 
 /** Worker side: reading files into items, recounting seed terms. */
-@Module({ providers: [ImportRunner, ReseedService], exports: [ImportRunner, ReseedService] })
+@Module({ imports: [ModelsCoreModule], providers: [ImportRunner, ReseedService], exports: [ImportRunner, ReseedService] })
 export class ImportsWorkModule {}

@@ -3,8 +3,8 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, LeaseEntity, type DrawKind, type ShownPrediction } from '#database';
-import { DeskDirectory } from '#desks';
+import { Database, DeskDirectory, LeaseEntity, type DrawKind, type ShownPrediction } from '#database';
+import { PredictionsService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
 export interface LeaseGrant {
@@ -44,6 +44,7 @@ export class LeasesService {
     @Inject(HighlightService) private readonly highlighter: HighlightService,
     @Inject(LEASE_RANDOM) private readonly random: UniformSource,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
+    @Inject(PredictionsService) private readonly predictions: PredictionsService,
   ) {}
 
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
@@ -81,17 +82,21 @@ export class LeasesService {
         row = (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ?? (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
       }
       if (!row) return null;
-      await this.db.query(m, 'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, NULL, $6, $7, NULL, NULL)', [
-        leaseId, deskId, row.id, reviewer.id, draw, this.db.time(now), this.db.time(expiresAt),
+      // What the reviewer is shown is recorded with the lease, and later with the verdict.
+      const prediction = await this.predictions.forItem(m, desk, Number(row.id));
+      await this.db.query(m, 'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)', [
+        leaseId, deskId, row.id, reviewer.id, draw, prediction ? JSON.stringify(prediction) : null, this.db.time(now), this.db.time(expiresAt),
       ]);
-      return row;
+      return { row, prediction };
     });
     if (!picked) return null;
+    const { prediction } = picked;
+    const row = picked.row;
     return {
       lease: { id: leaseId, expiresAt },
-      item: { id: Number(picked.id), text: picked.text, meta: JSON.parse(picked.meta) as Record<string, unknown>, externalId: picked.external_id, source: picked.source, postedAt: this.db.parseTime(picked.posted_at) },
-      highlights: this.highlighter.highlights(desk, picked.text),
-      prediction: null,
+      item: { id: Number(row.id), text: row.text, meta: JSON.parse(row.meta) as Record<string, unknown>, externalId: row.external_id, source: row.source, postedAt: this.db.parseTime(row.posted_at) },
+      highlights: this.highlighter.highlights(desk, row.text),
+      prediction,
     };
   }
 

@@ -2,6 +2,8 @@ import type { JobsOptions } from 'bullmq';
 import { JOBS, type JobName, type JobPayloads } from './queue-names.js';
 
 const keep = { removeOnComplete: { age: 24 * 3600, count: 1000 }, removeOnFail: { age: 7 * 24 * 3600 } } as const;
+// Jobs whose id is reused for a later request must not linger once finished.
+const vanish = { removeOnComplete: true, removeOnFail: true } as const;
 
 /**
  * Options of each job, decided in one place: de-duplication by job id,
@@ -15,6 +17,21 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
     case JOBS.reseedDesk:
       // A job id with a time bucket: a burst of edits gives one recount, a later edit a new one.
       return { ...keep, jobId: `reseed-${(payload as JobPayloads['reseed-desk']).deskId}-${Date.now()}`, attempts: 3, backoff: { type: 'exponential', delay: 1000 } };
+    case JOBS.retrainDesk: {
+      // One id per desk and watermark: every verdict until a new version starts maps to the same job.
+      const p = payload as JobPayloads['retrain-desk'];
+      return { ...vanish, jobId: `retrain-${p.deskId}-${p.base}`, attempts: 5, backoff: { type: 'exponential', delay: 1000 } };
+    }
+    case JOBS.scoreChunk: {
+      const p = payload as JobPayloads['score-chunk'];
+      return { ...vanish, jobId: `score-${p.deskId}-v${p.version}-${p.fromId}`, attempts: 5, backoff: { type: 'exponential', delay: 500 }, failParentOnFailure: true };
+    }
+    case JOBS.publishVersion: {
+      const p = payload as JobPayloads['publish-version'];
+      return { ...vanish, jobId: `publish-${p.deskId}-v${p.version}`, attempts: 5, backoff: { type: 'exponential', delay: 500 } };
+    }
+    case JOBS.sweepDesks:
+      return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
     default:
       throw new TypeError(`no job options for job name ${JSON.stringify(name)}`);
   }

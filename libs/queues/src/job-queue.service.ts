@@ -1,5 +1,5 @@
 import { Inject, Injectable, Logger, type OnApplicationShutdown } from '@nestjs/common';
-import { Queue } from 'bullmq';
+import { FlowProducer, Queue, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { jobOptions } from './job-options.js';
@@ -12,9 +12,11 @@ export const REDIS = Symbol('REDIS');
 export class JobQueueService implements OnApplicationShutdown {
   private readonly logger = new Logger('JobQueue');
   private readonly queues = new Map<QueueName, Queue>();
+  private readonly flows: FlowProducer;
 
   constructor(@Inject(REDIS) private readonly redis: Redis, @Inject(APP_CONFIG) private readonly config: AppConfig) {
     for (const name of Object.values(QUEUES)) this.queues.set(name, new Queue(name, { connection: redis, prefix: config.queuePrefix }));
+    this.flows = new FlowProducer({ connection: redis, prefix: config.queuePrefix });
   }
 
   queue(name: QueueName): Queue {
@@ -23,9 +25,29 @@ export class JobQueueService implements OnApplicationShutdown {
     return q;
   }
 
-  async add<N extends JobName>(name: N, payload: JobPayloads[N]): Promise<void> {
-    await this.queue(JOB_QUEUE[name]).add(name, payload, jobOptions(name, payload));
+  async add<N extends JobName>(name: N, payload: JobPayloads[N], extra: { delay?: number } = {}): Promise<Job> {
+    const job = await this.queue(JOB_QUEUE[name]).add(name, payload, { ...jobOptions(name, payload), ...extra });
     this.logger.debug(`enqueued ${name} ${JSON.stringify(payload)}`);
+    return job;
+  }
+
+  /** The job with this id on the queue of `name`, if it is still there. */
+  async job<N extends JobName>(name: N, id: string): Promise<Job<JobPayloads[N]> | undefined> {
+    return (await this.queue(JOB_QUEUE[name]).getJob(id)) as Job<JobPayloads[N]> | undefined;
+  }
+
+  /**
+   * A parent job that runs once all its children are done (a BullMQ flow);
+   * the ids come from {@link jobOptions}, so adding the same flow again is a no-op.
+   */
+  async flow<P extends JobName, C extends JobName>(parent: { name: P; payload: JobPayloads[P] }, children: Array<{ name: C; payload: JobPayloads[C] }>): Promise<void> {
+    await this.flows.add({
+      name: parent.name,
+      queueName: JOB_QUEUE[parent.name],
+      data: parent.payload,
+      opts: jobOptions(parent.name, parent.payload),
+      children: children.map((c) => ({ name: c.name, queueName: JOB_QUEUE[c.name], data: c.payload, opts: jobOptions(c.name, c.payload) })),
+    });
   }
 
   /** True when Redis answers. */
@@ -39,5 +61,6 @@ export class JobQueueService implements OnApplicationShutdown {
 
   async onApplicationShutdown(): Promise<void> {
     await Promise.all([...this.queues.values()].map((q) => q.close()));
+    await this.flows.close();
   }
 }

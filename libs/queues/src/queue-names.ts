@@ -5,6 +5,10 @@
 export const QUEUES = {
   imports: 'imports',
   maintenance: 'maintenance',
+  /** Retrain requests and publishing of model versions. */
+  learning: 'learning',
+  /** Scoring chunks of a new model version: any worker process takes any chunk. */
+  scoring: 'scoring',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -13,6 +17,14 @@ export const JOBS = {
   importFile: 'import-file',
   /** Recount seed-term matches of a desk's open items after its seed terms changed. */
   reseedDesk: 'reseed-desk',
+  /** Train, calibrate and start scoring a new model version of a desk. */
+  retrainDesk: 'retrain-desk',
+  /** Score one chunk of a desk's open items under a new version. */
+  scoreChunk: 'score-chunk',
+  /** Make a fully scored version current (the parent of its score-chunk jobs). */
+  publishVersion: 'publish-version',
+  /** Find desks whose newest verdicts no version has learned from (e.g. taken while Redis was down). */
+  sweepDesks: 'sweep-desks',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -24,13 +36,42 @@ export interface ReseedDeskPayload {
   deskId: number;
 }
 
+export interface RetrainDeskPayload {
+  deskId: number;
+  /** Verdict watermark of the newest live version when the request was made (part of the job id). */
+  base: number;
+}
+
+export interface ScoreChunkPayload {
+  deskId: number;
+  version: number;
+  /** Items with fromId ≤ id < toId. */
+  fromId: number;
+  toId: number;
+}
+
+export interface PublishVersionPayload {
+  deskId: number;
+  version: number;
+}
+
+export type SweepDesksPayload = Record<string, never>;
+
 /** Which queue carries which job. */
 export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.importFile]: QUEUES.imports,
   [JOBS.reseedDesk]: QUEUES.maintenance,
+  [JOBS.sweepDesks]: QUEUES.maintenance,
+  [JOBS.retrainDesk]: QUEUES.learning,
+  [JOBS.publishVersion]: QUEUES.learning,
+  [JOBS.scoreChunk]: QUEUES.scoring,
 };
 
 export interface JobPayloads {
   [JOBS.importFile]: ImportFilePayload;
   [JOBS.reseedDesk]: ReseedDeskPayload;
+  [JOBS.retrainDesk]: RetrainDeskPayload;
+  [JOBS.scoreChunk]: ScoreChunkPayload;
+  [JOBS.publishVersion]: PublishVersionPayload;
+  [JOBS.sweepDesks]: SweepDesksPayload;
 }

@@ -1,8 +1,8 @@
 import { Module } from '@nestjs/common';
-import { DeskDirectoryModule } from '#desks';
+import { ModelsCoreModule } from '#models';
 import { ProgressService } from './progress.service.js';
 import { VerdictsController } from './verdicts.controller.js';
 import { VerdictsService } from './verdicts.service.js';
 
-@Module({ imports: [DeskDirectoryModule], controllers: [VerdictsController], providers: [VerdictsService, ProgressService], exports: [VerdictsService, ProgressService] })
+@Module({ imports: [ModelsCoreModule], controllers: [VerdictsController], providers: [VerdictsService, ProgressService], exports: [VerdictsService, ProgressService] })
 export class VerdictsModule {}

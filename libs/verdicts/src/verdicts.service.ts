@@ -2,8 +2,8 @@ import { BadRequestException, ConflictException, ForbiddenException, Inject, Inj
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, isUniqueViolation, UserEntity, VerdictEntity, type DrawKind, type ShownPrediction } from '#database';
-import { DeskDirectory } from '#desks';
+import { Database, DeskDirectory, isUniqueViolation, UserEntity, VerdictEntity, type DrawKind, type ShownPrediction } from '#database';
+import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
 
 /** A verdict as the API shows it. */
@@ -47,6 +47,7 @@ export class VerdictsService {
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
+    @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
   ) {}
 
   /** Records a verdict; `replayed` is true when the client id was seen before and nothing was written. */
@@ -119,6 +120,7 @@ export class VerdictsService {
         return { created: { id: verdictId, ...view } };
       });
       if (result.replayOf !== undefined) return { verdict: await this.view(result.replayOf), replayed: true };
+      this.retrain.nudge(deskId, 'verdict');
       return { verdict: result.created!, replayed: false };
     } catch (e) {
       if (isUniqueViolation(e)) {
@@ -149,7 +151,9 @@ export class VerdictsService {
       if (Number(n) === 0) await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
       await this.audit.record(m, reviewer, { action: 'verdict.undo', entityType: 'verdict', entityId: v.id, deskId: v.deskId, before: { undoneAt: null }, after: { undoneAt: now.toISOString() } });
     });
-    return this.view(verdictId);
+    const undone = await this.view(verdictId);
+    this.retrain.nudge(undone.deskId, 'undo');
+    return undone;
   }
 
   async view(id: number): Promise<VerdictView> {

@@ -4,6 +4,10 @@ import { columns } from './columns.js';
 
 export const CALIBRATION_MODES = ['marginal', 'per-category'] as const;
 export type CalibrationMode = (typeof CALIBRATION_MODES)[number];
+export const STRATEGIES = ['entropy', 'margin', 'least-confidence', 'set-size'] as const;
+export type Strategy = (typeof STRATEGIES)[number];
+export const SCORES = ['lac', 'aps'] as const;
+export type ScoreKind = (typeof SCORES)[number];
 
 export class DeskEntity {
   id!: number;
@@ -16,6 +20,14 @@ export class DeskEntity {
   leaseSeconds!: number;
   /** The model version reviewers are served from; null until the first model is published. */
   currentModelVersion!: number | null;
+  /** Retrain after this many new verdicts… */
+  retrainEvery!: number;
+  /** …or this long after the first verdict not yet learned from, whichever comes first. */
+  retrainAfterSeconds!: number;
+  /** How the queue ranks items once a model exists. */
+  strategy!: Strategy;
+  /** Nonconformity score of the prediction sets. */
+  score!: ScoreKind;
   createdBy!: number;
   createdAt!: Date;
   updatedAt!: Date;
@@ -34,6 +46,10 @@ export const deskSchema = (d: Dialect) => {
       randomShare: c.double('random_share'),
       leaseSeconds: c.int('lease_seconds'),
       currentModelVersion: c.int('current_model_version', true),
+      retrainEvery: c.int('retrain_every'),
+      retrainAfterSeconds: c.int('retrain_after_seconds'),
+      strategy: c.varchar('strategy', 20),
+      score: c.varchar('score', 3),
       createdBy: c.int('created_by'),
       createdAt: c.time('created_at'),
       updatedAt: c.time('updated_at'),

@@ -59,6 +59,7 @@ export class Foundation1764600000000 implements MigrationInterface {
       columns: [
         c.id(), c.varchar('name', 200), c.text('seed_terms'), c.double('coverage_target'), c.varchar('calibration', 20),
         c.double('random_share'), c.int('lease_seconds'), c.int('current_model_version', true), c.int('created_by'), c.time('created_at'), c.time('updated_at'),
+        c.int('retrain_every', false, 10), c.int('retrain_after_seconds', false, 30), { ...c.varchar('strategy', 20), default: "'entropy'" }, { ...c.varchar('score', 3), default: "'lac'" },
       ],
       uniques: [{ name: 'uq_desks_name', columnNames: ['name'] }],
       checks: [
@@ -66,6 +67,9 @@ export class Foundation1764600000000 implements MigrationInterface {
         { name: 'ck_desks_calibration', expression: inList('calibration', ['marginal', 'per-category']) },
         { name: 'ck_desks_random_share', expression: 'random_share >= 0 AND random_share <= 1' },
         { name: 'ck_desks_lease', expression: 'lease_seconds BETWEEN 30 AND 86400' },
+        { name: 'ck_desks_retrain', expression: 'retrain_every BETWEEN 1 AND 100000 AND retrain_after_seconds BETWEEN 1 AND 86400' },
+        { name: 'ck_desks_strategy', expression: inList('strategy', ['entropy', 'margin', 'least-confidence', 'set-size']) },
+        { name: 'ck_desks_score', expression: inList('score', ['lac', 'aps']) },
       ],
       foreignKeys: [fk(['created_by'], 'users', ['id'])],
     }));

@@ -1,5 +1,7 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { CategoryEntity, Database, DeskEntity } from '#database';
+import { Database } from './database.js';
+import { CategoryEntity } from './entities/category.entity.js';
+import { DeskEntity } from './entities/desk.entity.js';
 
 export interface DeskEntry {
   desk: DeskEntity;

@@ -1,0 +1,54 @@
+import { Inject, Injectable } from '@nestjs/common';
+import type { Job } from 'bullmq';
+import { APP_CONFIG, type AppConfig } from '#config';
+import { Database } from '#database';
+import { PublishService, RetrainScheduler, ScoringService, TrainingService } from '#models';
+import { JOBS, type JobHandler, type PublishVersionPayload, type RetrainDeskPayload, type ScoreChunkPayload, type SweepDesksPayload } from '#queues';
+
+@Injectable()
+export class RetrainDeskProcessor implements JobHandler<'retrain-desk'> {
+  readonly jobName = JOBS.retrainDesk;
+  constructor(@Inject(TrainingService) private readonly training: TrainingService, @Inject(APP_CONFIG) private readonly config: AppConfig) {}
+
+  handle(job: Job<RetrainDeskPayload>): Promise<unknown> {
+    return this.training.run(job.data, this.config.scoringChunkSize);
+  }
+}
+
+@Injectable()
+export class ScoreChunkProcessor implements JobHandler<'score-chunk'> {
+  readonly jobName = JOBS.scoreChunk;
+  constructor(@Inject(ScoringService) private readonly scoring: ScoringService) {}
+
+  handle(job: Job<ScoreChunkPayload>): Promise<unknown> {
+    return this.scoring.run(job.data);
+  }
+}
+
+@Injectable()
+export class PublishVersionProcessor implements JobHandler<'publish-version'> {
+  readonly jobName = JOBS.publishVersion;
+  constructor(@Inject(PublishService) private readonly publish: PublishService) {}
+
+  handle(job: Job<PublishVersionPayload>): Promise<unknown> {
+    return this.publish.run(job.data);
+  }
+}
+
+/**
+ * Finds desks with verdicts no version has learned from — for instance
+ * verdicts taken while Redis was down, whose retrain request was lost — and
+ * asks for their retrain.
+ */
+@Injectable()
+export class SweepDesksProcessor implements JobHandler<'sweep-desks'> {
+  readonly jobName = JOBS.sweepDesks;
+  constructor(@Inject(Database) private readonly db: Database, @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler) {}
+
+  async handle(_job: Job<SweepDesksPayload>): Promise<unknown> {
+    const behind = await this.db.query<{ id: number }>(null,
+      `SELECT d.id FROM desks d WHERE EXISTS (SELECT 1 FROM verdicts v WHERE v.desk_id = d.id AND v.id > COALESCE((SELECT MAX(m.verdict_watermark) FROM model_versions m WHERE m.desk_id = d.id AND m.state IN ('training', 'scoring', 'published')), 0))`);
+    for (const d of behind) await this.retrain.check(Number(d.id), 'sweep');
+    return { desks: behind.length };
+  }
+}

@@ -1,0 +1,67 @@
+import { EntitySchema } from 'typeorm';
+import type { Dialect } from '../dialect.js';
+import { columns } from './columns.js';
+
+export const MODEL_STATES = ['training', 'scoring', 'published', 'superseded', 'failed'] as const;
+export type ModelState = (typeof MODEL_STATES)[number];
+
+/** Which verdicts a version learned from (training) or calibrated on. */
+export interface VerdictSetSummary {
+  /** Verdicts per category. */
+  counts: Record<string, number>;
+  /** Verdicts per draw kind: training never holds `random`, calibration only `random`. */
+  draws: Record<string, number>;
+  /** The items, ascending. */
+  itemIds: number[];
+}
+
+/**
+ * One trained classifier with its calibration and figures. Immutable once
+ * published: later changes of the coverage target only re-read the stored
+ * calibration scores.
+ */
+export class ModelVersionEntity {
+  id!: number;
+  deskId!: number;
+  version!: number;
+  parentVersion!: number | null;
+  state!: ModelState;
+  /** The retrain request that made it: a retried job finds its own version again. */
+  jobKey!: string;
+  /** The newest verdict id the version saw; later verdicts are not yet learned from. */
+  verdictWatermark!: number;
+  training!: VerdictSetSummary;
+  /** Calibration items and the sorted nonconformity scores (ConformalCalibrationJson). */
+  calibration!: VerdictSetSummary & { scores: unknown };
+  /** The classifier and the idf table it was trained with. */
+  model!: { classifier: unknown; idf: unknown; featurizer: unknown } | null;
+  metrics!: Record<string, unknown> | null;
+  timings!: Record<string, number>;
+  failure!: string | null;
+  createdAt!: Date;
+  publishedAt!: Date | null;
+}
+
+export const modelVersionSchema = (d: Dialect) => {
+  const c = columns(d);
+  return new EntitySchema<ModelVersionEntity>({
+    name: 'ModelVersionEntity', target: ModelVersionEntity, tableName: 'model_versions',
+    columns: {
+      id: c.id(),
+      deskId: c.int('desk_id'),
+      version: c.int('version'),
+      parentVersion: c.int('parent_version', true),
+      state: c.varchar('state', 12),
+      jobKey: c.varchar('job_key', 100),
+      verdictWatermark: c.int('verdict_watermark'),
+      training: c.json('training'),
+      calibration: c.json('calibration'),
+      model: c.json('model', true),
+      metrics: c.json('metrics', true),
+      timings: c.json('timings'),
+      failure: c.text('failure', true),
+      createdAt: c.time('created_at'),
+      publishedAt: c.time('published_at', true),
+    },
+  });
+};

@@ -1,0 +1,53 @@
+import { Inject, Injectable } from '@nestjs/common';
+import { Database, ModelVersionEntity } from '#database';
+import { ConformalCalibration, IdfTable, LogisticModel, tfidf, type ConformalCalibrationJson, type Featurizer, type IdfTableJson, type LogisticModelJson, type SparseVector } from '#learning';
+import { DeskFeaturesService } from './desk-features.service.js';
+
+/** A model version ready to score: classifier, the idf it was trained with, its calibration. */
+export interface LoadedModel {
+  deskId: number;
+  version: number;
+  state: ModelVersionEntity['state'];
+  categories: string[];
+  classifier: LogisticModel;
+  idf: IdfTable;
+  featurizer: Featurizer;
+  calibration: ConformalCalibration;
+  vectorize(text: string): SparseVector;
+}
+
+const KEEP = 6;
+
+/** Loads model versions and keeps the last few in memory (versions are immutable once written). */
+@Injectable()
+export class ModelStore {
+  private readonly cache = new Map<string, LoadedModel>();
+
+  constructor(@Inject(Database) private readonly db: Database, @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService) {}
+
+  async load(deskId: number, version: number): Promise<LoadedModel | null> {
+    const key = `${deskId}:${version}`;
+    const hit = this.cache.get(key);
+    if (hit) {
+      this.cache.delete(key);
+      this.cache.set(key, hit);
+      return hit;
+    }
+    const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
+    if (!row || !row.model) return null;
+    const classifier = LogisticModel.fromJSON(row.model.classifier as LogisticModelJson);
+    const idf = IdfTable.fromJSON(row.model.idf as IdfTableJson);
+    const featurizer = this.features.featurizer(idf.hashBits);
+    const loaded: LoadedModel = {
+      deskId, version, state: row.state, categories: [...classifier.categories], classifier, idf, featurizer,
+      calibration: ConformalCalibration.fromJSON(row.calibration.scores as ConformalCalibrationJson),
+      vectorize: (text) => tfidf(featurizer.counts(text), idf),
+    };
+    // Only finished versions are cached: a version still being written may change.
+    if (row.state === 'scoring' || row.state === 'published') {
+      this.cache.set(key, loaded);
+      while (this.cache.size > KEEP) this.cache.delete(this.cache.keys().next().value as string);
+    }
+    return loaded;
+  }
+}

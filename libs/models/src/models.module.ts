@@ -1,0 +1,32 @@
+import { Module, type DynamicModule } from '@nestjs/common';
+import { DeskFeaturesService } from './desk-features.service.js';
+import { ModelStore } from './model-store.service.js';
+import { ModelsController } from './models.controller.js';
+import { PredictionsService } from './predictions.service.js';
+import { PublishService } from './publish.service.js';
+import { RetrainScheduler } from './retrain-scheduler.service.js';
+import { ScoringService } from './scoring.service.js';
+import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
+
+const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainScheduler];
+
+/** Reading models and predictions (and asking for retrains): no training here. */
+@Module({ providers: shared, exports: shared })
+export class ModelsCoreModule {}
+
+/** The HTTP side: model versions, coverage, preview, items with predictions. */
+@Module({ imports: [ModelsCoreModule], controllers: [ModelsController], exports: [ModelsCoreModule] })
+export class ModelsModule {}
+
+/** The worker side: training, scoring, publishing. `pause` is the crash tests' hook; it does nothing by default. */
+@Module({})
+export class ModelsWorkModule {
+  static register(options: { pause?: PauseHook } = {}): DynamicModule {
+    return {
+      module: ModelsWorkModule,
+      imports: [ModelsCoreModule],
+      providers: [TrainingService, ScoringService, PublishService, { provide: PAUSE_HOOK, useValue: options.pause ?? (async () => undefined) }],
+      exports: [ModelsCoreModule, TrainingService, ScoringService, PublishService],
+    };
+  }
+}

@@ -1,0 +1,37 @@
+import { Inject, Injectable, Logger } from '@nestjs/common';
+import { Database } from '#database';
+import type { PublishVersionPayload } from '#queues';
+
+/**
+ * Makes a fully scored version current, in one transaction: every scored
+ * item takes its new priority and the desk switches version. Reviewers
+ * never see a half-scored pool; a superseded version is discarded.
+ */
+@Injectable()
+export class PublishService {
+  private readonly logger = new Logger('Publish');
+
+  constructor(@Inject(Database) private readonly db: Database) {}
+
+  async run(p: PublishVersionPayload): Promise<{ published: boolean; reason?: string }> {
+    const result = await this.db.write(async (m) => {
+      const lock = this.db.pg ? ' FOR UPDATE' : '';
+      const [v] = await this.db.query<{ state: string }>(m, `SELECT state FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`, [p.deskId, p.version]);
+      if (!v || v.state !== 'scoring') return { published: false, reason: `version is ${v?.state ?? 'gone'}` };
+      await this.db.query(m,
+        `UPDATE items SET priority = predictions.priority, priority_model_version = $1 FROM predictions
+         WHERE predictions.item_id = items.id AND predictions.model_version = $1 AND items.desk_id = $2 AND predictions.desk_id = $2`, [p.version, p.deskId]);
+      await this.db.query(m, `UPDATE desks SET current_model_version = $1 WHERE id = $2`, [p.version, p.deskId]);
+      await this.db.query(m, `UPDATE model_versions SET state = 'published', published_at = $1 WHERE desk_id = $2 AND version = $3`, [this.db.time(new Date()), p.deskId, p.version]);
+      return { published: true };
+    });
+    // Predictions no one will serve: older versions once this one is current, or this one when it was discarded.
+    if (result.published) {
+      await this.db.write((m) => this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version < $2`, [p.deskId, p.version]));
+    } else {
+      await this.db.write((m) => this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version = $2 AND model_version NOT IN (SELECT current_model_version FROM desks WHERE id = $1 AND current_model_version IS NOT NULL)`, [p.deskId, p.version]));
+    }
+    if (result.published) this.logger.log(`desk ${p.deskId}: version ${p.version} is current`);
+    return result;
+  }
+}

@@ -1,0 +1,154 @@
+import { Inject, Injectable, Logger } from '@nestjs/common';
+import { UnrecoverableError } from 'bullmq';
+import { CategoryEntity, Database, DeskEntity, ModelVersionEntity, type VerdictSetSummary } from '#database';
+import {
+  accuracy, brierScore, ConformalCalibration, expectedCalibrationError, IdfTable, LogisticModel, logLoss, macroF1, reliabilityBins, tfidf, topLabelConfidence,
+} from '#learning';
+import { JOBS, JobQueueService, type RetrainDeskPayload } from '#queues';
+import { DeskFeaturesService } from './desk-features.service.js';
+import { FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-scheduler.service.js';
+import { trainInThread } from './training-protocol.js';
+
+/** Items per scoring chunk: each chunk is its own job, taken by any worker process. */
+export const DEFAULT_CHUNK_SIZE = 5000;
+
+interface LabelledRow {
+  item_id: number;
+  draw: string;
+  category: string;
+  text: string;
+}
+
+/** Pauses named points of the retrain when the test hook asks (CRIBRA_TEST_PAUSE), so crash tests can kill at a known moment. */
+export type PauseHook = (point: 'training' | 'scoring') => Promise<void>;
+export const PAUSE_HOOK = Symbol('PAUSE_HOOK');
+
+/**
+ * Trains a new model version of a desk: training on every verdict except
+ * uniform random draws, calibration on random draws only (they are
+ * exchangeable with the pool; items picked by uncertainty are not), quality
+ * figures on the calibration set; then starts scoring the pool in chunks.
+ */
+@Injectable()
+export class TrainingService {
+  private readonly logger = new Logger('Training');
+
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+    @Inject(PAUSE_HOOK) private readonly pause: PauseHook,
+  ) {}
+
+  async run(payload: RetrainDeskPayload, chunkSize = DEFAULT_CHUNK_SIZE): Promise<{ version: number | null; reason?: string }> {
+    const { deskId, base } = payload;
+    const jobKey = `retrain-${deskId}-${base}`;
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
+    if (!desk) throw new UnrecoverableError(`no desk ${deskId}`);
+    const categories = (await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } })).map((c) => c.name);
+    let row = await this.db.manager.findOneBy(ModelVersionEntity, { jobKey });
+    if (row && (row.state === 'published' || row.state === 'superseded')) return { version: row.version, reason: `already ${row.state}` };
+    if (row && row.state === 'scoring') {
+      // A retry after the flow was (maybe) created: adding it again is a no-op.
+      await this.startScoring(deskId, row.version, chunkSize);
+      return { version: row.version };
+    }
+    const t0 = performance.now();
+    const [wm] = await this.db.query<{ w: number | null }>(null, 'SELECT MAX(id) AS w FROM verdicts WHERE desk_id = $1', [deskId]);
+    const watermark = Number(wm?.w ?? 0);
+    const labelled = await this.db.query<LabelledRow>(null,
+      `SELECT v.item_id, v.draw, c.name AS category, i.text FROM verdicts v JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
+       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.category_id IS NOT NULL AND v.id <= $2 ORDER BY v.id`, [deskId, watermark]);
+    // One label per item, its latest verdict; an item ever drawn uniformly at random calibrates and never trains.
+    const byItem = new Map<number, { label: string; random: boolean; text: string; draws: Set<string> }>();
+    for (const r of labelled) {
+      const e = byItem.get(Number(r.item_id)) ?? { label: r.category, random: false, text: r.text, draws: new Set<string>() };
+      e.label = r.category;
+      e.draws.add(r.draw);
+      if (r.draw === 'random') e.random = true;
+      byItem.set(Number(r.item_id), e);
+    }
+    const train = [...byItem.entries()].filter(([, e]) => !e.random).sort((a, b) => a[0] - b[0]);
+    const calib = [...byItem.entries()].filter(([, e]) => e.random).sort((a, b) => a[0] - b[0]);
+    const hasModel = desk.currentModelVersion !== null;
+    const perCategory = (rows: typeof train) => Object.fromEntries(categories.map((c) => [c, rows.filter(([, e]) => e.label === c).length]));
+    if (!hasModel && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY)) return { version: null, reason: 'not enough training verdicts for a first model' };
+    if (new Set(train.map(([, e]) => e.label)).size < 2) return { version: null, reason: 'training verdicts cover fewer than two categories' };
+
+    const version = row?.version ?? (await this.nextVersion(deskId));
+    const summary = (rows: typeof train): VerdictSetSummary => {
+      const draws: Record<string, number> = {};
+      for (const [, e] of rows) for (const d of e.draws) draws[d] = (draws[d] ?? 0) + 1;
+      return { counts: perCategory(rows), draws, itemIds: rows.map(([id]) => id) };
+    };
+    if (!row) {
+      await this.db.write(async (m) => {
+        await m.insert(ModelVersionEntity, {
+          deskId, version, parentVersion: desk.currentModelVersion, state: 'training', jobKey, verdictWatermark: watermark, training: summary(train),
+          calibration: { ...summary(calib), scores: null }, model: null, metrics: null, timings: {}, failure: null, createdAt: new Date(), publishedAt: null,
+        } as never);
+      });
+    }
+    await this.pause('training');
+
+    const idf: IdfTable = await this.features.table(deskId);
+    const featurizer = this.features.featurizer(idf.hashBits);
+    const vectorize = (text: string) => tfidf(featurizer.counts(text), idf);
+    const tFeat = performance.now();
+    const trainVectors = train.map(([, e]) => vectorize(e.text));
+    const calibVectors = calib.map(([, e]) => vectorize(e.text));
+    const tTrain = performance.now();
+    const classifierJson = await trainInThread(trainVectors, train.map(([, e]) => e.label), categories, idf.hashBits);
+    const classifier = LogisticModel.fromJSON(classifierJson);
+    const tCal = performance.now();
+    const probs = calibVectors.map((v) => classifier.predictProba(v));
+    const labels = calib.map(([, e]) => categories.indexOf(e.label));
+    const calibration = ConformalCalibration.fromScores(categories, probs, labels);
+    const metrics = probs.length > 0 ? qualityFigures(probs, labels, categories.length) : null;
+    const tDone = performance.now();
+    const timings = { loadMs: tFeat - t0, featurizeMs: tTrain - tFeat, trainMs: tCal - tTrain, calibrateMs: tDone - tCal };
+    await this.db.write(async (m) => {
+      await m.update(ModelVersionEntity, { jobKey }, {
+        state: 'scoring', calibration: { ...summary(calib), scores: calibration.toJSON() } as never, model: { classifier: classifierJson, idf: idf.toJSON(), featurizer: featurizer.options } as never,
+        metrics: metrics as never, timings: timings as never,
+      });
+      // A newer version supersedes older ones still on their way: they stop and are discarded.
+      await this.db.query(m, `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version < $2 AND state IN ('training', 'scoring')`, [deskId, version]);
+    });
+    await this.startScoring(deskId, version, chunkSize);
+    this.logger.log(`desk ${deskId} v${version}: trained on ${train.length}, calibrated on ${calib.length} in ${Math.round(tDone - t0)} ms`);
+    return { version };
+  }
+
+  private async nextVersion(deskId: number): Promise<number> {
+    const [r] = await this.db.query<{ v: number | null }>(null, 'SELECT MAX(version) AS v FROM model_versions WHERE desk_id = $1', [deskId]);
+    return Number(r?.v ?? 0) + 1;
+  }
+
+  /** The scoring flow: one child job per chunk of open items, and the publish job as their parent. */
+  private async startScoring(deskId: number, version: number, chunkSize: number): Promise<void> {
+    const ids = await this.db.query<{ id: number }>(null, `SELECT id FROM items WHERE desk_id = $1 AND state <> 'decided' ORDER BY id`, [deskId]);
+    const chunks: Array<{ fromId: number; toId: number }> = [];
+    for (let i = 0; i < ids.length; i += chunkSize) {
+      const fromId = Number(ids[i]!.id);
+      const toId = i + chunkSize < ids.length ? Number(ids[i + chunkSize]!.id) : Number(ids[ids.length - 1]!.id) + 1;
+      chunks.push({ fromId, toId });
+    }
+    await this.jobs.flow({ name: JOBS.publishVersion, payload: { deskId, version } }, chunks.map((c) => ({ name: JOBS.scoreChunk, payload: { deskId, version, ...c } })));
+  }
+}
+
+/** Accuracy, macro-F1, log loss, Brier score, ECE and the reliability diagram on the calibration set. */
+export function qualityFigures(probs: Float64Array[], labels: number[], k: number) {
+  const predicted = probs.map((p) => p.indexOf(Math.max(...p)));
+  const { confidences, correct } = topLabelConfidence(probs, labels);
+  return {
+    n: labels.length,
+    accuracy: accuracy(labels, predicted, k),
+    macroF1: macroF1(labels, predicted, k),
+    logLoss: logLoss(probs, labels),
+    brier: brierScore(probs, labels),
+    ece: expectedCalibrationError(confidences, correct, 10),
+    reliability: reliabilityBins(confidences, correct, 10),
+  };
+}
