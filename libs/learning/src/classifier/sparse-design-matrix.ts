@@ -48,6 +48,14 @@ function readColumn(m: MatrixLike, expectedRows: number, name: string): Float64A
   }
   if (m instanceof DenseColumn) return m.column;
   const out = new Float64Array(expectedRows);
+  // ml-matrix's Matrix keeps its rows in the public field `data` (one
+  // Float64Array a row); reading it directly avoids a megamorphic `get` call
+  // per entry, which dominated the products for wide weight columns.
+  const data = (m as { data?: unknown }).data;
+  if (Array.isArray(data) && data.length === expectedRows && (expectedRows === 0 || (data[0] instanceof Float64Array && data[0].length === 1))) {
+    for (let i = 0; i < expectedRows; i++) out[i] = (data[i] as Float64Array)[0];
+    return out;
+  }
   for (let i = 0; i < expectedRows; i++) out[i] = m.get(i, 0);
   return out;
 }

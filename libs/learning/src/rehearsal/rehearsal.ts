@@ -106,7 +106,13 @@ function checkOptions(o: RehearsalOptions): void {
  * document frequencies (test items are never drawn and do not inform idf),
  * tf-idf.
  */
-export function prepareRehearsal(items: readonly LabelledItem[], options: Pick<RehearsalOptions, 'testShare' | 'seed' | 'featurizer'>): RehearsalData {
+export function prepareRehearsal(
+  items: readonly LabelledItem[],
+  options: Pick<RehearsalOptions, 'testShare' | 'seed' | 'featurizer'> & {
+    /** Hashed counts of the items, if already computed with the same featuriser options. */
+    counts?: readonly SparseVector[];
+  },
+): RehearsalData {
   const classes = [...new Set(items.map((i) => i.label))].sort();
   if (classes.length < 2) throw new RangeError(`the labels hold ${classes.length} class(es); a rehearsal needs at least 2`);
   const index = new Map(classes.map((c, i) => [c, i]));
@@ -121,7 +127,10 @@ export function prepareRehearsal(items: readonly LabelledItem[], options: Pick<R
   const pool = order.slice(nTest);
   const started = performance.now();
   const featurizer = createFeaturizer(options.featurizer);
-  const counts = items.map((i) => featurizer.counts(i.text));
+  if (options.counts !== undefined && options.counts.length !== items.length) {
+    throw new RangeError(`counts has ${options.counts.length} rows for ${items.length} items`);
+  }
+  const counts = options.counts ?? items.map((i) => featurizer.counts(i.text));
   const idf = IdfTable.create(featurizer.hashBits);
   for (const i of pool) idf.addDocument(counts[i]);
   const vectors = counts.map((c) => tfidf(c, idf));
