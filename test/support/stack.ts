@@ -35,6 +35,8 @@ export interface Stack {
   user(name: string, role: Role, password?: string): Promise<string>;
   call<T = any>(token: string | null, method: string, path: string, body?: unknown, headers?: Record<string, string>): Promise<Reply<T>>;
   waitForQueuesIdle(timeoutMs?: number): Promise<void>;
+  /** Stops the in-process worker (nothing is learned or scored after this). */
+  stopWorker(): Promise<void>;
   stop(): Promise<void>;
 }
 
@@ -54,7 +56,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const server = api.getHttpServer();
   const addr = server.address() as { port: number };
   const base = `http://127.0.0.1:${addr.port}`;
-  const worker = options.worker === false ? null : await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['error'] });
+  let worker = options.worker === false ? null : await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['error'] });
   const auth = api.get(AuthService);
   const db = api.get(Database);
   const tokens: Record<string, string> = {};
@@ -90,9 +92,11 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     try {
       const deadline = Date.now() + timeoutMs;
       for (;;) {
-        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'delayed', 'prioritized', 'waiting-children')));
-        if (counts.every((c) => Object.values(c).every((n) => n === 0))) return;
-        if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}`);
+        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')));
+        // The periodic sweep always has its next run scheduled: it does not count as work.
+        const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed'])))).flat().filter((j) => j && j.name !== 'sweep-desks');
+        if (delayed.length === 0 && counts.every((c) => Object.values(c).every((n) => n === 0))) return;
+        if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`);
         await new Promise((r) => setTimeout(r, 50));
       }
     } finally {
@@ -100,8 +104,13 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
       connection.disconnect();
     }
   };
+  const stopWorker = async () => {
+    const w = worker;
+    worker = null;
+    await w?.close();
+  };
   const stop = async () => {
-    await worker?.close();
+    await stopWorker();
     await api.close();
     const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
     for (const q of Object.values(QUEUES)) {
@@ -113,7 +122,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     rmSync(dataDir, { recursive: true, force: true });
     await tdb.drop();
   };
-  return { kind, config, base, api, worker, db, tokens, user, call, waitForQueuesIdle, stop };
+  return { kind, config, base, api, get worker() { return worker; }, db, tokens, user, call, waitForQueuesIdle, stopWorker, stop };
 }
 
 /** Polls until `probe` returns a value other than undefined. */

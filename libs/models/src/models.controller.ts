@@ -1,7 +1,7 @@
 import { BadRequestException, Controller, Get, Inject, NotFoundException, Param, ParseIntPipe, Query } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { Roles } from '#auth';
-import { Database, DeskDirectory, ModelVersionEntity, TRIAGE_CALLS, type DeskEntity } from '#database';
+import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS } from '#database';
 import { ModelStore } from './model-store.service.js';
 import { PredictionsService } from './predictions.service.js';
 
@@ -17,10 +17,11 @@ export class ModelsController {
     @Inject(ModelStore) private readonly store: ModelStore,
   ) {}
 
+  /** Read fresh (not through the directory's short cache): these pages must show the version that is current now. */
   private async desk(deskId: number): Promise<DeskEntity> {
-    const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
-    return entry.desk;
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
+    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    return desk;
   }
 
   /** Model versions, newest first: counts, quality figures, timings, parent. */

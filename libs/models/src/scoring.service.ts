@@ -26,7 +26,7 @@ export class ScoringService {
     for (const it of items) {
       const probs = model.classifier.predictProba(model.vectorize(it.text));
       const setSize = desk.strategy === 'set-size' ? predictionSet(probs, model.calibration, { alpha, score: desk.score, mode: desk.calibration }).categories.length : 0;
-      rows.push([Number(it.id), p.version, p.deskId, JSON.stringify(Array.from(probs, (x) => Math.round(x * 1e6) / 1e6)), uncertainty(probs, strategy), priorityOf(probs, desk.strategy, setSize)]);
+      rows.push([Number(it.id), p.version, p.deskId, JSON.stringify(Array.from(probs)), uncertainty(probs, strategy), priorityOf(probs, desk.strategy, setSize)]);
     }
     // Retried chunks skip rows already written.
     for (let i = 0; i < rows.length; i += 500) {
