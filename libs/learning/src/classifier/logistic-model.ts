@@ -90,8 +90,10 @@ export class LogisticModel {
     const s = new Float64Array(k);
     for (let c = 0; c < k; c++) s[c] = this.biases[c];
     const lookup = this.positions();
+    const weights = this.weights;
     const { indices, values } = x;
-    for (let i = 0; i < indices.length; i++) {
+    const n = indices.length;
+    for (let i = 0; i < n; i++) {
       const index = indices[i];
       if (index < 0 || index >= lookup.length) {
         throw new RangeError(`x.indices[${i}] = ${index} is outside 0…${lookup.length - 1}`);
@@ -100,7 +102,7 @@ export class LogisticModel {
       if (p === 0) continue;
       const base = (p - 1) * k;
       const v = values[i];
-      for (let c = 0; c < k; c++) s[c] += v * this.weights[base + c];
+      for (let c = 0; c < k; c++) s[c] += v * weights[base + c];
     }
     return s;
   }

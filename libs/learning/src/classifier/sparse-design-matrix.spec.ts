@@ -49,6 +49,18 @@ describe('SparseDesignMatrix', () => {
     expect(x.productCount).toBe(4);
   });
 
+  it('weighs rows in the transposed product of the class whose turn it is', () => {
+    const x = example();
+    const weights = [Float64Array.of(1, 1, 1), Float64Array.of(2, 0, 1)];
+    x.beginRound(null, 1, weights);
+    const w = new DenseColumn(Float64Array.of(0, 0, 0));
+    const r = new DenseColumn(Float64Array.of(1, 1, 1));
+    x.mmul(w); // class 0's step
+    expect(x.transpose().mmul(r).to1DArray()).toEqual([5, 3, 7]);
+    x.mmul(w); // class 1's step: Xᵀ(weights ⊙ r) = Xᵀ[2, 0, 1]
+    expect(x.transpose().mmul(r).to1DArray()).toEqual([6, 0, 9]);
+  });
+
   it('is read-only and checks shapes', () => {
     expect(() => example().set(0, 0, 1)).toThrow(TypeError);
     expect(() => example().mmul(Matrix.columnVector([1, 2]))).toThrow(/3 × 1/);

@@ -80,6 +80,7 @@ export class SparseDesignMatrix extends AbstractMatrix {
   private readonly rowIdx: Int32Array;
   private readonly colValues: Float64Array;
   private bases: Float64Array[] | null = null;
+  private rowWeights: Float64Array[] | null = null;
   /** Column means subtracted implicitly (none: plain X). */
   private centre: Float64Array | null = null;
   private stepsPerClass = 0;
@@ -162,10 +163,14 @@ export class SparseDesignMatrix extends AbstractMatrix {
 
   /**
    * Starts a round of one-vs-rest training: class c's products get `bases[c]`
-   * added; `stepsPerClass` is the library's `numSteps`.
+   * added; `stepsPerClass` is the library's `numSteps`. With `rowWeights`,
+   * the transposed product of class c weighs row i by `rowWeights[c][i]`,
+   * Xᵀ(w ⊙ r), which turns the library's gradient of the log-likelihood into
+   * the gradient of the weighted log-likelihood.
    */
-  beginRound(bases: Float64Array[] | null, stepsPerClass: number): void {
+  beginRound(bases: Float64Array[] | null, stepsPerClass: number, rowWeights: Float64Array[] | null = null): void {
     this.bases = bases;
+    this.rowWeights = rowWeights;
     this.stepsPerClass = stepsPerClass;
     this.calls = 0;
   }
@@ -238,6 +243,17 @@ export class SparseDesignMatrix extends AbstractMatrix {
     return out;
   }
 
+  /** Xᵀ·r with the current class's row weights (the transposed product during training). */
+  currentTransposeTimes(r: Float64Array): Float64Array {
+    if (this.rowWeights === null || this.stepsPerClass === 0) return this.transposeTimes(r);
+    // The library calls X·w then Xᵀ·r in each step: the class is that of the last X·w.
+    const weights = this.rowWeights[Math.floor((this.calls - 1) / this.stepsPerClass)];
+    if (weights === undefined) return this.transposeTimes(r);
+    const weighted = new Float64Array(r.length);
+    for (let i = 0; i < r.length; i++) weighted[i] = r[i] * weights[i];
+    return this.transposeTimes(weighted);
+  }
+
   /** A view of Xᵀ whose `mmul` is one pass over the non-zeros. */
   override transpose(): Matrix {
     return new SparseTransposeView(this) as unknown as Matrix;
@@ -265,6 +281,6 @@ class SparseTransposeView extends AbstractMatrix {
 
   override mmul(other: AbstractMatrix | number[][]): Matrix {
     const r = readColumn(asMatrixLike(other), this.columns, 'mmul argument');
-    return new DenseColumn(this.x.transposeTimes(r)) as unknown as Matrix;
+    return new DenseColumn(this.x.currentTransposeTimes(r)) as unknown as Matrix;
   }
 }

@@ -72,6 +72,19 @@ describe('trainLogisticModel', () => {
     expect(two.predict(train.x[1])).toBe('green');
   });
 
+  it('balances each one-vs-rest problem so a rare category gets its probability', () => {
+    // Keep one red item in ten: red is rare.
+    const keep = train.x.map((_, i) => train.y[i] !== 'red' || i % 30 === 0);
+    const x = train.x.filter((_, i) => keep[i]);
+    const y = train.y.filter((_, i) => keep[i]);
+    const opts = { categories: CATEGORIES, hashBits: 8, maxSteps: 20 };
+    const balanced = trainLogisticModel(x, y, opts);
+    const plain = trainLogisticModel(x, y, { ...opts, balanced: false });
+    const reds = test.x.filter((_, i) => test.y[i] === 'red');
+    const meanRed = (m: LogisticModel) => reds.reduce((s, v) => s + m.predictProba(v)[0], 0) / reds.length;
+    expect(meanRed(balanced)).toBeGreaterThan(meanRed(plain));
+  });
+
   it('caps the features at the most frequent ones', () => {
     const capped = trainLogisticModel(train.x, train.y, { categories: CATEGORIES, hashBits: 8, maxFeatures: 20 });
     expect(capped.features.length).toBe(20);

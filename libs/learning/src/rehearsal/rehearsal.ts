@@ -209,9 +209,9 @@ function measure(
 }
 
 /** Number of curve points a run produces. */
-function pointsOf(options: RehearsalOptions, poolSize: number): number {
-  const budget = Math.min(options.budget, poolSize);
-  return 1 + Math.ceil(Math.max(0, budget - Math.min(options.start, budget)) / options.batch);
+function pointsOf(data: RehearsalData, options: RehearsalOptions): number {
+  const budget = Math.min(options.budget, data.pool.length);
+  return 1 + Math.ceil((budget - coldStart(data, options.start, budget).length) / options.batch);
 }
 
 function runCurve(
@@ -223,9 +223,7 @@ function runCurve(
   progress: () => void,
 ): CurvePoint[] {
   const budget = Math.min(options.budget, data.pool.length);
-  // The pool is already in seeded random order: its head is a uniform sample,
-  // the same start set for every strategy of this seed.
-  const trainRows = data.pool.slice(0, Math.min(options.start, budget));
+  const trainRows = coldStart(data, options.start, budget);
   const calibrationRows: number[] = [];
   const labelled = new Set(trainRows);
   const curve: CurvePoint[] = [];
@@ -265,6 +263,26 @@ function runCurve(
   return curve;
 }
 
+/**
+ * The cold start: `start` uniform random verdicts, continued (still uniform,
+ * in the same order) until every category has at least one training verdict
+ * or the budget is spent. A category without training examples gets
+ * probability 0, so uncertainty sampling could never ask about it; the
+ * service's cold start finds such examples through seed terms, which a
+ * rehearsal file does not have. The pool is already in seeded random order,
+ * so its head is a uniform sample, the same start set for every strategy.
+ */
+function coldStart(data: RehearsalData, start: number, budget: number): number[] {
+  const rows = data.pool.slice(0, Math.min(start, budget));
+  const seen = new Set(rows.map((i) => data.labels[i]));
+  for (let j = rows.length; j < budget && seen.size < data.classes.length; j++) {
+    const i = data.pool[j];
+    rows.push(i);
+    seen.add(data.labels[i]);
+  }
+  return rows;
+}
+
 function labelsToReach(curve: CurvePoint[], fullF1: number): RehearsalCurve['labelsToReach'] {
   const first = (share: number): number | null => curve.find((p) => p.macroF1 >= share * fullF1)?.labels ?? null;
   return { '0.95': first(0.95), '0.98': first(0.98) };
@@ -272,7 +290,8 @@ function labelsToReach(curve: CurvePoint[], fullF1: number): RehearsalCurve['lab
 
 /**
  * Rehearses a desk on labelled data: after `start` uniform random verdicts
- * (the cold start: they train the first model), batches are drawn as the
+ * (the cold start: they train the first model, and it goes on until every
+ * category has a training example, see {@link coldStart}), batches are drawn as the
  * service draws them — a `randomShare` of each batch uniformly at random
  * (these calibrate and never train), the rest by uncertainty (these train) —
  * until `budget` verdicts. After each batch the model is retrained, the
@@ -281,7 +300,7 @@ function labelsToReach(curve: CurvePoint[], fullF1: number): RehearsalCurve['lab
 export function runRehearsal(data: RehearsalData, options: RehearsalOptions): RehearsalResult {
   checkOptions(options);
   const timing: Timing = { trainMs: [], scoreMs: [] };
-  const perCurve = pointsOf(options, data.pool.length);
+  const perCurve = pointsOf(data, options);
   const total = perCurve * (options.compareRandom ? 2 : 1) + 1;
   let done = 0;
   const progress = (): void => options.onProgress?.(++done, total);
