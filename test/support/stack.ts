@@ -34,7 +34,8 @@ export interface Stack {
   /** Creates a user directly; returns its API token. */
   user(name: string, role: Role, password?: string): Promise<string>;
   call<T = any>(token: string | null, method: string, path: string, body?: unknown, headers?: Record<string, string>): Promise<Reply<T>>;
-  waitForQueuesIdle(timeoutMs?: number): Promise<void>;
+  /** Waits until no job is active or waiting; delayed jobs count too unless `ignoreDelayed`. */
+  waitForQueuesIdle(timeoutMs?: number, options?: { ignoreDelayed?: boolean }): Promise<void>;
   /** Stops the in-process worker (nothing is learned or scored after this). */
   stopWorker(): Promise<void>;
   stop(): Promise<void>;
@@ -86,7 +87,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     }
     return { status: res.status, body: parsed as T, headers: res.headers };
   };
-  const waitForQueuesIdle = async (timeoutMs = 60_000) => {
+  const waitForQueuesIdle = async (timeoutMs = 60_000, opts: { ignoreDelayed?: boolean } = {}) => {
     const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
     const queues = Object.values(QUEUES).map((q) => new Queue(q, { connection, prefix: queuePrefix }));
     try {
@@ -94,7 +95,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
       for (;;) {
         const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')));
         // The periodic sweep always has its next run scheduled: it does not count as work.
-        const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed'])))).flat().filter((j) => j && j.name !== 'sweep-desks');
+        const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed'])))).flat().filter((j) => j && j.name !== 'sweep-desks' && !opts.ignoreDelayed);
         if (delayed.length === 0 && counts.every((c) => Object.values(c).every((n) => n === 0))) return;
         if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`);
         await new Promise((r) => setTimeout(r, 50));

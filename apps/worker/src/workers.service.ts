@@ -1,3 +1,4 @@
+import { hostname } from 'node:os';
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
 import { UnrecoverableError, Worker } from 'bullmq';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -32,7 +33,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
+        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));

@@ -3,7 +3,8 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, DeskDirectory, LeaseEntity, type DrawKind, type ShownPrediction } from '#database';
+import { Database, DeskDirectory, LeaseEntity, type DeskEntity, type DrawKind, type ShownPrediction } from '#database';
+import { cosineSimilarity } from '#learning';
 import { PredictionsService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
@@ -29,6 +30,9 @@ interface PickedRow {
 }
 
 const PICK_COLUMNS = 'id, text, meta, external_id, source, posted_at, seed_hits';
+/** Near-duplicates: cosine of tf-idf vectors at or above this (the batch picker's rule in the learning core). */
+const NEAR_DUPLICATE_COSINE = 0.95;
+const NEAR_DUPLICATE_CANDIDATES = 5;
 
 /**
  * Hands items to reviewers. No item is leased to two reviewers at once:
@@ -70,15 +74,16 @@ export class LeasesService {
         draw = prev?.draw ?? 'random';
       } else if (draw !== 'random') {
         if (draw === 'uncertainty') {
-          row = await claim(`state = 'open'`, 'priority DESC, id DESC', []);
+          row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt);
         } else if (hasSeeds) {
           // Cold start: most seed-term matches first.
           row = await claim(`state = 'open' AND seed_hits > 0`, 'priority DESC, id DESC', []);
         }
-        // Once no open item matches a seed term, a uniform draw is the honest choice, and it is recorded as one.
-        if (!row && draw === 'seed') draw = 'random';
       }
-      if (!row && draw === 'random') {
+      // Uniform picks: the random share (recorded as `random`, the only draws that calibrate), and the
+      // cold start once no open item matches a seed term (still recorded as `seed`: such verdicts train
+      // the first model, which otherwise could never appear on a desk without seed terms).
+      if (!row) {
         row = (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ?? (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
       }
       if (!row) return null;
@@ -115,6 +120,30 @@ export class LeasesService {
        RETURNING ${PICK_COLUMNS}`,
       [leaseId, this.db.time(expiresAt), deskId, ...params],
     );
+    return rows[0] ?? null;
+  }
+
+  /**
+   * The most uncertain open item, skipping near-duplicates (cosine ≥ 0.95
+   * of tf-idf vectors under the current model) of the item this reviewer was
+   * served last: among the top few candidates, the first that is not one.
+   */
+  private async claimUncertain(m: EntityManager, reviewer: Principal, desk: DeskEntity, leaseId: string, expiresAt: Date): Promise<PickedRow | null> {
+    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const candidates = await this.db.query<{ id: number; text: string }>(m,
+      `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`, [desk.id]);
+    if (candidates.length === 0) return null;
+    let chosen = candidates[0]!;
+    const model = candidates.length > 1 ? await this.predictions.current(desk) : null;
+    if (model) {
+      const [last] = await this.db.query<{ text: string }>(m,
+        'SELECT i.text FROM leases l JOIN items i ON i.id = l.item_id WHERE l.desk_id = $1 AND l.reviewer_id = $2 ORDER BY l.created_at DESC LIMIT 1', [desk.id, reviewer.id]);
+      if (last) {
+        const previous = model.vectorize(last.text);
+        chosen = candidates.find((c) => cosineSimilarity(model.vectorize(c.text), previous) < NEAR_DUPLICATE_COSINE) ?? chosen;
+      }
+    }
+    const rows = await this.db.query<PickedRow>(m, `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3 RETURNING ${PICK_COLUMNS}`, [leaseId, this.db.time(expiresAt), chosen.id]);
     return rows[0] ?? null;
   }
 
