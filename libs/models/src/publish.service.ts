@@ -14,15 +14,21 @@ export class PublishService {
   constructor(@Inject(Database) private readonly db: Database) {}
 
   async run(p: PublishVersionPayload): Promise<{ published: boolean; reason?: string }> {
+    const started = Date.now();
     const result = await this.db.write(async (m) => {
       const lock = this.db.pg ? ' FOR UPDATE' : '';
-      const [v] = await this.db.query<{ state: string }>(m, `SELECT state FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`, [p.deskId, p.version]);
+      const [v] = await this.db.query<{ state: string; timings: string }>(m, `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`, [p.deskId, p.version]);
       if (!v || v.state !== 'scoring') return { published: false, reason: `version is ${v?.state ?? 'gone'}` };
+      // Fresh statistics on the rows the chunks just wrote, so the planner joins them by hash rather than row by row.
+      if (this.db.pg) await this.db.query(m, 'ANALYZE predictions');
       await this.db.query(m,
         `UPDATE items SET priority = predictions.priority, priority_model_version = $1 FROM predictions
          WHERE predictions.item_id = items.id AND predictions.model_version = $1 AND items.desk_id = $2 AND predictions.desk_id = $2`, [p.version, p.deskId]);
       await this.db.query(m, `UPDATE desks SET current_model_version = $1 WHERE id = $2`, [p.version, p.deskId]);
-      await this.db.query(m, `UPDATE model_versions SET state = 'published', published_at = $1 WHERE desk_id = $2 AND version = $3`, [this.db.time(new Date()), p.deskId, p.version]);
+      const timings = JSON.parse(v.timings) as Record<string, number>;
+      timings.scoreMs = started - (timings.scoringStartedAt ?? started);
+      timings.publishMs = Date.now() - started;
+      await this.db.query(m, `UPDATE model_versions SET state = 'published', published_at = $1, timings = $2 WHERE desk_id = $3 AND version = $4`, [this.db.time(new Date()), JSON.stringify(timings), p.deskId, p.version]);
       return { published: true };
     });
     // Predictions no one will serve: older versions once this one is current, or this one when it was discarded.

@@ -106,7 +106,7 @@ export class TrainingService {
     const calibration = ConformalCalibration.fromScores(categories, probs, labels);
     const metrics = probs.length > 0 ? qualityFigures(probs, labels, categories.length) : null;
     const tDone = performance.now();
-    const timings = { loadMs: tFeat - t0, featurizeMs: tTrain - tFeat, trainMs: tCal - tTrain, calibrateMs: tDone - tCal };
+    const timings = { loadMs: tFeat - t0, featurizeMs: tTrain - tFeat, trainMs: tCal - tTrain, calibrateMs: tDone - tCal, scoringStartedAt: Date.now() };
     await this.db.write(async (m) => {
       await m.update(ModelVersionEntity, { jobKey }, {
         state: 'scoring', calibration: { ...summary(calib), scores: calibration.toJSON() } as never, model: { classifier: classifierJson, idf: idf.toJSON(), featurizer: featurizer.options } as never,
