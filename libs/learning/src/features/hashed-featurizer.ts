@@ -2,7 +2,23 @@ import { murmur3x86_32 } from '../hashing/murmur3.js';
 import type { SparseVector } from './sparse-vector.js';
 
 /**
- * Default number of hash bits (2^18 = 262 144 buckets). MEASUREMENT PENDING.
+ * Default number of hash bits: 18 (2^18 = 262 144 buckets).
+ *
+ * Measurement (`bench/hash-bits.bench.ts`): SpamAssassin, subject + first
+ * 3 000 body characters, seeded 60/20/20 splits 1–3, default training (which
+ * keeps the 16 384 most frequent buckets), macro-F1 on the test split:
+ *   14 bits 0.925 / 0.924 / 0.897, mean 0.915 (16 384 buckets used)
+ *   16 bits 0.914 / 0.920 / 0.900, mean 0.912 (65 535 used)
+ *   18 bits 0.910 / 0.921 / 0.893, mean 0.908 (250 616 used)
+ *   20 bits 0.910 / 0.921 / 0.890, mean 0.907 (567 208 used)
+ * The spread between splits (~0.03) is larger than the spread between sizes
+ * (0.008), so on this corpus the size does not matter for accuracy. The
+ * corpus has at least 567 000 distinct hashed n-grams: at 14 bits some 35 of
+ * them share each bucket, at 18 about 2. 18 bits keeps distinct features
+ * mostly apart for pools richer than this one English corpus (many scripts,
+ * many more character n-grams) at a cost of 1 MB for the document-frequency
+ * table and the model's bucket lookup; training cost does not grow with it
+ * (buckets are compacted and capped before training).
  */
 export const DEFAULT_HASH_BITS = 18;
 

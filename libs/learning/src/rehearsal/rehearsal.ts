@@ -234,7 +234,8 @@ function runCurve(
     // Score what the service scores: the unlabelled pool (for the next draw),
     // the calibration items (the current model never trained on them), and here
     // the test set.
-    for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
+    // (The random baseline draws without looking at scores.)
+    if (strategy !== 'random') for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of calibrationRows) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of data.test) probabilities.set(i, model.predictProba(data.vectors[i]));
     timing.scoreMs.push(performance.now() - started);
