@@ -1,4 +1,4 @@
-import { loadConfig } from '#config';
+import { loadConfigOrExit } from '#config';
 import { openDatabase } from '#database';
 
 /** `migrate [--revert]`: brings the schema up to date, or reverts the last migration. */
@@ -9,7 +9,7 @@ export async function migrateCommand(argv: string[]): Promise<number> {
     process.stderr.write(`unknown argument ${unknown[0]}\nusage: cribra migrate [--revert]\n`);
     return 2;
   }
-  const ds = await openDatabase(loadConfig().database, { migrate: !revert });
+  const ds = await openDatabase(loadConfigOrExit().database, { migrate: !revert });
   try {
     if (revert) await ds.undoLastMigration({ transaction: 'each' });
     const pending = await ds.showMigrations();

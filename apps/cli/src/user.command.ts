@@ -3,7 +3,7 @@ import { Module } from '@nestjs/common';
 import { NestFactory } from '@nestjs/core';
 import { AuditModule } from '#audit';
 import { AuthCoreModule, AuthError, AuthService } from '#auth';
-import { ConfigModule, loadConfig } from '#config';
+import { ConfigModule, loadConfigOrExit } from '#config';
 import { DatabaseModule, ROLES, type Role } from '#database';
 import { parseFlags } from './args.js';
 
@@ -44,7 +44,7 @@ export async function userCommand(argv: string[]): Promise<number> {
     process.stderr.write('the password read from stdin must have at least 8 characters\n');
     return 2;
   }
-  const config = loadConfig();
+  const config = loadConfigOrExit();
   @Module({ imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), AuditModule, AuthCoreModule] })
   class UserCliModule {}
   const app = await NestFactory.createApplicationContext(UserCliModule, { logger: ['error'] });

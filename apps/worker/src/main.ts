@@ -1,20 +1,11 @@
 import 'reflect-metadata';
 import { Logger } from '@nestjs/common';
 import { NestFactory } from '@nestjs/core';
-import { ConfigError, loadConfig } from '#config';
+import { loadConfigOrExit } from '#config';
 import { WorkerModule } from './worker.module.js';
 
 async function main(): Promise<void> {
-  let config;
-  try {
-    config = loadConfig();
-  } catch (e) {
-    if (e instanceof ConfigError) {
-      process.stderr.write(`${e.message}\n`);
-      process.exit(2);
-    }
-    throw e;
-  }
+  const config = loadConfigOrExit();
   const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['fatal', 'error', 'warn', 'log'] });
   const logger = new Logger('Worker');
   let closing = false;

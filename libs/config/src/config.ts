@@ -171,3 +171,19 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }
+
+/**
+ * For a process entry point: the configuration, or, when it is invalid, the
+ * list of problems on stderr and exit code 2.
+ */
+export function loadConfigOrExit(): AppConfig {
+  try {
+    return loadConfig();
+  } catch (e) {
+    if (e instanceof ConfigError) {
+      process.stderr.write(`${e.message}\n`);
+      process.exit(2);
+    }
+    throw e;
+  }
+}
