@@ -3,7 +3,7 @@
  * SpamAssassin corpus (subject + start of body; see spam-assassin.ts).
  * Prints one JSON object.
  */
-import { createRng, predictionSet, ConformalCalibration, tfidf, IdfTable } from '../libs/learning/src/index.js';
+import { ConformalCalibration, createRng, IdfTable, predictionSet, shuffleInPlace, tfidf } from '../libs/learning/src/index.js';
 import { countAll, createFeaturizer, median, tfidfAll, timedTrain } from './bench-helpers.js';
 import { loadSpamAssassin, MAX_BODY_CHARS, SPAM_ASSASSIN_CATEGORIES } from './spam-assassin.js';
 
@@ -35,11 +35,7 @@ const trainSteps: Record<string, number> = {};
 let model2000 = null as ReturnType<typeof timedTrain>['model'] | null;
 let heldOut2000: number[] = [];
 for (const n of TRAIN_SIZES) {
-  const sample = [...all];
-  for (let i = 0; i < n; i++) {
-    const j = i + Math.floor(rng.next() * (sample.length - i));
-    [sample[i], sample[j]] = [sample[j], sample[i]];
-  }
+  const sample = shuffleInPlace([...all], rng);
   const rows = sample.slice(0, n);
   const times: number[] = [];
   for (let r = 0; r < TRAIN_RUNS; r++) {
