@@ -144,6 +144,28 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { coverageTarget: TARGET });
   }, 120_000);
 
+  it('raises the coverage alert when the recent random checks fall short of the target', async () => {
+    // Drift, simulated in the trail: 200 random checks whose answer was outside the set shown.
+    await s.user('drift', 'reviewer');
+    const [{ id: reviewerId }] = await s.db.query<{ id: number }>(null, `SELECT id FROM users WHERE name = 'drift'`);
+    const [{ id: threat }] = await s.db.query<{ id: number }>(null, `SELECT id FROM categories WHERE desk_id = $1 AND name = 'threat'`, [deskId]);
+    const { currentModelVersion } = (await s.call(sup, 'GET', `/api/desks/${deskId}/models`)).body;
+    const open = await s.db.query<{ id: number }>(null, `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY id LIMIT 200`, [deskId]);
+    for (const [i, item] of open.entries()) {
+      await s.db.query(null,
+        `INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, simulated, created_at)
+         VALUES ($1, $2, $3, $4, $5, false, 'random', $6, '["ok"]', 'sure', false, $7)`,
+        [deskId, Number(item.id), Number(reviewerId), `drift-${i}`, Number(threat), currentModelVersion, s.db.time(new Date())]);
+    }
+    const cov = (await s.call(sup, 'GET', `/api/desks/${deskId}/coverage`)).body;
+    expect(cov.window.n).toBe(200);
+    expect(cov.window.covered).toBe(0);
+    // Wilson 95 % upper bound of 0/200 is z²/(n + z²) = 0.0188 (Newcombe 1998, eq. for x = 0).
+    expect(cov.window.interval.upper).toBeCloseTo(1.959963985 ** 2 / (200 + 1.959963985 ** 2), 6);
+    expect(cov.alert.raised).toBe(true);
+    expect(cov.alert.message).toMatch(/differ from those the model was calibrated on/);
+  });
+
   it('refuses bad settings with clear 400s', async () => {
     for (const [body, pattern] of [
       [{ coverageTarget: 0.4 }, /coverageTarget must not be less than 0.5/],
