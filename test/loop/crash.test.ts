@@ -95,6 +95,22 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     await crashAt('scoring');
   }, 240_000);
 
+  it('retrains after verdicts whose retrain request was lost (Redis down): the sweep finds them', async () => {
+    const before = (await current()).currentModelVersion as number;
+    await decide(10);
+    // The requests these verdicts made are lost, as if Redis had been down when they were sent.
+    await new Promise((r) => setTimeout(r, 1000));
+    const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
+    const q = new Queue('learning', { connection, prefix: s.config.queuePrefix });
+    await q.obliterate({ force: true });
+    expect(await q.getJobCounts('waiting', 'delayed', 'active')).toEqual({ waiting: 0, delayed: 0, active: 0 });
+    await q.close();
+    connection.disconnect();
+    const w = worker({ SWEEP_SECONDS: '2' });
+    await publishedVersion(before + 1);
+    await kill(w, 'SIGTERM');
+  }, 240_000);
+
   it('lets two worker processes share the scoring chunks of one retrain', async () => {
     const before = (await current()).currentModelVersion as number;
     const a = worker();

@@ -39,8 +39,8 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));
       this.workers.push(worker);
     }
-    // Every minute, one worker (whichever takes the job) looks for desks whose verdicts no version has learned from.
-    await this.jobs.queue(QUEUES.maintenance).upsertJobScheduler('sweep-desks', { every: 60_000 }, { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } });
+    // Every SWEEP_SECONDS (default a minute), one worker (whichever takes the job) looks for desks whose verdicts no version has learned from.
+    await this.jobs.queue(QUEUES.maintenance).upsertJobScheduler('sweep-desks', { every: this.config.sweepSeconds * 1000 }, { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } });
     this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
   }
 

@@ -25,6 +25,8 @@ export interface AppConfig {
   readonly scoringChunkSize: number;
   /** How long a worker holds a job before another may take it over when it stops renewing (a crashed worker). */
   readonly jobLockSeconds: number;
+  /** How often a worker looks for desks whose verdicts no model version has learned from. */
+  readonly sweepSeconds: number;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -42,7 +44,7 @@ type Env = Record<string, string | undefined>;
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
   'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'CRIBRA_TEST_PAUSE',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'CRIBRA_TEST_PAUSE',
 ] as const;
 
 /**
@@ -134,6 +136,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     logLevel,
     scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
     jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
+    sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -168,6 +171,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     LOG_LEVEL: config.logLevel,
     SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
     JOB_LOCK_SECONDS: String(config.jobLockSeconds),
+    SWEEP_SECONDS: String(config.sweepSeconds),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }
