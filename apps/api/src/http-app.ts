@@ -1,25 +1,19 @@
-import { ValidationPipe, type INestApplication, type LogLevel } from '@nestjs/common';
+import { ValidationPipe, type INestApplication } from '@nestjs/common';
 import { NestFactory } from '@nestjs/core';
 import { DocumentBuilder, SwaggerModule } from '@nestjs/swagger';
 import type { NestExpressApplication } from '@nestjs/platform-express';
 import express from 'express';
-import type { AppConfig } from '#config';
+import { nestLogLevels, type AppConfig } from '#config';
 import { AuthService, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
 
-const LEVELS: Record<AppConfig['logLevel'], LogLevel[]> = {
-  error: ['fatal', 'error'],
-  warn: ['fatal', 'error', 'warn'],
-  log: ['fatal', 'error', 'warn', 'log'],
-  debug: ['fatal', 'error', 'warn', 'log', 'debug'],
-};
 
 /** Paths whose bodies are streamed by their handler, never parsed into memory. */
 const STREAMED_BODY = /^\/api\/desks\/[^/]+\/imports\/?$/;
 
 /** Builds the HTTP application (not listening yet). Used by `main.ts` and by the tests. */
 export async function createHttpApp(config: AppConfig): Promise<INestApplication> {
-  const app = await NestFactory.create<NestExpressApplication>(ApiModule.forRoot(config), { bodyParser: false, logger: LEVELS[config.logLevel] });
+  const app = await NestFactory.create<NestExpressApplication>(ApiModule.forRoot(config), { bodyParser: false, logger: nestLogLevels(config.logLevel) });
   const json = express.json({ limit: '1mb' });
   app.use((req: express.Request, res: express.Response, next: express.NextFunction) => (STREAMED_BODY.test(req.path) ? next() : json(req, res, next)));
   app.disable('x-powered-by');

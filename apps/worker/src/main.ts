@@ -1,12 +1,12 @@
 import 'reflect-metadata';
 import { Logger } from '@nestjs/common';
 import { NestFactory } from '@nestjs/core';
-import { loadConfigOrExit } from '#config';
+import { loadConfigOrExit, nestLogLevels } from '#config';
 import { WorkerModule } from './worker.module.js';
 
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
-  const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['fatal', 'error', 'warn', 'log'] });
+  const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: nestLogLevels(config.logLevel) });
   const logger = new Logger('Worker');
   let closing = false;
   const stop = async (signal: string) => {

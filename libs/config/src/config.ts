@@ -191,3 +191,9 @@ export function loadConfigOrExit(): AppConfig {
     throw e;
   }
 }
+
+/** Nest's logger levels for a configured level. */
+export function nestLogLevels(level: AppConfig['logLevel']): Array<'fatal' | 'error' | 'warn' | 'log' | 'debug'> {
+  const all = ['fatal', 'error', 'warn', 'log', 'debug'] as const;
+  return all.slice(0, all.indexOf(level) + 1);
+}
