@@ -144,6 +144,30 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { coverageTarget: TARGET });
   }, 120_000);
 
+  it('does not serve a near-duplicate of the item a reviewer was just served', async () => {
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0 });
+    // Two almost identical texts at the top of the queue (cosine of their tf-idf vectors well above 0.95).
+    const base = 'I know where you live and I am waiting outside your door tonight near the bakery on the square';
+    const now = s.db.time(new Date());
+    const ids: number[] = [];
+    for (const [i, text] of [`${base} !`, `${base} !!`].entries()) {
+      const [row] = await s.db.query<{ id: number }>(null,
+        `INSERT INTO items (desk_id, text, normalized_text, normalized_hash, meta, imported_at, state, seed_hits, priority, rand_key)
+         VALUES ($1, $2, $3, $4, '{}', $5, 'open', 0, $6, 0.5) RETURNING id`, [deskId, text, text.toLowerCase(), `near-dup-${i}`, now, 100 - i]);
+      ids.push(Number(row!.id));
+    }
+    const token = reviewers[0]!;
+    const first = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
+    expect(first.body.item.id).toBe(ids[0]);
+    const second = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
+    expect(second.body.item.id).not.toBe(ids[1]);
+    // Once something else came between, the other copy may be served.
+    const third = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
+    expect(third.body.item.id).toBe(ids[1]);
+    for (const l of [first, second, third]) await s.call(token, 'DELETE', `/api/leases/${l.body.lease.id}`);
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: RANDOM_SHARE });
+  });
+
   it('raises the coverage alert when the recent random checks fall short of the target', async () => {
     // Drift, simulated in the trail: 200 random checks whose answer was outside the set shown.
     await s.user('drift', 'reviewer');
