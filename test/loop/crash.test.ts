@@ -39,7 +39,8 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
       expect(v.status).toBe(201);
     }
   };
-  const paused = (point: string) => eventually(async () => (readdirSync(s.config.dataDir).some((f) => f.startsWith(`paused-${point}-`)) ? true : undefined), 60_000, `a worker paused at ${point}`);
+  /** Waits for this worker's marker (an earlier worker's may still lie in the data folder). */
+  const paused = (point: string, w: ChildProcess) => eventually(async () => (readdirSync(s.config.dataDir).includes(`paused-${point}-${w.pid}`) ? true : undefined), 60_000, `worker ${w.pid} paused at ${point}`);
   const publishedVersion = (v: number) => eventually(async () => ((await current()).currentModelVersion === v ? true : undefined), 90_000, `version ${v} current`);
 
   beforeAll(async () => {
@@ -67,7 +68,7 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     const before = (await current()).currentModelVersion as number;
     const w = worker({ CRIBRA_TEST_PAUSE: point });
     await decide(10);
-    await paused(point);
+    await paused(point, w);
     await kill(w, 'SIGKILL');
     // The previous version keeps serving; nothing half-written is current.
     const now = await current();
@@ -109,6 +110,24 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     const w = worker({ SWEEP_SECONDS: '2' });
     await publishedVersion(before + 1);
     await kill(w, 'SIGTERM');
+  }, 240_000);
+
+  it('discards a version still scoring when a newer one overtakes it', async () => {
+    const before = (await current()).currentModelVersion as number;
+    const stuck = worker({ CRIBRA_TEST_PAUSE: 'scoring' });
+    await decide(10);
+    await paused('scoring', stuck);
+    // Version before+1 is scoring (one chunk held by the stuck worker); new verdicts bring before+2.
+    const fresh = worker();
+    await decide(10);
+    await publishedVersion(before + 2);
+    await kill(stuck, 'SIGKILL');
+    await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}/models/${before + 1}`)).body.state === 'superseded' ? true : undefined), 60_000, 'the overtaken version superseded');
+    await s.waitForQueuesIdle(90_000, { ignoreDelayed: true });
+    expect((await current()).currentModelVersion).toBe(before + 2);
+    const [{ left }] = await s.db.query<{ left: string | number }>(null, 'SELECT COUNT(*) AS left FROM predictions WHERE desk_id = $1 AND model_version = $2', [deskId, before + 1]);
+    expect(Number(left)).toBe(0);
+    await kill(fresh, 'SIGTERM');
   }, 240_000);
 
   it('lets two worker processes share the scoring chunks of one retrain', async () => {
