@@ -1,35 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { ImportFileError, type ParsedRow, type ParseOptions } from './import-record.js';
-import { parseImport } from './parse-import.js';
+import { ImportFileError, type ParseOptions } from './import-record.js';
+import { concatBytes, outline, parseAll, parseUntilError as untilError } from './parsing.test-support.js';
 
-const encoder = new TextEncoder();
+const parse = (input: string | Uint8Array, options?: ParseOptions) => parseAll(input, 'csv', options);
+const parseUntilError = (input: string | Uint8Array) => untilError(input, 'csv');
 
-function concatBytes(parts: (string | number[])[]): Uint8Array {
-  return Buffer.concat(parts.map((part) => (typeof part === 'string' ? encoder.encode(part) : Uint8Array.from(part))));
-}
 
-async function parse(input: string | Uint8Array, options?: ParseOptions): Promise<ParsedRow[]> {
-  const bytes = typeof input === 'string' ? encoder.encode(input) : input;
-  const rows: ParsedRow[] = [];
-  for await (const row of parseImport([bytes], 'csv', options)) rows.push(row);
-  return rows;
-}
 
-/** The rows yielded before a failure, and the failure. */
-async function parseUntilError(input: string | Uint8Array): Promise<{ rows: ParsedRow[]; error: unknown }> {
-  const bytes = typeof input === 'string' ? encoder.encode(input) : input;
-  const rows: ParsedRow[] = [];
-  try {
-    for await (const row of parseImport([bytes], 'csv')) rows.push(row);
-  } catch (error) {
-    return { rows, error };
-  }
-  return { rows, error: null };
-}
 
-function outline(rows: ParsedRow[]): [number, string][] {
-  return rows.map((r) => (r.ok ? [r.record.row, r.record.text] : [r.rejected.row, `! ${r.rejected.reason}`]));
-}
+
 
 function fileError(message: string, row: number): ImportFileError {
   return new ImportFileError(message, row);

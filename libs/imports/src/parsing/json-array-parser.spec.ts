@@ -1,36 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { ImportFileError, type ParsedRow, type ParseOptions } from './import-record.js';
-import { parseImport } from './parse-import.js';
+import { ImportFileError, type ParseOptions } from './import-record.js';
+import { concatBytes, jsonErrorOf, outline, parseUntilError as untilError } from './parsing.test-support.js';
 
-const encoder = new TextEncoder();
+const parseUntilError = (input: string | Uint8Array, options?: ParseOptions) => untilError(input, 'json', options);
 
-function concatBytes(parts: (string | number[])[]): Uint8Array {
-  return Buffer.concat(parts.map((part) => (typeof part === 'string' ? encoder.encode(part) : Uint8Array.from(part))));
-}
 
-async function parseUntilError(input: string | Uint8Array, options?: ParseOptions): Promise<{ rows: ParsedRow[]; error: unknown }> {
-  const bytes = typeof input === 'string' ? encoder.encode(input) : input;
-  const rows: ParsedRow[] = [];
-  try {
-    for await (const row of parseImport([bytes], 'json', options)) rows.push(row);
-  } catch (error) {
-    return { rows, error };
-  }
-  return { rows, error: null };
-}
 
-function outline(rows: ParsedRow[]): [number, string][] {
-  return rows.map((r) => (r.ok ? [r.record.row, r.record.text] : [r.rejected.row, `! ${r.rejected.reason}`]));
-}
 
-function jsonErrorOf(text: string): string {
-  try {
-    JSON.parse(text);
-  } catch (error) {
-    return (error as Error).message;
-  }
-  throw new Error(`${text} parses`);
-}
+
 
 describe('parseImport — JSON array', () => {
   it('splits elements correctly around brackets, commas and escapes inside strings', async () => {

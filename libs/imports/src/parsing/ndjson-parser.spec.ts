@@ -1,33 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import type { ParsedRow, ParseOptions } from './import-record.js';
-import { parseImport } from './parse-import.js';
+import type { ParseOptions } from './import-record.js';
+import { concatBytes, jsonErrorOf, outline, parseAll } from './parsing.test-support.js';
 
-const encoder = new TextEncoder();
+const parse = (input: string | Uint8Array, options?: ParseOptions) => parseAll(input, 'ndjson', options);
 
-function concatBytes(parts: (string | number[])[]): Uint8Array {
-  return Buffer.concat(parts.map((part) => (typeof part === 'string' ? encoder.encode(part) : Uint8Array.from(part))));
-}
 
-async function parse(input: string | Uint8Array, options?: ParseOptions): Promise<ParsedRow[]> {
-  const bytes = typeof input === 'string' ? encoder.encode(input) : input;
-  const rows: ParsedRow[] = [];
-  for await (const row of parseImport([bytes], 'ndjson', options)) rows.push(row);
-  return rows;
-}
 
-/** `[row, text]` for records, `[row, reason]` prefixed with `!` for rejections. */
-function outline(rows: ParsedRow[]): [number, string][] {
-  return rows.map((r) => (r.ok ? [r.record.row, r.record.text] : [r.rejected.row, `! ${r.rejected.reason}`]));
-}
 
-function jsonErrorOf(text: string): string {
-  try {
-    JSON.parse(text);
-  } catch (error) {
-    return (error as Error).message;
-  }
-  throw new Error(`${text} parses`);
-}
+
 
 describe('parseImport — NDJSON', () => {
   it('reads a full record with every recognised field, keeping other keys as metadata', async () => {

@@ -6,12 +6,9 @@ import { Readable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
 import type { ImportFormat, ParsedRow, ParseOptions } from './import-record.js';
 import { parseImport } from './parse-import.js';
+import { concatBytes, encoder, jsonErrorOf as jsonError } from './parsing.test-support.js';
 
-const encoder = new TextEncoder();
 
-function concatBytes(parts: (string | number[])[]): Uint8Array {
-  return Buffer.concat(parts.map((part) => (typeof part === 'string' ? encoder.encode(part) : Uint8Array.from(part))));
-}
 
 /** Everything a parse produced: its rows, then the error it ended with, if any. */
 async function outcome(chunks: Iterable<Uint8Array>, format: ImportFormat, options?: ParseOptions): Promise<{ rows: ParsedRow[]; error: unknown }> {
@@ -158,14 +155,6 @@ describe('parseImport — chunk boundaries', () => {
   });
 });
 
-function jsonError(text: string): string {
-  try {
-    JSON.parse(text);
-  } catch (error) {
-    return (error as Error).message;
-  }
-  throw new Error(`${text} parses`);
-}
 
 describe('parseImport — byte order mark', () => {
   it('strips a BOM split across chunks', async () => {
