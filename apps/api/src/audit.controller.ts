@@ -12,14 +12,13 @@ export class AuditController {
   @Roles('auditor', 'admin', 'supervisor')
   @Get()
   async list(@Query('deskId') deskId?: string, @Query('before') before?: string, @Query('limit') limit?: string) {
-    const p = (n: number) => this.db.p(n);
     const params: unknown[] = [];
     const where: string[] = [];
     for (const [name, v] of [['deskId', deskId], ['before', before], ['limit', limit]] as const) {
       if (v !== undefined && !/^\d+$/.test(v)) throw new BadRequestException(`${name}: expected a whole number`);
     }
-    if (deskId) { params.push(Number(deskId)); where.push(`desk_id = ${p(params.length)}`); }
-    if (before) { params.push(Number(before)); where.push(`id < ${p(params.length)}`); }
+    if (deskId) { params.push(Number(deskId)); where.push(`desk_id = $${params.length}`); }
+    if (before) { params.push(Number(before)); where.push(`id < $${params.length}`); }
     const n = Math.min(1000, Math.max(1, Number(limit ?? 200)));
     const rows: Array<Record<string, unknown>> = await this.db.query(null, 
       `SELECT id, at, actor_id, actor_name, action, entity_type, entity_id, desk_id, before, after FROM audit_events ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY id DESC LIMIT ${n}`,

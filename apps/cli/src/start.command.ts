@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { ConfigError, configToEnv, loadConfig, type AppConfig } from '#config';
+import { configToEnv, loadConfig, type AppConfig } from '#config';
 import { openDatabase } from '#database';
 import { parseFlags } from './args.js';
 import { RedisMissingError, startPrivateRedis } from './redis-launcher.js';
@@ -71,4 +71,3 @@ export async function startCommand(argv: string[]): Promise<number> {
   return new Promise<number>(() => undefined);
 }
 
-export { ConfigError };

@@ -74,11 +74,6 @@ export class Database {
     return new Date(/[zZ]|[+-]\d\d:?\d\d$/.test(s) ? s : `${s.replace(' ', 'T')}Z`);
   }
 
-  /** Placeholder for the n-th (1-based) parameter of a raw query run through {@link query}. */
-  p(n: number): string {
-    return `$${n}`;
-  }
-
   /**
    * Runs raw SQL written with PostgreSQL's numbered placeholders (`$1`, `$2`…)
    * on either database: for SQLite each `$n` becomes `?` with its parameter

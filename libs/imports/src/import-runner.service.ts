@@ -46,7 +46,6 @@ export class ImportRunner {
     let records: ImportRecord[] = [];
     let rejected: RejectedRow[] = [];
     let lastRow = resumeAfter;
-    let storedErrors = imp.errors.length;
     const flush = async () => {
       if (records.length === 0 && rejected.length === 0) return;
       const batch = records;
@@ -59,7 +58,6 @@ export class ImportRunner {
         const cur = (await m.findOneBy(ImportEntity, { id: importId }))!;
         const room = Math.max(0, MAX_STORED_ERRORS - cur.errors.length);
         const errors: ImportRowError[] = room > 0 ? [...cur.errors, ...bad.slice(0, room)] : cur.errors;
-        storedErrors = errors.length;
         await m.update(ImportEntity, { id: importId }, {
           rowsRead: cur.rowsRead + batch.length + bad.length,
           imported: cur.imported + inserted,
@@ -91,7 +89,6 @@ export class ImportRunner {
       }
       throw e;
     }
-    void storedErrors;
     await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'done', finishedAt: new Date() }));
     // Fresh planner statistics: without them the queue's lease queries can choose a full sort of the pool
     // (autovacuum may be off or late; SQLite has no automatic statistics at all).
@@ -116,7 +113,7 @@ export class ImportRunner {
     for (const r of batch) {
       const hits = matcher.count(r.text);
       const values = [deskId, importId, r.externalId, r.source, r.text, r.normalizedText, r.textHash, JSON.stringify(r.meta), r.createdAt ? this.db.time(r.createdAt) : null, now, 'open', hits, hits, Math.random()];
-      tuples.push(`(${values.map((v) => { params.push(v); return this.db.p(params.length); }).join(', ')})`);
+      tuples.push(`(${values.map((v) => { params.push(v); return `$${params.length}`; }).join(', ')})`);
     }
     const rows = await this.db.query<{ normalized_hash: string }>(m,
       `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING normalized_hash`,

@@ -17,12 +17,11 @@ export class ReseedService {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
     if (!desk) return 0;
     const matcher = compileSeedTerms(desk.seedTerms);
-    const p = (n: number) => this.db.p(n);
     let after = 0;
     let updated = 0;
     for (;;) {
       const rows: Array<{ id: number; text: string; seed_hits: number; priority_model_version: number | null }> = await this.db.query(null, 
-        `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = ${p(1)} AND state <> 'decided' AND id > ${p(2)} ORDER BY id LIMIT ${CHUNK}`,
+        `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = $1 AND state <> 'decided' AND id > $2 ORDER BY id LIMIT ${CHUNK}`,
         [deskId, after],
       );
       if (rows.length === 0) return updated;
@@ -31,8 +30,8 @@ export class ReseedService {
       if (changes.length === 0) continue;
       await this.db.write(async (m) => {
         for (const { r, hits } of changes) {
-          if (r.priority_model_version === null) await this.db.query(m, `UPDATE items SET seed_hits = ${p(1)}, priority = ${p(2)} WHERE id = ${p(3)}`, [hits, hits, r.id]);
-          else await this.db.query(m, `UPDATE items SET seed_hits = ${p(1)} WHERE id = ${p(2)}`, [hits, r.id]);
+          if (r.priority_model_version === null) await this.db.query(m, `UPDATE items SET seed_hits = $1, priority = $2 WHERE id = $3`, [hits, hits, r.id]);
+          else await this.db.query(m, `UPDATE items SET seed_hits = $1 WHERE id = $2`, [hits, r.id]);
         }
       });
       updated += changes.length;

@@ -170,10 +170,9 @@ export class LeasesService {
 
   /** The reviewer's open, unexpired leases on a desk (to resume after a reload). */
   async mine(reviewer: Principal, deskId: number): Promise<Array<{ id: string; itemId: number; expiresAt: Date }>> {
-    const p = (n: number) => this.db.p(n);
     const rows: Array<{ id: string; item_id: number; expires_at: unknown }> = await this.db.query(null, 
       `SELECT l.id, l.item_id, l.expires_at FROM leases l JOIN items i ON i.id = l.item_id AND i.lease_id = l.id
-       WHERE l.desk_id = ${p(1)} AND l.reviewer_id = ${p(2)} AND l.closed_at IS NULL AND l.expires_at > ${p(3)} ORDER BY l.created_at`,
+       WHERE l.desk_id = $1 AND l.reviewer_id = $2 AND l.closed_at IS NULL AND l.expires_at > $3 ORDER BY l.created_at`,
       [deskId, reviewer.id, this.db.time(new Date())],
     );
     return rows.map((r) => ({ id: r.id, itemId: r.item_id, expiresAt: this.db.parseTime(r.expires_at)! }));

@@ -14,7 +14,7 @@ export class JobQueueService implements OnApplicationShutdown {
   private readonly queues = new Map<QueueName, Queue>();
   private readonly flows: FlowProducer;
 
-  constructor(@Inject(REDIS) private readonly redis: Redis, @Inject(APP_CONFIG) private readonly config: AppConfig) {
+  constructor(@Inject(REDIS) private readonly redis: Redis, @Inject(APP_CONFIG) config: AppConfig) {
     for (const name of Object.values(QUEUES)) this.queues.set(name, new Queue(name, { connection: redis, prefix: config.queuePrefix }));
     this.flows = new FlowProducer({ connection: redis, prefix: config.queuePrefix });
   }

@@ -19,7 +19,6 @@ export class ProgressService {
   async progress(deskId: number, withReviewers: boolean): Promise<DeskProgress> {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
     if (!desk) throw new NotFoundException(`no desk ${deskId}`);
-    const p = (n: number) => this.db.p(n);
     const q = <T>(sql: string, params: unknown[]) => this.db.query<T>(null, sql, params);
     const now = this.db.time(new Date());
     const [states, cats, draws, undone, active] = await Promise.all([
@@ -28,12 +27,12 @@ export class ProgressService {
         [deskId, now],
       ),
       q<{ name: string | null; n: number | string }>(
-        `SELECT c.name, COUNT(*) AS n FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = ${p(1)} AND v.undone_at IS NULL GROUP BY c.name`,
+        `SELECT c.name, COUNT(*) AS n FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1 AND v.undone_at IS NULL GROUP BY c.name`,
         [deskId],
       ),
-      q<{ draw: string; n: number | string }>(`SELECT draw, COUNT(*) AS n FROM verdicts WHERE desk_id = ${p(1)} AND undone_at IS NULL GROUP BY draw`, [deskId]),
-      q<{ n: number | string }>(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = ${p(1)} AND undone_at IS NOT NULL`, [deskId]),
-      q<{ n: number | string }>(`SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = ${p(1)} AND created_at > ${p(2)}`, [deskId, this.db.time(new Date(Date.now() - 3600_000))]),
+      q<{ draw: string; n: number | string }>(`SELECT draw, COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL GROUP BY draw`, [deskId]),
+      q<{ n: number | string }>(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NOT NULL`, [deskId]),
+      q<{ n: number | string }>(`SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = $1 AND created_at > $2`, [deskId, this.db.time(new Date(Date.now() - 3600_000))]),
     ]);
     const items = { total: 0, open: 0, leased: 0, decided: 0 };
     for (const s of states) {
@@ -58,7 +57,7 @@ export class ProgressService {
     };
     if (withReviewers) {
       const rows = await q<{ name: string; n: number | string; last_at: unknown }>(
-        `SELECT u.name, COUNT(*) AS n, MAX(v.created_at) AS last_at FROM verdicts v JOIN users u ON u.id = v.reviewer_id WHERE v.desk_id = ${p(1)} AND v.undone_at IS NULL GROUP BY u.name ORDER BY u.name`,
+        `SELECT u.name, COUNT(*) AS n, MAX(v.created_at) AS last_at FROM verdicts v JOIN users u ON u.id = v.reviewer_id WHERE v.desk_id = $1 AND v.undone_at IS NULL GROUP BY u.name ORDER BY u.name`,
         [deskId],
       );
       out.reviewers = rows.map((r) => ({ name: r.name, verdicts: Number(r.n), lastAt: this.db.parseTime(r.last_at) }));

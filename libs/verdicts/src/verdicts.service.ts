@@ -146,8 +146,7 @@ export class VerdictsService {
       if (!last || last.id !== v.id) throw new ConflictException('only your last verdict can be undone');
       const now = new Date();
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
-      const p = (n: number) => this.db.p(n);
-      const [{ n }] = (await this.db.query(m, `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = ${p(1)} AND undone_at IS NULL`, [v.itemId])) as Array<{ n: number | string }>;
+      const [{ n }] = (await this.db.query(m, `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = $1 AND undone_at IS NULL`, [v.itemId])) as Array<{ n: number | string }>;
       if (Number(n) === 0) await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
       await this.audit.record(m, reviewer, { action: 'verdict.undo', entityType: 'verdict', entityId: v.id, deskId: v.deskId, before: { undoneAt: null }, after: { undoneAt: now.toISOString() } });
     });
@@ -157,19 +156,17 @@ export class VerdictsService {
   }
 
   async view(id: number): Promise<VerdictView> {
-    const p = (n: number) => this.db.p(n);
-    const rows = await this.listWhere(`v.id = ${p(1)}`, [id], 1);
+    const rows = await this.listWhere(`v.id = $1`, [id], 1);
     if (!rows[0]) throw new NotFoundException(`no verdict ${id}`);
     return rows[0];
   }
 
   /** Verdicts of a desk, newest first, paged by id. */
   async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number }): Promise<VerdictView[]> {
-    const p = (n: number) => this.db.p(n);
     const params: unknown[] = [deskId];
-    let where = `v.desk_id = ${p(1)}`;
-    if (opts.before) { params.push(opts.before); where += ` AND v.id < ${p(params.length)}`; }
-    if (opts.reviewerId) { params.push(opts.reviewerId); where += ` AND v.reviewer_id = ${p(params.length)}`; }
+    let where = `v.desk_id = $1`;
+    if (opts.before) { params.push(opts.before); where += ` AND v.id < $${params.length}`; }
+    if (opts.reviewerId) { params.push(opts.reviewerId); where += ` AND v.reviewer_id = $${params.length}`; }
     return this.listWhere(where, params, opts.limit);
   }
 
