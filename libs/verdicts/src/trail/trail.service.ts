@@ -21,8 +21,14 @@ export interface TrailFilter {
   to?: Date;
 }
 
-/** Verdicts read per query: each page is a keyset query on the verdict id, so memory stays flat however long the trail. */
-export const TRAIL_PAGE_SIZE = 1000;
+/**
+ * Verdicts read per query: each page is a keyset query on the verdict id, so memory stays flat however long the
+ * trail. Small pages keep each page's rows short-lived enough to die young in the garbage collector: measured on
+ * 200 000 verdicts (SQLite), pages of 1 000 grew the server's resident memory by about 86 MB, pages of 250 by 4 MB,
+ * at the same speed. On PostgreSQL the growth (77–86 MB at 250 or 100 a page) is the garbage collector letting the
+ * heap grow while rows stream fast; it falls back between cycles and does not follow the trail's length.
+ */
+export const TRAIL_PAGE_SIZE = 250;
 
 /**
  * The decision trail of a desk: every verdict, undone ones included, with
@@ -71,18 +77,22 @@ export class TrailService {
     if (f.abstain) add('v.abstain = ?', true);
     if (f.from) add('v.created_at >= ?', this.db.time(f.from));
     if (f.to) add('v.created_at < ?', this.db.time(f.to));
+    // The page is chosen in a subquery first and only its rows are joined: a planner without statistics (right after a
+    // bulk load) would otherwise join every remaining verdict of the desk before sorting and cutting the page.
     for (;;) {
       const page = await this.db.query<Record<string, unknown>>(null,
         `SELECT v.id, v.item_id, i.external_id, u.name AS reviewer, v.created_at, c.name AS category, v.abstain, v.undone_at, v.draw, v.model_version,
                 v.shown_set, v.shown_call, v.elapsed_ms, v.note, v.simulated, sc.name AS settled_category, su.name AS settled_by, s.created_at AS settled_at
-         FROM verdicts v
+         FROM (SELECT v.id, v.item_id, v.reviewer_id, v.category_id, v.created_at, v.abstain, v.undone_at, v.draw, v.model_version, v.shown_set, v.shown_call,
+                      v.elapsed_ms, v.note, v.simulated
+               FROM verdicts v WHERE ${where} ORDER BY v.id LIMIT ${pageSize}) v
          JOIN users u ON u.id = v.reviewer_id
          JOIN items i ON i.id = v.item_id
          LEFT JOIN categories c ON c.id = v.category_id
          LEFT JOIN settlements s ON s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = v.item_id)
          LEFT JOIN categories sc ON sc.id = s.category_id
          LEFT JOIN users su ON su.id = s.settled_by
-         WHERE ${where} ORDER BY v.id LIMIT ${pageSize}`, params);
+         ORDER BY v.id`, params);
       if (page.length === 0) return;
       yield page.map((r) => this.toRow(r));
       if (page.length < pageSize) return;
