@@ -125,7 +125,8 @@ describe.each(DATABASE_KINDS)('disagreements and settling on %s', (kind) => {
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n'), { 'content-type': 'application/x-ndjson' });
     await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000);
     for (let i = 0; i < 80; i++) {
-      const l = (await s.call(rev, 'POST', `/api/desks/${deskId}/leases`)).body;
+      // A publish holds the pool's rows for a moment (PostgreSQL skips locked rows and may answer 204): ask again.
+      const l = (await eventually(async () => { const r = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`); return r.status === 201 ? r : undefined; }, 30_000, 'a lease')).body;
       expect((await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id, category: labels.get(l.item.externalId), clientId: `sl-${i}` })).status).toBe(201);
     }
     const latest = async () => (await s.db.query<{ version: number; state: string; training: string; calibration: string; verdict_watermark: number }>(null,

@@ -52,10 +52,14 @@ export class DisagreementsService {
     let after = opts.after ?? 0;
     let exhausted = false;
     while (found.length < opts.limit && !exhausted) {
+      // A sure set holds one category, stored as its JSON array: a verdict with the same text as that array agrees with
+      // the call. Names that JSON escapes never compare equal here and are left to the exact check below.
       const ids = await this.db.query<{ item_id: number }>(null,
-        `SELECT item_id FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL AND category_id IS NOT NULL AND item_id > $2
-         GROUP BY item_id HAVING COUNT(DISTINCT category_id) >= 2 OR MAX(CASE WHEN shown_call = 'sure' THEN 1 ELSE 0 END) = 1
-         ORDER BY item_id LIMIT ${CANDIDATE_BATCH}`, [deskId, after]);
+        `SELECT v.item_id FROM verdicts v JOIN categories c ON c.id = v.category_id
+         WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.item_id > $2
+         GROUP BY v.item_id
+         HAVING COUNT(DISTINCT v.category_id) >= 2 OR MAX(CASE WHEN v.shown_call = 'sure' AND v.shown_set <> ('["' || c.name || '"]') THEN 1 ELSE 0 END) = 1
+         ORDER BY v.item_id LIMIT ${CANDIDATE_BATCH}`, [deskId, after]);
       exhausted = ids.length < CANDIDATE_BATCH;
       if (ids.length === 0) break;
       const list = ids.map((r) => Number(r.item_id));
