@@ -59,6 +59,9 @@ describe.each(DATABASE_KINDS)('the decision trail export on %s', (kind) => {
     await insertVerdicts(s.db, deskId, rows, 1000);
     // A live database has planner statistics (autovacuum gathers them after a bulk change); give this one the same.
     if (kind === 'postgres') await s.db.query(null, 'ANALYZE verdicts');
+    // The insert kept this process busy past the server's keep-alive timeout: let it close the idle connections now,
+    // so that the next request does not go out on a socket the server is closing.
+    await new Promise((r) => setTimeout(r, 250));
     expect((await s.call(sup, 'POST', `/api/items/${itemIds[0]}/settle`, { category: CATEGORIES[2], reason: 'for the trail' })).status).toBe(201);
   }, 600_000);
   afterAll(async () => s?.stop());
