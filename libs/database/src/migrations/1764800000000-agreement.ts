@@ -1,4 +1,4 @@
-import { Table, TableForeignKey, TableIndex, type MigrationInterface, type QueryRunner, type TableColumnOptions } from 'typeorm';
+import { Table, TableForeignKey, type MigrationInterface, type QueryRunner, type TableColumnOptions } from 'typeorm';
 
 /** Longest reason a supervisor may give when settling an item. */
 export const SETTLEMENT_REASON_MAX = 2000;
@@ -53,14 +53,9 @@ export class Agreement1764800000000 implements MigrationInterface {
       ],
       indices: [{ name: 'ix_settlements_item', columnNames: ['item_id', 'id'] }, { name: 'ix_settlements_desk', columnNames: ['desk_id', 'item_id'] }],
     }));
-
-    // The decision trail reads a desk's verdicts in id order, page after page (keyset): without this index each page
-    // would scan and sort the rest of the desk's verdicts.
-    await qr.createIndex('verdicts', new TableIndex({ name: 'ix_verdicts_desk_id', columnNames: ['desk_id', 'id'] }));
   }
 
   async down(qr: QueryRunner): Promise<void> {
-    await qr.dropIndex('verdicts', 'ix_verdicts_desk_id');
     await qr.dropTable('settlements');
     await qr.dropTable('second_opinions');
     // SQLite (3.35 and later) drops a column whose only CHECK is its own.
