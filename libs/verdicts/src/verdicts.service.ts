@@ -162,11 +162,15 @@ export class VerdictsService {
   }
 
   /** Verdicts of a desk, newest first, paged by id. */
-  async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number }): Promise<VerdictView[]> {
+  async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number; category?: string; from?: Date; to?: Date }): Promise<VerdictView[]> {
     const params: unknown[] = [deskId];
     let where = `v.desk_id = $1`;
     if (opts.before) { params.push(opts.before); where += ` AND v.id < $${params.length}`; }
     if (opts.reviewerId) { params.push(opts.reviewerId); where += ` AND v.reviewer_id = $${params.length}`; }
+    if (opts.category === 'abstain') where += ' AND v.category_id IS NULL';
+    else if (opts.category) { params.push(opts.category); where += ` AND c.name = $${params.length}`; }
+    if (opts.from) { params.push(this.db.time(opts.from)); where += ` AND v.created_at >= $${params.length}`; }
+    if (opts.to) { params.push(this.db.time(opts.to)); where += ` AND v.created_at < $${params.length}`; }
     return this.listWhere(where, params, opts.limit);
   }
 
