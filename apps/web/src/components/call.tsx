@@ -26,7 +26,7 @@ export function CallStatement({ prediction, target }: { prediction: Prediction |
       )}
       {call === 'ambiguous' && (
         <>
-          <p class="call-word"><span aria-hidden="true" class="call-icon">◐</span> Ambiguous: <strong>{set.join(' or ')}</strong></p>
+          <p class="call-word"><span aria-hidden="true" class="call-icon">◐</span> Ambiguous: <strong>{set.length === 2 ? set.join(' or ') : `${set.slice(0, -1).join(', ')} or ${set[set.length - 1]}`}</strong></p>
           <p class="call-detail">At {level} coverage the model cannot narrow it to one of these {set.length}.</p>
         </>
       )}
