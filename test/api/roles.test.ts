@@ -68,6 +68,8 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/coverage`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/coverage-preview`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/items`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/predictions.csv`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/predictions.ndjson`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 
