@@ -17,7 +17,7 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
   async function pagedItems() {
     const out: Array<{ id: number; externalId: string; prediction: { set: string[]; call: string; probabilities: Record<string, number> } }> = [];
     for (let cursor: string | null = null; ;) {
-      const page = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/items?limit=500${cursor ? `&cursor=${cursor}` : ''}`)).body;
+      const page: { items: typeof out; nextCursor: string | null } = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/items?limit=500${cursor ? `&cursor=${cursor}` : ''}`)).body;
       out.push(...page.items);
       cursor = page.nextCursor;
       if (!cursor) return out;

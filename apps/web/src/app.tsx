@@ -12,6 +12,7 @@ import { SettingsPage } from './pages/settings';
 import { ModelsPage } from './pages/models';
 import { ModelVersionPage } from './pages/model-version';
 import { TrailPage } from './pages/trail';
+import { DisagreementsPage } from './pages/disagreements';
 import { QueuePage } from './pages/queue';
 import { SignIn } from './pages/sign-in';
 
@@ -43,6 +44,7 @@ export const ROUTES: Route[] = [
   { pattern: '/desks/:deskId/models', roles: READERS, title: 'Model versions', page: ModelsPage },
   { pattern: '/desks/:deskId/models/:version', roles: READERS, title: 'Model version', page: ModelVersionPage },
   { pattern: '/desks/:deskId/trail', roles: READERS, title: 'Decision trail', page: TrailPage },
+  { pattern: '/desks/:deskId/disagreements', roles: READERS, title: 'Agreement', page: DisagreementsPage },
 ];
 
 const ROLE_NAMES: Record<Role, string> = { reviewer: 'reviewer', supervisor: 'supervisor', auditor: 'auditor', admin: 'administrator' };
@@ -54,7 +56,7 @@ export function deskTabs(role: Role, deskId: number | string): Array<{ href: str
   const tabs = role === 'supervisor'
     ? [{ href: base, label: 'Overview' }, { href: `${base}/import`, label: 'Import' }, { href: `${base}/coverage`, label: 'Coverage' }, { href: `${base}/settings`, label: 'Settings' }]
     : [];
-  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Model versions' }, { href: `${base}/trail`, label: 'Decision trail' });
+  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Model versions' }, { href: `${base}/disagreements`, label: 'Agreement' }, { href: `${base}/trail`, label: 'Decision trail' });
   return tabs;
 }
 
