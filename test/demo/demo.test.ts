@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../apps/cli/src/demo-seed.js';
+import { jobOptions, JobQueueService, JOBS } from '#queues';
 import { DEMO_DESK_NAME, formatDemoBlock, generateMossbankPool, MOSSBANK_SEED_TERMS, SIMULATED_REVIEWER, type DemoSeedResult } from '#demo';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { accountsInBlock } from './demo-block.js';
@@ -83,6 +84,9 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     const refused = await as('supervisor', 'POST', `/api/desks/${other.body.id}/simulation`, { minutes: 1 });
     expect(refused.status).toBe(409);
     expect(refused.body.message).toMatch(/2 item\(s\) that are not generated demo posts/);
+    // No body at all means the default two minutes: refused here for the same reason, not for the body.
+    const bare = await s.call(null, 'POST', `/api/desks/${other.body.id}/simulation`, undefined, { cookie: session.supervisor! });
+    expect(bare.status).toBe(409);
     const status = (await as('supervisor', 'GET', `/api/desks/${other.body.id}/simulation`)).body;
     expect(status).toMatchObject({ available: false, state: 'idle', verdicts: 0 });
     expect(status.reason).toMatch(/not generated demo posts/);
@@ -143,4 +147,33 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     expect(models.models.find((m: { state: string }) => m.state === 'published')).toBeDefined();
     expect(await count(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND NOT simulated`, [deskId])).toBe(0);
   }, 240_000);
+
+  it('finishes at its end time, and a worker that shuts down hands its run on', async () => {
+    const deskId = seeded!.deskId;
+    const jobs = s.api.get(JobQueueService);
+    const payload = { deskId, startedAt: Date.now(), until: Date.now() + 3000 };
+    // A run of 3 s, shorter than the API allows, put on the queue directly (after the stopped run's job is gone).
+    await (await jobs.job(JOBS.simulateReviewer, jobOptions(JOBS.simulateReviewer, payload).jobId!))?.remove();
+    await jobs.add(JOBS.simulateReviewer, payload);
+    const finished = await eventually(async () => {
+      const r = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
+      return r.state === 'finished' ? r : undefined;
+    }, 20_000, 'the end of a 3 s run');
+    expect(finished.verdicts).toBeGreaterThan(0);
+    expect(Date.parse(finished.until)).toBe(payload.until);
+
+    expect((await as('supervisor', 'POST', `/api/desks/${deskId}/simulation`, { minutes: 1 })).status).toBe(202);
+    await eventually(async () => ((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body.verdicts >= 3 ? true : undefined), 20_000, 'three verdicts');
+    const t0 = Date.now();
+    await s.stopWorker();
+    expect(Date.now() - t0).toBeLessThan(5000);
+    // Nothing is left held, and the run waits for the next worker (its retry goes on until the same end time).
+    expect(await count(`SELECT COUNT(*) AS n FROM items WHERE desk_id = $1 AND state = 'leased'`, [deskId])).toBe(0);
+    const waiting = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
+    expect(waiting.state).toBe('running');
+    expect(waiting.verdicts).toBeGreaterThanOrEqual(3);
+    // Stopping a run no worker has taken simply removes it.
+    expect((await as('supervisor', 'DELETE', `/api/desks/${deskId}/simulation`)).status).toBe(204);
+    expect((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body).toMatchObject({ state: 'idle', verdicts: 0 });
+  }, 120_000);
 });

@@ -1,6 +1,6 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { Job } from 'bullmq';
-import { SimulatedReviewerService } from '#demo';
+import { SimulatedReviewerService, verdictsSoFar } from '#demo';
 import { JOBS, type JobHandler, type SimulateReviewerPayload } from '#queues';
 
 /** Runs the demo's simulated reviewer; its verdict count is the job's progress. */
@@ -9,7 +9,6 @@ export class SimulateReviewerProcessor implements JobHandler<'simulate-reviewer'
   readonly jobName = JOBS.simulateReviewer;
   constructor(@Inject(SimulatedReviewerService) private readonly reviewer: SimulatedReviewerService) {}
   handle(job: Job<SimulateReviewerPayload>): Promise<unknown> {
-    const before = typeof job.progress === 'object' && job.progress !== null ? Number((job.progress as { verdicts?: number }).verdicts ?? 0) : 0;
-    return this.reviewer.run(job.data, (verdicts) => job.updateProgress({ verdicts }), before);
+    return this.reviewer.run(job.data, (verdicts) => job.updateProgress({ verdicts }), verdictsSoFar(job.progress));
   }
 }

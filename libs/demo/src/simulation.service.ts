@@ -32,6 +32,11 @@ export interface SimulationStatus {
 /** The run of a desk (without the availability part). */
 export type SimulationRun = Omit<SimulationStatus, 'available' | 'reason'>;
 
+/** The verdict count a run reports as its job's progress (`{ verdicts }`); 0 before the first. */
+export function verdictsSoFar(progress: unknown): number {
+  return typeof progress === 'object' && progress !== null ? Number((progress as { verdicts?: number }).verdicts ?? 0) : 0;
+}
+
 const RUNNING = ['active', 'waiting', 'delayed', 'prioritized', 'waiting-children'];
 /** How long `stop` waits for the run to notice; it checks between two items, a second apart at most. */
 const STOP_WAIT_MS = 5000;
@@ -100,7 +105,7 @@ export class SimulationService {
     const job = await this.job(deskId);
     if (!job) return { state: 'idle', verdicts: 0 };
     const state = await job.getState();
-    const progress = typeof job.progress === 'object' && job.progress !== null ? Number((job.progress as { verdicts?: number }).verdicts ?? 0) : 0;
+    const progress = verdictsSoFar(job.progress);
     const times = { startedAt: new Date(job.data.startedAt).toISOString(), until: new Date(job.data.until).toISOString() };
     if (RUNNING.includes(state)) return { state: 'running', ...times, verdicts: progress };
     if (state === 'completed') {

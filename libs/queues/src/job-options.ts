@@ -36,7 +36,7 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
     case JOBS.simulateReviewer:
       // One run per desk at a time; kept a day so its final count stays readable. A retry (after a
       // worker crash) goes on until the same end time.
-      return { ...keep, removeOnComplete: { age: 24 * 3600 }, jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`, attempts: 2, backoff: { type: 'fixed', delay: 1000 } };
+      return { ...keep, removeOnComplete: { age: 24 * 3600 }, jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`, attempts: 3, backoff: { type: 'fixed', delay: 1000 } };
     default:
       throw new TypeError(`no job options for job name ${JSON.stringify(name)}`);
   }
