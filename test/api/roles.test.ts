@@ -70,6 +70,10 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/items`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/predictions.csv`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/predictions.ndjson`, allowed: ['supervisor', 'auditor'] },
+    // The simulated reviewer (demo): this desk holds no generated posts, so a supervisor's start is a 409.
+    { method: 'GET', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
+    { method: 'POST', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'], body: () => ({ minutes: 1 }) },
+    { method: 'DELETE', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 

@@ -3,6 +3,7 @@ import { ConfigModule, type AppConfig } from '#config';
 import { AuditModule } from '#audit';
 import { AuthModule } from '#auth';
 import { DatabaseModule } from '#database';
+import { DemoModule } from '#demo';
 import { DesksModule } from '#desks';
 import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
@@ -18,7 +19,7 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, DemoModule],
       controllers: [HealthController, AuditController],
     };
   }

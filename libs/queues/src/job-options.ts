@@ -33,6 +33,10 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
     }
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
+    case JOBS.simulateReviewer:
+      // One run per desk at a time; kept a day so its final count stays readable. A retry (after a worker
+      // crash or shutdown) goes on until the same end time.
+      return { ...keep, removeOnComplete: { age: 24 * 3600 }, jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`, attempts: 3, backoff: { type: 'fixed', delay: 1000 } };
     default:
       throw new TypeError(`no job options for job name ${JSON.stringify(name)}`);
   }

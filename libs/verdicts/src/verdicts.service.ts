@@ -50,8 +50,12 @@ export class VerdictsService {
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
   ) {}
 
-  /** Records a verdict; `replayed` is true when the client id was seen before and nothing was written. */
-  async submit(reviewer: Principal, deskId: number, dto: CreateVerdictDto): Promise<{ verdict: VerdictView; replayed: boolean }> {
+  /**
+   * Records a verdict; `replayed` is true when the client id was seen before and nothing was written.
+   * `simulated` marks a verdict given by the demo's simulated reviewer, in the verdict row and its audit event.
+   */
+  async submit(reviewer: Principal, deskId: number, dto: CreateVerdictDto, options: { simulated?: boolean } = {}): Promise<{ verdict: VerdictView; replayed: boolean }> {
+    const simulated = options.simulated === true;
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
       throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
     }
@@ -101,21 +105,21 @@ export class VerdictsService {
         const view: Omit<VerdictView, 'id'> = {
           deskId, itemId: dto.itemId, reviewer: reviewer.name, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId,
           modelVersion: prediction?.modelVersion ?? null, shownSet: prediction?.set ?? null, shownCall: prediction?.call ?? null,
-          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated: false, createdAt: now, undoneAt: null,
+          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated, createdAt: now, undoneAt: null,
         };
         const [ins] = await this.db.query<{ id: number }>(m,
           `INSERT INTO verdicts (desk_id, item_id, reviewer_id, lease_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, shown_probabilities, elapsed_ms, note, simulated, created_at, undone_at)
            VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, NULL) RETURNING id`,
           [deskId, dto.itemId, reviewer.id, dto.leaseId, dto.clientId, categoryId, view.abstain, row.draw, view.modelVersion,
             prediction ? JSON.stringify(prediction.set) : null, view.shownCall, prediction ? JSON.stringify(prediction.probabilities) : null,
-            view.elapsedMs, view.note, false, this.db.time(now)],
+            view.elapsedMs, view.note, simulated, this.db.time(now)],
         );
         const verdictId = Number(ins!.id);
         await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`, [dto.itemId]);
         if (row.closed_at === null) await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [this.db.time(now), dto.leaseId]);
         await this.audit.record(m, reviewer, {
           action: 'verdict.create', entityType: 'verdict', entityId: verdictId, deskId,
-          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId },
+          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId, ...(simulated ? { simulated: true } : {}) },
         });
         return { created: { id: verdictId, ...view } };
       });
