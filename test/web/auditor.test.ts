@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { openBrowser, screenshot, signIn, type Browser } from '../support/browser.js';
+import { openBrowser, signIn, type Browser } from '../support/browser.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
 
@@ -50,7 +50,6 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     const models = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/models`)).body;
     await expect(table.locator('tbody tr').count()).resolves.toBe(models.models.length);
     await expect(writeControls(page)).resolves.toEqual([]);
-    await screenshot(page, 'auditor-models');
 
     const current = models.currentModelVersion as number;
     await page.getByRole('link', { name: `v${current}`, exact: true }).click();
@@ -66,9 +65,8 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     const sizeBars = page.locator('svg.chart').filter({ hasText: 'open items' }).locator('g.bar');
     await expect(sizeBars.count()).resolves.toBe(4);
     await expect(writeControls(page)).resolves.toEqual([]);
-    await screenshot(page, 'auditor-model-version');
 
-    await page.getByRole('link', { name: 'Decision trail' }).click();
+    await page.getByRole('link', { name: 'Trail', exact: true }).click();
     await page.waitForURL(`${s.base}/desks/${desk.deskId}/trail`);
     const trail = page.locator('table.trail tbody tr');
     const all = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?limit=1000`)).body.verdicts.length;
@@ -88,7 +86,6 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     await page.getByText('No verdict matches these filters.').waitFor();
     await page.goto(`${s.base}/desks/${desk.deskId}/trail?reviewer=robin`);
     await page.waitForFunction((n) => document.querySelectorAll('table.trail tbody tr').length === n, all);
-    await screenshot(page, 'auditor-trail');
     expect(b.foreign).toEqual([]);
   });
 

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { openBrowser, screenshot, signIn, type Browser } from '../support/browser.js';
+import { openBrowser, signIn, type Browser } from '../support/browser.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
 
@@ -38,7 +38,6 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     const text = (await page.locator('main').innerText()).toLowerCase();
     for (const word of ['random', 'uncertainty', 'draw', 'second opinion', 'second-opinion']) expect(text).not.toContain(word);
     await expect(page.locator('footer').innerText()).resolves.toContain('emergency services');
-    await screenshot(page, 'reviewer-queue');
 
     const decided: Array<{ itemId: number; category: string }> = [];
     const timings: number[] = [];

@@ -102,7 +102,6 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     const preview = (await s.call(sup, 'GET', `/api/desks/${deskId}/coverage-preview`)).body;
     const at65 = preview.points.find((p: { target: number }) => p.target === 0.65);
     expect(after).toContain(`${(at65.sureShare * 100).toFixed(0)} % of open items would be sure`);
-    await screenshot(page, 'supervisor-coverage');
     await page.getByRole('button', { name: 'Apply 65 %' }).click();
     await page.getByRole('status').filter({ hasText: 'Applied' }).waitFor();
     expect((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.coverageTarget).toBe(0.65);
@@ -116,7 +115,6 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     await expect(page.locator('dl.figures').innerText()).resolves.toMatch(new RegExp(`Verdicts\\s+${progress.verdicts.total}`));
     await expect(page.locator('table.data').innerText()).resolves.toContain('robin');
     await page.locator('svg.chart').first().waitFor();
-    await screenshot(page, 'supervisor-overview');
     expect(b.foreign).toEqual([]);
   });
 });

@@ -56,7 +56,7 @@ export function deskTabs(role: Role, deskId: number | string): Array<{ href: str
   const tabs = role === 'supervisor'
     ? [{ href: base, label: 'Overview' }, { href: `${base}/import`, label: 'Import' }, { href: `${base}/coverage`, label: 'Coverage' }, { href: `${base}/settings`, label: 'Settings' }]
     : [];
-  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Model versions' }, { href: `${base}/disagreements`, label: 'Agreement' }, { href: `${base}/trail`, label: 'Decision trail' });
+  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Models' }, { href: `${base}/disagreements`, label: 'Agreement' }, { href: `${base}/trail`, label: 'Trail' });
   return tabs;
 }
 
@@ -124,7 +124,7 @@ function DeskTabs({ me, deskId, path }: { me: Me; deskId: string; path: string }
     <nav class="desk-tabs" aria-label="Desk sections">
       <span class="desk-name">{desk?.name ?? `Desk ${deskId}`}</span>
       {tabs.map((t) => (
-        <a href={t.href} aria-current={path === t.href || (t.label === 'Model versions' && path.startsWith(`${t.href}/`)) ? 'page' : undefined}>{t.label}</a>
+        <a href={t.href} aria-current={path === t.href || (t.label === 'Models' && path.startsWith(`${t.href}/`)) ? 'page' : undefined}>{t.label}</a>
       ))}
     </nav>
   );

@@ -186,6 +186,11 @@ export function QueuePage({ params }: PageProps) {
             )}
           </article>
         )}
+        {grant && (
+          <p class="keys muted" aria-label="Keys">
+            Keys: {keyed.map((k) => <span><kbd>{k.key}</kbd> {k.text} </span>)}· <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note{confirm ? <> · <kbd>Enter</kbd> confirm</> : null}
+          </p>
+        )}
         {!grant && empty && (
           <div class="empty-queue" role="status">
             <h1>Nothing to decide right now</h1>
