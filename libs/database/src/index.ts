@@ -15,3 +15,4 @@ export { VerdictEntity } from './entities/verdict.entity.js';
 export { AuditEventEntity } from './entities/audit-event.entity.js';
 export { ModelVersionEntity, MODEL_STATES, type ModelState, type VerdictSetSummary } from './entities/model-version.entity.js';
 export { isUniqueViolation } from './errors.js';
+export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';

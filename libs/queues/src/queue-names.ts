@@ -9,6 +9,8 @@ export const QUEUES = {
   learning: 'learning',
   /** Scoring chunks of a new model version: any worker process takes any chunk. */
   scoring: 'scoring',
+  /** Oversight reports of published model versions. */
+  reports: 'reports',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -25,6 +27,8 @@ export const JOBS = {
   publishVersion: 'publish-version',
   /** Find desks whose newest verdicts no version has learned from (e.g. taken while Redis was down). */
   sweepDesks: 'sweep-desks',
+  /** Write the oversight report (HTML and JSON) of a published model version. */
+  writeReport: 'write-report',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -57,6 +61,11 @@ export interface PublishVersionPayload {
 
 export type SweepDesksPayload = Record<string, never>;
 
+export interface WriteReportPayload {
+  deskId: number;
+  version: number;
+}
+
 /** Which queue carries which job. */
 export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.importFile]: QUEUES.imports,
@@ -65,6 +74,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.retrainDesk]: QUEUES.learning,
   [JOBS.publishVersion]: QUEUES.learning,
   [JOBS.scoreChunk]: QUEUES.scoring,
+  [JOBS.writeReport]: QUEUES.reports,
 };
 
 export interface JobPayloads {
@@ -74,4 +84,5 @@ export interface JobPayloads {
   [JOBS.scoreChunk]: ScoreChunkPayload;
   [JOBS.publishVersion]: PublishVersionPayload;
   [JOBS.sweepDesks]: SweepDesksPayload;
+  [JOBS.writeReport]: WriteReportPayload;
 }
