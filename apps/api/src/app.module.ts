@@ -8,6 +8,7 @@ import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
 import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
+import { ReportsModule } from '#reports';
 import { VerdictsModule } from '#verdicts';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
@@ -18,7 +19,7 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, ReportsModule],
       controllers: [HealthController, AuditController],
     };
   }

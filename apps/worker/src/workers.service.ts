@@ -5,6 +5,7 @@ import { APP_CONFIG, type AppConfig } from '#config';
 import { createRedis, handlerTable, JOB_QUEUE, JOBS, JobQueueService, QUEUES, type JobHandler, type JobName } from '#queues';
 import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
 import { PublishVersionProcessor, RetrainDeskProcessor, ScoreChunkProcessor, SweepDesksProcessor } from './learning.processor.js';
+import { WriteReportProcessor } from './report.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 
@@ -49,4 +50,4 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   }
 }
 
-export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor];
+export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor, WriteReportProcessor];
