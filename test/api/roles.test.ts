@@ -68,6 +68,9 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/coverage`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/coverage-preview`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/items`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.json`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.html`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 
