@@ -5,6 +5,8 @@ import { chromium } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { clopperPearsonInterval, createRng } from '#learning';
 import { JOBS, JobQueueService } from '#queues';
+import { canonicalValue } from '#reports';
+import { AgreementService } from '#verdicts';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { eventually, startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
@@ -12,6 +14,7 @@ import { syntheticPool } from '../support/synthetic.js';
 const POOL = 1500;
 const REVIEWERS = ['willow', 'ash', 'rowan', 'bramble'];
 const TARGET = 0.9;
+const CATEGORIES = ['threat', 'harassment', 'ok'];
 const Z = 1.959963985;
 /** Report figures are rounded to 6 decimal places: a recomputed value may differ by half a unit of the last. */
 const ROUNDED = 5e-7 + 1e-12;
@@ -44,7 +47,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     for (const name of REVIEWERS) tokens.push(await s.user(name, 'reviewer'));
     const d = await s.call(sup, 'POST', '/api/desks', {
       name: HOSTILE_DESK, categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] },
-      coverageTarget: TARGET, calibration: 'per-category', randomShare: 0.5, retrainEvery: 50, retrainAfterSeconds: 3,
+      coverageTarget: TARGET, calibration: 'per-category', randomShare: 0.5, secondOpinionShare: 0.2, retrainEvery: 50, retrainAfterSeconds: 3,
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
@@ -53,7 +56,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n'), { 'content-type': 'application/x-ndjson' });
     await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 120_000);
 
-    // Simulated reviewers answer from the hidden labels (one in 25 abstains); a settings change with a hostile seed term lands on the way.
+    // Simulated reviewers answer from the hidden labels (one in 25 abstains, one in 12 picks a category at random); a settings change with a hostile seed term lands on the way.
     const g = createRng(5);
     let randomShown = 0;
     let changed = false;
@@ -66,7 +69,8 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
           const l = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
           if (l.status === 204) return;
           expect(l.status).toBe(201);
-          const answer = g.next() < 0.04 ? { abstain: true } : { category: labels.get(l.body.item.externalId)! };
+          const u = g.next();
+          const answer = u < 0.04 ? { abstain: true } : { category: u < 0.12 ? CATEGORIES[Math.floor(g.next() * 3)]! : labels.get(l.body.item.externalId)! };
           const v = await s.call(token, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, clientId: `r${r}-${serial++}`, elapsedMs: 2000 + Math.floor(g.next() * 20_000), ...answer });
           expect(v.status).toBe(201);
           if (l.body.prediction) {
@@ -112,7 +116,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     expect(report.desk).toEqual({ id: deskId, name: HOSTILE_DESK, categories: ['threat', 'harassment', 'ok'] });
     expect(report.version).toMatchObject({ version, parentVersion: parent.version, createdAt: v.createdAt, publishedAt: v.publishedAt });
     expect(report.period).toEqual({ from: parent.publishedAt, to: v.publishedAt, startsAt: 'parent-published' });
-    expect(report.settings).toEqual({ coverageTarget: TARGET, calibration: 'per-category', score: 'lac', strategy: 'entropy', randomShare: 0.5 });
+    expect(report.settings).toEqual({ coverageTarget: TARGET, calibration: 'per-category', score: 'lac', strategy: 'entropy', randomShare: 0.5, secondOpinionShare: 0.2 });
     // Every published version up to this one is on the learning curve.
     expect(report.learningCurve.map((p: { version: number }) => p.version)).toEqual(models.filter((m) => m.state === 'published' && m.version <= version).map((m) => m.version).sort((a, b) => a - b));
   });
@@ -193,6 +197,17 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     expect(changes.find((c) => c.after.seedTerms)!.actor).toBe('sup');
   });
 
+  it('holds the agreement figures of the AgreementService as the verdicts stood at publication', async () => {
+    const to = new Date(report.version.publishedAt);
+    const rows = await s.db.query<{ item_id: number }>(null,
+      `SELECT item_id FROM verdicts WHERE desk_id = $1 AND category_id IS NOT NULL AND created_at <= $2 AND (undone_at IS NULL OR undone_at > $2) GROUP BY item_id HAVING COUNT(*) >= 2`,
+      [deskId, s.db.time(to)]);
+    expect(rows.length).toBeGreaterThan(0);
+    expect(report.agreement.items).toBe(rows.length);
+    expect(report.agreement.krippendorff.alpha).not.toBeNull();
+    expect(report.agreement).toEqual(canonicalValue(await s.api.get(AgreementService).forDesk(deskId, to)));
+  });
+
   it('gives byte-identical JSON when the job runs again for the same version, even after later changes', async () => {
     const list = async () => (await s.call(aud, 'GET', `/api/desks/${deskId}/reports`)).body.reports as Array<{ version: number; status: string; generatedAt: string; figuresSha256: string }>;
     const before = (await list()).find((r) => r.version === version)!;
@@ -200,7 +215,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     // Later events must not change the figures: another target, one more verdict (and the version it may bring).
     expect((await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { coverageTarget: 0.8 })).status).toBe(200);
     const l = await s.call(tokens[0]!, 'POST', `/api/desks/${deskId}/leases`);
-    expect((await s.call(tokens[0]!, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, clientId: 'late-1', abstain: true })).status).toBe(201);
+    expect((await s.call(tokens[0]!, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, clientId: 'late-1', category: labels.get(l.body.item.externalId)! })).status).toBe(201);
     await new Promise((r) => setTimeout(r, 1000));
     await s.waitForQueuesIdle(120_000);
     // A newer version is current now and this version's predictions are gone: the pool figures are kept from the first run.

@@ -1,6 +1,7 @@
 import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskEntity, ModelVersionEntity, type VerdictSetSummary } from '#database';
 import { ModelStore } from '#models';
+import { AgreementService } from '#verdicts';
 import { activityFigures } from './figures/activity-figures.js';
 import { alertEpisodes, coverageFigure, type RandomCheck } from './figures/coverage-figures.js';
 import { poolFigures } from './figures/pool-figures.js';
@@ -21,7 +22,11 @@ type Settings = ReportFigures['settings'];
  */
 @Injectable()
 export class ReportData {
-  constructor(@Inject(Database) private readonly db: Database, @Inject(ModelStore) private readonly store: ModelStore) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(ModelStore) private readonly store: ModelStore,
+    @Inject(AgreementService) private readonly agreement: AgreementService,
+  ) {}
 
   /**
    * @param keptPool the pool figures of an earlier run, used when this
@@ -42,7 +47,7 @@ export class ReportData {
     const inForce = history.at(to);
     const settings: Settings = {
       coverageTarget: Number(inForce.coverageTarget), calibration: inForce.calibration as Settings['calibration'], score: inForce.score as Settings['score'],
-      strategy: String(inForce.strategy), randomShare: Number(inForce.randomShare),
+      strategy: String(inForce.strategy), randomShare: Number(inForce.randomShare), secondOpinionShare: Number(inForce.secondOpinionShare),
     };
     const checks = await this.randomChecks(deskId, to);
     const inPeriod = checks.filter((c) => c.at.getTime() > from.getTime());
@@ -66,6 +71,7 @@ export class ReportData {
       pool,
       quality: quality(row.metrics),
       learningCurve: await this.learningCurve(deskId, version),
+      agreement: await this.agreement.forDesk(deskId, to),
       activity: activityFigures(await this.activity(deskId, from, to)),
       alerts: alertEpisodes(checks, from, (t) => Number(history.at(t).coverageTarget)),
       settingsChanges: history.between(from, to).map((e) => ({ at: e.at.toISOString(), actor: e.actor, before: e.before ?? {}, after: e.after ?? {} })),
@@ -75,7 +81,7 @@ export class ReportData {
   private async settingsHistory(desk: DeskEntity): Promise<SettingsHistory> {
     const rows = await this.db.query<{ at: unknown; actor_name: string; action: string; before: string | null; after: string | null }>(null,
       `SELECT at, actor_name, action, before, after FROM audit_events WHERE desk_id = $1 AND entity_type = 'desk' AND action = 'desk.update' ORDER BY id`, [desk.id]);
-    const current = { name: desk.name, coverageTarget: desk.coverageTarget, calibration: desk.calibration, score: desk.score, strategy: desk.strategy, randomShare: desk.randomShare };
+    const current = { name: desk.name, coverageTarget: desk.coverageTarget, calibration: desk.calibration, score: desk.score, strategy: desk.strategy, randomShare: desk.randomShare, secondOpinionShare: desk.secondOpinionShare };
     return new SettingsHistory(current, rows.map((r) => ({
       at: this.db.parseTime(r.at)!, actor: r.actor_name, action: r.action,
       before: r.before ? (JSON.parse(r.before) as Record<string, unknown>) : null, after: r.after ? (JSON.parse(r.after) as Record<string, unknown>) : null,

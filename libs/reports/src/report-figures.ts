@@ -1,3 +1,5 @@
+import type { DeskAgreement } from '#verdicts';
+
 /**
  * The figures of an oversight report: what the JSON file holds and the only
  * input of the HTML page. Times are ISO 8601 (UTC) text; shares are in 0…1.
@@ -10,13 +12,15 @@ export interface ReportFigures {
   /** Verdict times covered: after the parent version was published (or from the desk's creation) up to this version's publication. */
   period: { from: string; to: string; startsAt: 'parent-published' | 'desk-created' };
   /** Settings in force when this version was published (read back from the audit trail). */
-  settings: { coverageTarget: number; calibration: 'marginal' | 'per-category'; score: 'lac' | 'aps'; strategy: string; randomShare: number };
+  settings: { coverageTarget: number; calibration: 'marginal' | 'per-category'; score: 'lac' | 'aps'; strategy: string; randomShare: number; secondOpinionShare: number };
   training: VerdictCounts;
   calibration: VerdictCounts;
   coverage: CoverageSection;
   pool: PoolSection | null;
   quality: QualitySection | null;
   learningCurve: LearningPoint[];
+  /** Agreement between reviewers over the desk's verdicts as they stood at publication (AgreementService). */
+  agreement: DeskAgreement;
   activity: ActivitySection;
   alerts: AlertSection;
   settingsChanges: SettingsChange[];

@@ -1,5 +1,6 @@
 import { Module } from '@nestjs/common';
 import { ModelsCoreModule } from '#models';
+import { AgreementService } from '#verdicts';
 import { ReportData } from './report-data.service.js';
 import { ReportsController } from './reports.controller.js';
 import { ReportWriter } from './report-writer.service.js';
@@ -9,5 +10,5 @@ import { ReportWriter } from './report-writer.service.js';
 export class ReportsModule {}
 
 /** The worker side: gathering the figures and writing the report files. */
-@Module({ imports: [ModelsCoreModule], providers: [ReportData, ReportWriter], exports: [ReportWriter] })
+@Module({ imports: [ModelsCoreModule], providers: [AgreementService, ReportData, ReportWriter], exports: [ReportWriter] })
 export class ReportsWorkModule {}

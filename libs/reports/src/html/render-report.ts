@@ -1,7 +1,7 @@
 import type { ReportFigures } from '../report-figures.js';
 import { html, trusted } from './escape-html.js';
 import {
-  activitySection, alertsSection, assumptionsSection, cautionsSection, countsSection, coverageSection, headerSection, learningCurveSection, poolSection, qualitySection, settingsChangesSection,
+  activitySection, agreementSection, alertsSection, assumptionsSection, cautionsSection, countsSection, coverageSection, headerSection, learningCurveSection, poolSection, qualitySection, settingsChangesSection,
 } from './report-sections.js';
 import { REPORT_CSS } from './report-style.js';
 
@@ -30,6 +30,7 @@ ${countsSection(f)}
 ${poolSection(f)}
 ${qualitySection(f)}
 ${learningCurveSection(f)}
+${agreementSection(f)}
 ${activitySection(f)}
 ${alertsSection(f)}
 ${settingsChangesSection(f)}

@@ -20,7 +20,7 @@ export function headerSection(f: F): Html {
 <dt>Published</dt><dd>${utc(f.version.publishedAt)}</dd>
 <dt>Period covered</dt><dd>verdicts after ${utc(f.period.from)} (${f.period.startsAt === 'parent-published' ? 'publication of the previous version' : 'creation of the desk'}) up to ${utc(f.period.to)}</dd>
 <dt>Coverage target</dt><dd>${percent(f.settings.coverageTarget)}, calibrated ${MODE_TEXT[f.settings.calibration]}, score ${SCORE_TEXT[f.settings.score]}</dd>
-<dt>Queue</dt><dd>${percent(f.settings.randomShare)} of the items drawn uniformly at random; the rest by ${f.settings.strategy}</dd>
+<dt>Queue</dt><dd>${percent(f.settings.randomShare)} of the items drawn uniformly at random, the rest by ${f.settings.strategy}; ${percent(f.settings.secondOpinionShare)} of decided items served again to a second reviewer</dd>
 </dl>
 </header>`;
 }
@@ -120,6 +120,29 @@ export function learningCurveSection(f: F): Html {
 <figcaption>Macro-F1 of each published version up to this one, each measured on its own calibration set (which grows from version to version, so the points are not measured on the same items).</figcaption></figure>
 <table class="keep"><thead><tr><th class="num">version</th><th>published</th><th class="num">calibration items</th><th class="num">accuracy</th><th class="num">macro-F1</th></tr></thead>
 <tbody>${f.learningCurve.map((p) => html`<tr><td class="num">${p.version}</td><td>${utc(p.publishedAt)}</td><td class="num">${p.calibrationItems}</td><td class="num">${fixed(p.accuracy)}</td><td class="num">${fixed(p.macroF1)}</td></tr>`)}</tbody></table>
+</section>`;
+}
+
+export function agreementSection(f: F): Html {
+  const a = f.agreement;
+  const k = a.krippendorff;
+  const intro = html`<p>Over the desk's items that two or more reviewers decided (second opinions), as the verdicts stood when this version was published: ${a.items} items, ${a.verdicts} category verdicts by ${a.reviewers} reviewers; ${a.abstentions} abstentions on those items count as missing values.</p>`;
+  if (a.items === 0) return html`<section class="keep" id="agreement"><h2>Agreement between reviewers</h2>${intro}<p class="note">No item had two category verdicts yet, so agreement cannot be stated.</p></section>`;
+  return html`<section id="agreement">
+<h2>Agreement between reviewers</h2>
+${intro}
+<table class="keep"><thead><tr><th>Coefficient</th><th class="num">value</th><th>over</th></tr></thead><tbody>
+<tr><td>Krippendorff's alpha (nominal)</td><td class="num">${fixed(k.alpha)}</td><td>${k.items} items, ${k.pairableValues} pairable values; ${percent(k.interval.confidence)} bootstrap interval ${fixed(k.interval.lower)} to ${fixed(k.interval.upper)} (${k.interval.resamples} resamples of items, seed ${k.interval.seed})</td></tr>
+<tr><td>Fleiss' kappa</td><td class="num">${fixed(a.fleiss.kappa)}</td><td>${a.fleiss.items} items with ${a.fleiss.verdictsPerItem ?? '–'} verdicts each; ${a.fleiss.itemsLeftOut} left out</td></tr>
+</tbody></table>
+<p class="note">${a.fleiss.unequalVerdicts} A coefficient is shown as a dash where there is nothing to measure (for instance a single category used).</p>
+${a.cohen.length ? html`<h3>Cohen's kappa per pair of reviewers</h3>
+<table class="keep"><thead><tr><th>reviewers</th><th class="num">items</th><th class="num">observed agreement</th><th class="num">expected by chance</th><th class="num">kappa</th></tr></thead>
+<tbody>${a.cohen.map((c) => html`<tr><td>${c.reviewers[0]} and ${c.reviewers[1]}</td><td class="num">${c.items}</td><td class="num">${percent(c.observed)}</td><td class="num">${percent(c.expected)}</td><td class="num">${fixed(c.kappa)}</td></tr>`)}</tbody></table>
+<p class="note">Pairs in order of the reviewers' names; the figures describe agreement, not who is right.</p>` : ''}
+<h3>Per category</h3>
+<table class="keep"><thead><tr><th>category</th><th class="num">verdicts</th><th class="num">items</th><th class="num">Fleiss' kappa</th></tr></thead>
+<tbody>${a.perCategory.map((c) => html`<tr><td>${c.category}</td><td class="num">${c.verdicts}</td><td class="num">${c.items}</td><td class="num">${fixed(c.fleissKappa)}</td></tr>`)}</tbody></table>
 </section>`;
 }
 
