@@ -70,10 +70,11 @@ export class TrainingService {
     const byItem = new Map<number, { label: string | null; random: boolean; settled: boolean; text: string; draws: Set<string> }>();
     for (const r of labelled) {
       const e = byItem.get(Number(r.item_id)) ?? { label: null, random: false, settled: false, text: r.text, draws: new Set<string>() };
-      if (r.category !== null && r.draw !== 'second-opinion') e.label = r.category;
+      byItem.set(Number(r.item_id), e);
+      if (r.draw === 'second-opinion') continue;
+      if (r.category !== null) e.label = r.category;
       e.draws.add(r.draw);
       if (r.draw === 'random') e.random = true;
-      byItem.set(Number(r.item_id), e);
     }
     for (const r of settled) {
       const e = byItem.get(Number(r.item_id));

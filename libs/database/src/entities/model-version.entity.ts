@@ -9,7 +9,7 @@ export type ModelState = (typeof MODEL_STATES)[number];
 export interface VerdictSetSummary {
   /** Verdicts per category. */
   counts: Record<string, number>;
-  /** Items per draw kind of their verdicts: training never holds `random`; every calibration item holds `random` (some `second-opinion` too). */
+  /** Items per draw kind of their original draws (second opinions not counted): training never holds `random`, calibration only `random`. */
   draws: Record<string, number>;
   /** The items, ascending. */
   itemIds: number[];
