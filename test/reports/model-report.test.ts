@@ -307,6 +307,11 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     expect((await s.call(aud, 'GET', paths[0]!)).body.reports.find((r: { version: number }) => r.version === version).status).toBe('writing');
     await s.db.query(null, `UPDATE model_reports SET state = 'ready', figures = $3, html = $4, figures_sha256 = $5, generated_at = $6 WHERE desk_id = $1 AND version = $2`,
       [deskId, version, stored!.figures, stored!.html, stored!.figures_sha256, stored!.generated_at]);
+    // A report job for a version that does not exist gives up at once and writes nothing.
+    await s.api.get(JobQueueService).add(JOBS.writeReport, { deskId, version: 999 });
+    await s.waitForQueuesIdle(30_000);
+    expect(await s.db.query(null, 'SELECT id FROM model_reports WHERE desk_id = $1 AND version = 999', [deskId])).toEqual([]);
+    expect((await s.call(aud, 'GET', `/api/desks/${deskId}/models/999/report.json`)).body.message).toBe(`desk ${deskId} has no model version 999`);
     // The database refuses a ready report without its files.
     await expect(s.db.query(null, `UPDATE model_reports SET figures = NULL WHERE desk_id = $1 AND version = $2`, [deskId, version])).rejects.toThrow(/ck_model_reports_ready|CHECK/i);
   });

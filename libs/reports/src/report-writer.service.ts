@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { Inject, Injectable, Logger } from '@nestjs/common';
 import { UnrecoverableError } from 'bullmq';
-import { Database, ModelReportEntity } from '#database';
+import { Database, ModelReportEntity, ModelVersionEntity } from '#database';
 import type { WriteReportPayload } from '#queues';
 import { canonicalJson } from './canonical-json.js';
 import { renderReport } from './html/render-report.js';
@@ -22,6 +22,9 @@ export class ReportWriter {
   constructor(@Inject(Database) private readonly db: Database, @Inject(ReportData) private readonly data: ReportData) {}
 
   async write(p: WriteReportPayload): Promise<{ sha256: string; bytes: number }> {
+    // A version that is missing or not published will not become reportable by retrying.
+    const v = await this.db.manager.findOne(ModelVersionEntity, { where: { deskId: p.deskId, version: p.version }, select: { id: true, state: true } });
+    if (v?.state !== 'published') throw new UnrecoverableError(`desk ${p.deskId} has no published model version ${p.version} (${v?.state ?? 'none'})`);
     const existing = await this.db.manager.findOneBy(ModelReportEntity, { deskId: p.deskId, version: p.version });
     if (!existing) {
       await this.db.write((m) => this.db.query(m, `INSERT INTO model_reports (desk_id, version, state, started_at) VALUES ($1, $2, 'writing', $3) ON CONFLICT (desk_id, version) DO NOTHING`, [p.deskId, p.version, this.db.time(new Date())]));
@@ -34,7 +37,6 @@ export class ReportWriter {
       figures = await this.data.figures(p.deskId, p.version, kept);
     } catch (e) {
       await this.fail(p, e);
-      // A version that is missing or not published will not become reportable by retrying.
       if (e instanceof ReportNotPossible) throw new UnrecoverableError(e.message);
       throw e;
     }
