@@ -18,7 +18,8 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
 
   /** A desk with the given texts imported; returns its id. */
   async function desk(name: string, texts: string[], settings: Record<string, unknown> = {}): Promise<number> {
-    const r = await s.call(sup, 'POST', '/api/desks', { name, categories: ['threat', 'harassment', 'ok'], ...settings });
+    // No second opinions unless a test asks: these tests follow first draws item by item.
+    const r = await s.call(sup, 'POST', '/api/desks', { name, categories: ['threat', 'harassment', 'ok'], secondOpinionShare: 0, ...settings });
     expect(r.status).toBe(201);
     const body = texts.map((text) => JSON.stringify({ text })).join('\n');
     const imp = await s.call(sup, 'POST', `/api/desks/${r.body.id}/imports`, body, { 'content-type': 'application/x-ndjson' });

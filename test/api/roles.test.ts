@@ -21,6 +21,7 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
   let importId = '';
   let leaseId = '';
   let verdictId = 0;
+  let itemId = 0;
   let n = 0;
 
   beforeAll(async () => {
@@ -35,6 +36,7 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     leaseId = l.body.lease.id;
     const v = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId, itemId: l.body.item.id, category: 'ok', clientId: 'matrix-0' });
     verdictId = v.body.verdict.id;
+    itemId = l.body.item.id;
   });
   afterAll(async () => s?.stop());
 
@@ -74,6 +76,14 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
     { method: 'POST', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'], body: () => ({ minutes: 1 }) },
     { method: 'DELETE', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/agreement`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/disagreements`, allowed: ['supervisor', 'auditor'] },
+    { method: 'POST', path: `/api/items/${itemId}/settle`, allowed: ['supervisor'], body: () => ({ category: 'ok', reason: 'matrix check' }) },
+    { method: 'GET', path: `/api/desks/${deskId}/trail.csv`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/trail.ndjson`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.json`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.html`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 

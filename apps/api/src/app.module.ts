@@ -9,6 +9,7 @@ import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
 import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
+import { ReportsModule } from '#reports';
 import { VerdictsModule } from '#verdicts';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
@@ -19,7 +20,7 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, DemoModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, DemoModule, ReportsModule],
       controllers: [HealthController, AuditController],
     };
   }

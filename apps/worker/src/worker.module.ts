@@ -6,6 +6,7 @@ import { DemoWorkModule } from '#demo';
 import { ImportsWorkModule } from '#imports';
 import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
+import { ReportsWorkModule } from '#reports';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
 
@@ -15,7 +16,7 @@ export class WorkerModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: WorkerModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) }), DemoWorkModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) }), DemoWorkModule, ReportsWorkModule],
       providers: [
         ...PROCESSORS,
         { provide: JOB_HANDLERS, inject: PROCESSORS, useFactory: (...handlers: unknown[]) => handlers },

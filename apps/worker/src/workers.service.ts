@@ -6,6 +6,7 @@ import { createRedis, handlerTable, JOB_QUEUE, JOBS, JobQueueService, QUEUES, ty
 import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
 import { PublishVersionProcessor, RetrainDeskProcessor, ScoreChunkProcessor, SweepDesksProcessor } from './learning.processor.js';
 import { SimulateReviewerProcessor } from './simulation.processor.js';
+import { WriteReportProcessor } from './report.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 /** Simulated reviewers mostly wait (their pauses), so one worker runs several desks' at once. */
@@ -52,4 +53,4 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   }
 }
 
-export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor, SimulateReviewerProcessor];
+export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor, SimulateReviewerProcessor, WriteReportProcessor];

@@ -19,6 +19,8 @@ export class CreateDeskDto {
   @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999, default: 0.9 }) @IsOptional() @IsNumber() @Min(0.5) @Max(0.999) coverageTarget?: number;
   @ApiPropertyOptional({ enum: CALIBRATION_MODES, default: 'per-category' }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.2 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
+  /** Share of decided items served again to a different reviewer, for agreement figures. */
+  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) secondOpinionShare?: number;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400, default: 600 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
   @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
   @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;
@@ -38,6 +40,7 @@ export class UpdateDeskDto {
   @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999 }) @IsOptional() @IsNumber() @Min(0.5) @Max(0.999) coverageTarget?: number;
   @ApiPropertyOptional({ enum: CALIBRATION_MODES }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
+  @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) secondOpinionShare?: number;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
   @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
   @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;

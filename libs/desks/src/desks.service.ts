@@ -15,6 +15,7 @@ export interface DeskView {
   coverageTarget: number;
   calibration: DeskEntity['calibration'];
   randomShare: number;
+  secondOpinionShare: number;
   leaseSeconds: number;
   strategy: DeskEntity['strategy'];
   score: DeskEntity['score'];
@@ -72,7 +73,7 @@ export class DesksService {
       const now = new Date();
       const desk = await m.save(DeskEntity, m.create(DeskEntity, {
         name: dto.name, seedTerms, coverageTarget: dto.coverageTarget ?? 0.9, calibration: dto.calibration ?? 'per-category',
-        randomShare: dto.randomShare ?? 0.2, leaseSeconds: dto.leaseSeconds ?? 600, currentModelVersion: null,
+        randomShare: dto.randomShare ?? 0.2, secondOpinionShare: dto.secondOpinionShare ?? 0.1, leaseSeconds: dto.leaseSeconds ?? 600, currentModelVersion: null,
         strategy: dto.strategy ?? 'entropy', score: dto.score ?? 'lac', retrainEvery: dto.retrainEvery ?? 10, retrainAfterSeconds: dto.retrainAfterSeconds ?? 30, createdBy: actor.id ?? 0, createdAt: now, updatedAt: now,
       }));
       await m.insert(CategoryEntity, dto.categories.map((name, i) => ({ deskId: desk.id, name, position: i + 1, createdAt: now })));
@@ -135,6 +136,7 @@ export class DesksService {
       if (dto.coverageTarget !== undefined) desk.coverageTarget = dto.coverageTarget;
       if (dto.calibration !== undefined) desk.calibration = dto.calibration;
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
+      if (dto.secondOpinionShare !== undefined) desk.secondOpinionShare = dto.secondOpinionShare;
       if (dto.leaseSeconds !== undefined) desk.leaseSeconds = dto.leaseSeconds;
       if (dto.strategy !== undefined) desk.strategy = dto.strategy;
       if (dto.score !== undefined) desk.score = dto.score;
@@ -172,7 +174,7 @@ export class DesksService {
 function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
   return {
     id: d.id, name: d.name, categories: cats.map((c) => ({ id: c.id, name: c.name, position: c.position })), seedTerms: d.seedTerms,
-    coverageTarget: d.coverageTarget, calibration: d.calibration, randomShare: d.randomShare, leaseSeconds: d.leaseSeconds,
+    coverageTarget: d.coverageTarget, calibration: d.calibration, randomShare: d.randomShare, secondOpinionShare: d.secondOpinionShare, leaseSeconds: d.leaseSeconds,
     strategy: d.strategy, score: d.score, retrainEvery: d.retrainEvery, retrainAfterSeconds: d.retrainAfterSeconds,
     currentModelVersion: d.currentModelVersion, createdAt: d.createdAt, updatedAt: d.updatedAt,
   };
@@ -180,7 +182,7 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
 
 function settingsOf(v: DeskView): Record<string, unknown> {
   return {
-    name: v.name, categories: v.categories.map((c) => c.name), seedTerms: v.seedTerms, coverageTarget: v.coverageTarget, calibration: v.calibration, randomShare: v.randomShare,
+    name: v.name, categories: v.categories.map((c) => c.name), seedTerms: v.seedTerms, coverageTarget: v.coverageTarget, calibration: v.calibration, randomShare: v.randomShare, secondOpinionShare: v.secondOpinionShare,
     leaseSeconds: v.leaseSeconds, strategy: v.strategy, score: v.score, retrainEvery: v.retrainEvery, retrainAfterSeconds: v.retrainAfterSeconds,
   };
 }

@@ -49,3 +49,12 @@ export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncer
 
 export { prepareRehearsal, runRehearsal } from './rehearsal/rehearsal.js';
 export type { CurvePoint, LabelledItem, RehearsalCurve, RehearsalData, RehearsalOptions, RehearsalResult } from './rehearsal/rehearsal.js';
+
+export { cohenKappa, cohenKappaFromMatrix } from './agreement/cohen-kappa.js';
+export type { CohenKappa } from './agreement/cohen-kappa.js';
+export { fleissKappa } from './agreement/fleiss-kappa.js';
+export type { FleissKappa } from './agreement/fleiss-kappa.js';
+export { addCoincidences, alphaFromCoincidences, alphaOfCounts, countValues, krippendorffAlpha } from './agreement/krippendorff-alpha.js';
+export type { AlphaLevel, KrippendorffAlpha, ReliabilityTable, ValueCounts } from './agreement/krippendorff-alpha.js';
+export { alphaBootstrap, sortedQuantile } from './agreement/alpha-bootstrap.js';
+export type { AlphaBootstrapOptions, AlphaInterval } from './agreement/alpha-bootstrap.js';

@@ -72,6 +72,8 @@ export class LeasesService {
       if (row) {
         const [prev] = await this.db.query<{ draw: DrawKind }>(m, 'SELECT draw FROM leases WHERE item_id = $1 ORDER BY created_at DESC LIMIT 1', [row.id]);
         draw = prev?.draw ?? 'random';
+      } else if ((row = await this.claimSecondOpinion(m, reviewer, deskId, leaseId, expiresAt, now))) {
+        draw = 'second-opinion';
       } else if (draw !== 'random') {
         if (draw === 'uncertainty') {
           row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt);
@@ -124,6 +126,32 @@ export class LeasesService {
   }
 
   /**
+   * The oldest item due for a second opinion that this reviewer has never
+   * been served nor decided, leased like an open item is: on PostgreSQL the
+   * inner select skips rows other transactions hold (`FOR UPDATE SKIP
+   * LOCKED`), on SQLite the write transaction is serialised. A lease that
+   * expired without a verdict makes the item available again (to anyone but
+   * the reviewers who held it). The item stays `decided`: it never re-enters
+   * the open pool of first draws. Nothing about the earlier verdict is read.
+   */
+  private async claimSecondOpinion(m: EntityManager, reviewer: Principal, deskId: number, leaseId: string, expiresAt: Date, now: Date): Promise<PickedRow | null> {
+    const lock = this.db.pg ? ' FOR UPDATE OF so SKIP LOCKED' : '';
+    const [due] = await this.db.query<{ item_id: number }>(m,
+      `UPDATE second_opinions SET state = 'leased', lease_id = $1, leased_until = $2
+       WHERE item_id = (
+         SELECT so.item_id FROM second_opinions so
+         WHERE so.desk_id = $3 AND (so.state = 'due' OR (so.state = 'leased' AND so.leased_until < $4))
+           AND NOT EXISTS (SELECT 1 FROM leases l WHERE l.item_id = so.item_id AND l.reviewer_id = $5)
+           AND NOT EXISTS (SELECT 1 FROM verdicts v WHERE v.item_id = so.item_id AND v.reviewer_id = $5)
+         ORDER BY so.created_at, so.item_id LIMIT 1${lock})
+       RETURNING item_id`,
+      [leaseId, this.db.time(expiresAt), deskId, this.db.time(now), reviewer.id]);
+    if (!due) return null;
+    const [row] = await this.db.query<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE id = $1`, [due.item_id]);
+    return row ?? null;
+  }
+
+  /**
    * The most uncertain open item, skipping near-duplicates (cosine ≥ 0.95
    * of tf-idf vectors under the current model) of the item this reviewer was
    * served last: among the top few candidates, the first that is not one.
@@ -164,6 +192,7 @@ export class LeasesService {
       const now = new Date();
       await m.update(LeaseEntity, { id: leaseId }, { closedAt: now, closedReason: 'returned' });
       await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1 AND lease_id = $2`, [lease.itemId, leaseId]);
+      await this.db.query(m, `UPDATE second_opinions SET state = 'due', lease_id = NULL, leased_until = NULL WHERE lease_id = $1 AND state = 'leased'`, [leaseId]);
       await this.audit.record(m, reviewer, { action: 'lease.return', entityType: 'lease', entityId: leaseId, deskId: lease.deskId, after: { itemId: lease.itemId } });
     });
   }
@@ -171,8 +200,8 @@ export class LeasesService {
   /** The reviewer's open, unexpired leases on a desk (to resume after a reload). */
   async mine(reviewer: Principal, deskId: number): Promise<Array<{ id: string; itemId: number; expiresAt: Date }>> {
     const rows: Array<{ id: string; item_id: number; expires_at: unknown }> = await this.db.query(null, 
-      `SELECT l.id, l.item_id, l.expires_at FROM leases l JOIN items i ON i.id = l.item_id AND i.lease_id = l.id
-       WHERE l.desk_id = $1 AND l.reviewer_id = $2 AND l.closed_at IS NULL AND l.expires_at > $3 ORDER BY l.created_at`,
+      `SELECT l.id, l.item_id, l.expires_at FROM leases l JOIN items i ON i.id = l.item_id LEFT JOIN second_opinions so ON so.item_id = l.item_id AND so.lease_id = l.id
+       WHERE (i.lease_id = l.id OR so.lease_id = l.id) AND l.desk_id = $1 AND l.reviewer_id = $2 AND l.closed_at IS NULL AND l.expires_at > $3 ORDER BY l.created_at`,
       [deskId, reviewer.id, this.db.time(new Date())],
     );
     return rows.map((r) => ({ id: r.id, itemId: r.item_id, expiresAt: this.db.parseTime(r.expires_at)! }));

@@ -15,7 +15,7 @@ export const DEFAULT_CHUNK_SIZE = 5000;
 interface LabelledRow {
   item_id: number;
   draw: string;
-  category: string;
+  category: string | null;
   text: string;
 }
 
@@ -57,19 +57,32 @@ export class TrainingService {
     const [wm] = await this.db.query<{ w: number | null }>(null, 'SELECT MAX(id) AS w FROM verdicts WHERE desk_id = $1', [deskId]);
     const watermark = Number(wm?.w ?? 0);
     const labelled = await this.db.query<LabelledRow>(null,
-      `SELECT v.item_id, v.draw, c.name AS category, i.text FROM verdicts v JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
-       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.category_id IS NOT NULL AND v.id <= $2 ORDER BY v.id`, [deskId, watermark]);
-    // One label per item, its latest verdict; an item ever drawn uniformly at random calibrates and never trains.
-    const byItem = new Map<number, { label: string; random: boolean; text: string; draws: Set<string> }>();
+      `SELECT v.item_id, v.draw, c.name AS category, i.text FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
+       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.id <= $2 ORDER BY v.id`, [deskId, watermark]);
+    const settled = await this.db.query<{ item_id: number; category: string }>(null,
+      `SELECT s.item_id, c.name AS category FROM settlements s JOIN categories c ON c.id = s.category_id
+       WHERE s.desk_id = $1 AND s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = s.item_id)`, [deskId]);
+    // One label per item: the supervisor's latest settlement when the item was settled, else the latest verdict of its
+    // original draw, never a second opinion. A second opinion is served because the item was decided already, so taking
+    // its label instead would replace the labels of the items reviewers disagree on (the hard cases) by later ones: the
+    // labels of random draws would no longer be those of a uniform draw, and the calibration would be biased.
+    // An item ever drawn uniformly at random calibrates and never trains; settling does not change its draw.
+    const byItem = new Map<number, { label: string | null; random: boolean; settled: boolean; text: string; draws: Set<string> }>();
     for (const r of labelled) {
-      const e = byItem.get(Number(r.item_id)) ?? { label: r.category, random: false, text: r.text, draws: new Set<string>() };
-      e.label = r.category;
+      const e = byItem.get(Number(r.item_id)) ?? { label: null, random: false, settled: false, text: r.text, draws: new Set<string>() };
+      byItem.set(Number(r.item_id), e);
+      if (r.draw === 'second-opinion') continue;
+      if (r.category !== null) e.label = r.category;
       e.draws.add(r.draw);
       if (r.draw === 'random') e.random = true;
-      byItem.set(Number(r.item_id), e);
     }
-    const train = [...byItem.entries()].filter(([, e]) => !e.random).sort((a, b) => a[0] - b[0]);
-    const calib = [...byItem.entries()].filter(([, e]) => e.random).sort((a, b) => a[0] - b[0]);
+    for (const r of settled) {
+      const e = byItem.get(Number(r.item_id));
+      if (e) Object.assign(e, { label: r.category, settled: true });
+    }
+    const labelledItems = [...byItem.entries()].filter((x): x is [number, typeof x[1] & { label: string }] => x[1].label !== null);
+    const train = labelledItems.filter(([, e]) => !e.random).sort((a, b) => a[0] - b[0]);
+    const calib = labelledItems.filter(([, e]) => e.random).sort((a, b) => a[0] - b[0]);
     const hasModel = desk.currentModelVersion !== null;
     const perCategory = (rows: typeof train) => Object.fromEntries(categories.map((c) => [c, rows.filter(([, e]) => e.label === c).length]));
     if (!hasModel && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY)) return { version: null, reason: 'not enough training verdicts for a first model' };
@@ -79,7 +92,7 @@ export class TrainingService {
     const summary = (rows: typeof train): VerdictSetSummary => {
       const draws: Record<string, number> = {};
       for (const [, e] of rows) for (const d of e.draws) draws[d] = (draws[d] ?? 0) + 1;
-      return { counts: perCategory(rows), draws, itemIds: rows.map(([id]) => id) };
+      return { counts: perCategory(rows), draws, itemIds: rows.map(([id]) => id), settledItemIds: rows.filter(([, e]) => e.settled).map(([id]) => id) };
     };
     if (!row) {
       await this.db.write(async (m) => {

@@ -31,6 +31,11 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
       const p = payload as JobPayloads['publish-version'];
       return { ...vanish, jobId: `publish-${p.deskId}-v${p.version}`, attempts: 5, backoff: { type: 'exponential', delay: 500 } };
     }
+    case JOBS.writeReport: {
+      // One id per desk and version: a second request while one is queued or running is the same job; once done the id is free, so a report can be written again.
+      const p = payload as JobPayloads['write-report'];
+      return { ...vanish, jobId: `report-${p.deskId}-v${p.version}`, attempts: 3, backoff: { type: 'exponential', delay: 2000 } };
+    }
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
     case JOBS.simulateReviewer:

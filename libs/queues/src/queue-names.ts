@@ -11,6 +11,8 @@ export const QUEUES = {
   scoring: 'scoring',
   /** The demo's simulated reviewer: its own queue, so a long run never holds up imports or retrains. */
   simulation: 'simulation',
+  /** Oversight reports of published model versions. */
+  reports: 'reports',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -29,6 +31,8 @@ export const JOBS = {
   sweepDesks: 'sweep-desks',
   /** Run the simulated reviewer on a demo desk until a given time or until stopped. */
   simulateReviewer: 'simulate-reviewer',
+  /** Write the oversight report (HTML and JSON) of a published model version. */
+  writeReport: 'write-report',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -67,6 +71,11 @@ export interface SimulateReviewerPayload {
   until: number;
 }
 
+export interface WriteReportPayload {
+  deskId: number;
+  version: number;
+}
+
 /** Which queue carries which job. */
 export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.importFile]: QUEUES.imports,
@@ -76,6 +85,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.publishVersion]: QUEUES.learning,
   [JOBS.scoreChunk]: QUEUES.scoring,
   [JOBS.simulateReviewer]: QUEUES.simulation,
+  [JOBS.writeReport]: QUEUES.reports,
 };
 
 export interface JobPayloads {
@@ -86,4 +96,5 @@ export interface JobPayloads {
   [JOBS.publishVersion]: PublishVersionPayload;
   [JOBS.sweepDesks]: SweepDesksPayload;
   [JOBS.simulateReviewer]: SimulateReviewerPayload;
+  [JOBS.writeReport]: WriteReportPayload;
 }

@@ -1,8 +1,15 @@
 import { Module } from '@nestjs/common';
 import { ModelsCoreModule } from '#models';
+import { AgreementController } from './agreement/agreement.controller.js';
+import { AgreementService } from './agreement/agreement.service.js';
+import { DisagreementsService } from './settling/disagreements.service.js';
+import { SettlementsService } from './settling/settlements.service.js';
+import { SettlingController } from './settling/settling.controller.js';
+import { TrailController } from './trail/trail.controller.js';
+import { TrailService } from './trail/trail.service.js';
 import { ProgressService } from './progress.service.js';
 import { VerdictsController } from './verdicts.controller.js';
-import { VerdictsService } from './verdicts.service.js';
+import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
 
-@Module({ imports: [ModelsCoreModule], controllers: [VerdictsController], providers: [VerdictsService, ProgressService], exports: [VerdictsService, ProgressService] })
+@Module({ imports: [ModelsCoreModule], controllers: [VerdictsController, AgreementController, SettlingController, TrailController], providers: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService, TrailService, { provide: SECOND_OPINION_RANDOM, useValue: Math.random }], exports: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService] })
 export class VerdictsModule {}

@@ -37,7 +37,13 @@ interface LeaseAndItem {
   leased_until: unknown;
   existing_id: number | null;
   existing_item: number | null;
+  so_state: string | null;
+  so_lease_id: string | null;
+  so_leased_until: unknown;
 }
+
+/** Source of uniform numbers in [0, 1) that decides which decided items get a second opinion; injectable for tests. */
+export const SECOND_OPINION_RANDOM = Symbol('SECOND_OPINION_RANDOM');
 
 /** Receives verdicts: idempotent by client id, never lost, with what was shown at the time. */
 @Injectable()
@@ -48,6 +54,7 @@ export class VerdictsService {
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
+    @Inject(SECOND_OPINION_RANDOM) private readonly random: () => number,
   ) {}
 
   /**
@@ -67,6 +74,8 @@ export class VerdictsService {
       if (!cat) throw new BadRequestException(`unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`);
       categoryId = cat.id;
     }
+    // Drawn for every verdict, used only for one on a first draw: the item is then due for a second opinion.
+    const wantSecondOpinion = this.random() < entry.desk.secondOpinionShare;
     try {
       const result = await this.db.write(async (m) => {
         // One statement: the lease, its item (locked until commit on PostgreSQL), and any verdict already stored under this client id.
@@ -74,8 +83,9 @@ export class VerdictsService {
         const [row] = await this.db.query<LeaseAndItem>(m,
           `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until,
                   (SELECT v.id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_id,
-                  (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item
-           FROM leases l JOIN items i ON i.id = l.item_id WHERE l.id = $1${lock}`,
+                  (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item,
+                  so.state AS so_state, so.lease_id AS so_lease_id, so.leased_until AS so_leased_until
+           FROM leases l JOIN items i ON i.id = l.item_id LEFT JOIN second_opinions so ON so.item_id = l.item_id WHERE l.id = $1${lock}`,
           [dto.leaseId, reviewer.id, dto.clientId],
         );
         if (row && row.existing_id !== null) {
@@ -91,13 +101,17 @@ export class VerdictsService {
         if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId) throw new BadRequestException(`lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`);
         const now = new Date();
         const heldByOther = row.state === 'leased' && row.item_lease_id !== dto.leaseId && this.db.parseTime(row.leased_until)!.getTime() > now.getTime();
-        const decided = row.state === 'decided' && row.draw !== 'second-opinion';
-        if (heldByOther || decided) {
+        const secondOpinion = row.draw === 'second-opinion';
+        const decided = row.state === 'decided' && !secondOpinion;
+        // A second opinion is taken once: refuse a late one when another reviewer took over the item and gave it.
+        const opinionTaken = secondOpinion && (row.so_state !== 'leased' || row.so_lease_id !== dto.leaseId)
+          && (row.so_state !== 'due' && !(row.so_state === 'leased' && this.db.parseTime(row.so_leased_until)!.getTime() <= now.getTime()));
+        if (heldByOther || decided || opinionTaken) {
           // On PostgreSQL the statement above may have waited for the item's lock while a request with the same
           // client id committed; its snapshot predates that verdict, so look again before refusing.
           const [mine] = await this.db.query<{ id: number; item_id: number }>(m, 'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
           if (mine && Number(mine.item_id) === dto.itemId) return { replayOf: Number(mine.id) };
-          throw new ConflictException(heldByOther
+          throw new ConflictException(heldByOther || (opinionTaken && row.so_state === 'leased')
             ? 'your lease on this item expired and another reviewer holds it now; your verdict was not recorded'
             : 'your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded');
         }
@@ -115,7 +129,15 @@ export class VerdictsService {
             view.elapsedMs, view.note, simulated, this.db.time(now)],
         );
         const verdictId = Number(ins!.id);
-        await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`, [dto.itemId]);
+        if (secondOpinion) {
+          await this.db.query(m, `UPDATE second_opinions SET state = 'done', lease_id = NULL, leased_until = NULL, verdict_id = $1, done_at = $2 WHERE item_id = $3`, [verdictId, this.db.time(now), dto.itemId]);
+          await this.db.query(m, `UPDATE items SET state = 'decided' WHERE id = $1 AND state = 'open'`, [dto.itemId]);
+        } else {
+          await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`, [dto.itemId]);
+          if (wantSecondOpinion) {
+            await this.db.query(m, `INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES ($1, $2, 'due', $3) ON CONFLICT (item_id) DO NOTHING`, [dto.itemId, deskId, this.db.time(now)]);
+          }
+        }
         if (row.closed_at === null) await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [this.db.time(now), dto.leaseId]);
         await this.audit.record(m, reviewer, {
           action: 'verdict.create', entityType: 'verdict', entityId: verdictId, deskId,
@@ -151,7 +173,14 @@ export class VerdictsService {
       const now = new Date();
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
       const [{ n }] = (await this.db.query(m, `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = $1 AND undone_at IS NULL`, [v.itemId])) as Array<{ n: number | string }>;
-      if (Number(n) === 0) await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
+      if (Number(n) === 0) {
+        await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
+        // Back in the open pool: a second opinion nobody has started yet is no longer due.
+        await this.db.query(m, `DELETE FROM second_opinions WHERE item_id = $1 AND state = 'due'`, [v.itemId]);
+      } else if (v.draw === 'second-opinion') {
+        // The opinion taken back is due again, for a reviewer who has not seen the item.
+        await this.db.query(m, `UPDATE second_opinions SET state = 'due', verdict_id = NULL, done_at = NULL WHERE item_id = $1 AND verdict_id = $2`, [v.itemId, v.id]);
+      }
       await this.audit.record(m, reviewer, { action: 'verdict.undo', entityType: 'verdict', entityId: v.id, deskId: v.deskId, before: { undoneAt: null }, after: { undoneAt: now.toISOString() } });
     });
     const undone = await this.view(verdictId);

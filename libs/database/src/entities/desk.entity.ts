@@ -17,6 +17,8 @@ export class DeskEntity {
   coverageTarget!: number;
   calibration!: CalibrationMode;
   randomShare!: number;
+  /** Share of decided items served again, to a different reviewer, for a second opinion. */
+  secondOpinionShare!: number;
   leaseSeconds!: number;
   /** The model version reviewers are served from; null until the first model is published. */
   currentModelVersion!: number | null;
@@ -44,6 +46,7 @@ export const deskSchema = (d: Dialect) => {
       coverageTarget: c.double('coverage_target'),
       calibration: c.varchar('calibration', 20),
       randomShare: c.double('random_share'),
+      secondOpinionShare: c.double('second_opinion_share'),
       leaseSeconds: c.int('lease_seconds'),
       currentModelVersion: c.int('current_model_version', true),
       retrainEvery: c.int('retrain_every'),

@@ -9,10 +9,12 @@ export type ModelState = (typeof MODEL_STATES)[number];
 export interface VerdictSetSummary {
   /** Verdicts per category. */
   counts: Record<string, number>;
-  /** Verdicts per draw kind: training never holds `random`, calibration only `random`. */
+  /** Items per draw kind of their original draws (second opinions not counted): training never holds `random`, calibration only `random`. */
   draws: Record<string, number>;
   /** The items, ascending. */
   itemIds: number[];
+  /** The items whose label is a supervisor's settlement, ascending (absent in versions trained before settlements existed). */
+  settledItemIds?: number[];
 }
 
 /**

@@ -1,0 +1,17 @@
+import { Controller, Get, Inject, Param, ParseIntPipe } from '@nestjs/common';
+import { ApiTags } from '@nestjs/swagger';
+import { Roles } from '#auth';
+import { AgreementService } from './agreement.service.js';
+
+@ApiTags('agreement')
+@Controller('api')
+export class AgreementController {
+  constructor(@Inject(AgreementService) private readonly agreement: AgreementService) {}
+
+  /** Agreement between reviewers on items two or more of them decided: Cohen's kappa per pair, Fleiss' kappa, Krippendorff's alpha. */
+  @Roles('supervisor', 'auditor')
+  @Get('desks/:deskId/agreement')
+  forDesk(@Param('deskId', ParseIntPipe) deskId: number) {
+    return this.agreement.forDesk(deskId);
+  }
+}

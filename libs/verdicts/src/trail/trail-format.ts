@@ -1,0 +1,51 @@
+/** One line of the decision trail: a verdict (undone ones included) with its item's settled label. */
+export interface TrailRow {
+  verdictId: number;
+  itemId: number;
+  externalId: string | null;
+  reviewer: string;
+  createdAt: string;
+  /** The category, or null for an abstention. */
+  category: string | null;
+  abstain: boolean;
+  undone: boolean;
+  undoneAt: string | null;
+  draw: string;
+  modelVersion: number | null;
+  shownSet: string[] | null;
+  shownCall: string | null;
+  elapsedMs: number | null;
+  note: string | null;
+  simulated: boolean;
+  settledCategory: string | null;
+  settledBy: string | null;
+  settledAt: string | null;
+}
+
+export const TRAIL_COLUMNS = [
+  'verdict_id', 'item_id', 'external_id', 'reviewer', 'created_at', 'category', 'abstain', 'undone', 'undone_at', 'draw', 'model_version',
+  'shown_set', 'shown_call', 'elapsed_ms', 'note', 'simulated', 'settled_category', 'settled_by', 'settled_at',
+] as const;
+
+/**
+ * One CSV field per RFC 4180 (section 2): a field holding a comma, a double
+ * quote, CR or LF is enclosed in double quotes, with each double quote
+ * doubled; empty for null.
+ */
+export function csvField(value: string | number | boolean | null): string {
+  if (value === null) return '';
+  const s = String(value);
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+/** A CSV record per RFC 4180: fields separated by commas, the line ended by CRLF. */
+export function csvLine(values: ReadonlyArray<string | number | boolean | null>): string {
+  return `${values.map(csvField).join(',')}\r\n`;
+}
+
+export function trailCsvLine(r: TrailRow): string {
+  return csvLine([
+    r.verdictId, r.itemId, r.externalId, r.reviewer, r.createdAt, r.category, r.abstain, r.undone, r.undoneAt, r.draw, r.modelVersion,
+    r.shownSet ? JSON.stringify(r.shownSet) : null, r.shownCall, r.elapsedMs, r.note, r.simulated, r.settledCategory, r.settledBy, r.settledAt,
+  ]);
+}

@@ -1,0 +1,68 @@
+import { Readable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
+import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
+import { ApiProduces, ApiTags } from '@nestjs/swagger';
+import type { Response } from 'express';
+import { Roles } from '#auth';
+import { TRAIL_COLUMNS, csvLine, trailCsvLine, type TrailRow } from './trail-format.js';
+import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
+
+@ApiTags('agreement')
+@Controller('api')
+export class TrailController {
+  private readonly logger = new Logger('Trail');
+
+  constructor(@Inject(TrailService) private readonly trail: TrailService) {}
+
+  /** Every verdict of the desk (undone ones marked) as CSV (RFC 4180), streamed. Filters: reviewer, category (or abstain), from, to (ISO 8601; to exclusive). */
+  @Roles('supervisor', 'auditor')
+  @Get('desks/:deskId/trail.csv')
+  @ApiProduces('text/csv')
+  async csv(@Param('deskId', ParseIntPipe) deskId: number, @Query('reviewer') reviewer: string | undefined, @Query('category') category: string | undefined, @Query('from') from: string | undefined, @Query('to') to: string | undefined, @Res() res: Response): Promise<void> {
+    const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
+    await this.stream(res, filter, 'text/csv; charset=utf-8; header=present', `desk-${deskId}-trail.csv`, csvLine(TRAIL_COLUMNS), trailCsvLine);
+  }
+
+  /** The same trail as newline-delimited JSON, one verdict per line, streamed. */
+  @Roles('supervisor', 'auditor')
+  @Get('desks/:deskId/trail.ndjson')
+  @ApiProduces('application/x-ndjson')
+  async ndjson(@Param('deskId', ParseIntPipe) deskId: number, @Query('reviewer') reviewer: string | undefined, @Query('category') category: string | undefined, @Query('from') from: string | undefined, @Query('to') to: string | undefined, @Res() res: Response): Promise<void> {
+    const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
+    await this.stream(res, filter, 'application/x-ndjson; charset=utf-8', `desk-${deskId}-trail.ndjson`, '', (r) => `${JSON.stringify(r)}\n`);
+  }
+
+  /**
+   * Streams pages of rows into the response. `Readable.from` pulls the next
+   * page only when the socket has taken the previous one (back-pressure), and
+   * `pipeline` stops reading when the client goes away.
+   */
+  private async stream(res: Response, filter: TrailFilter, type: string, filename: string, head: string, line: (r: TrailRow) => string): Promise<void> {
+    res.status(200);
+    res.setHeader('Content-Type', type);
+    res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
+    res.setHeader('Cache-Control', 'no-store');
+    const rows = this.trail.rows(filter);
+    async function* text(): AsyncGenerator<string> {
+      if (head) yield head;
+      for await (const page of rows) yield page.map(line).join('');
+    }
+    try {
+      await pipeline(Readable.from(text(), { objectMode: false, highWaterMark: 1 }), res);
+    } catch (e) {
+      // Headers are gone: all that can be done is to cut the response short, which the client sees as a truncated body.
+      this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${(e as Error).message}`);
+      res.destroy();
+    }
+  }
+}
+
+/** Repeated query keys arrive as arrays: refuse them rather than guess. */
+function pick(q: Record<string, unknown>): TrailQuery {
+  const s = (key: string) => {
+    const v = q[key];
+    if (v !== undefined && typeof v !== 'string') throw new BadRequestException(`${key}: give it at most once`);
+    return v;
+  };
+  return { reviewer: s('reviewer'), category: s('category'), from: s('from'), to: s('to') };
+}
