@@ -16,7 +16,7 @@ export interface WebDesk {
  * synthetic pool imported, and, when asked, reviewers' verdicts given through
  * the API from the hidden labels until a model version is current.
  */
-export async function webDesk(s: Stack, options: { pool?: number; verdicts?: number } = {}): Promise<WebDesk> {
+export async function webDesk(s: Stack, options: { pool?: number; verdicts?: number; extraTexts?: string[] } = {}): Promise<WebDesk> {
   const sup = await s.user('sasha', 'supervisor', PASSWORD);
   const rev = await s.user('robin', 'reviewer', PASSWORD);
   await s.user('ada', 'auditor', PASSWORD);
@@ -27,8 +27,13 @@ export async function webDesk(s: Stack, options: { pool?: number; verdicts?: num
   expect(d.status).toBe(201);
   const deskId = d.body.id as number;
   const pool = syntheticPool(options.pool ?? 400);
-  const labels = new Map(pool.map((p) => [p.externalId, p.label]));
-  const body = pool.map((p) => JSON.stringify({ text: p.text, externalId: p.externalId, source: 'board/general' })).join('\n');
+  const labels = new Map<string, string>(pool.map((p) => [p.externalId, p.label]));
+  const rows = pool.map((p) => ({ text: p.text, externalId: p.externalId, source: 'board/general' }));
+  for (const [i, text] of (options.extraTexts ?? []).entries()) {
+    rows.push({ text, externalId: `extra-${i}`, source: 'board/general' });
+    labels.set(`extra-${i}`, 'ok');
+  }
+  const body = rows.map((r) => JSON.stringify(r)).join('\n');
   const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, { 'content-type': 'application/x-ndjson' });
   await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000, 'import done');
   for (let i = 0, empty = 0; i < (options.verdicts ?? 0); i++) {

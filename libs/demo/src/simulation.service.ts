@@ -109,7 +109,8 @@ export class SimulationService {
     const times = { startedAt: new Date(job.data.startedAt).toISOString(), until: new Date(job.data.until).toISOString() };
     if (RUNNING.includes(state)) return { state: 'running', ...times, verdicts: progress };
     if (state === 'completed') {
-      const out = job.returnvalue as SimulationOutcome;
+      // The state can turn to completed between reading the job and reading its state: read the job again for its outcome.
+      const out = (job.returnvalue as SimulationOutcome | null) ?? ((await this.job(deskId))?.returnvalue as SimulationOutcome | null) ?? { verdicts: progress, stopped: false };
       return { state: out.stopped ? 'stopped' : 'finished', ...times, verdicts: out.verdicts, ...(out.detail ? { detail: out.detail } : {}) };
     }
     return { state: 'stopped', ...times, verdicts: progress, detail: job.failedReason || 'the run failed' };
