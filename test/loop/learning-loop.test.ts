@@ -152,7 +152,8 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
   }, 120_000);
 
   it('does not serve a near-duplicate of the item a reviewer was just served', async () => {
-    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0 });
+    // Uncertainty draws only: no random share, and no second opinion served ahead of them.
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0, secondOpinionShare: 0 });
     // Two almost identical texts at the top of the queue (cosine of their tf-idf vectors well above 0.95).
     const base = 'I know where you live and I am waiting outside your door tonight near the bakery on the square';
     const now = s.db.time(new Date());
