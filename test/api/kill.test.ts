@@ -23,7 +23,7 @@ describe.each(DATABASE_KINDS)('SIGKILL of the API during verdicts on %s', (kind)
     s = await startStack(kind);
     const sup = await s.user('sup', 'supervisor');
     for (let i = 0; i < CLIENTS; i++) tokens.push(await s.user(`k${i}`, 'reviewer'));
-    // No second opinions: the check below counts one decided item per verdict.
+    // First draws only (no second opinions): every acknowledged verdict then decides its own item.
     deskId = (await s.call(sup, 'POST', '/api/desks', { name: 'kill', categories: ['threat', 'ok'], secondOpinionShare: 0 })).body.id;
     const lines = Array.from({ length: 3000 }, (_, i) => JSON.stringify({ text: `post ${i}` })).join('\n');
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, lines, { 'content-type': 'application/x-ndjson' });

@@ -70,11 +70,20 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/coverage`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/coverage-preview`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/items`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/predictions.csv`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/predictions.ndjson`, allowed: ['supervisor', 'auditor'] },
+    // The simulated reviewer (demo): this desk holds no generated posts, so a supervisor's start is a 409.
+    { method: 'GET', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
+    { method: 'POST', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'], body: () => ({ minutes: 1 }) },
+    { method: 'DELETE', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
     { method: 'GET', path: `/api/desks/${deskId}/agreement`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/disagreements`, allowed: ['supervisor', 'auditor'] },
     { method: 'POST', path: `/api/items/${itemId}/settle`, allowed: ['supervisor'], body: () => ({ category: 'ok', reason: 'matrix check' }) },
     { method: 'GET', path: `/api/desks/${deskId}/trail.csv`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/trail.ndjson`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.json`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/models/1/report.html`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 

@@ -85,6 +85,16 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
     await expect(q(`DELETE FROM audit_events`)).rejects.toThrow(/append-only/);
   });
 
+  it('keeps a report tied to an existing version, and a ready report complete', async () => {
+    await expect(q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now])).rejects.toThrow(/foreign key|FOREIGN KEY/i);
+    await q(`INSERT INTO model_versions (desk_id, version, state, job_key, verdict_watermark, training, calibration, timings, created_at, published_at) VALUES (1, 1, 'published', 'k-1', 0, '{}', '{}', '{}', ?, ?)`, [now, now]);
+    await q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now]);
+    await expect(q(`UPDATE model_reports SET state = 'ready'`)).rejects.toThrow(/ck_model_reports_ready|CHECK/i);
+    await expect(q(`UPDATE model_reports SET state = 'failed'`)).rejects.toThrow(/ck_model_reports_failure|CHECK/i);
+    await expect(q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now])).rejects.toThrow(/unique|UNIQUE/i);
+    await q(`UPDATE model_reports SET state = 'ready', figures = '{}', html = '<p>', figures_sha256 = ?, generated_at = ?`, ['0'.repeat(64), now]);
+  });
+
   it('reverts every migration with down()', async () => {
     for (let i = 0; i < MIGRATIONS.length; i++) await ds.undoLastMigration({ transaction: 'each' });
     const tables: Array<{ name: string }> = await q(

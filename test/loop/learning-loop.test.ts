@@ -121,6 +121,13 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     // A higher target never gives smaller sets on average (thresholds only grow with the target).
     for (let i = 1; i < 50; i++) expect(preview.points[i].meanSetSize).toBeGreaterThanOrEqual(preview.points[i - 1].meanSetSize - 1e-12);
     const sizeAt = (t: number) => preview.points.find((p: { target: number }) => p.target === t).meanSetSize;
+    // The set-size distribution agrees with the shares and the mean: size 0 is unfamiliar, 1 sure, 2 or more ambiguous.
+    for (const p of preview.points as Array<{ setSizes: number[]; sureShare: number; unfamiliarShare: number; meanSetSize: number }>) {
+      expect(p.setSizes.reduce((a, b) => a + b, 0)).toBe(preview.items);
+      expect(p.setSizes[0]! / preview.items).toBeCloseTo(p.unfamiliarShare, 12);
+      expect(p.setSizes[1]! / preview.items).toBeCloseTo(p.sureShare, 12);
+      expect(p.setSizes.reduce((a, c, size) => a + c * size, 0) / preview.items).toBeCloseTo(p.meanSetSize, 12);
+    }
 
     const page = async () => (await s.call(sup, 'GET', `/api/desks/${deskId}/items?limit=200`)).body.items.map((i: { prediction: { set: string[] } }) => i.prediction.set.length);
     const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
@@ -145,7 +152,8 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
   }, 120_000);
 
   it('does not serve a near-duplicate of the item a reviewer was just served', async () => {
-    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0 });
+    // Uncertainty draws only: no random share, and no second opinion served ahead of them.
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0, secondOpinionShare: 0 });
     // Two almost identical texts at the top of the queue (cosine of their tf-idf vectors well above 0.95).
     const base = 'I know where you live and I am waiting outside your door tonight near the bakery on the square';
     const now = s.db.time(new Date());

@@ -92,12 +92,14 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     const queues = Object.values(QUEUES).map((q) => new Queue(q, { connection, prefix: queuePrefix }));
     try {
       const deadline = Date.now() + timeoutMs;
-      for (;;) {
-        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')));
+      // Quiet twice in a row: a job finishing on one queue may have just added one to another that was already counted.
+      for (let quiet = 0; quiet < 2; ) {
+        // Delayed first: a job only moves forward (delayed → waiting → active), so it cannot slip between the two reads.
         // The periodic sweep always has its next run scheduled: it does not count as work.
         const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed'])))).flat().filter((j) => j && j.name !== 'sweep-desks' && !opts.ignoreDelayed);
-        if (delayed.length === 0 && counts.every((c) => Object.values(c).every((n) => n === 0))) return;
-        if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`);
+        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')));
+        quiet = delayed.length === 0 && counts.every((c) => Object.values(c).every((n) => n === 0)) ? quiet + 1 : 0;
+        if (quiet === 0 && Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`);
         await new Promise((r) => setTimeout(r, 50));
       }
     } finally {

@@ -3,11 +3,13 @@ import { ConfigModule, type AppConfig } from '#config';
 import { AuditModule } from '#audit';
 import { AuthModule } from '#auth';
 import { DatabaseModule } from '#database';
+import { DemoModule } from '#demo';
 import { DesksModule } from '#desks';
 import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
 import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
+import { ReportsModule } from '#reports';
 import { VerdictsModule } from '#verdicts';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
@@ -18,7 +20,7 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, DemoModule, ReportsModule],
       controllers: [HealthController, AuditController],
     };
   }

@@ -6,6 +6,7 @@ import express from 'express';
 import { nestLogLevels, type AppConfig } from '#config';
 import { AuthService, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
+import { webScreens } from './web-screens.js';
 
 
 /** Paths whose bodies are streamed by their handler, never parsed into memory. */
@@ -45,5 +46,6 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
     res.status(401).json({ statusCode: 401, message: 'sign in first (session cookie or Authorization: Bearer token)' });
   });
   SwaggerModule.setup('api/docs', app, doc, { jsonDocumentUrl: 'api/docs-json', raw: ['json'] });
+  app.use(webScreens());
   return app;
 }

@@ -2,7 +2,9 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { configToEnv, loadConfig, type AppConfig } from '#config';
 import { openDatabase } from '#database';
+import { formatDemoBlock, type DemoSeedResult } from '#demo';
 import { parseFlags } from './args.js';
+import { seedDemo } from './demo-seed.js';
 import { RedisMissingError, startPrivateRedis } from './redis-launcher.js';
 
 const apiMain = fileURLToPath(new URL('../../api/src/main.js', import.meta.url));
@@ -10,8 +12,9 @@ const workerMain = fileURLToPath(new URL('../../worker/src/main.js', import.meta
 
 /**
  * `start`: runs the whole service on one machine: a private Redis when
- * REDIS_URL is not set, the migrations, then the API and `--workers N`
- * worker processes. Stops them all on SIGINT/SIGTERM or when one dies.
+ * REDIS_URL is not set, the migrations, the demo on an empty service (unless
+ * DEMO=off), then the API and `--workers N` worker processes. Stops them all
+ * on SIGINT/SIGTERM or when one dies.
  */
 export async function startCommand(argv: string[]): Promise<number> {
   let flags;
@@ -41,6 +44,13 @@ export async function startCommand(argv: string[]): Promise<number> {
   }
   const ds = await openDatabase(config.database);
   await ds.destroy();
+  let seeded: DemoSeedResult | null = null;
+  try {
+    seeded = await seedDemo(config);
+  } catch (e) {
+    // The service is still usable without its demo.
+    process.stderr.write(`the demo could not be set up: ${(e as Error).message}\n`);
+  }
 
   const env = { ...process.env, ...configToEnv(config) };
   const children: ChildProcess[] = [];
@@ -67,7 +77,9 @@ export async function startCommand(argv: string[]): Promise<number> {
   for (let i = 0; i < workers; i++) run(`worker ${i + 1}`, workerMain);
   process.on('SIGINT', () => void stopAll(0));
   process.on('SIGTERM', () => void stopAll(0));
-  process.stdout.write(`Cribra is starting at http://${config.host}:${config.port}/ (API document: /api/docs; Ctrl+C stops)\n`);
+  const url = `http://${config.host}:${config.port}/`;
+  process.stdout.write(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)\n`);
+  if (seeded) process.stdout.write(`${formatDemoBlock(url, seeded)}\n`);
   return new Promise<number>(() => undefined);
 }
 

@@ -2,9 +2,11 @@ import { Module, type DynamicModule } from '@nestjs/common';
 import { ConfigModule, type AppConfig } from '#config';
 import { AuditModule } from '#audit';
 import { DatabaseModule } from '#database';
+import { DemoWorkModule } from '#demo';
 import { ImportsWorkModule } from '#imports';
 import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
+import { ReportsWorkModule } from '#reports';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
 
@@ -14,7 +16,7 @@ export class WorkerModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: WorkerModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) })],
+      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) }), DemoWorkModule, ReportsWorkModule],
       providers: [
         ...PROCESSORS,
         { provide: JOB_HANDLERS, inject: PROCESSORS, useFactory: (...handlers: unknown[]) => handlers },

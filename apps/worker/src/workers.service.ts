@@ -5,8 +5,12 @@ import { APP_CONFIG, type AppConfig } from '#config';
 import { createRedis, handlerTable, JOB_QUEUE, JOBS, JobQueueService, QUEUES, type JobHandler, type JobName } from '#queues';
 import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
 import { PublishVersionProcessor, RetrainDeskProcessor, ScoreChunkProcessor, SweepDesksProcessor } from './learning.processor.js';
+import { SimulateReviewerProcessor } from './simulation.processor.js';
+import { WriteReportProcessor } from './report.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
+/** Simulated reviewers mostly wait (their pauses), so one worker runs several desks' at once. */
+const SIMULATIONS_PER_WORKER = 4;
 
 /**
  * Runs one BullMQ worker per queue and dispatches each job to the one handler
@@ -33,7 +37,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
+        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : queue === QUEUES.simulation ? SIMULATIONS_PER_WORKER : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));
@@ -49,4 +53,4 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   }
 }
 
-export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor];
+export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor, SimulateReviewerProcessor, WriteReportProcessor];

@@ -10,6 +10,13 @@ describe('parseConfig', () => {
     expect(c.redisUrl).toBeNull();
     expect(c.maxTextLength).toBe(100_000);
     expect(c.undoWindowSeconds).toBe(300);
+    expect(c.demo).toBe(true);
+  });
+
+  it('reads DEMO as on/off and refuses other values', () => {
+    expect(parseConfig({ DEMO: 'off' }).demo).toBe(false);
+    expect(parseConfig({ DEMO: 'on' }).demo).toBe(true);
+    expect(() => parseConfig({ DEMO: 'later' })).toThrow(/DEMO="later": expected on\/off/);
   });
 
   it('selects PostgreSQL from a postgres:// URL', () => {

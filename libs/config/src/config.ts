@@ -27,6 +27,8 @@ export interface AppConfig {
   readonly jobLockSeconds: number;
   /** How often a worker looks for desks whose verdicts no model version has learned from. */
   readonly sweepSeconds: number;
+  /** On an empty database, `start` creates the Mossbank Commons demo desk, its accounts and its generated posts (DEMO=off: start clean). */
+  readonly demo: boolean;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -44,7 +46,7 @@ type Env = Record<string, string | undefined>;
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
   'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'CRIBRA_TEST_PAUSE',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'DEMO', 'CRIBRA_TEST_PAUSE',
 ] as const;
 
 /**
@@ -137,6 +139,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
     jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
+    demo: bool('DEMO', true),
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -172,6 +175,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
     JOB_LOCK_SECONDS: String(config.jobLockSeconds),
     SWEEP_SECONDS: String(config.sweepSeconds),
+    DEMO: config.demo ? 'on' : 'off',
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

@@ -11,18 +11,20 @@ import { leaseSchema } from './entities/lease.entity.js';
 import { userSchema } from './entities/user.entity.js';
 import { verdictSchema } from './entities/verdict.entity.js';
 import { modelVersionSchema } from './entities/model-version.entity.js';
+import { modelReportSchema } from './entities/model-report.entity.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-loop.js';
 import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js';
+import { ModelReports1764900000000 } from './migrations/1764900000000-model-reports.js';
 import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
-  return [userSchema, credentialSchema, deskSchema, categorySchema, importSchema, itemSchema, leaseSchema, verdictSchema, auditEventSchema, modelVersionSchema].map((f) => f(dialect));
+  return [userSchema, credentialSchema, deskSchema, categorySchema, importSchema, itemSchema, leaseSchema, verdictSchema, auditEventSchema, modelVersionSchema, modelReportSchema].map((f) => f(dialect));
 }
 
 /** Every migration, in order. */
-export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, Agreement1764800000000, TrailIndex1765000000000];
+export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, Agreement1764800000000, ModelReports1764900000000, TrailIndex1765000000000];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
 export function createDataSource(db: DatabaseConfig, options: { poolSize?: number } = {}): DataSource {

@@ -16,3 +16,4 @@ export { AuditEventEntity } from './entities/audit-event.entity.js';
 export { ModelVersionEntity, MODEL_STATES, type ModelState, type VerdictSetSummary } from './entities/model-version.entity.js';
 export { isUniqueViolation } from './errors.js';
 export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
+export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';

@@ -2,6 +2,7 @@ import { Module, type DynamicModule } from '@nestjs/common';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { ModelStore } from './model-store.service.js';
 import { ModelsController } from './models.controller.js';
+import { PredictionsExportController } from './predictions-export.controller.js';
 import { PredictionsService } from './predictions.service.js';
 import { PublishService } from './publish.service.js';
 import { RetrainScheduler } from './retrain-scheduler.service.js';
@@ -15,7 +16,7 @@ const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainSche
 export class ModelsCoreModule {}
 
 /** The HTTP side: model versions, coverage, preview, items with predictions. */
-@Module({ imports: [ModelsCoreModule], controllers: [ModelsController], exports: [ModelsCoreModule] })
+@Module({ imports: [ModelsCoreModule], controllers: [ModelsController, PredictionsExportController], exports: [ModelsCoreModule] })
 export class ModelsModule {}
 
 /** The worker side: training, scoring, publishing. `pause` is the crash tests' hook; it does nothing by default. */

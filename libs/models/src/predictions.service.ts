@@ -80,7 +80,7 @@ export class PredictionsService {
     const model = await this.current(desk);
     if (!model) return { modelVersion: null, points: [] };
     const targets = Array.from({ length: 50 }, (_, i) => Math.round((0.5 + i * 0.01) * 100) / 100);
-    const acc = targets.map(() => ({ sure: 0, ambiguous: 0, unfamiliar: 0, size: 0 }));
+    const acc = targets.map(() => ({ sure: 0, ambiguous: 0, unfamiliar: 0, size: 0, sizes: new Array<number>(model.categories.length + 1).fill(0) }));
     let n = 0;
     for await (const { probs } of this.probabilities(desk, model)) {
       n++;
@@ -88,6 +88,7 @@ export class PredictionsService {
         const s = predictionSet(probs, model.calibration, { alpha: 1 - target, score: desk.score, mode: desk.calibration });
         acc[i]![s.call]++;
         acc[i]!.size += s.categories.length;
+        acc[i]!.sizes[s.categories.length]!++;
       }
     }
     return {
@@ -100,6 +101,8 @@ export class PredictionsService {
         return {
           target, sureShare: n ? a.sure / n : 0, ambiguousShare: n ? a.ambiguous / n : 0, unfamiliarShare: n ? a.unfamiliar / n : 0, meanSetSize: n ? a.size / n : 0,
           calibrationCount: Math.min(...st.thresholds.map((x) => x.n)), needMore: st.needMore,
+          /** Open items by set size (index = number of categories in the set). */
+          setSizes: a.sizes,
         };
       }),
     };

@@ -1,6 +1,6 @@
 import { Inject, Injectable, Logger } from '@nestjs/common';
 import { Database } from '#database';
-import type { PublishVersionPayload } from '#queues';
+import { JOBS, JobQueueService, type PublishVersionPayload } from '#queues';
 
 /**
  * Makes a fully scored version current, in one transaction: every scored
@@ -11,7 +11,7 @@ import type { PublishVersionPayload } from '#queues';
 export class PublishService {
   private readonly logger = new Logger('Publish');
 
-  constructor(@Inject(Database) private readonly db: Database) {}
+  constructor(@Inject(Database) private readonly db: Database, @Inject(JobQueueService) private readonly jobs: JobQueueService) {}
 
   async run(p: PublishVersionPayload): Promise<{ published: boolean; reason?: string }> {
     const started = Date.now();
@@ -38,6 +38,8 @@ export class PublishService {
       await this.db.write((m) => this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version = $2 AND model_version NOT IN (SELECT current_model_version FROM desks WHERE id = $1 AND current_model_version IS NOT NULL)`, [p.deskId, p.version]));
     }
     if (result.published) this.logger.log(`desk ${p.deskId}: version ${p.version} is current`);
+    // The oversight report of the version now current; also on a retry after the switch, in case that enqueue was lost.
+    if (result.published || result.reason === 'version is published') await this.jobs.add(JOBS.writeReport, { deskId: p.deskId, version: p.version });
     return result;
   }
 }

@@ -31,8 +31,17 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
       const p = payload as JobPayloads['publish-version'];
       return { ...vanish, jobId: `publish-${p.deskId}-v${p.version}`, attempts: 5, backoff: { type: 'exponential', delay: 500 } };
     }
+    case JOBS.writeReport: {
+      // One id per desk and version: a second request while one is queued or running is the same job; once done the id is free, so a report can be written again.
+      const p = payload as JobPayloads['write-report'];
+      return { ...vanish, jobId: `report-${p.deskId}-v${p.version}`, attempts: 3, backoff: { type: 'exponential', delay: 2000 } };
+    }
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
+    case JOBS.simulateReviewer:
+      // One run per desk at a time; kept a day so its final count stays readable. A retry (after a worker
+      // crash or shutdown) goes on until the same end time.
+      return { ...keep, removeOnComplete: { age: 24 * 3600 }, jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`, attempts: 3, backoff: { type: 'fixed', delay: 1000 } };
     default:
       throw new TypeError(`no job options for job name ${JSON.stringify(name)}`);
   }

@@ -9,6 +9,10 @@ export const QUEUES = {
   learning: 'learning',
   /** Scoring chunks of a new model version: any worker process takes any chunk. */
   scoring: 'scoring',
+  /** The demo's simulated reviewer: its own queue, so a long run never holds up imports or retrains. */
+  simulation: 'simulation',
+  /** Oversight reports of published model versions. */
+  reports: 'reports',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -25,6 +29,10 @@ export const JOBS = {
   publishVersion: 'publish-version',
   /** Find desks whose newest verdicts no version has learned from (e.g. taken while Redis was down). */
   sweepDesks: 'sweep-desks',
+  /** Run the simulated reviewer on a demo desk until a given time or until stopped. */
+  simulateReviewer: 'simulate-reviewer',
+  /** Write the oversight report (HTML and JSON) of a published model version. */
+  writeReport: 'write-report',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -56,6 +64,17 @@ export interface PublishVersionPayload {
 }
 
 export type SweepDesksPayload = Record<string, never>;
+export interface SimulateReviewerPayload {
+  deskId: number;
+  /** Epoch milliseconds: when the run was asked for (also seeds its pauses and errors) and when it ends. */
+  startedAt: number;
+  until: number;
+}
+
+export interface WriteReportPayload {
+  deskId: number;
+  version: number;
+}
 
 /** Which queue carries which job. */
 export const JOB_QUEUE: Record<JobName, QueueName> = {
@@ -65,6 +84,8 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.retrainDesk]: QUEUES.learning,
   [JOBS.publishVersion]: QUEUES.learning,
   [JOBS.scoreChunk]: QUEUES.scoring,
+  [JOBS.simulateReviewer]: QUEUES.simulation,
+  [JOBS.writeReport]: QUEUES.reports,
 };
 
 export interface JobPayloads {
@@ -74,4 +95,6 @@ export interface JobPayloads {
   [JOBS.scoreChunk]: ScoreChunkPayload;
   [JOBS.publishVersion]: PublishVersionPayload;
   [JOBS.sweepDesks]: SweepDesksPayload;
+  [JOBS.simulateReviewer]: SimulateReviewerPayload;
+  [JOBS.writeReport]: WriteReportPayload;
 }

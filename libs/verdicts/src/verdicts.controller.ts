@@ -12,6 +12,14 @@ const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SA
   return Number(v);
 };
 
+/** A calendar day `YYYY-MM-DD` (UTC) as its first instant. */
+const dayOrUndefined = (name: string, v: string | undefined): Date | undefined => {
+  if (v === undefined || v === '') return undefined;
+  const d = /^\d{4}-\d{2}-\d{2}$/.test(v) ? new Date(`${v}T00:00:00Z`) : null;
+  if (!d || Number.isNaN(d.getTime()) || d.toISOString().slice(0, 10) !== v) throw new BadRequestException(`${name}: expected a date as YYYY-MM-DD, got ${JSON.stringify(v)}`);
+  return d;
+};
+
 @ApiTags('verdicts')
 @Controller('api')
 export class VerdictsController {
@@ -35,10 +43,21 @@ export class VerdictsController {
   /** Every reviewer's verdicts on a desk: for supervisors and auditors only. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/verdicts')
-  async list(@Param('deskId', ParseIntPipe) deskId: number, @Query('before') before?: string, @Query('limit') limit?: string, @Query('reviewer') reviewer?: string) {
+  async list(
+    @Param('deskId', ParseIntPipe) deskId: number, @Query('before') before?: string, @Query('limit') limit?: string, @Query('reviewer') reviewer?: string,
+    @Query('category') category?: string, @Query('from') from?: string, @Query('to') to?: string,
+  ) {
+    const since = dayOrUndefined('from', from);
+    const until = dayOrUndefined('to', to);
+    if (since && until && since > until) throw new BadRequestException('from: must not be after to');
     const reviewerId = reviewer ? await this.verdicts.userId(reviewer) : undefined;
     if (reviewer && reviewerId === null) return { verdicts: [] };
-    return { verdicts: await this.verdicts.listForDesk(deskId, { before: intOrUndefined('before', before), limit: intOrUndefined('limit', limit, 1000) ?? 100, reviewerId: reviewerId ?? undefined }) };
+    return {
+      verdicts: await this.verdicts.listForDesk(deskId, {
+        before: intOrUndefined('before', before), limit: intOrUndefined('limit', limit, 1000) ?? 100, reviewerId: reviewerId ?? undefined,
+        category: category || undefined, from: since, to: until ? new Date(until.getTime() + 86_400_000) : undefined,
+      }),
+    };
   }
 
   /** The signed-in reviewer's own verdicts on a desk, newest first. */

@@ -57,8 +57,12 @@ export class VerdictsService {
     @Inject(SECOND_OPINION_RANDOM) private readonly random: () => number,
   ) {}
 
-  /** Records a verdict; `replayed` is true when the client id was seen before and nothing was written. */
-  async submit(reviewer: Principal, deskId: number, dto: CreateVerdictDto): Promise<{ verdict: VerdictView; replayed: boolean }> {
+  /**
+   * Records a verdict; `replayed` is true when the client id was seen before and nothing was written.
+   * `simulated` marks a verdict given by the demo's simulated reviewer, in the verdict row and its audit event.
+   */
+  async submit(reviewer: Principal, deskId: number, dto: CreateVerdictDto, options: { simulated?: boolean } = {}): Promise<{ verdict: VerdictView; replayed: boolean }> {
+    const simulated = options.simulated === true;
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
       throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
     }
@@ -115,14 +119,14 @@ export class VerdictsService {
         const view: Omit<VerdictView, 'id'> = {
           deskId, itemId: dto.itemId, reviewer: reviewer.name, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId,
           modelVersion: prediction?.modelVersion ?? null, shownSet: prediction?.set ?? null, shownCall: prediction?.call ?? null,
-          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated: false, createdAt: now, undoneAt: null,
+          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated, createdAt: now, undoneAt: null,
         };
         const [ins] = await this.db.query<{ id: number }>(m,
           `INSERT INTO verdicts (desk_id, item_id, reviewer_id, lease_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, shown_probabilities, elapsed_ms, note, simulated, created_at, undone_at)
            VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, NULL) RETURNING id`,
           [deskId, dto.itemId, reviewer.id, dto.leaseId, dto.clientId, categoryId, view.abstain, row.draw, view.modelVersion,
             prediction ? JSON.stringify(prediction.set) : null, view.shownCall, prediction ? JSON.stringify(prediction.probabilities) : null,
-            view.elapsedMs, view.note, false, this.db.time(now)],
+            view.elapsedMs, view.note, simulated, this.db.time(now)],
         );
         const verdictId = Number(ins!.id);
         if (secondOpinion) {
@@ -137,7 +141,7 @@ export class VerdictsService {
         if (row.closed_at === null) await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [this.db.time(now), dto.leaseId]);
         await this.audit.record(m, reviewer, {
           action: 'verdict.create', entityType: 'verdict', entityId: verdictId, deskId,
-          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId },
+          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId, ...(simulated ? { simulated: true } : {}) },
         });
         return { created: { id: verdictId, ...view } };
       });
@@ -191,11 +195,15 @@ export class VerdictsService {
   }
 
   /** Verdicts of a desk, newest first, paged by id. */
-  async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number }): Promise<VerdictView[]> {
+  async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number; category?: string; from?: Date; to?: Date }): Promise<VerdictView[]> {
     const params: unknown[] = [deskId];
     let where = `v.desk_id = $1`;
     if (opts.before) { params.push(opts.before); where += ` AND v.id < $${params.length}`; }
     if (opts.reviewerId) { params.push(opts.reviewerId); where += ` AND v.reviewer_id = $${params.length}`; }
+    if (opts.category === 'abstain') where += ' AND v.category_id IS NULL';
+    else if (opts.category) { params.push(opts.category); where += ` AND c.name = $${params.length}`; }
+    if (opts.from) { params.push(this.db.time(opts.from)); where += ` AND v.created_at >= $${params.length}`; }
+    if (opts.to) { params.push(this.db.time(opts.to)); where += ` AND v.created_at < $${params.length}`; }
     return this.listWhere(where, params, opts.limit);
   }
 

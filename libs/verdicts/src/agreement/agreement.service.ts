@@ -48,17 +48,23 @@ const finite = (x: number): number | null => (Number.isFinite(x) ? x : null);
 export class AgreementService {
   constructor(@Inject(Database) private readonly db: Database, @Inject(DeskDirectory) private readonly directory: DeskDirectory) {}
 
-  async forDesk(deskId: number): Promise<DeskAgreement> {
+  /**
+   * @param asOf count the verdicts as they stood at that moment (given by
+   *   then, not undone by then), e.g. a model version's publication, so a
+   *   report made later gives the same figures; default: as they stand now
+   */
+  async forDesk(deskId: number, asOf?: Date): Promise<DeskAgreement> {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const categories = entry.categories.map((c) => c.name);
+    const live = (v: string) => (asOf ? `${v}created_at <= $3 AND (${v}undone_at IS NULL OR ${v}undone_at > $3)` : `${v}undone_at IS NULL`);
     const rows = await this.db.query<{ item_id: number; reviewer: string; category: string | null }>(null,
       `SELECT v.item_id, u.name AS reviewer, c.name AS category
        FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id
-       WHERE v.desk_id = $1 AND v.undone_at IS NULL
-         AND v.item_id IN (SELECT item_id FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL AND abstain = $2 GROUP BY item_id HAVING COUNT(*) >= 2)
+       WHERE v.desk_id = $1 AND ${live('v.')}
+         AND v.item_id IN (SELECT item_id FROM verdicts WHERE desk_id = $1 AND ${live('')} AND abstain = $2 GROUP BY item_id HAVING COUNT(*) >= 2)
        ORDER BY v.item_id, u.name`,
-      [deskId, false],
+      asOf ? [deskId, false, this.db.time(asOf)] : [deskId, false],
     );
     const byItem = new Map<number, Map<string, string>>();
     let abstentions = 0;

@@ -1,0 +1,166 @@
+import type { ComponentType } from 'preact';
+import { useEffect, useRef, useState } from 'preact/hooks';
+import { ApiError, get, post, type Desk, type Me, type Role } from './api';
+import { Cautions } from './components/cautions';
+import { match, navigate, onLinkClick, useLocation } from './router';
+import { DeskHome } from './pages/desk-home';
+import { DeskNew } from './pages/desk-new';
+import { DeskOverview } from './pages/desk-overview';
+import { ImportPage } from './pages/import';
+import { CoveragePage } from './pages/coverage';
+import { SettingsPage } from './pages/settings';
+import { ModelsPage } from './pages/models';
+import { ModelVersionPage } from './pages/model-version';
+import { TrailPage } from './pages/trail';
+import { DisagreementsPage } from './pages/disagreements';
+import { QueuePage } from './pages/queue';
+import { SignIn } from './pages/sign-in';
+
+export interface PageProps {
+  me: Me;
+  params: Record<string, string>;
+  query: URLSearchParams;
+}
+
+interface Route {
+  pattern: string;
+  roles: Role[];
+  title: string;
+  page: ComponentType<PageProps>;
+}
+
+const SUPERVISOR: Role[] = ['supervisor'];
+const READERS: Role[] = ['supervisor', 'auditor'];
+
+/** Every screen and who may open it; the same split as the API's role matrix. */
+export const ROUTES: Route[] = [
+  { pattern: '/', roles: ['reviewer', 'supervisor', 'auditor', 'admin'], title: 'Desks', page: DeskHome },
+  { pattern: '/desks/new', roles: SUPERVISOR, title: 'New desk', page: DeskNew },
+  { pattern: '/desks/:deskId/queue', roles: ['reviewer'], title: 'Queue', page: QueuePage },
+  { pattern: '/desks/:deskId', roles: SUPERVISOR, title: 'Desk', page: DeskOverview },
+  { pattern: '/desks/:deskId/import', roles: SUPERVISOR, title: 'Import', page: ImportPage },
+  { pattern: '/desks/:deskId/coverage', roles: SUPERVISOR, title: 'Coverage', page: CoveragePage },
+  { pattern: '/desks/:deskId/settings', roles: SUPERVISOR, title: 'Settings', page: SettingsPage },
+  { pattern: '/desks/:deskId/models', roles: READERS, title: 'Model versions', page: ModelsPage },
+  { pattern: '/desks/:deskId/models/:version', roles: READERS, title: 'Model version', page: ModelVersionPage },
+  { pattern: '/desks/:deskId/trail', roles: READERS, title: 'Decision trail', page: TrailPage },
+  { pattern: '/desks/:deskId/disagreements', roles: READERS, title: 'Agreement', page: DisagreementsPage },
+];
+
+const ROLE_NAMES: Record<Role, string> = { reviewer: 'reviewer', supervisor: 'supervisor', auditor: 'auditor', admin: 'administrator' };
+
+/** The desk's sections a role can open, in the order of the tab bar. */
+export function deskTabs(role: Role, deskId: number | string): Array<{ href: string; label: string }> {
+  const base = `/desks/${deskId}`;
+  if (role === 'reviewer') return [{ href: `${base}/queue`, label: 'Queue' }];
+  const tabs = role === 'supervisor'
+    ? [{ href: base, label: 'Overview' }, { href: `${base}/import`, label: 'Import' }, { href: `${base}/coverage`, label: 'Coverage' }, { href: `${base}/settings`, label: 'Settings' }]
+    : [];
+  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Models' }, { href: `${base}/disagreements`, label: 'Agreement' }, { href: `${base}/trail`, label: 'Trail' });
+  return tabs;
+}
+
+export function App() {
+  const [me, setMe] = useState<Me | null | undefined>(undefined);
+  const where = useLocation();
+
+  useEffect(() => {
+    get<Me>('/auth/me').then(setMe, () => setMe(null));
+    const out = () => setMe(null);
+    window.addEventListener('cribra:signed-out', out);
+    return () => window.removeEventListener('cribra:signed-out', out);
+  }, []);
+
+  useEffect(() => {
+    if (me === null && where.path !== '/signin') navigate(`/signin?next=${encodeURIComponent(where.path + (where.query.toString() ? `?${where.query}` : ''))}`, true);
+  }, [me, where.path]);
+
+  if (me === undefined) return <p class="loading" role="status">Loading…</p>;
+  if (me === null || where.path === '/signin') {
+    return <SignIn onSignedIn={(m) => { setMe(m); navigate(safeNext(where.query.get('next')), true); }} signedIn={me} />;
+  }
+
+  let found: { route: Route; params: Record<string, string> } | null = null;
+  for (const route of ROUTES) {
+    const params = match(route.pattern, where.path);
+    if (params) { found = { route, params }; break; }
+  }
+  document.title = found ? `${found.route.title} · Cribra` : 'Not found · Cribra';
+  const deskId = found?.params.deskId;
+  return (
+    <div class="shell" onClick={onLinkClick}>
+      <header class="topbar">
+        <a class="brand" href="/">Cribra</a>
+        {deskId && <DeskTabs me={me} deskId={deskId} path={where.path} />}
+        <div class="who">
+          <span>{me.name} <span class="role">({ROLE_NAMES[me.role]})</span></span>
+          <button type="button" class="quiet" onClick={async () => { await post('/auth/logout').catch(() => undefined); setMe(null); }}>Sign out</button>
+        </div>
+      </header>
+      <main id="main">
+        {!found && <Refusal title="No such page" text={`There is no screen at ${where.path}.`} />}
+        {found && !found.route.roles.includes(me.role) && (
+          <Refusal
+            title="Not open to your role"
+            text={`This screen is for ${found.route.roles.map((r) => ROLE_NAMES[r]).join(' and ')} accounts. You are signed in as ${me.name}, a ${ROLE_NAMES[me.role]}; the server refuses its data to your role as well.`}
+          />
+        )}
+        {found && found.route.roles.includes(me.role) && <found.route.page me={me} params={found.params} query={where.query} />}
+      </main>
+      <footer class="footer"><Cautions compact /></footer>
+    </div>
+  );
+}
+
+function safeNext(next: string | null): string {
+  return next && next.startsWith('/') && !next.startsWith('//') && !next.startsWith('/signin') ? next : '/';
+}
+
+function DeskTabs({ me, deskId, path }: { me: Me; deskId: string; path: string }) {
+  const [desk, setDesk] = useState<Desk | null>(null);
+  useEffect(() => { get<Desk>(`/desks/${deskId}`).then(setDesk, () => setDesk(null)); }, [deskId]);
+  const tabs = deskTabs(me.role, deskId);
+  return (
+    <nav class="desk-tabs" aria-label="Desk sections">
+      <span class="desk-name">{desk?.name ?? `Desk ${deskId}`}</span>
+      {tabs.map((t) => (
+        <a href={t.href} aria-current={path === t.href || (t.label === 'Models' && path.startsWith(`${t.href}/`)) ? 'page' : undefined}>{t.label}</a>
+      ))}
+    </nav>
+  );
+}
+
+export function Refusal({ title, text }: { title: string; text: string }) {
+  return (
+    <section class="refusal" role="alert">
+      <h1>{title}</h1>
+      <p>{text}</p>
+      <p><a href="/">Back to your desks</a></p>
+    </section>
+  );
+}
+
+/** Loads data for a screen; returns [data, error, reload]. */
+export function useData<T>(path: string | null, deps: unknown[] = []): [T | null, string | null, () => void] {
+  const [data, setData] = useState<T | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [tick, setTick] = useState(0);
+  useEffect(() => {
+    if (!path) return;
+    let live = true;
+    get<T>(path).then((d) => { if (live) { setData(d); setError(null); } }, (e: unknown) => { if (live) setError(e instanceof ApiError ? e.message : String(e)); });
+    return () => { live = false; };
+  }, [path, tick, ...deps]);
+  return [data, error, () => setTick((t) => t + 1)];
+}
+
+/** Runs `fn` every `ms` while the screen is open. */
+export function useInterval(fn: () => void, ms: number | null): void {
+  const latest = useRef(fn);
+  latest.current = fn;
+  useEffect(() => {
+    if (ms === null) return;
+    const id = setInterval(() => latest.current(), ms);
+    return () => clearInterval(id);
+  }, [ms]);
+}

@@ -1,0 +1,248 @@
+import { useEffect, useRef, useState } from 'preact/hooks';
+import { ApiError, api, clientId, get, post, type Desk, type LeaseGrant, type Progress, type Verdict } from '../api';
+import { useInterval, type PageProps } from '../app';
+import { CallStatement, Probabilities } from '../components/call';
+import { HighlightedText } from '../components/highlighted-text';
+import { clock, when } from '../format';
+
+/** The server keeps undo open this long by default (UNDO_WINDOW_SECONDS); it has the last word. */
+const UNDO_WINDOW_MS = 300_000;
+const CONFIRM_KEY = 'cribra.confirm-with-enter';
+
+type Choice = { category: string } | { abstain: true };
+interface Pending {
+  choice: Choice;
+  clientId: string;
+  grant: LeaseGrant;
+  elapsedMs: number;
+  note: string;
+}
+interface Last {
+  verdict: Verdict;
+  label: string;
+  at: number;
+}
+
+const label = (c: Choice) => ('abstain' in c ? 'abstain' : c.category);
+
+/**
+ * The reviewer's queue: one item at a time, decided by one key. The next
+ * item is requested together with the verdict, so it appears as soon as
+ * both answers are back.
+ */
+export function QueuePage({ params }: PageProps) {
+  const deskId = params.deskId!;
+  const [desk, setDesk] = useState<Desk | null>(null);
+  const [grant, setGrant] = useState<LeaseGrant | null>(null);
+  const [empty, setEmpty] = useState<string | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [notice, setNotice] = useState<string | null>(null);
+  const [note, setNote] = useState('');
+  const [selected, setSelected] = useState<Choice | null>(null);
+  const [confirm, setConfirm] = useState(() => localStorage.getItem(CONFIRM_KEY) === 'on');
+  const [last, setLast] = useState<Last | null>(null);
+  const [busy, setBusy] = useState(false);
+  const [failed, setFailed] = useState<Pending | null>(null);
+  const [now, setNow] = useState(Date.now());
+  const shownAt = useRef(performance.now());
+  const noteRef = useRef<HTMLTextAreaElement>(null);
+
+  useInterval(() => setNow(Date.now()), 1000);
+  useInterval(() => { if (empty !== null && !busy) void next(); }, empty !== null ? 15_000 : null);
+
+  const show = (g: LeaseGrant | null, why?: Progress) => {
+    setGrant(g);
+    setSelected(null);
+    setNote('');
+    shownAt.current = performance.now();
+    setEmpty(g ? null : emptyReason(why ?? null));
+  };
+
+  async function next(): Promise<void> {
+    try {
+      const g = await post<LeaseGrant | null>(`/desks/${deskId}/leases`);
+      show(g, g ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined));
+      setError(null);
+    } catch (e) {
+      setError((e as Error).message);
+    }
+  }
+
+  useEffect(() => {
+    void (async () => {
+      try {
+        setDesk(await get<Desk>(`/desks/${deskId}`));
+        // Items this reviewer held before a reload go back to the queue at once rather than waiting for their leases to run out.
+        const { leases } = await get<{ leases: Array<{ id: string }> }>(`/desks/${deskId}/leases/mine`);
+        await Promise.all(leases.map((l) => api('DELETE', `/leases/${l.id}`).catch(() => undefined)));
+        await next();
+      } catch (e) {
+        setError((e as Error).message);
+      }
+    })();
+  }, [deskId]);
+
+  /** Sends a verdict (retried with the same client id, so a retry never counts twice) and fetches the next item at the same time. */
+  async function send(p: Pending): Promise<void> {
+    setBusy(true);
+    setFailed(null);
+    const body = { leaseId: p.grant.lease.id, itemId: p.grant.item.id, clientId: p.clientId, elapsedMs: p.elapsedMs, ...(p.note.trim() ? { note: p.note.trim() } : {}), ...p.choice };
+    const submit = async (): Promise<Verdict> => {
+      for (let attempt = 0; ; attempt++) {
+        try {
+          return (await post<{ verdict: Verdict }>(`/desks/${deskId}/verdicts`, body)).verdict;
+        } catch (e) {
+          if (!(e instanceof ApiError) || e.status !== 0 || attempt >= 3) throw e;
+          await new Promise((r) => setTimeout(r, 400 * 2 ** attempt));
+        }
+      }
+    };
+    const [verdict, nextGrant] = await Promise.allSettled([submit(), post<LeaseGrant | null>(`/desks/${deskId}/leases`)]);
+    if (verdict.status === 'fulfilled') {
+      setLast({ verdict: verdict.value, label: label(p.choice), at: Date.now() });
+      setNotice(null);
+    } else {
+      setFailed(p);
+      setError(`Your verdict “${label(p.choice)}” on item ${p.grant.item.id} was not recorded: ${(verdict.reason as Error).message}`);
+    }
+    if (nextGrant.status === 'fulfilled') {
+      show(nextGrant.value, nextGrant.value ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined));
+      if (verdict.status === 'fulfilled') setError(null);
+    } else if (verdict.status === 'fulfilled') {
+      setError((nextGrant.reason as Error).message);
+    }
+    setBusy(false);
+  }
+
+  function decide(choice: Choice): void {
+    if (!grant || busy) return;
+    if (confirm && (selected === null || label(selected) !== label(choice))) {
+      setSelected(choice);
+      return;
+    }
+    void send({ choice, clientId: clientId(), grant, elapsedMs: Math.round(performance.now() - shownAt.current), note });
+  }
+
+  async function undo(): Promise<void> {
+    if (!last || busy) return;
+    try {
+      await post(`/verdicts/${last.verdict.id}/undo`);
+      setNotice(`Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`);
+      setLast(null);
+      if (!grant) await next();
+    } catch (e) {
+      setError(`Undo failed: ${(e as Error).message}`);
+    }
+  }
+
+  const categories = desk?.categories.map((c) => c.name) ?? [];
+  const keyed = [...categories.slice(0, 9).map((c, i) => ({ key: String(i + 1), choice: { category: c } as Choice, text: c })), { key: '0', choice: { abstain: true } as Choice, text: 'abstain' }];
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      const target = e.target as HTMLElement;
+      if (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT') {
+        if (e.key === 'Escape') target.blur();
+        return;
+      }
+      if (e.ctrlKey || e.metaKey || e.altKey) return;
+      const k = keyed.find((x) => x.key === e.key);
+      if (k) { e.preventDefault(); decide(k.choice); return; }
+      if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') { e.preventDefault(); decide(selected); return; }
+      if (e.key === 'Escape' && selected) { setSelected(null); return; }
+      if (e.key === 'u') { e.preventDefault(); void undo(); return; }
+      if (e.key === 'n') { e.preventDefault(); noteRef.current?.focus(); }
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  });
+
+  const leaseLeft = grant ? new Date(grant.lease.expiresAt).getTime() - now : 0;
+  const onItem = grant ? performance.now() - shownAt.current : 0;
+  const undoLeft = last ? UNDO_WINDOW_MS - (now - last.at) : 0;
+
+  return (
+    <section class="queue" aria-busy={busy}>
+      <div class="queue-main">
+        {error && <p class="error" role="alert">{error} {failed && <button type="button" onClick={() => void send(failed)}>Send it again</button>}</p>}
+        {notice && <p class="notice" role="status">{notice}</p>}
+        {grant && leaseLeft <= 0 && (
+          <p class="warning" role="alert">
+            Your hold on this item ended at {new Date(grant.lease.expiresAt).toLocaleTimeString('en-GB')}. Another reviewer may have it now. A verdict is still
+            accepted if nobody else has taken the item. <button type="button" onClick={() => void next()}>Take the next item instead</button>
+          </p>
+        )}
+        {grant && (
+          <article class="item" data-item-id={grant.item.id} aria-label={`Item ${grant.item.id}`}>
+            <header class="item-meta">
+              <span>Item {grant.item.id}</span>
+              {grant.item.externalId && <span>ref {grant.item.externalId}</span>}
+              {grant.item.source && <span>{grant.item.source}</span>}
+              {grant.item.postedAt && <span>posted {when(grant.item.postedAt)}</span>}
+            </header>
+            <HighlightedText text={grant.item.text} highlights={grant.highlights} categories={categories} />
+            {grant.highlights.length > 0 && (
+              <p class="seed-legend muted">Marked: seed terms, numbered by the category they belong to ({categories.map((c, i) => `${i + 1} ${c}`).join(', ')}).</p>
+            )}
+          </article>
+        )}
+        {grant && (
+          <p class="keys muted" aria-label="Keys">
+            Keys: {keyed.map((k) => <span><kbd>{k.key}</kbd> {k.text} </span>)}· <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note{confirm ? <> · <kbd>Enter</kbd> confirm</> : null}
+          </p>
+        )}
+        {!grant && empty && (
+          <div class="empty-queue" role="status">
+            <h1>Nothing to decide right now</h1>
+            <p>{empty}</p>
+            <button type="button" onClick={() => void next()}>Look again</button>
+          </div>
+        )}
+        {!grant && !empty && !error && <p class="loading" role="status">Fetching the next item…</p>}
+      </div>
+      <aside class="queue-side" aria-label="Decision">
+        {grant && <CallStatement prediction={grant.prediction} target={desk?.coverageTarget ?? 0.9} />}
+        {grant?.prediction && <Probabilities prediction={grant.prediction} />}
+        {grant && (
+          <div class="decide">
+            <h2 class="sr-only">Your verdict</h2>
+            <div class="decide-buttons" role="group" aria-label="Verdict: press the number key">
+              {keyed.map((k) => (
+                <button
+                  type="button"
+                  class={`decide-button ${'abstain' in k.choice ? 'abstain' : ''} ${selected && label(selected) === k.text ? 'selected' : ''}`}
+                  aria-pressed={selected && label(selected) === k.text ? 'true' : undefined}
+                  aria-keyshortcuts={k.key}
+                  disabled={busy}
+                  onClick={() => decide(k.choice)}
+                >
+                  <kbd>{k.key}</kbd> {k.text}
+                </button>
+              ))}
+            </div>
+            {confirm && selected && <p class="confirm-hint" role="status">Press <kbd>Enter</kbd> to confirm “{label(selected)}”, or another key to change.</p>}
+            <label class="note">Note (optional, <kbd>n</kbd>; <kbd>Esc</kbd> leaves)
+              <textarea ref={noteRef} rows={2} maxLength={2000} value={note} onInput={(e) => setNote(e.currentTarget.value)} />
+            </label>
+            <label class="check"><input type="checkbox" checked={confirm} onChange={(e) => { setConfirm(e.currentTarget.checked); localStorage.setItem(CONFIRM_KEY, e.currentTarget.checked ? 'on' : 'off'); setSelected(null); }} /> Confirm each verdict with Enter</label>
+          </div>
+        )}
+        <dl class="timers">
+          {grant && <><dt>On this item</dt><dd>{clock(onItem)}</dd></>}
+          {grant && <><dt>Hold ends in</dt><dd class={leaseLeft < 60_000 ? 'soon' : ''}>{leaseLeft > 0 ? clock(leaseLeft) : 'ended'}</dd></>}
+        </dl>
+        {last && undoLeft > 0 && (
+          <p class="undo">Last: “{last.label}” on item {last.verdict.itemId}. <button type="button" class="quiet" onClick={() => void undo()}><kbd>u</kbd> Undo</button> <span class="muted">({clock(undoLeft)} left)</span></p>
+        )}
+      </aside>
+    </section>
+  );
+}
+
+function emptyReason(p: Progress | null): string {
+  if (!p) return 'The queue gave no item.';
+  if (p.items.total === 0) return 'This desk has no items yet: it is waiting for a supervisor to import texts.';
+  if (p.items.open === 0 && p.items.leased === 0) return `Every one of the ${p.items.total} items on this desk has a verdict. New items appear here once a supervisor imports more.`;
+  if (p.items.open === 0) return `The remaining ${p.items.leased} items are with other reviewers right now. This screen looks again every 15 seconds.`;
+  return 'No item could be handed to you just now. This screen looks again every 15 seconds.';
+}

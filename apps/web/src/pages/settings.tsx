@@ -1,0 +1,24 @@
+import { useState } from 'preact/hooks';
+import { patch, type Desk } from '../api';
+import { useData, type PageProps } from '../app';
+import { DeskForm } from '../components/desk-form';
+
+export function SettingsPage({ params }: PageProps) {
+  const [desk, error, reload] = useData<Desk>(`/desks/${params.deskId}`);
+  const [saved, setSaved] = useState<string | null>(null);
+  return (
+    <section class="page narrow">
+      <h1>Settings</h1>
+      {error && <p class="error" role="alert">{error}</p>}
+      {saved && <p class="notice" role="status">{saved}</p>}
+      {desk && (
+        <DeskForm
+          key={String(desk.updatedAt)}
+          initial={desk}
+          submitLabel="Save the settings"
+          onSubmit={async (v) => { await patch(`/desks/${desk.id}`, v); setSaved(`Saved at ${new Date().toLocaleTimeString('en-GB')}. Every change is kept in the audit trail.`); reload(); }}
+        />
+      )}
+    </section>
+  );
+}

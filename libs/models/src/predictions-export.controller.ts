@@ -1,0 +1,73 @@
+import { Controller, Get, Inject, NotFoundException, Param, ParseIntPipe, Res } from '@nestjs/common';
+import { ApiTags } from '@nestjs/swagger';
+import type { Response } from 'express';
+import { Roles } from '#auth';
+import { Database, DeskEntity } from '#database';
+import { csvRecord, streamLines } from './line-stream.js';
+import { PredictionsService } from './predictions.service.js';
+
+const PAGE = 2000;
+
+interface Row {
+  item_id: number;
+  probabilities: string;
+  external_id: string | null;
+  source: string | null;
+  text: string;
+}
+
+/**
+ * Predictions of the current version for every open item, as CSV or NDJSON,
+ * with the set and call at the desk's current target. Streamed page by page.
+ */
+@ApiTags('models')
+@Controller('api/desks/:deskId')
+export class PredictionsExportController {
+  constructor(@Inject(Database) private readonly db: Database, @Inject(PredictionsService) private readonly predictions: PredictionsService) {}
+
+  @Roles('supervisor', 'auditor')
+  @Get('predictions.csv')
+  async csv(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
+    const { desk, categories, rows } = await this.rows(deskId);
+    async function* lines() {
+      yield csvRecord(['item_id', 'external_id', 'source', 'model_version', 'call', 'set', ...categories.map((c) => `p_${c}`), 'text']);
+      for await (const r of rows) yield csvRecord([r.itemId, r.externalId, r.source, r.modelVersion, r.call, r.set.join('|'), ...categories.map((c) => r.probabilities[c]), r.text]);
+    }
+    await streamLines(res, 'text/csv; charset=utf-8', `desk-${desk.id}-predictions.csv`, lines());
+  }
+
+  @Roles('supervisor', 'auditor')
+  @Get('predictions.ndjson')
+  async ndjson(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
+    const { desk, rows } = await this.rows(deskId);
+    async function* lines() {
+      for await (const r of rows) yield `${JSON.stringify(r)}\n`;
+    }
+    await streamLines(res, 'application/x-ndjson; charset=utf-8', `desk-${desk.id}-predictions.ndjson`, lines());
+  }
+
+  private async rows(deskId: number) {
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
+    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    const model = await this.predictions.current(desk);
+    const categories = model?.categories ?? [];
+    const db = this.db;
+    const predictions = this.predictions;
+    async function* rows() {
+      if (!model) return;
+      for (let after = 0; ;) {
+        const page = await db.query<Row>(null,
+          `SELECT p.item_id, p.probabilities, i.external_id, i.source, i.text FROM predictions p JOIN items i ON i.id = p.item_id
+           WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT ${PAGE}`,
+          [deskId, model.version, after]);
+        for (const r of page) {
+          const shown = predictions.show(desk!, model, JSON.parse(r.probabilities) as number[]);
+          yield { itemId: Number(r.item_id), externalId: r.external_id, source: r.source, modelVersion: model.version, call: shown.call, set: shown.set, probabilities: shown.probabilities, text: r.text };
+        }
+        if (page.length < PAGE) return;
+        after = Number(page[page.length - 1]!.item_id);
+      }
+    }
+    return { desk, categories, rows: rows() };
+  }
+}

@@ -1,0 +1,56 @@
+import { expect } from 'vitest';
+import { eventually, type Stack } from './stack.js';
+import { syntheticPool } from './synthetic.js';
+
+export const PASSWORD = 'correct horse battery';
+
+export interface WebDesk {
+  deskId: number;
+  sup: string;
+  rev: string;
+  labels: Map<string, string>;
+}
+
+/**
+ * A desk for the browser tests: accounts with passwords (one per role), the
+ * synthetic pool imported, and, when asked, reviewers' verdicts given through
+ * the API from the hidden labels until a model version is current.
+ */
+export async function webDesk(s: Stack, options: { pool?: number; verdicts?: number; extraTexts?: string[] } = {}): Promise<WebDesk> {
+  const sup = await s.user('sasha', 'supervisor', PASSWORD);
+  const rev = await s.user('robin', 'reviewer', PASSWORD);
+  await s.user('ada', 'auditor', PASSWORD);
+  const d = await s.call(sup, 'POST', '/api/desks', {
+    name: 'Mossbank Commons', categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot', 'clown'], ok: ['thanks'] },
+    randomShare: 0.3, retrainEvery: 20, retrainAfterSeconds: 2,
+  });
+  expect(d.status).toBe(201);
+  const deskId = d.body.id as number;
+  const pool = syntheticPool(options.pool ?? 400);
+  const labels = new Map<string, string>(pool.map((p) => [p.externalId, p.label]));
+  const rows = pool.map((p) => ({ text: p.text, externalId: p.externalId, source: 'board/general' }));
+  for (const [i, text] of (options.extraTexts ?? []).entries()) {
+    rows.push({ text, externalId: `extra-${i}`, source: 'board/general' });
+    labels.set(`extra-${i}`, 'ok');
+  }
+  const body = rows.map((r) => JSON.stringify(r)).join('\n');
+  const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, { 'content-type': 'application/x-ndjson' });
+  await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000, 'import done');
+  for (let i = 0, empty = 0; i < (options.verdicts ?? 0); i++) {
+    const l = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
+    if (l.status === 204) {
+      // The pool is far from used up: wait for a moment (e.g. a version being published) and ask again.
+      expect(++empty).toBeLessThan(40);
+      await new Promise((r) => setTimeout(r, 250));
+      i--;
+      continue;
+    }
+    const v = await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, category: labels.get(l.body.item.externalId), clientId: `setup-${i}`, elapsedMs: 4000 + i });
+    expect(v.status).toBe(201);
+  }
+  if (options.verdicts) {
+    await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined), 60_000, 'a model version');
+    await s.waitForQueuesIdle(60_000, { ignoreDelayed: true });
+  }
+  return { deskId, sup, rev, labels };
+}
