@@ -29,6 +29,10 @@ interface PickedRow {
   seed_hits: number;
 }
 
+/** How often, and how long each time, a lease waits for a pool held by another transaction (PostgreSQL). */
+const POOL_LOCK_RETRIES = 2;
+const POOL_LOCK_WAIT_MS = 15_000;
+
 const PICK_COLUMNS = 'id, text, meta, external_id, source, posted_at, seed_hits';
 /** Near-duplicates: cosine of tf-idf vectors at or above this (the batch picker's rule in the learning core). */
 const NEAR_DUPLICATE_COSINE = 0.95;
@@ -52,7 +56,7 @@ export class LeasesService {
   ) {}
 
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
-  async lease(reviewer: Principal, deskId: number): Promise<LeaseGrant | null> {
+  async lease(reviewer: Principal, deskId: number, attempt = 0): Promise<LeaseGrant | null> {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const { desk } = entry;
@@ -96,7 +100,10 @@ export class LeasesService {
       ]);
       return { row, prediction };
     });
-    if (!picked) return null;
+    if (!picked) {
+      if (this.db.pg && attempt < POOL_LOCK_RETRIES && (await this.waitForHeldPool(deskId))) return this.lease(reviewer, deskId, attempt + 1);
+      return null;
+    }
     const { prediction } = picked;
     const row = picked.row;
     return {
@@ -105,6 +112,28 @@ export class LeasesService {
       highlights: this.highlighter.highlights(desk, row.text),
       prediction,
     };
+  }
+
+  /**
+   * PostgreSQL: when every pick came back empty, the open items may all be
+   * held by another transaction (publishing a new version rewrites every open
+   * item's priority in one), which `SKIP LOCKED` skips. Rather than tell the
+   * reviewer that nothing is left, wait for that transaction to end (bounded
+   * by a lock timeout) and say whether an open item is there to pick again.
+   */
+  private async waitForHeldPool(deskId: number): Promise<boolean> {
+    try {
+      return await this.db.write(async (m) => {
+        await this.db.query(m, `SET LOCAL lock_timeout = '${POOL_LOCK_WAIT_MS}ms'`, []);
+        const rows = await this.db.query<{ id: number }>(m, `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' LIMIT 1 FOR UPDATE`, [deskId]);
+        return rows.length > 0;
+      });
+    } catch (e) {
+      // 55P03 lock_not_available: the pool stayed held past the timeout; answer "nothing now" as before.
+      const err = e as { code?: string; driverError?: { code?: string } };
+      if ((err.driverError?.code ?? err.code) === '55P03') return false;
+      throw e;
+    }
   }
 
   /**
