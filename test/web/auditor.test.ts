@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { openBrowser, signIn, type Browser } from '../support/browser.js';
-import { startStack, type Stack } from '../support/stack.js';
+import { eventually, startStack, type Stack } from '../support/stack.js';
 import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
 
 /**
@@ -16,7 +16,7 @@ async function writeControls(page: Page): Promise<string[]> {
     const found: string[] = [];
     for (const b of Array.from(document.querySelectorAll('button'))) {
       const t = (b.textContent ?? '').trim();
-      if (!['Sign out', 'Filter', 'Older verdicts'].includes(t)) found.push(`button “${t}”`);
+      if (!['Sign out', 'Filter', 'Older verdicts', 'More'].includes(t)) found.push(`button “${t}”`);
     }
     for (const f of Array.from(document.querySelectorAll('form'))) if (f.getAttribute('role') !== 'search') found.push('a form that is not a search');
     for (const i of Array.from(document.querySelectorAll('input[type=file], input[type=range], input[type=radio], input[type=checkbox], textarea'))) found.push(`${i.tagName.toLowerCase()} ${(i as HTMLInputElement).type}`);
@@ -51,7 +51,18 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     await expect(table.locator('tbody tr').count()).resolves.toBe(models.models.length);
     await expect(writeControls(page)).resolves.toEqual([]);
 
+    // Each published version's oversight report is listed once written.
     const current = models.currentModelVersion as number;
+    await eventually(async () => ((await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/reports`)).body.reports.find((r: { version: number; status: string }) => r.version === current)?.status === 'ready' ? true : undefined), 60_000, 'the report');
+    await page.reload();
+    const reportLink = table.locator('tbody tr').filter({ hasText: `v${current}` }).getByRole('link', { name: 'HTML' });
+    await reportLink.waitFor();
+    const href = await reportLink.getAttribute('href');
+    expect(href).toBe(`/api/desks/${desk.deskId}/models/${current}/report.html`);
+    const report = await page.request.get(`${s.base}${href}`);
+    expect(report.status()).toBe(200);
+    expect(await report.text()).toContain('<svg');
+
     await page.getByRole('link', { name: `v${current}`, exact: true }).click();
     await page.waitForURL(`${s.base}/desks/${desk.deskId}/models/${current}`);
     await page.getByRole('heading', { name: `Model version ${current}` }).waitFor();
@@ -66,6 +77,9 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     await expect(sizeBars.count()).resolves.toBe(4);
     await expect(writeControls(page)).resolves.toEqual([]);
 
+    await page.getByRole('link', { name: 'Agreement', exact: true }).click();
+    await page.getByRole('heading', { name: 'Items to settle' }).waitFor();
+    await expect(writeControls(page)).resolves.toEqual([]);
     await page.getByRole('link', { name: 'Trail', exact: true }).click();
     await page.waitForURL(`${s.base}/desks/${desk.deskId}/trail`);
     const trail = page.locator('table.trail tbody tr');

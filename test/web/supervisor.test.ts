@@ -107,6 +107,37 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     expect((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.coverageTarget).toBe(0.65);
   });
 
+  it('settles a disagreement between two reviewers from the agreement screen', async () => {
+    const { page } = b;
+    const other = await s.user('kit', 'reviewer', PASSWORD);
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { secondOpinionShare: 1 });
+    await new Promise((r) => setTimeout(r, 2100)); // the desk settings cache lives 2 s
+    const first = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
+    expect((await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: first.body.lease.id, itemId: first.body.item.id, category: 'ok', clientId: 'd1' })).status).toBe(201);
+    // Older items are due for a second opinion too (the desk's default share): answer them as the first reviewer would have, until ours comes.
+    let second = await s.call(other, 'POST', `/api/desks/${deskId}/leases`);
+    for (let n = 0; second.body.item.id !== first.body.item.id; n++) {
+      expect(n).toBeLessThan(40);
+      await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: second.body.lease.id, itemId: second.body.item.id, category: labels.get(second.body.item.externalId), clientId: `d-other-${n}` });
+      second = await s.call(other, 'POST', `/api/desks/${deskId}/leases`);
+    }
+    expect((await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: second.body.lease.id, itemId: second.body.item.id, category: 'threat', clientId: 'd2' })).status).toBe(201);
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { secondOpinionShare: 0.1 });
+
+    await page.goto(`${s.base}/desks/${deskId}/disagreements`);
+    const card = page.locator(`li.disagreement[data-item-id="${first.body.item.id}"]`);
+    await card.waitFor();
+    await expect(card.innerText()).resolves.toContain('Reviewers gave different categories');
+    await card.getByLabel('Category').selectOption('harassment');
+    await card.getByRole('button', { name: 'Settle' }).click();
+    // The reason is required: the browser will not send the form without it.
+    await card.getByLabel('Reason').fill('abuse aimed at a named neighbour; no threat');
+    await card.getByRole('button', { name: 'Settle' }).click();
+    await card.getByText('Settled as harassment').waitFor();
+    const listed = (await s.call(sup, 'GET', `/api/desks/${deskId}/disagreements`)).body.disagreements.find((d: { item: { id: number } }) => d.item.id === first.body.item.id);
+    expect(listed.settled).toMatchObject({ category: 'harassment', reason: 'abuse aimed at a named neighbour; no threat', settledBy: 'sasha' });
+  });
+
   it('shows progress per category and per reviewer on the overview', async () => {
     const { page } = b;
     await page.goto(`${s.base}/desks/${deskId}`);
