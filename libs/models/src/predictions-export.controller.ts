@@ -1,9 +1,9 @@
-import { Controller, Get, Inject, NotFoundException, Param, ParseIntPipe, Res } from '@nestjs/common';
+import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe, Res } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
 import { Database, DeskEntity } from '#database';
-import { csvRecord, streamLines } from './line-stream.js';
+import { csvLine, streamText } from '#exports';
 import { PredictionsService } from './predictions.service.js';
 
 const PAGE = 2000;
@@ -23,6 +23,8 @@ interface Row {
 @ApiTags('models')
 @Controller('api/desks/:deskId')
 export class PredictionsExportController {
+  private readonly logger = new Logger('PredictionsExport');
+
   constructor(@Inject(Database) private readonly db: Database, @Inject(PredictionsService) private readonly predictions: PredictionsService) {}
 
   @Roles('supervisor', 'auditor')
@@ -30,10 +32,10 @@ export class PredictionsExportController {
   async csv(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
     const { desk, categories, rows } = await this.rows(deskId);
     async function* lines() {
-      yield csvRecord(['item_id', 'external_id', 'source', 'model_version', 'call', 'set', ...categories.map((c) => `p_${c}`), 'text']);
-      for await (const r of rows) yield csvRecord([r.itemId, r.externalId, r.source, r.modelVersion, r.call, r.set.join('|'), ...categories.map((c) => r.probabilities[c]), r.text]);
+      yield csvLine(['item_id', 'external_id', 'source', 'model_version', 'call', 'set', ...categories.map((c) => `p_${c}`), 'text']);
+      for await (const r of rows) yield csvLine([r.itemId, r.externalId, r.source, r.modelVersion, r.call, r.set.join('|'), ...categories.map((c) => r.probabilities[c]), r.text]);
     }
-    await streamLines(res, 'text/csv; charset=utf-8', `desk-${desk.id}-predictions.csv`, lines());
+    await streamText(res, 'text/csv; charset=utf-8; header=present', `desk-${desk.id}-predictions.csv`, lines(), (e) => this.stopped(deskId, e));
   }
 
   @Roles('supervisor', 'auditor')
@@ -43,7 +45,11 @@ export class PredictionsExportController {
     async function* lines() {
       for await (const r of rows) yield `${JSON.stringify(r)}\n`;
     }
-    await streamLines(res, 'application/x-ndjson; charset=utf-8', `desk-${desk.id}-predictions.ndjson`, lines());
+    await streamText(res, 'application/x-ndjson; charset=utf-8', `desk-${desk.id}-predictions.ndjson`, lines(), (e) => this.stopped(deskId, e));
+  }
+
+  private stopped(deskId: number, e: Error): void {
+    this.logger.warn(`predictions export of desk ${deskId} stopped: ${e.message}`);
   }
 
   private async rows(deskId: number) {

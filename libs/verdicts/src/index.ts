@@ -7,4 +7,4 @@ export { SettlementsService, type SettlementView } from './settling/settlements.
 export { DisagreementsService, type Disagreement, type DisagreementReason } from './settling/disagreements.service.js';
 export { SettleItemDto } from './settling/settle.dto.js';
 export { TrailService, TRAIL_PAGE_SIZE } from './trail/trail.service.js';
-export { csvField, csvLine, TRAIL_COLUMNS, type TrailRow } from './trail/trail-format.js';
+export { TRAIL_COLUMNS, type TrailRow } from './trail/trail-format.js';

@@ -1,3 +1,4 @@
+import { csvLine } from '#exports';
 /** One line of the decision trail: a verdict (undone ones included) with its item's settled label. */
 export interface TrailRow {
   verdictId: number;
@@ -27,21 +28,6 @@ export const TRAIL_COLUMNS = [
   'shown_set', 'shown_call', 'elapsed_ms', 'note', 'simulated', 'settled_category', 'settled_by', 'settled_at',
 ] as const;
 
-/**
- * One CSV field per RFC 4180 (section 2): a field holding a comma, a double
- * quote, CR or LF is enclosed in double quotes, with each double quote
- * doubled; empty for null.
- */
-export function csvField(value: string | number | boolean | null): string {
-  if (value === null) return '';
-  const s = String(value);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-/** A CSV record per RFC 4180: fields separated by commas, the line ended by CRLF. */
-export function csvLine(values: ReadonlyArray<string | number | boolean | null>): string {
-  return `${values.map(csvField).join(',')}\r\n`;
-}
 
 export function trailCsvLine(r: TrailRow): string {
   return csvLine([

@@ -1,10 +1,9 @@
-import { Readable } from 'node:stream';
-import { pipeline } from 'node:stream/promises';
 import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
 import { ApiProduces, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
-import { TRAIL_COLUMNS, csvLine, trailCsvLine, type TrailRow } from './trail-format.js';
+import { csvLine, streamText } from '#exports';
+import { TRAIL_COLUMNS, trailCsvLine, type TrailRow } from './trail-format.js';
 import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
 
 @ApiTags('agreement')
@@ -32,28 +31,14 @@ export class TrailController {
     await this.stream(res, filter, 'application/x-ndjson; charset=utf-8', `desk-${deskId}-trail.ndjson`, '', (r) => `${JSON.stringify(r)}\n`);
   }
 
-  /**
-   * Streams pages of rows into the response. `Readable.from` pulls the next
-   * page only when the socket has taken the previous one (back-pressure), and
-   * `pipeline` stops reading when the client goes away.
-   */
+  /** Streams the filtered trail, page by page, as one download. */
   private async stream(res: Response, filter: TrailFilter, type: string, filename: string, head: string, line: (r: TrailRow) => string): Promise<void> {
-    res.status(200);
-    res.setHeader('Content-Type', type);
-    res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
-    res.setHeader('Cache-Control', 'no-store');
     const rows = this.trail.rows(filter);
     async function* text(): AsyncGenerator<string> {
       if (head) yield head;
       for await (const page of rows) yield page.map(line).join('');
     }
-    try {
-      await pipeline(Readable.from(text(), { objectMode: false, highWaterMark: 1 }), res);
-    } catch (e) {
-      // Headers are gone: all that can be done is to cut the response short, which the client sees as a truncated body.
-      this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${(e as Error).message}`);
-      res.destroy();
-    }
+    await streamText(res, type, filename, text(), (e) => this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${e.message}`));
   }
 }
 

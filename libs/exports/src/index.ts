@@ -1,0 +1,2 @@
+export { csvField, csvLine } from './csv.js';
+export { streamText } from './stream-text.js';
