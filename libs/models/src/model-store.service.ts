@@ -29,6 +29,7 @@ const KEEP = 6;
 @Injectable()
 export class ModelStore {
   private readonly cache = new Map<string, LoadedModel>();
+  private readonly loading = new Map<string, Promise<LoadedModel | null>>();
 
   constructor(@Inject(Database) private readonly db: Database, @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService) {}
 
@@ -40,6 +41,16 @@ export class ModelStore {
       this.cache.set(key, hit);
       return hit;
     }
+    // Chunks scored at the same time in one process share one read of the version.
+    let pending = this.loading.get(key);
+    if (!pending) {
+      pending = this.read(deskId, version, key).finally(() => this.loading.delete(key));
+      this.loading.set(key, pending);
+    }
+    return pending;
+  }
+
+  private async read(deskId: number, version: number, key: string): Promise<LoadedModel | null> {
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     if (!row || !row.model) return null;
     const classifier = LogisticModel.fromJSON(row.model.classifier as LogisticModelJson);
