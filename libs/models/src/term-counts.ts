@@ -51,44 +51,37 @@ export function encodeTermCounts(counts: SparseVector): Buffer {
   return out.subarray(0, at);
 }
 
+/** Read position of {@link varint} (decoding is synchronous, so one position serves every call). */
+let cursor = 0;
+
+/** The unsigned LEB128 varint at {@link cursor} (below 2^28, so shifts stay exact); moves the cursor past it. */
+function varint(bytes: Uint8Array, end: number): number {
+  if (cursor >= end) throw new RangeError('term counts: truncated');
+  let b = bytes[cursor++]!;
+  let x = b & 0x7f;
+  for (let shift = 7; b >= 0x80; shift += 7) {
+    if (cursor >= end) throw new RangeError('term counts: truncated');
+    b = bytes[cursor++]!;
+    x |= (b & 0x7f) << shift;
+  }
+  return x;
+}
+
 /** Decodes a row written by {@link encodeTermCounts}. */
 export function decodeTermCounts(bytes: Uint8Array): SparseVector {
   const end = bytes.length;
   if (end < 2 || bytes[0] !== FORMAT_VERSION) throw new RangeError(`term counts: unknown format ${bytes[0]} (length ${end})`);
-  // Varints inlined (this runs once per item of every scoring pass); every value is below 2^28, so shifts stay exact.
-  let at = 1;
-  let b = bytes[at++]!;
-  let n = b & 0x7f;
-  for (let shift = 7; b >= 0x80; shift += 7) {
-    if (at >= end) throw new RangeError('term counts: truncated');
-    b = bytes[at++]!;
-    n |= (b & 0x7f) << shift;
-  }
-  if (n > (end - at) / 2) throw new RangeError('term counts: truncated');
+  cursor = 1;
+  const n = varint(bytes, end);
+  if (n > (end - cursor) / 2) throw new RangeError('term counts: truncated');
   const indices = new Int32Array(n);
   const values = new Float64Array(n);
   let prev = -1;
   for (let i = 0; i < n; i++) {
-    if (at + 2 > end) throw new RangeError('term counts: truncated');
-    b = bytes[at++]!;
-    let gap = b & 0x7f;
-    for (let shift = 7; b >= 0x80; shift += 7) {
-      if (at >= end) throw new RangeError('term counts: truncated');
-      b = bytes[at++]!;
-      gap |= (b & 0x7f) << shift;
-    }
-    if (at >= end) throw new RangeError('term counts: truncated');
-    b = bytes[at++]!;
-    let count = b & 0x7f;
-    for (let shift = 7; b >= 0x80; shift += 7) {
-      if (at >= end) throw new RangeError('term counts: truncated');
-      b = bytes[at++]!;
-      count |= (b & 0x7f) << shift;
-    }
-    prev += gap + 1;
+    prev += varint(bytes, end) + 1;
     indices[i] = prev;
-    values[i] = count;
+    values[i] = varint(bytes, end);
   }
-  if (at !== end) throw new RangeError(`term counts: ${end - at} bytes left over`);
+  if (cursor !== end) throw new RangeError(`term counts: ${end - cursor} bytes left over`);
   return { indices, values };
 }
