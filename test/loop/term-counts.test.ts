@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
 import { Database, openDatabase } from '#database';
 import { ConformalCalibration, tfidf, trainLogisticModel, type IdfTable } from '#learning';
-import { DeskFeaturesService, ModelStore, PublishService, ScoringService } from '#models';
+import { DeskFeaturesService, ModelStore, ScoringService } from '#models';
 import { createTestDatabase, DATABASE_KINDS, type TestDatabase } from '../support/databases.js';
 import { syntheticPool } from '../support/synthetic.js';
 
@@ -95,15 +95,6 @@ describe.each(DATABASE_KINDS)('scoring from cached term counts on %s', (kind) =>
     const r = await scoring.run({ deskId: 1, version: 2, fromId: ids[0]!, toId: ids[POOL - 1]! + 1 });
     expect(r).toEqual({ scored: POOL, tokenised: 10 });
     expect(await compare(2)).toBeLessThanOrEqual(TOLERANCE);
-  });
-
-  it('publishes the scored version as one switch', async () => {
-    expect(await new PublishService(db).run({ deskId: 1, version: 2 })).toEqual({ published: true });
-    const [{ v }] = await db.query<{ v: number }>(null, 'SELECT current_model_version AS v FROM desks WHERE id = 1');
-    expect(Number(v)).toBe(2);
-    const [{ off }] = await db.query<{ off: number | string }>(null,
-      'SELECT COUNT(*) AS off FROM items i JOIN predictions p ON p.item_id = i.id AND p.model_version = 2 WHERE i.priority <> p.priority OR i.priority_model_version <> 2');
-    expect(Number(off)).toBe(0);
   });
 
   it('refuses term counts of an unknown item and rows too short to hold counts', async () => {

@@ -13,7 +13,7 @@ import { verdictSchema } from './entities/verdict.entity.js';
 import { modelVersionSchema } from './entities/model-version.entity.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-loop.js';
-import { TermCounts1764800000000 } from './migrations/1764800000000-term-counts.js';
+import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -21,7 +21,7 @@ export function entitySchemas(dialect: Dialect) {
 }
 
 /** Every migration, in order. */
-export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, TermCounts1764800000000];
+export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, TermCounts1765100000000];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
 export function createDataSource(db: DatabaseConfig, options: { poolSize?: number } = {}): DataSource {

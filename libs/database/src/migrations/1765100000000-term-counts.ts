@@ -13,8 +13,8 @@ import { Table, TableForeignKey, type MigrationInterface, type QueryRunner } fro
  * cannot update an indexed column in place) adds an entry to every index that
  * covers it; open items have no business in this one.
  */
-export class TermCounts1764800000000 implements MigrationInterface {
-  name = 'TermCounts1764800000000';
+export class TermCounts1765100000000 implements MigrationInterface {
+  name = 'TermCounts1765100000000';
 
   async up(qr: QueryRunner): Promise<void> {
     const pg = qr.connection.options.type === 'postgres';
