@@ -7,7 +7,8 @@
  * and workers from dist/) on PostgreSQL and SQLite, with the Redis at
  * BENCH_REDIS_URL (default redis://127.0.0.1:6379), and prints one JSON object.
  *
- * Knobs: BENCH_LOOP_DATABASES (postgres,sqlite), BENCH_LOOP_ITEMS (50000), BENCH_LOOP_VERDICTS (2000).
+ * Knobs: BENCH_LOOP_DATABASES (postgres,sqlite), BENCH_LOOP_ITEMS (50000), BENCH_LOOP_VERDICTS (2000),
+ * BENCH_LOOP_WORKER_ARGS (extra node arguments for the workers, e.g. `--cpu-prof --cpu-prof-dir=/tmp/prof`).
  */
 import { randomBytes } from 'node:crypto';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -23,6 +24,7 @@ const env = process.env;
 const ITEMS = Number(env.BENCH_LOOP_ITEMS ?? 50_000);
 const VERDICTS = Number(env.BENCH_LOOP_VERDICTS ?? 2000);
 const DATABASES = (env.BENCH_LOOP_DATABASES ?? 'postgres,sqlite').split(',').map((s) => s.trim()).filter(Boolean);
+const WORKER_ARGS = (env.BENCH_LOOP_WORKER_ARGS ?? '').split(' ').filter(Boolean);
 const REDIS = env.BENCH_REDIS_URL ?? 'redis://127.0.0.1:6379';
 const PG_ADMIN = env.BENCH_PG_ADMIN_URL ?? 'postgres://postgres@127.0.0.1:5432/test';
 const root = resolve(fileURLToPath(new URL('../..', import.meta.url)));
@@ -77,7 +79,7 @@ async function oneDatabase(kind: string) {
     const apiSvc = startService(`api-${kind}`, script('api'), serviceEnv);
     services.push(apiSvc);
     await waitReady(apiSvc, base);
-    const worker1 = startService(`worker-${kind}-1`, script('worker'), serviceEnv);
+    const worker1 = startService(`worker-${kind}-1`, script('worker'), serviceEnv, WORKER_ARGS);
     services.push(worker1);
     const sup = (await api<{ token: string }>(base, admin.token, 'POST', '/api/users', { name: 'bench-sup', role: 'supervisor' })).token;
     const reviewers: string[] = [];
@@ -127,6 +129,10 @@ async function oneDatabase(kind: string) {
       return {
         verdictToCurrentMs: Math.round(verdictToCurrentMs),
         phasesMs: { train: Math.round((t.loadMs ?? 0) + (t.featurizeMs ?? 0) + (t.trainMs ?? 0)), calibrate: Math.round(t.calibrateMs ?? 0), score: Math.round(t.scoreMs ?? 0), publish: Math.round(t.publishMs ?? 0) },
+        // The train phase split: reading the verdicts, tf-idf of their items, fitting the classifier (worker thread).
+        trainPartsMs: { load: Math.round(t.loadMs ?? 0), featurize: Math.round(t.featurizeMs ?? 0), fit: Math.round(t.trainMs ?? 0) },
+        // What the phases leave out: the retrain request reaching a worker, job hand-offs, the switch's commit.
+        otherMs: Math.round(verdictToCurrentMs - ((t.loadMs ?? 0) + (t.featurizeMs ?? 0) + (t.trainMs ?? 0) + (t.calibrateMs ?? 0) + (t.scoreMs ?? 0) + (t.publishMs ?? 0))),
         scoredItemsPerSec: t.scoreMs ? Math.round(n / (t.scoreMs / 1000)) : null,
         workerPeakRssMb: Math.max(...pids.map((p) => peakRssMb(p) ?? 0)),
         trainingVerdicts: Object.values(v.trainingCounts).reduce((a, b) => a + b, 0),
@@ -135,7 +141,7 @@ async function oneDatabase(kind: string) {
     };
     log(`${kind}: one worker`);
     const one = await measure([worker1.child.pid]);
-    const worker2 = startService(`worker-${kind}-2`, script('worker'), serviceEnv);
+    const worker2 = startService(`worker-${kind}-2`, script('worker'), serviceEnv, WORKER_ARGS);
     services.push(worker2);
     await sleep(3000);
     log(`${kind}: two workers`);

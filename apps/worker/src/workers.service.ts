@@ -13,6 +13,12 @@ export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 const SIMULATIONS_PER_WORKER = 4;
 
 /**
+ * Jobs a worker process runs at once, per queue. Two scoring chunks at once:
+ * while one waits for its predictions to be written, the other computes.
+ */
+const CONCURRENCY: Partial<Record<string, number>> = { [QUEUES.imports]: 2, [QUEUES.scoring]: 2, [QUEUES.simulation]: SIMULATIONS_PER_WORKER };
+
+/**
  * Runs one BullMQ worker per queue and dispatches each job to the one handler
  * of its name. The handler table is checked at start-up.
  */
@@ -37,7 +43,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: queue === QUEUES.imports ? 2 : queue === QUEUES.simulation ? SIMULATIONS_PER_WORKER : 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
+        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: CONCURRENCY[queue] ?? 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));

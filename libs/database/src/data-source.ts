@@ -17,6 +17,7 @@ import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-l
 import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js';
 import { ModelReports1764900000000 } from './migrations/1764900000000-model-reports.js';
 import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.js';
+import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -24,7 +25,7 @@ export function entitySchemas(dialect: Dialect) {
 }
 
 /** Every migration, in order. */
-export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, Agreement1764800000000, ModelReports1764900000000, TrailIndex1765000000000];
+export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, Agreement1764800000000, ModelReports1764900000000, TrailIndex1765000000000, TermCounts1765100000000];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
 export function createDataSource(db: DatabaseConfig, options: { poolSize?: number } = {}): DataSource {

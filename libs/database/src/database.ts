@@ -2,6 +2,23 @@ import type { DataSource, EntityManager } from 'typeorm';
 import type { Dialect } from './dialect.js';
 import { Mutex } from './mutex.js';
 
+/** A column of {@link Database.insertRows}: its name and its PostgreSQL type (for the array it is sent as). */
+export interface InsertColumn {
+  name: string;
+  pgType: 'integer' | 'double precision' | 'text' | 'bytea';
+}
+
+/** Rows per statement of {@link Database.insertRows} on PostgreSQL. */
+const INSERT_PAGE = 10_000;
+
+/** The part of better-sqlite3's connection that {@link Database.insertRows} uses. */
+interface SqliteConnection {
+  prepare(sql: string): SqliteStatement;
+}
+interface SqliteStatement {
+  run(...params: unknown[]): unknown;
+}
+
 /**
  * The process's database handle: the data source plus write transactions that
  * behave the same on both databases.
@@ -16,6 +33,7 @@ import { Mutex } from './mutex.js';
 export class Database {
   readonly dialect: Dialect;
   private readonly mutex = new Mutex();
+  private readonly statements = new Map<string, SqliteStatement>();
 
   constructor(readonly dataSource: DataSource) {
     this.dialect = dataSource.options.type === 'postgres' ? 'postgres' : 'sqlite';
@@ -95,6 +113,35 @@ export class Database {
       return '?';
     });
     return runner.query(text, ordered) as Promise<T[]>;
+  }
+
+  /**
+   * Inserts many rows into `table` inside a write transaction (`m` from
+   * {@link write}), skipping rows that collide with existing ones
+   * (`ON CONFLICT DO NOTHING`). PostgreSQL: one statement per
+   * {@link INSERT_PAGE} rows, each column sent as one array and spread by
+   * `unnest` (no per-row placeholders to parse). SQLite: one prepared
+   * statement run per row on the connection the transaction holds.
+   */
+  async insertRows(m: EntityManager, table: string, columns: readonly InsertColumn[], rows: readonly (readonly unknown[])[]): Promise<void> {
+    if (rows.length === 0) return;
+    const names = columns.map((c) => c.name).join(', ');
+    if (this.pg) {
+      const spread = columns.map((c, i) => `$${i + 1}::${c.pgType}[]`).join(', ');
+      const sql = `INSERT INTO ${table} (${names}) SELECT * FROM unnest(${spread}) ON CONFLICT DO NOTHING`;
+      for (let at = 0; at < rows.length; at += INSERT_PAGE) {
+        const page = rows.slice(at, at + INSERT_PAGE);
+        await m.query(sql, columns.map((_, i) => page.map((r) => r[i])));
+      }
+      return;
+    }
+    const sql = `INSERT INTO ${table} (${names}) VALUES (${columns.map(() => '?').join(', ')}) ON CONFLICT DO NOTHING`;
+    let statement = this.statements.get(sql);
+    if (!statement) {
+      statement = (this.dataSource.driver as unknown as { databaseConnection: SqliteConnection }).databaseConnection.prepare(sql);
+      this.statements.set(sql, statement);
+    }
+    for (const r of rows) statement.run(...r);
   }
 
   async close(): Promise<void> {

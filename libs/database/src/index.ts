@@ -1,4 +1,4 @@
-export { Database } from './database.js';
+export { Database, type InsertColumn } from './database.js';
 export { DatabaseModule } from './database.module.js';
 export { DeskDirectory, DESK_CACHE_MS, type DeskEntry } from './desk-directory.service.js';
 export { createDataSource, openDatabase, entitySchemas, MIGRATIONS } from './data-source.js';

@@ -115,13 +115,20 @@ export class ImportRunner {
       const values = [deskId, importId, r.externalId, r.source, r.text, r.normalizedText, r.textHash, JSON.stringify(r.meta), r.createdAt ? this.db.time(r.createdAt) : null, now, 'open', hits, hits, Math.random()];
       tuples.push(`(${values.map((v) => { params.push(v); return `$${params.length}`; }).join(', ')})`);
     }
-    const rows = await this.db.query<{ normalized_hash: string }>(m,
-      `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING normalized_hash`,
+    const rows = await this.db.query<{ id: number; normalized_hash: string }>(m,
+      `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING id, normalized_hash`,
       params,
     );
-    // The pool's document frequencies grow with exactly the items that landed.
-    const landed = new Set(rows.map((r) => r.normalized_hash));
-    await this.features.addDocuments(m, deskId, batch.filter((r) => landed.delete(r.textHash)).map((r) => r.text));
+    // The pool's document frequencies grow with exactly the items that landed; their term counts are kept for scoring.
+    const landed = new Map(rows.map((r) => [r.normalized_hash, Number(r.id)]));
+    const added: Array<{ id: number; text: string }> = [];
+    for (const r of batch) {
+      const id = landed.get(r.textHash);
+      if (id === undefined) continue;
+      landed.delete(r.textHash);
+      added.push({ id, text: r.text });
+    }
+    await this.features.addItems(m, deskId, added);
     return rows.length;
   }
 }

@@ -1,7 +1,9 @@
 import { Inject, Injectable } from '@nestjs/common';
 import { Database, ModelVersionEntity } from '#database';
-import { ConformalCalibration, IdfTable, LogisticModel, tfidf, type ConformalCalibrationJson, type Featurizer, type IdfTableJson, type LogisticModelJson, type SparseVector } from '#learning';
+import { ConformalCalibration, IdfTable, LogisticModel, type ConformalCalibrationJson, type Featurizer, type FeaturizerOptions, type IdfTableJson, type LogisticModelJson, type SparseVector } from '#learning';
 import { DeskFeaturesService } from './desk-features.service.js';
+import { IdfWeights } from './idf-weights.js';
+import { featurizerKey } from './term-counts.js';
 
 /** A model version ready to score: classifier, the idf it was trained with, its calibration. */
 export interface LoadedModel {
@@ -12,8 +14,13 @@ export interface LoadedModel {
   classifier: LogisticModel;
   idf: IdfTable;
   featurizer: Featurizer;
+  /** {@link featurizerKey} of the featuriser: cached term counts with the same key can be weighed directly. */
+  featurizerKey: string;
   calibration: ConformalCalibration;
+  /** tf-idf of a text under this version (tokenises it). */
   vectorize(text: string): SparseVector;
+  /** tf-idf of hashed term counts made by this version's featuriser. */
+  weigh(counts: SparseVector): SparseVector;
 }
 
 const KEEP = 6;
@@ -22,6 +29,7 @@ const KEEP = 6;
 @Injectable()
 export class ModelStore {
   private readonly cache = new Map<string, LoadedModel>();
+  private readonly loading = new Map<string, Promise<LoadedModel | null>>();
 
   constructor(@Inject(Database) private readonly db: Database, @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService) {}
 
@@ -33,15 +41,28 @@ export class ModelStore {
       this.cache.set(key, hit);
       return hit;
     }
+    // Chunks scored at the same time in one process share one read of the version.
+    let pending = this.loading.get(key);
+    if (!pending) {
+      pending = this.read(deskId, version, key).finally(() => this.loading.delete(key));
+      this.loading.set(key, pending);
+    }
+    return pending;
+  }
+
+  private async read(deskId: number, version: number, key: string): Promise<LoadedModel | null> {
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     if (!row || !row.model) return null;
     const classifier = LogisticModel.fromJSON(row.model.classifier as LogisticModelJson);
     const idf = IdfTable.fromJSON(row.model.idf as IdfTableJson);
-    const featurizer = this.features.featurizer(idf.hashBits);
+    // Versions written before the featuriser settings were stored used the defaults at the idf's size.
+    const featurizer = this.features.featurizer((row.model.featurizer as FeaturizerOptions | undefined) ?? idf.hashBits);
+    const weights = new IdfWeights(idf);
     const loaded: LoadedModel = {
-      deskId, version, state: row.state, categories: [...classifier.categories], classifier, idf, featurizer,
+      deskId, version, state: row.state, categories: [...classifier.categories], classifier, idf, featurizer, featurizerKey: featurizerKey(featurizer.options),
       calibration: ConformalCalibration.fromJSON(row.calibration.scores as ConformalCalibrationJson),
-      vectorize: (text) => tfidf(featurizer.counts(text), idf),
+      vectorize: (text) => weights.weigh(featurizer.counts(text)),
+      weigh: (counts) => weights.weigh(counts),
     };
     // Only finished versions are cached: a version still being written may change.
     if (row.state === 'scoring' || row.state === 'published') {

@@ -20,7 +20,8 @@ export class PublishService {
       const [v] = await this.db.query<{ state: string; timings: string }>(m, `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`, [p.deskId, p.version]);
       if (!v || v.state !== 'scoring') return { published: false, reason: `version is ${v?.state ?? 'gone'}` };
       // Fresh statistics on the rows the chunks just wrote, so the planner joins them by hash rather than row by row.
-      if (this.db.pg) await this.db.query(m, 'ANALYZE predictions');
+      // Only the join columns: statistics of the probabilities text would cost time and guide nothing.
+      if (this.db.pg) await this.db.query(m, 'ANALYZE predictions (desk_id, model_version, item_id)');
       await this.db.query(m,
         `UPDATE items SET priority = predictions.priority, priority_model_version = $1 FROM predictions
          WHERE predictions.item_id = items.id AND predictions.model_version = $1 AND items.desk_id = $2 AND predictions.desk_id = $2`, [p.version, p.deskId]);

@@ -2,8 +2,8 @@ import { parentPort } from 'node:worker_threads';
 import { trainLogisticModel } from '#learning';
 import type { TrainRequest, TrainReply } from './training-protocol.js';
 
-// Runs one training off the worker's event loop, so the worker keeps renewing its job locks.
-parentPort?.once('message', (req: TrainRequest) => {
+// Runs trainings off the worker's event loop, so the worker keeps renewing its job locks; one request at a time.
+parentPort?.on('message', (req: TrainRequest) => {
   let reply: TrainReply;
   try {
     const vectors = req.indices.map((indices, i) => ({ indices, values: req.values[i]! }));
