@@ -23,7 +23,8 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     sup = await s.user('sup', 'supervisor');
     for (let i = 0; i < REVIEWERS; i++) reviewers.push(await s.user(`rev${i}`, 'reviewer'));
     const d = await s.call(sup, 'POST', '/api/desks', {
-      name: 'loop', categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] },
+      // First draws only: the checks below count uniform and uncertainty draws, and the near-duplicate check needs the top item first.
+      name: 'loop', categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] }, secondOpinionShare: 0,
       coverageTarget: TARGET, calibration: 'per-category', randomShare: RANDOM_SHARE, retrainEvery: RETRAIN_EVERY, retrainAfterSeconds: 3,
     });
     expect(d.status).toBe(201);
@@ -152,8 +153,8 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
   }, 120_000);
 
   it('does not serve a near-duplicate of the item a reviewer was just served', async () => {
-    // Uncertainty draws only: no random share, and no second opinion served ahead of them.
-    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0, secondOpinionShare: 0 });
+    // Uncertainty draws only: no random share.
+    await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { randomShare: 0 });
     // Two almost identical texts at the top of the queue (cosine of their tf-idf vectors well above 0.95).
     const base = 'I know where you live and I am waiting outside your door tonight near the bakery on the square';
     const now = s.db.time(new Date());

@@ -2,7 +2,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { fileURLToPath } from 'node:url';
-import { configToEnv, type AppConfig } from '#config';
+import { configToEnv, nodeArgsFor, type AppConfig } from '#config';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
 
@@ -26,7 +26,8 @@ export async function freePort(): Promise<number> {
 
 /** Starts a built app (`api` or `worker`) as its own process with a configuration. */
 export function spawnApp(app: 'api' | 'worker', config: AppConfig, extraEnv: Record<string, string> = {}): ChildProcess {
-  const child = spawn(process.execPath, [built(`apps/${app}/src/main.js`)], {
+  // The node arguments the launcher gives the app (the API's heap limit).
+  const child = spawn(process.execPath, [...nodeArgsFor(app, config), built(`apps/${app}/src/main.js`)], {
     env: { PATH: process.env.PATH ?? '', TZ: 'UTC', ...configToEnv(config), ...extraEnv },
     stdio: ['ignore', 'ignore', 'pipe'],
   });

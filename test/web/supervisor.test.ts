@@ -85,6 +85,8 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     }
     await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined), 60_000, 'a model version');
     await s.waitForQueuesIdle(60_000, { ignoreDelayed: true });
+    // No newer version may replace the one the screen previews while the test compares the two.
+    await s.stopWorker();
 
     await page.goto(`${s.base}/desks/${deskId}/coverage`);
     const readout = page.locator('.readout');

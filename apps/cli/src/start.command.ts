@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { configToEnv, loadConfig, type AppConfig } from '#config';
+import { configToEnv, loadConfig, nodeArgsFor, type AppConfig } from '#config';
 import { openDatabase } from '#database';
 import { formatDemoBlock, type DemoSeedResult } from '#demo';
 import { parseFlags } from './args.js';
@@ -63,8 +63,8 @@ export async function startCommand(argv: string[]): Promise<number> {
     await redis?.stop();
     process.exit(code);
   };
-  const run = (name: string, file: string) => {
-    const child = spawn(process.execPath, ['--enable-source-maps', file], { env, stdio: 'inherit' });
+  const run = (name: string, file: string, args: string[]) => {
+    const child = spawn(process.execPath, ['--enable-source-maps', ...args, file], { env, stdio: 'inherit' });
     child.on('exit', (code, signal) => {
       if (!stopping) {
         process.stderr.write(`${name} stopped (${signal ?? `code ${code}`}); stopping the rest\n`);
@@ -73,8 +73,8 @@ export async function startCommand(argv: string[]): Promise<number> {
     });
     children.push(child);
   };
-  run('api', apiMain);
-  for (let i = 0; i < workers; i++) run(`worker ${i + 1}`, workerMain);
+  run('api', apiMain, nodeArgsFor('api', config));
+  for (let i = 0; i < workers; i++) run(`worker ${i + 1}`, workerMain, nodeArgsFor('worker', config));
   process.on('SIGINT', () => void stopAll(0));
   process.on('SIGTERM', () => void stopAll(0));
   const url = `http://${config.host}:${config.port}/`;

@@ -27,6 +27,11 @@ export interface AppConfig {
   readonly jobLockSeconds: number;
   /** How often a worker looks for desks whose verdicts no model version has learned from. */
   readonly sweepSeconds: number;
+  /**
+   * Old-space heap limit of the API process (MB), set by the launcher. The API holds little: with V8's default limit
+   * (a share of the machine's memory) it lets garbage pile up to hundreds of MB while an export streams.
+   */
+  readonly apiHeapMb: number;
   /** On an empty database, `start` creates the Mossbank Commons demo desk, its accounts and its generated posts (DEMO=off: start clean). */
   readonly demo: boolean;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
@@ -46,7 +51,7 @@ type Env = Record<string, string | undefined>;
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
   'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'DEMO', 'CRIBRA_TEST_PAUSE',
+  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'API_HEAP_MB', 'DEMO', 'CRIBRA_TEST_PAUSE',
 ] as const;
 
 /**
@@ -139,6 +144,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
     jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
+    apiHeapMb: int('API_HEAP_MB', 512, 128, 65_536),
     demo: bool('DEMO', true),
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
@@ -175,6 +181,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
     JOB_LOCK_SECONDS: String(config.jobLockSeconds),
     SWEEP_SECONDS: String(config.sweepSeconds),
+    API_HEAP_MB: String(config.apiHeapMb),
     DEMO: config.demo ? 'on' : 'off',
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
@@ -200,4 +207,9 @@ export function loadConfigOrExit(): AppConfig {
 export function nestLogLevels(level: AppConfig['logLevel']): Array<'fatal' | 'error' | 'warn' | 'log' | 'debug'> {
   const all = ['fatal', 'error', 'warn', 'log', 'debug'] as const;
   return all.slice(0, all.indexOf(level) + 1);
+}
+
+/** Node arguments of an app process: the API's heap limit (see `apiHeapMb`). */
+export function nodeArgsFor(app: 'api' | 'worker', config: AppConfig): string[] {
+  return app === 'api' ? [`--max-old-space-size=${config.apiHeapMb}`] : [];
 }

@@ -2,6 +2,7 @@ import { BadRequestException, Body, Controller, Get, Inject, Param, ParseIntPipe
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { CurrentUser, Roles, type Principal } from '#auth';
+import { parseIsoDateTime } from '#imports';
 import { CreateVerdictDto } from './verdict.dto.js';
 import { ProgressService } from './progress.service.js';
 import { VerdictsService } from './verdicts.service.js';
@@ -12,11 +13,11 @@ const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SA
   return Number(v);
 };
 
-/** A calendar day `YYYY-MM-DD` (UTC) as its first instant. */
-const dayOrUndefined = (name: string, v: string | undefined): Date | undefined => {
+/** An ISO 8601 date or date-time, as the decision-trail export reads them. */
+const timeOrUndefined = (name: string, v: string | undefined): Date | undefined => {
   if (v === undefined || v === '') return undefined;
-  const d = /^\d{4}-\d{2}-\d{2}$/.test(v) ? new Date(`${v}T00:00:00Z`) : null;
-  if (!d || Number.isNaN(d.getTime()) || d.toISOString().slice(0, 10) !== v) throw new BadRequestException(`${name}: expected a date as YYYY-MM-DD, got ${JSON.stringify(v)}`);
+  const d = parseIsoDateTime(v);
+  if (!d) throw new BadRequestException(`${name}: expected an ISO 8601 date or date-time (e.g. 2026-01-31 or 2026-01-31T12:00:00Z), got ${JSON.stringify(v)}`);
   return d;
 };
 
@@ -47,15 +48,16 @@ export class VerdictsController {
     @Param('deskId', ParseIntPipe) deskId: number, @Query('before') before?: string, @Query('limit') limit?: string, @Query('reviewer') reviewer?: string,
     @Query('category') category?: string, @Query('from') from?: string, @Query('to') to?: string,
   ) {
-    const since = dayOrUndefined('from', from);
-    const until = dayOrUndefined('to', to);
+    // `from` inclusive, `to` exclusive, as in the trail export.
+    const since = timeOrUndefined('from', from);
+    const until = timeOrUndefined('to', to);
     if (since && until && since > until) throw new BadRequestException('from: must not be after to');
     const reviewerId = reviewer ? await this.verdicts.userId(reviewer) : undefined;
     if (reviewer && reviewerId === null) return { verdicts: [] };
     return {
       verdicts: await this.verdicts.listForDesk(deskId, {
         before: intOrUndefined('before', before), limit: intOrUndefined('limit', limit, 1000) ?? 100, reviewerId: reviewerId ?? undefined,
-        category: category || undefined, from: since, to: until ? new Date(until.getTime() + 86_400_000) : undefined,
+        category: category || undefined, from: since, to: until,
       }),
     };
   }

@@ -22,7 +22,8 @@ export function TrailPage({ params, query }: PageProps) {
   const deskId = params.deskId!;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const filters = { reviewer: query.get('reviewer') ?? '', category: query.get('category') ?? '', from: query.get('from') ?? '', to: query.get('to') ?? '' };
-  const qs = new URLSearchParams(Object.entries(filters).filter(([, v]) => v));
+  // The screen's "to" is a day, inclusive; the API's `to` is an instant, exclusive: the next day's start.
+  const qs = new URLSearchParams(Object.entries({ ...filters, to: filters.to ? nextDay(filters.to) : '' }).filter(([, v]) => v));
   const [first, error] = useData<{ verdicts: TrailVerdict[] }>(`/desks/${deskId}/verdicts?limit=${PAGE}${qs.toString() ? `&${qs}` : ''}`);
   const [more, setMore] = useState<TrailVerdict[]>([]);
   const [moreError, setMoreError] = useState<string | null>(null);
@@ -86,4 +87,10 @@ export function TrailPage({ params, query }: PageProps) {
       {rows.length > 0 && rows.length % PAGE === 0 && <button type="button" onClick={() => void older()}>Older verdicts</button>}
     </section>
   );
+}
+
+/** `YYYY-MM-DD` of the day after; the input unchanged when it is not such a date (the server then says what is wrong). */
+function nextDay(day: string): string {
+  const d = new Date(`${day}T00:00:00Z`);
+  return Number.isNaN(d.getTime()) ? day : new Date(d.getTime() + 86_400_000).toISOString().slice(0, 10);
 }

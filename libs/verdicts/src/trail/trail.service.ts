@@ -25,8 +25,9 @@ export interface TrailFilter {
  * Verdicts read per query: each page is a keyset query on the verdict id, so memory stays flat however long the
  * trail. Small pages keep each page's rows short-lived enough to die young in the garbage collector: measured on
  * 200 000 verdicts (SQLite), pages of 1 000 grew the server's resident memory by about 86 MB, pages of 250 by 4 MB,
- * at the same speed. On PostgreSQL the growth (77–86 MB at 250 or 100 a page) is the garbage collector letting the
- * heap grow while rows stream fast; it falls back between cycles and does not follow the trail's length.
+ * at the same speed. On PostgreSQL the growth (77–110 MB at 250 or 100 a page under V8's default heap limit) was the
+ * garbage collector letting the heap grow while rows stream fast, not rows kept: with the API's heap limit
+ * (API_HEAP_MB, 512 by default) it measured 24–25 MB.
  */
 export const TRAIL_PAGE_SIZE = 250;
 
