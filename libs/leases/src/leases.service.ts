@@ -94,7 +94,7 @@ export class LeasesService {
       }
       if (!row) return null;
       // What the reviewer is shown is recorded with the lease, and later with the verdict.
-      const prediction = await this.predictions.forItem(m, desk, Number(row.id));
+      const prediction = await this.predictions.forItem(m, desk, Number(row.id), row.text);
       await this.db.query(m, 'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)', [
         leaseId, deskId, row.id, reviewer.id, draw, prediction ? JSON.stringify(prediction) : null, this.db.time(now), this.db.time(expiresAt),
       ]);

@@ -41,12 +41,17 @@ export class PredictionsService {
     };
   }
 
-  /** The prediction shown with an item, or null when no model exists or the item was not scored under it. */
-  async forItem(m: EntityManager | null, desk: DeskEntity, itemId: number): Promise<ShownPrediction | null> {
+  /**
+   * The prediction shown with an item under the current version: the stored
+   * probabilities, or, for an item the version did not score (imported since,
+   * or already decided and now served for a second opinion), computed from
+   * its text on the spot. Null only when no model exists.
+   */
+  async forItem(m: EntityManager | null, desk: DeskEntity, itemId: number, text: string): Promise<ShownPrediction | null> {
     const model = await this.current(desk);
     if (!model) return null;
     const [row] = await this.db.query<{ probabilities: string }>(m, 'SELECT probabilities FROM predictions WHERE item_id = $1 AND model_version = $2', [itemId, model.version]);
-    return row ? this.show(desk, model, JSON.parse(row.probabilities) as number[]) : null;
+    return this.show(desk, model, row ? (JSON.parse(row.probabilities) as number[]) : model.classifier.predictProba(model.vectorize(text)));
   }
 
   calibrationStatus(desk: DeskEntity, model: LoadedModel, target = desk.coverageTarget): CalibrationStatus {
