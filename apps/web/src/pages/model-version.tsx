@@ -51,7 +51,7 @@ export function ModelVersionPage({ params }: PageProps) {
             {!realized && <p class="muted">No random check has been decided under this version yet.</p>}
             {realized && coverage && (
               <>
-                <p>Over all {count(realized.n)} random checks decided under this version the set held the reviewer's answer {pct(realized.coverage, 1)} of the time (95 % Wilson interval {pct(realized.interval?.lower, 1)} to {pct(realized.interval?.upper, 1)}).</p>
+                <p>Over the {count(realized.n)} random check{realized.n === 1 ? '' : 's'} decided under this version the set held the reviewer's answer {pct(realized.coverage, 1)} of the time (95 % Wilson interval {pct(realized.interval?.lower, 1)} to {pct(realized.interval?.upper, 1)}).</p>
                 <IntervalChart
                   target={coverage.target}
                   summary={`Realized coverage of version ${version}, overall and per category, against the promised ${pct(coverage.target)}.`}
