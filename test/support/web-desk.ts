@@ -45,7 +45,10 @@ export async function webDesk(s: Stack, options: { pool?: number; verdicts?: num
   }
   if (options.verdicts) {
     await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined), 60_000, 'a model version');
-    await s.waitForQueuesIdle(60_000, { ignoreDelayed: true });
+    // Let the debounced retrains run out, so the version the screens show stays current while a test reads it,
+    // and let the desk settings cache (2 s) see it.
+    await s.waitForQueuesIdle(60_000);
+    await new Promise((r) => setTimeout(r, 2100));
   }
   return { deskId, sup, rev, labels };
 }
