@@ -16,6 +16,12 @@ const SIMULATIONS_PER_WORKER = 4;
  * Jobs a worker process runs at once, per queue. Two scoring chunks at once:
  * while one waits for its predictions to be written, the other computes.
  */
+/**
+ * How often a job may lose its lock (a worker killed, or too busy to renew it) and be taken up again before it fails.
+ * Every handler is idempotent (retrains resume by their job key, chunks write nothing twice), so a few takeovers are safe;
+ * BullMQ's default of one fails a job the second time a busy machine delays a renewal.
+ */
+const MAX_STALLED = 5;
 const CONCURRENCY: Partial<Record<string, number>> = { [QUEUES.imports]: 2, [QUEUES.scoring]: 2, [QUEUES.simulation]: SIMULATIONS_PER_WORKER };
 
 /**
@@ -43,7 +49,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: CONCURRENCY[queue] ?? 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000) },
+        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: CONCURRENCY[queue] ?? 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000), maxStalledCount: MAX_STALLED },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));

@@ -24,8 +24,9 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
     }
     case JOBS.scoreChunk: {
       const p = payload as JobPayloads['score-chunk'];
-      // Kept for an hour after completion: which worker scored which chunk is worth seeing.
-      return { removeOnComplete: { age: 3600 }, removeOnFail: { age: 24 * 3600 }, jobId: `score-${p.deskId}-v${p.version}-${p.fromId}`, attempts: 5, backoff: { type: 'exponential', delay: 500 }, failParentOnFailure: true };
+      // Kept for an hour after completion: which worker scored which chunk is worth seeing. A chunk that failed for good
+      // is removed at once: the retried retrain adds the same chunk ids again, and a kept failed job would block them.
+      return { removeOnComplete: { age: 3600 }, removeOnFail: true, jobId: `score-${p.deskId}-v${p.version}-${p.fromId}`, attempts: 5, backoff: { type: 'exponential', delay: 500 }, failParentOnFailure: true };
     }
     case JOBS.publishVersion: {
       const p = payload as JobPayloads['publish-version'];
