@@ -94,6 +94,25 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     expect(v).toMatchObject({ itemId: Number(itemId), category: 'ok', note: 'mentions a neighbour by name' });
   });
 
+  it('sends one verdict for a key pressed twice in a row', async () => {
+    const { page } = b;
+    await page.getByLabel('Confirm each verdict with Enter').uncheck();
+    await page.locator('body').click({ position: { x: 5, y: 300 } });
+    const before = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts.length;
+    const itemId = await page.locator('article.item').getAttribute('data-item-id');
+    await page.keyboard.press('3');
+    await page.keyboard.press('3');
+    await page.waitForFunction((prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev, itemId);
+    await new Promise((r) => setTimeout(r, 300));
+    const mine = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts;
+    // One live verdict for the item shown (an item undone earlier can come back), two at most in all when the second
+    // press reached the next item: never two for one item.
+    const onItem = mine.filter((v: { itemId: number; undoneAt: string | null }) => v.itemId === Number(itemId) && v.undoneAt === null);
+    expect(onItem).toHaveLength(1);
+    expect(mine.length - before).toBeGreaterThanOrEqual(1);
+    expect(mine.length - before).toBeLessThanOrEqual(2);
+  });
+
   it('refuses supervisor and auditor screens in plain words', async () => {
     const { page } = b;
     for (const path of [`/desks/${desk.deskId}/coverage`, `/desks/${desk.deskId}/trail`, '/desks/new']) {

@@ -42,6 +42,8 @@ export function QueuePage({ params }: PageProps) {
   const [confirm, setConfirm] = useState(() => localStorage.getItem(CONFIRM_KEY) === 'on');
   const [last, setLast] = useState<Last | null>(null);
   const [busy, setBusy] = useState(false);
+  // Set at once (state updates land only with the next render): a second key press can never send twice.
+  const sending = useRef(false);
   const [failed, setFailed] = useState<Pending | null>(null);
   const [now, setNow] = useState(Date.now());
   const shownAt = useRef(performance.now());
@@ -84,6 +86,8 @@ export function QueuePage({ params }: PageProps) {
 
   /** Sends a verdict (retried with the same client id, so a retry never counts twice) and fetches the next item at the same time. */
   async function send(p: Pending): Promise<void> {
+    if (sending.current) return;
+    sending.current = true;
     setBusy(true);
     setFailed(null);
     const body = { leaseId: p.grant.lease.id, itemId: p.grant.item.id, clientId: p.clientId, elapsedMs: p.elapsedMs, ...(p.note.trim() ? { note: p.note.trim() } : {}), ...p.choice };
@@ -111,11 +115,12 @@ export function QueuePage({ params }: PageProps) {
     } else if (verdict.status === 'fulfilled') {
       setError((nextGrant.reason as Error).message);
     }
+    sending.current = false;
     setBusy(false);
   }
 
   function decide(choice: Choice): void {
-    if (!grant || busy) return;
+    if (!grant || sending.current) return;
     if (confirm && (selected === null || label(selected) !== label(choice))) {
       setSelected(choice);
       return;
@@ -124,7 +129,7 @@ export function QueuePage({ params }: PageProps) {
   }
 
   async function undo(): Promise<void> {
-    if (!last || busy) return;
+    if (!last || sending.current) return;
     try {
       await post(`/verdicts/${last.verdict.id}/undo`);
       setNotice(`Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`);
@@ -138,24 +143,28 @@ export function QueuePage({ params }: PageProps) {
   const categories = desk?.categories.map((c) => c.name) ?? [];
   const keyed = [...categories.slice(0, 9).map((c, i) => ({ key: String(i + 1), choice: { category: c } as Choice, text: c })), { key: '0', choice: { abstain: true } as Choice, text: 'abstain' }];
 
+  // The key handler is replaced on every render and read when a key arrives, so a key pressed the moment the next
+  // item is drawn acts on that item (an effect would install the new handler only after the browser has painted).
+  const onKey = useRef<(e: KeyboardEvent) => void>(() => undefined);
+  onKey.current = (e: KeyboardEvent) => {
+    const target = e.target as HTMLElement;
+    if (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT') {
+      if (e.key === 'Escape') target.blur();
+      return;
+    }
+    if (e.ctrlKey || e.metaKey || e.altKey) return;
+    const k = keyed.find((x) => x.key === e.key);
+    if (k) { e.preventDefault(); decide(k.choice); return; }
+    if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') { e.preventDefault(); decide(selected); return; }
+    if (e.key === 'Escape' && selected) { setSelected(null); return; }
+    if (e.key === 'u') { e.preventDefault(); void undo(); return; }
+    if (e.key === 'n') { e.preventDefault(); noteRef.current?.focus(); }
+  };
   useEffect(() => {
-    const onKey = (e: KeyboardEvent) => {
-      const target = e.target as HTMLElement;
-      if (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT') {
-        if (e.key === 'Escape') target.blur();
-        return;
-      }
-      if (e.ctrlKey || e.metaKey || e.altKey) return;
-      const k = keyed.find((x) => x.key === e.key);
-      if (k) { e.preventDefault(); decide(k.choice); return; }
-      if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') { e.preventDefault(); decide(selected); return; }
-      if (e.key === 'Escape' && selected) { setSelected(null); return; }
-      if (e.key === 'u') { e.preventDefault(); void undo(); return; }
-      if (e.key === 'n') { e.preventDefault(); noteRef.current?.focus(); }
-    };
-    window.addEventListener('keydown', onKey);
-    return () => window.removeEventListener('keydown', onKey);
-  });
+    const listener = (e: KeyboardEvent) => onKey.current(e);
+    window.addEventListener('keydown', listener);
+    return () => window.removeEventListener('keydown', listener);
+  }, []);
 
   const leaseLeft = grant ? new Date(grant.lease.expiresAt).getTime() - now : 0;
   const onItem = grant ? performance.now() - shownAt.current : 0;
