@@ -1,18 +1,10 @@
 import { useState } from 'preact/hooks';
 import type { Desk } from '../api';
 
-export interface DeskFormValue {
-  name: string;
+/** What the form sends: the desk's settings, with the categories as plain names. */
+export type DeskFormValue = Pick<Desk, 'name' | 'seedTerms' | 'coverageTarget' | 'calibration' | 'randomShare' | 'leaseSeconds' | 'strategy' | 'retrainEvery' | 'retrainAfterSeconds'> & {
   categories: string[];
-  seedTerms: Record<string, string[]>;
-  coverageTarget: number;
-  calibration: 'marginal' | 'per-category';
-  randomShare: number;
-  leaseSeconds: number;
-  strategy: string;
-  retrainEvery: number;
-  retrainAfterSeconds: number;
-}
+};
 
 const lines = (s: string) => s.split(/\r?\n/).map((x) => x.trim()).filter(Boolean);
 const terms = (s: string) => s.split(/[,\n]/).map((x) => x.trim()).filter(Boolean);
