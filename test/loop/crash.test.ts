@@ -21,7 +21,8 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
 
   const worker = (env: Record<string, string> = {}) => {
     // A short lock: a killed worker's job is taken over within seconds.
-    const w = spawnApp('worker', s.config, { JOB_LOCK_SECONDS: '3', SCORING_CHUNK_SIZE: '250', ...env });
+    // A short lock, so a killed worker's job is taken over quickly; long enough that a busy machine does not lose it.
+    const w = spawnApp('worker', s.config, { JOB_LOCK_SECONDS: '8', SCORING_CHUNK_SIZE: '250', ...env });
     workers.push(w);
     return w;
   };

@@ -91,12 +91,14 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     await work(async () => ++n % 20 === 0 && randomShown >= 60 && (await published()) >= 2);
     // Then a stretch without retraining, so the next version's period holds a known batch of verdicts…
     expect((await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { retrainEvery: 100_000, retrainAfterSeconds: 86_400 })).status).toBe(200);
-    await new Promise((r) => setTimeout(r, 1000));
+    // Past the desk settings cache (2 s), so no verdict of the stretch is scheduled under the old settings.
+    await new Promise((r) => setTimeout(r, 2100));
     await s.waitForQueuesIdle(180_000, { ignoreDelayed: true });
     const start = randomShown;
     await work(() => randomShown >= start + 80);
     // …and one version learning from it: the next verdict finds enough new ones and asks for the retrain at once.
     expect((await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { retrainEvery: 50, retrainAfterSeconds: 3 })).status).toBe(200);
+    await new Promise((r) => setTimeout(r, 2100));
     let one = 0;
     await work(() => ++one >= 1);
     await new Promise((r) => setTimeout(r, 1000));
