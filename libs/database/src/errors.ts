@@ -1,6 +1,11 @@
+/** The driver's error code of a database error (TypeORM wraps it as `driverError`), if any. */
+export function dbErrorCode(e: unknown): string | undefined {
+  const err = e as { code?: string; driverError?: { code?: string } } | null | undefined;
+  return err?.driverError?.code ?? err?.code;
+}
+
 /** True when a database error is a unique-constraint violation (either database). */
 export function isUniqueViolation(e: unknown): boolean {
-  const err = e as { code?: string; driverError?: { code?: string } };
-  const code = err?.driverError?.code ?? err?.code;
+  const code = dbErrorCode(e);
   return code === '23505' || code === 'SQLITE_CONSTRAINT_UNIQUE' || /UNIQUE constraint failed/.test(String((e as Error)?.message));
 }

@@ -14,6 +14,6 @@ export { LeaseEntity, DRAW_KINDS, TRIAGE_CALLS, type DrawKind, type TriageCall, 
 export { VerdictEntity } from './entities/verdict.entity.js';
 export { AuditEventEntity } from './entities/audit-event.entity.js';
 export { ModelVersionEntity, MODEL_STATES, type ModelState, type VerdictSetSummary } from './entities/model-version.entity.js';
-export { isUniqueViolation } from './errors.js';
+export { dbErrorCode, isUniqueViolation } from './errors.js';
 export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
 export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';

@@ -3,7 +3,7 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, DeskDirectory, LeaseEntity, type DeskEntity, type DrawKind, type ShownPrediction } from '#database';
+import { Database, dbErrorCode, DeskDirectory, LeaseEntity, type DeskEntity, type DrawKind, type ShownPrediction } from '#database';
 import { cosineSimilarity } from '#learning';
 import { PredictionsService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
@@ -130,8 +130,7 @@ export class LeasesService {
       });
     } catch (e) {
       // 55P03 lock_not_available: the pool stayed held past the timeout; answer "nothing now" as before.
-      const err = e as { code?: string; driverError?: { code?: string } };
-      if ((err.driverError?.code ?? err.code) === '55P03') return false;
+      if (dbErrorCode(e) === '55P03') return false;
       throw e;
     }
   }
