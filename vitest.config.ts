@@ -8,7 +8,15 @@ const root = fileURLToPath(new URL('.', import.meta.url));
 // reads; SWC keeps it. The `#name` subpath imports point at build output for
 // Node; here they resolve to the TypeScript sources.
 export default defineConfig({
-  plugins: [swc.vite({ jsc: { target: 'es2022', parser: { syntax: 'typescript', decorators: true }, transform: { legacyDecorator: true, decoratorMetadata: true, useDefineForClassFields: false } } })],
+  plugins: [
+    swc.vite({
+      jsc: {
+        target: 'es2022',
+        parser: { syntax: 'typescript', decorators: true },
+        transform: { legacyDecorator: true, decoratorMetadata: true, useDefineForClassFields: false },
+      },
+    }),
+  ],
   resolve: {
     alias: [{ find: /^#([a-z-]+)$/, replacement: `${root}libs/$1/src/index.ts` }],
   },

@@ -28,7 +28,11 @@ export function split602020(n: number, seed: number): { train: number[]; calibra
   );
   const nTrain = Math.round(0.6 * n);
   const nCal = Math.round(0.2 * n);
-  return { train: order.slice(0, nTrain), calibration: order.slice(nTrain, nTrain + nCal), test: order.slice(nTrain + nCal) };
+  return {
+    train: order.slice(0, nTrain),
+    calibration: order.slice(nTrain, nTrain + nCal),
+    test: order.slice(nTrain + nCal),
+  };
 }
 
 /** Hashed counts of every text. */
@@ -37,7 +41,11 @@ export function countAll(featurizer: Featurizer, data: readonly LabelledText[]):
 }
 
 /** tf-idf of every item with idf learned from the rows `idfRows`. */
-export function tfidfAll(counts: readonly SparseVector[], idfRows: readonly number[], hashBits: number): SparseVector[] {
+export function tfidfAll(
+  counts: readonly SparseVector[],
+  idfRows: readonly number[],
+  hashBits: number,
+): SparseVector[] {
   const idf = IdfTable.create(hashBits);
   for (const i of idfRows) idf.addDocument(counts[i]);
   return counts.map((c) => tfidf(c, idf));
@@ -61,7 +69,13 @@ export function timedTrain(
 }
 
 /** Macro-F1 of a model on `rows`. */
-export function macroF1On(model: LogisticModel, vectors: readonly SparseVector[], data: readonly LabelledText[], rows: readonly number[], categories: readonly string[]): number {
+export function macroF1On(
+  model: LogisticModel,
+  vectors: readonly SparseVector[],
+  data: readonly LabelledText[],
+  rows: readonly number[],
+  categories: readonly string[],
+): number {
   const index = new Map(categories.map((c, i) => [c, i]));
   const truth = rows.map((i) => index.get(data[i].label)!);
   const predicted = rows.map((i) => index.get(model.predict(vectors[i]))!);

@@ -62,19 +62,34 @@ print(json.dumps({
 }))
 `;
 
-function runSklearn(dataPath: string, splitPath: string): { ok: true; result: Record<string, unknown> } | { ok: false; reason: string } {
-  const probe = spawnSync(PYTHON, ['-c', 'import sklearn, scipy, numpy; print(sklearn.__version__)'], { encoding: 'utf8' });
+function runSklearn(
+  dataPath: string,
+  splitPath: string,
+): { ok: true; result: Record<string, unknown> } | { ok: false; reason: string } {
+  const probe = spawnSync(PYTHON, ['-c', 'import sklearn, scipy, numpy; print(sklearn.__version__)'], {
+    encoding: 'utf8',
+  });
   if (probe.error || probe.status !== 0) {
     const why = probe.error ? probe.error.message : probe.stderr.trim().split('\n').at(-1);
-    return { ok: false, reason: `scikit-learn is not available to ${PYTHON} (${why}); install it with: apt-get install -y python3-sklearn` };
+    return {
+      ok: false,
+      reason: `scikit-learn is not available to ${PYTHON} (${why}); install it with: apt-get install -y python3-sklearn`,
+    };
   }
   const dir = mkdtempSync(join(tmpdir(), 'sklearn-bench-'));
   try {
     const script = join(dir, 'bench.py');
     writeFileSync(script, SCRIPT);
-    const run = spawnSync(PYTHON, [script, dataPath, splitPath, String(RUNS)], { encoding: 'utf8', maxBuffer: 1 << 24 });
-    if (run.status !== 0) return { ok: false, reason: `the scikit-learn script failed: ${run.stderr.trim().split('\n').slice(-3).join(' | ')}` };
-    return { ok: true, result: JSON.parse(run.stdout.trim().split('\n').at(-1)!) };
+    const run = spawnSync(PYTHON, [script, dataPath, splitPath, String(RUNS)], {
+      encoding: 'utf8',
+      maxBuffer: 1 << 24,
+    });
+    if (run.status !== 0)
+      return {
+        ok: false,
+        reason: `the scikit-learn script failed: ${run.stderr.trim().split('\n').slice(-3).join(' | ')}`,
+      };
+    return { ok: true, result: JSON.parse(run.stdout.trim().split('\n').at(-1)!) as Record<string, unknown> };
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
@@ -117,7 +132,12 @@ const round = (x: number, d = 3): number => Number(x.toFixed(d));
 const pair = (mine: number, theirs: number | undefined, higherIsBetter: boolean) =>
   theirs === undefined
     ? { ours: round(mine) }
-    : { ours: round(mine), sklearn: round(theirs), ratio: round(mine / theirs), better: higherIsBetter ? mine > theirs : mine < theirs };
+    : {
+        ours: round(mine),
+        sklearn: round(theirs),
+        ratio: round(mine / theirs),
+        better: higherIsBetter ? mine > theirs : mine < theirs,
+      };
 
 const s = sk.ok ? (sk.result as Record<string, number>) : undefined;
 const output = {
@@ -126,9 +146,13 @@ const output = {
   featurizeDocsPerSec: pair(ours.featurizeDocsPerSec, s?.featurizeDocsPerSec, true),
   trainMs2000: pair(ours.trainMs2000, s?.trainMs2000, false),
   trainMsFullTrainSplit: pair(ours.trainMsFull, s?.trainMsFull, false),
-  macroF1: s === undefined ? { ours: round(ours.macroF1, 4) } : { ours: round(ours.macroF1, 4), sklearn: round(s.macroF1, 4), difference: round(ours.macroF1 - s.macroF1, 4) },
+  macroF1:
+    s === undefined
+      ? { ours: round(ours.macroF1, 4) }
+      : { ours: round(ours.macroF1, 4), sklearn: round(s.macroF1, 4), difference: round(ours.macroF1 - s.macroF1, 4) },
   notes: {
-    featurize: 'hashed counts only (no tf-idf), single thread, best of 3 passes over all messages; scikit-learn: two HashingVectorizers (word 1-2, char_wb 3-5) summed into 2^18 buckets',
+    featurize:
+      'hashed counts only (no tf-idf), single thread, best of 3 passes over all messages; scikit-learn: two HashingVectorizers (word 1-2, char_wb 3-5) summed into 2^18 buckets',
     train: `median of ${RUNS} fits on the first ${TRAIN_N} training items; scikit-learn LogisticRegression() defaults (lbfgs, L2, C=1)`,
     macroF1: 'models fitted on the whole training split, measured on the test split',
     sklearnIterations: s === undefined ? null : (sk as { result: Record<string, unknown> }).result.iterationsFull,

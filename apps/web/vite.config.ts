@@ -9,5 +9,11 @@ export default defineConfig({
   base: '/',
   logLevel: 'warn',
   oxc: { jsx: { runtime: 'automatic', importSource: 'preact' } },
-  build: { outDir: fileURLToPath(new URL('../../dist/web', import.meta.url)), emptyOutDir: true, sourcemap: true, target: 'es2022', assetsInlineLimit: 0 },
+  build: {
+    outDir: fileURLToPath(new URL('../../dist/web', import.meta.url)),
+    emptyOutDir: true,
+    sourcemap: true,
+    target: 'es2022',
+    assetsInlineLimit: 0,
+  },
 });

@@ -21,7 +21,7 @@ interface Reading {
 
 function machineSeconds(): { busy: number; total: number } | null {
   try {
-    const line = readFileSync('/proc/stat', 'utf8').split('\n', 1)[0]!;
+    const line = readFileSync('/proc/stat', 'utf8').split('\n', 1)[0];
     const f = line.trim().split(/\s+/).slice(1).map(Number);
     // user nice system idle iowait irq softirq steal …
     const idle = (f[3] ?? 0) + (f[4] ?? 0);
@@ -49,7 +49,8 @@ function postgresSeconds(): number | null {
     for (const entry of readdirSync('/proc')) {
       if (!/^\d+$/.test(entry)) continue;
       try {
-        if (readFileSync(`/proc/${entry}/comm`, 'utf8').trim() === 'postgres') sum += processSeconds(Number(entry)) ?? 0;
+        if (readFileSync(`/proc/${entry}/comm`, 'utf8').trim() === 'postgres')
+          sum += processSeconds(Number(entry)) ?? 0;
       } catch {
         // the process ended meanwhile
       }
@@ -62,7 +63,13 @@ function postgresSeconds(): number | null {
 
 export function readCpu(apiPid: number | undefined): Reading {
   const u = process.cpuUsage();
-  return { at: performance.now(), machine: machineSeconds(), api: apiPid === undefined ? null : processSeconds(apiPid), postgres: postgresSeconds(), self: (u.user + u.system) / 1e6 };
+  return {
+    at: performance.now(),
+    machine: machineSeconds(),
+    api: apiPid === undefined ? null : processSeconds(apiPid),
+    postgres: postgresSeconds(),
+    self: (u.user + u.system) / 1e6,
+  };
 }
 
 /** CPU use between two readings, in cores (1.0 = one core fully busy). */

@@ -6,7 +6,14 @@
 import { setTimeout as sleep } from 'node:timers/promises';
 
 /** Calls the API with a bearer token and returns the parsed JSON body; fails on an unexpected status. */
-export async function api<T>(baseUrl: string, token: string, method: string, path: string, body?: unknown, expect: number[] = [200, 201, 202]): Promise<T> {
+export async function api<T>(
+  baseUrl: string,
+  token: string,
+  method: string,
+  path: string,
+  body?: unknown,
+  expect: number[] = [200, 201, 202],
+): Promise<T> {
   const isBuffer = Buffer.isBuffer(body);
   const res = await fetch(`${baseUrl}${path}`, {
     method,
@@ -51,10 +58,10 @@ const WORDS = (
  */
 export function ndjsonPool(count: number, seed = 20_240_601): Buffer {
   const rand = mulberry32(seed);
-  const lines: string[] = new Array(count);
+  const lines = new Array<string>(count);
   for (let i = 0; i < count; i++) {
     const n = 8 + Math.floor(rand() * 17);
-    const words: string[] = new Array(n);
+    const words = new Array<string>(n);
     for (let w = 0; w < n; w++) words[w] = WORDS[Math.floor(rand() * WORDS.length)]!;
     lines[i] = JSON.stringify({ text: `${words.join(' ')} (post ${i + 1})` });
   }
@@ -80,7 +87,13 @@ export async function importPool(
   onProgress: (v: ImportView) => void,
 ): Promise<ImportView & { seconds: number }> {
   const t0 = performance.now();
-  const { importId } = await api<{ importId: string }>(baseUrl, supervisorToken, 'POST', `/api/desks/${deskId}/imports`, body);
+  const { importId } = await api<{ importId: string }>(
+    baseUrl,
+    supervisorToken,
+    'POST',
+    `/api/desks/${deskId}/imports`,
+    body,
+  );
   let lastReport = t0;
   while (performance.now() - t0 < timeoutMs) {
     const view = await api<ImportView>(baseUrl, supervisorToken, 'GET', `/api/imports/${importId}`);

@@ -46,8 +46,15 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
   const measureFrom = start + o.warmupS * 1000;
   const endAt = measureFrom + o.durationS * 1000;
   const result: LoadResult = {
-    durationS: o.durationS, roundTrips: 0, lease: new Samples(), verdict: new Samples(),
-    errors: 0, warmupErrors: 0, errorsByKind: {}, emptyPool: 0, cpu: null,
+    durationS: o.durationS,
+    roundTrips: 0,
+    lease: new Samples(),
+    verdict: new Samples(),
+    errors: 0,
+    warmupErrors: 0,
+    errorsByKind: {},
+    emptyPool: 0,
+    cpu: null,
   };
   let cpuAtStart: ReturnType<typeof readCpu> | null = null;
   const cpuStart = setTimeout(() => (cpuAtStart = readCpu(o.apiPid)), measureFrom - performance.now());
@@ -85,18 +92,33 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
         if (lease.status !== 201) {
           fail(`lease ${lease.status}`, lease.t0);
           consecutiveFailures++;
-          if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES) throw new Error(`reviewer ${index}: ${consecutiveFailures} failures in a row, last: lease HTTP ${lease.status} ${lease.text.slice(0, 300)}`);
+          if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES)
+            throw new Error(
+              `reviewer ${index}: ${consecutiveFailures} failures in a row, last: lease HTTP ${lease.status} ${lease.text.slice(0, 300)}`,
+            );
           continue;
         }
         const grant = JSON.parse(lease.text) as Grant;
         phase = 'verdict';
-        const category = o.categories[(index + n) % o.categories.length]!;
-        const verdict = await call(verdictUrl, json, JSON.stringify({ leaseId: grant.lease.id, itemId: grant.item.id, category, clientId: `bench-${index}-${n}-${randomUUID()}` }));
+        const category = o.categories[(index + n) % o.categories.length];
+        const verdict = await call(
+          verdictUrl,
+          json,
+          JSON.stringify({
+            leaseId: grant.lease.id,
+            itemId: grant.item.id,
+            category,
+            clientId: `bench-${index}-${n}-${randomUUID()}`,
+          }),
+        );
         if (verdict.t0 >= measureFrom) result.verdict.add(verdict.ms);
         if (verdict.status !== 201) {
           fail(`verdict ${verdict.status}`, verdict.t0);
           consecutiveFailures++;
-          if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES) throw new Error(`reviewer ${index}: ${consecutiveFailures} failures in a row, last: verdict HTTP ${verdict.status} ${verdict.text.slice(0, 300)}`);
+          if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES)
+            throw new Error(
+              `reviewer ${index}: ${consecutiveFailures} failures in a row, last: verdict HTTP ${verdict.status} ${verdict.text.slice(0, 300)}`,
+            );
           continue;
         }
         consecutiveFailures = 0;
@@ -106,7 +128,10 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
         if (e instanceof Error && e.message.startsWith(`reviewer ${index}:`)) throw e;
         fail(`${phase} network`, performance.now());
         consecutiveFailures++;
-        if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES) throw new Error(`reviewer ${index}: ${consecutiveFailures} failures in a row, last: ${String(e)}`);
+        if (consecutiveFailures >= MAX_CONSECUTIVE_FAILURES)
+          throw new Error(`reviewer ${index}: ${consecutiveFailures} failures in a row, last: ${String(e)}`, {
+            cause: e,
+          });
       }
     }
   };

@@ -43,7 +43,12 @@ function forward(stream: NodeJS.ReadableStream | null, prefix: string): void {
 }
 
 /** Starts `node <script>` with the given environment; its output goes to our stderr. */
-export function startService(name: string, script: string, env: Record<string, string>, nodeArgs: string[] = []): Service {
+export function startService(
+  name: string,
+  script: string,
+  env: Record<string, string>,
+  nodeArgs: string[] = [],
+): Service {
   const child = spawn(process.execPath, [...nodeArgs, script], { env, stdio: ['ignore', 'pipe', 'pipe'] });
   forward(child.stdout, name);
   forward(child.stderr, name);
@@ -70,10 +75,11 @@ export async function stopService(service: Service, graceMs = 10_000): Promise<v
 /** Polls `GET /readyz` until it answers 200; fails when the process dies or `timeoutMs` passes. */
 export async function waitReady(service: Service, baseUrl: string, timeoutMs = 60_000): Promise<void> {
   const deadline = performance.now() + timeoutMs;
-  let died: string | null = null;
-  void service.exited.then((how) => (died = how));
+  // Filled in by the callback when the process ends.
+  const exit: { how: string | null } = { how: null };
+  void service.exited.then((how) => (exit.how = how));
   while (performance.now() < deadline) {
-    if (died !== null) throw new Error(`${service.name} exited (${died}) before it was ready`);
+    if (exit.how !== null) throw new Error(`${service.name} exited (${exit.how}) before it was ready`);
     try {
       const res = await fetch(`${baseUrl}/readyz`);
       await res.arrayBuffer();
@@ -87,7 +93,12 @@ export async function waitReady(service: Service, baseUrl: string, timeoutMs = 6
 }
 
 /** Runs a CLI command to completion and returns its stdout; fails on a non-zero exit or after `timeoutMs`. */
-export async function runCli(script: string, args: string[], env: Record<string, string>, timeoutMs = 60_000): Promise<string> {
+export async function runCli(
+  script: string,
+  args: string[],
+  env: Record<string, string>,
+  timeoutMs = 60_000,
+): Promise<string> {
   const child = spawn(process.execPath, [script, ...args], { env, stdio: ['ignore', 'pipe', 'pipe'] });
   let out = '';
   child.stdout.setEncoding('utf8');

@@ -22,10 +22,16 @@ export class Samples {
   summary(): { p50: number | null; p95: number | null; p99: number | null; max: number | null; mean: number | null } {
     if (this.n === 0) return { p50: null, p95: null, p99: null, max: null, mean: null };
     const sorted = this.values.slice(0, this.n).sort();
-    const rank = (p: number) => round2(sorted[Math.max(0, Math.ceil((p / 100) * this.n) - 1)]!);
+    const rank = (p: number) => round2(sorted[Math.max(0, Math.ceil((p / 100) * this.n) - 1)]);
     let sum = 0;
     for (const v of sorted) sum += v;
-    return { p50: rank(50), p95: rank(95), p99: rank(99), max: round2(sorted[this.n - 1]!), mean: round2(sum / this.n) };
+    return {
+      p50: rank(50),
+      p95: rank(95),
+      p99: rank(99),
+      max: round2(sorted[this.n - 1]),
+      mean: round2(sum / this.n),
+    };
   }
 }
 

@@ -30,16 +30,24 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
     for (const itemId of desk.itemIds) {
       // 1 to 4 reviewers per item; a "true" category that each reviewer follows 70 % of the time.
       const k = 1 + Math.floor(rng.next() * 4);
-      const truth = CATEGORIES[Math.floor(rng.next() * 3)]!;
+      const truth = CATEGORIES[Math.floor(rng.next() * 3)];
       for (const r of REVIEWERS.slice(0, k)) {
         const roll = rng.next();
-        if (roll < 0.08) { rows.push({ itemId, reviewerId: ids[r]!, categoryId: null }); continue; }
-        const cat = roll < 0.7 ? truth : CATEGORIES[Math.floor(rng.next() * 3)]!;
+        if (roll < 0.08) {
+          rows.push({ itemId, reviewerId: ids[r], categoryId: null });
+          continue;
+        }
+        const cat = roll < 0.7 ? truth : CATEGORIES[Math.floor(rng.next() * 3)];
         if (roll > 0.95) {
           // An undone verdict, then its live replacement: only the replacement counts.
-          rows.push({ itemId, reviewerId: ids[r]!, categoryId: desk.categoryIds[cat === 'ok' ? 'threat' : 'ok']!, undone: true });
+          rows.push({
+            itemId,
+            reviewerId: ids[r],
+            categoryId: desk.categoryIds[cat === 'ok' ? 'threat' : 'ok'],
+            undone: true,
+          });
         }
-        rows.push({ itemId, reviewerId: ids[r]!, categoryId: desk.categoryIds[cat]! });
+        rows.push({ itemId, reviewerId: ids[r], categoryId: desk.categoryIds[cat] });
         const m = live.get(itemId) ?? new Map<string, string>();
         m.set(r, cat);
         live.set(itemId, m);
@@ -47,13 +55,16 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
     }
     await insertVerdicts(s.db, deskId, rows);
   });
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('equals the coefficients computed here from the same verdicts', async () => {
     const res = await s.call(auditor, 'GET', `/api/desks/${deskId}/agreement`);
     expect(res.status).toBe(200);
     const a = res.body;
-    const items = [...live.entries()].filter(([, m]) => m.size >= 2).sort((x, y) => x[0] - y[0]).map(([, m]) => m);
+    const items = [...live.entries()]
+      .filter(([, m]) => m.size >= 2)
+      .sort((x, y) => x[0] - y[0])
+      .map(([, m]) => m);
     expect(a.items).toBe(items.length);
     expect(a.verdicts).toBe(items.reduce((n, m) => n + m.size, 0));
     expect(a.reviewers).toBe(REVIEWERS.length);
@@ -61,11 +72,17 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
     // Cohen's kappa for every pair that shares items.
     for (let i = 0; i < REVIEWERS.length; i++) {
       for (let j = i + 1; j < REVIEWERS.length; j++) {
-        const [x, y] = [REVIEWERS[i]!, REVIEWERS[j]!];
+        const [x, y] = [REVIEWERS[i], REVIEWERS[j]];
         const shared = items.filter((m) => m.has(x) && m.has(y));
         const pair = a.cohen.find((p: { reviewers: string[] }) => p.reviewers[0] === x && p.reviewers[1] === y);
-        if (shared.length === 0) { expect(pair).toBeUndefined(); continue; }
-        const k = cohenKappa(shared.map((m) => m.get(x)!), shared.map((m) => m.get(y)!));
+        if (shared.length === 0) {
+          expect(pair).toBeUndefined();
+          continue;
+        }
+        const k = cohenKappa(
+          shared.map((m) => m.get(x)!),
+          shared.map((m) => m.get(y)!),
+        );
         expect(pair.items).toBe(shared.length);
         expect(Math.abs(pair.kappa - k.kappa)).toBeLessThan(TOL);
       }
@@ -74,7 +91,7 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
     // Fleiss' kappa over the items with the most common number of verdicts.
     const sizes = new Map<number, number>();
     for (const m of items) sizes.set(m.size, (sizes.get(m.size) ?? 0) + 1);
-    const modal = [...sizes.entries()].sort((p, q) => q[1] - p[1] || q[0] - p[0])[0]![0];
+    const modal = [...sizes.entries()].sort((p, q) => q[1] - p[1] || q[0] - p[0])[0][0];
     const used = items.filter((m) => m.size === modal);
     const f = fleissKappa(used.map((m) => CATEGORIES.map((c) => [...m.values()].filter((v) => v === c).length)));
     expect(a.fleiss.verdictsPerItem).toBe(modal);
@@ -82,7 +99,7 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
     expect(a.fleiss.itemsLeftOut).toBe(items.length - used.length);
     expect(Math.abs(a.fleiss.kappa - f.kappa)).toBeLessThan(TOL);
     expect(a.fleiss.unequalVerdicts).toMatch(/most common number/);
-    CATEGORIES.forEach((c, j) => expect(Math.abs(a.perCategory[j].fleissKappa - f.perCategory[j]!)).toBeLessThan(TOL));
+    CATEGORIES.forEach((c, j) => expect(Math.abs(a.perCategory[j].fleissKappa - f.perCategory[j])).toBeLessThan(TOL));
 
     // Krippendorff's alpha over every item, reviewers as observers, abstentions missing.
     const table = items.map((m) => REVIEWERS.map((r) => m.get(r) ?? null));
@@ -99,14 +116,18 @@ describe.each(DATABASE_KINDS)('agreement between reviewers on %s', (kind) => {
   });
 
   it('gives byte-identical JSON for the same data', async () => {
-    const one = await fetch(`${s.base}/api/desks/${deskId}/agreement`, { headers: { authorization: `Bearer ${sup}` } }).then((r) => r.text());
-    const two = await fetch(`${s.base}/api/desks/${deskId}/agreement`, { headers: { authorization: `Bearer ${sup}` } }).then((r) => r.text());
+    const one = await fetch(`${s.base}/api/desks/${deskId}/agreement`, {
+      headers: { authorization: `Bearer ${sup}` },
+    }).then((r) => r.text());
+    const two = await fetch(`${s.base}/api/desks/${deskId}/agreement`, {
+      headers: { authorization: `Bearer ${sup}` },
+    }).then((r) => r.text());
     expect(one).toBe(two);
     expect(one.length).toBeGreaterThan(200);
   });
 
   it('answers 404 for an unknown desk and 403 for a reviewer', async () => {
     expect((await s.call(sup, 'GET', '/api/desks/9999/agreement')).status).toBe(404);
-    expect((await s.call(s.tokens.ash!, 'GET', `/api/desks/${deskId}/agreement`)).status).toBe(403);
+    expect((await s.call(s.tokens.ash, 'GET', `/api/desks/${deskId}/agreement`)).status).toBe(403);
   });
 });

@@ -17,19 +17,29 @@ describe('a lease while every open item is held by another transaction (PostgreS
     s = await startStack('postgres', { worker: true });
     const sup = await s.user('sup', 'supervisor');
     rev = await s.user('rev', 'reviewer');
-    deskId = (await s.call(sup, 'POST', '/api/desks', { name: 'held', categories: ['a', 'b'], secondOpinionShare: 0 })).body.id;
+    deskId = (await s.call(sup, 'POST', '/api/desks', { name: 'held', categories: ['a', 'b'], secondOpinionShare: 0 }))
+      .body.id;
     const body = Array.from({ length: 200 }, (_, i) => JSON.stringify({ text: `post number ${i}` })).join('\n');
-    const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, { 'content-type': 'application/x-ndjson' });
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000);
+    const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, {
+      'content-type': 'application/x-ndjson',
+    });
+    await eventually(
+      async () =>
+        (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+      60_000,
+    );
   }, 120_000);
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('waits for the transaction and then leases an item', async () => {
     const holder = new pg.Client({ connectionString: (s.config.database as { url: string }).url });
     await holder.connect();
     try {
       await holder.query('BEGIN');
-      const held = await holder.query(`UPDATE items SET priority = priority + 1 WHERE desk_id = $1 AND state = 'open'`, [deskId]);
+      const held = await holder.query(
+        `UPDATE items SET priority = priority + 1 WHERE desk_id = $1 AND state = 'open'`,
+        [deskId],
+      );
       expect(held.rowCount).toBe(200);
       const asked = Date.now();
       const pending = s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
@@ -44,7 +54,7 @@ describe('a lease while every open item is held by another transaction (PostgreS
   });
 
   it('still answers 204 at once when the pool is truly empty', async () => {
-    const sup = s.tokens.sup!;
+    const sup = s.tokens.sup;
     const empty = (await s.call(sup, 'POST', '/api/desks', { name: 'empty', categories: ['a', 'b'] })).body.id;
     const t0 = Date.now();
     expect((await s.call(rev, 'POST', `/api/desks/${empty}/leases`)).status).toBe(204);

@@ -16,13 +16,19 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
     s = await startStack(kind);
     desk = await webDesk(s, { pool: 300, verdicts: 60, extraTexts: [QUOTED] });
   }, 180_000);
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   /** Every open item with its prediction, through the paged JSON route the screens use. */
   async function pagedItems() {
-    const out: Array<{ id: number; externalId: string; prediction: { set: string[]; call: string; probabilities: Record<string, number> } }> = [];
+    const out: Array<{
+      id: number;
+      externalId: string;
+      prediction: { set: string[]; call: string; probabilities: Record<string, number> };
+    }> = [];
     for (let cursor: string | null = null; ;) {
-      const page: { items: typeof out; nextCursor: string | null } = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/items?limit=500${cursor ? `&cursor=${cursor}` : ''}`)).body;
+      const page: { items: typeof out; nextCursor: string | null } = (
+        await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/items?limit=500${cursor ? `&cursor=${cursor}` : ''}`)
+      ).body;
       out.push(...page.items);
       cursor = page.nextCursor;
       if (!cursor) return out;
@@ -32,30 +38,54 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
   it('streams every open item as CSV (RFC 4180) and NDJSON, agreeing with the items route', async () => {
     const items = await pagedItems();
     expect(items.length).toBeGreaterThan(200);
-    const csvRes = await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.csv`, { headers: { authorization: `Bearer ${desk.sup}` } });
+    const csvRes = await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.csv`, {
+      headers: { authorization: `Bearer ${desk.sup}` },
+    });
     expect(csvRes.status).toBe(200);
     expect(csvRes.headers.get('content-type')).toMatch(/^text\/csv/);
-    expect(csvRes.headers.get('content-disposition')).toBe(`attachment; filename="desk-${desk.deskId}-predictions.csv"`);
+    expect(csvRes.headers.get('content-disposition')).toBe(
+      `attachment; filename="desk-${desk.deskId}-predictions.csv"`,
+    );
     const csv = await csvRes.text();
     expect(csv.endsWith('\r\n')).toBe(true);
-    const records = parse(csv, { columns: true }) as Array<Record<string, string>>;
+    const records = parse<Record<string, string>>(csv, { columns: true });
     expect(records).toHaveLength(items.length);
-    const ndjson = (await (await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.ndjson`, { headers: { authorization: `Bearer ${desk.sup}` } })).text()).trim().split('\n').map((l) => JSON.parse(l));
+    const ndjson = (
+      await (
+        await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.ndjson`, {
+          headers: { authorization: `Bearer ${desk.sup}` },
+        })
+      ).text()
+    )
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     expect(ndjson).toHaveLength(items.length);
     for (const [i, item] of items.entries()) {
-      expect(Number(records[i]!.item_id)).toBe(item.id);
-      expect(records[i]!.set).toBe(item.prediction.set.join('|'));
-      expect(records[i]!.call).toBe(item.prediction.call);
-      expect(Number(records[i]!.p_threat)).toBeCloseTo(item.prediction.probabilities.threat!, 12);
-      expect(ndjson[i]).toMatchObject({ itemId: item.id, externalId: item.externalId, set: item.prediction.set, call: item.prediction.call });
+      expect(Number(records[i].item_id)).toBe(item.id);
+      expect(records[i].set).toBe(item.prediction.set.join('|'));
+      expect(records[i].call).toBe(item.prediction.call);
+      expect(Number(records[i].p_threat)).toBeCloseTo(item.prediction.probabilities.threat, 12);
+      expect(ndjson[i]).toMatchObject({
+        itemId: item.id,
+        externalId: item.externalId,
+        set: item.prediction.set,
+        call: item.prediction.call,
+      });
     }
   });
 
   it('quotes texts with commas, quotes and line breaks so they read back unchanged', async () => {
-    const csv = await (await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.csv`, { headers: { authorization: `Bearer ${desk.sup}` } })).text();
-    const rows = (parse(csv, { columns: true }) as Array<Record<string, string>>).filter((r) => r.external_id === 'extra-0');
+    const csv = await (
+      await fetch(`${s.base}/api/desks/${desk.deskId}/predictions.csv`, {
+        headers: { authorization: `Bearer ${desk.sup}` },
+      })
+    ).text();
+    const rows = parse<Record<string, string>>(csv, { columns: true }).filter((r) => r.external_id === 'extra-0');
     // Still open (no reviewer was given it), unless the setup's verdicts happened to decide it.
-    const decided = (await s.db.query<{ state: string }>(null, `SELECT state FROM items WHERE external_id = 'extra-0'`, []))[0]!.state === 'decided';
+    const decided =
+      (await s.db.query<{ state: string }>(null, `SELECT state FROM items WHERE external_id = 'extra-0'`, []))[0]
+        .state === 'decided';
     expect(rows).toHaveLength(decided ? 0 : 1);
     if (rows[0]) expect(rows[0].text).toBe(QUOTED);
     const raw = csv.split('\r\n').find((l) => l.includes('she said'));
@@ -66,10 +96,10 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
     const [item] = await pagedItems();
     const entity = (await s.db.manager.findOneBy(DeskEntity, { id: desk.deskId }))!;
     const predictions = s.api.get(PredictionsService);
-    const text = (await s.db.query<{ text: string }>(null, 'SELECT text FROM items WHERE id = $1', [item!.id]))[0]!.text;
-    const stored = await predictions.forItem(null, entity, item!.id, text);
-    await s.db.query(null, 'DELETE FROM predictions WHERE item_id = $1', [item!.id]);
-    const computed = await predictions.forItem(null, entity, item!.id, text);
+    const text = (await s.db.query<{ text: string }>(null, 'SELECT text FROM items WHERE id = $1', [item.id]))[0].text;
+    const stored = await predictions.forItem(null, entity, item.id, text);
+    await s.db.query(null, 'DELETE FROM predictions WHERE item_id = $1', [item.id]);
+    const computed = await predictions.forItem(null, entity, item.id, text);
     expect(computed!.modelVersion).toBe(stored!.modelVersion);
     expect(computed!.set).toEqual(stored!.set);
     // Scoring reads the term counts kept at import, this path tokenises the text: the same numbers (to rounding).
@@ -79,7 +109,9 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
   it('answers 404 for an unknown desk and an empty export before any model', async () => {
     expect((await s.call(desk.sup, 'GET', '/api/desks/999999/predictions.csv')).status).toBe(404);
     const d = await s.call(desk.sup, 'POST', '/api/desks', { name: 'empty', categories: ['a', 'b'] });
-    const r = await fetch(`${s.base}/api/desks/${d.body.id}/predictions.ndjson`, { headers: { authorization: `Bearer ${desk.sup}` } });
+    const r = await fetch(`${s.base}/api/desks/${d.body.id}/predictions.ndjson`, {
+      headers: { authorization: `Bearer ${desk.sup}` },
+    });
     expect(r.status).toBe(200);
     expect(await r.text()).toBe('');
   });

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { eventually, startStack, type Stack } from '../support/stack.js';
+import type { DbInt } from '#database';
 
 describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
   let s: Stack;
@@ -14,31 +15,53 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     rev = await s.user('rev', 'reviewer');
     rev2 = await s.user('rev2', 'reviewer');
   });
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   /** A desk with the given texts imported; returns its id. */
   async function desk(name: string, texts: string[], settings: Record<string, unknown> = {}): Promise<number> {
     // No second opinions unless a test asks: these tests follow first draws item by item.
-    const r = await s.call(sup, 'POST', '/api/desks', { name, categories: ['threat', 'harassment', 'ok'], secondOpinionShare: 0, ...settings });
+    const r = await s.call(sup, 'POST', '/api/desks', {
+      name,
+      categories: ['threat', 'harassment', 'ok'],
+      secondOpinionShare: 0,
+      ...settings,
+    });
     expect(r.status).toBe(201);
     const body = texts.map((text) => JSON.stringify({ text })).join('\n');
-    const imp = await s.call(sup, 'POST', `/api/desks/${r.body.id}/imports`, body, { 'content-type': 'application/x-ndjson' });
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined));
+    const imp = await s.call(sup, 'POST', `/api/desks/${r.body.id}/imports`, body, {
+      'content-type': 'application/x-ndjson',
+    });
+    await eventually(async () =>
+      (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+    );
     return r.body.id;
   }
 
   const lease = (token: string, deskId: number) => s.call(token, 'POST', `/api/desks/${deskId}/leases`);
-  const decide = (token: string, deskId: number, l: any, extra: Record<string, unknown>) =>
+  /** What a lease answer holds that a verdict refers to. */
+  interface Grant {
+    lease: { id: string };
+    item: { id: number };
+  }
+  const decide = (token: string, deskId: number, l: Grant, extra: Record<string, unknown>) =>
     s.call(token, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id, ...extra });
 
   it('serves seed-term matches first, ranked by matches, with highlights, then says 204 when empty', async () => {
-    const id = await desk('seeds', ['a calm post', 'I will hurt you, I will find you', 'I will hurt you', 'another calm post'], {
-      seedTerms: { threat: ['hurt you', 'find you'] }, randomShare: 0,
-    });
+    const id = await desk(
+      'seeds',
+      ['a calm post', 'I will hurt you, I will find you', 'I will hurt you', 'another calm post'],
+      {
+        seedTerms: { threat: ['hurt you', 'find you'] },
+        randomShare: 0,
+      },
+    );
     const first = await lease(rev, id);
     expect(first.status).toBe(201);
     expect(first.body.item.text).toBe('I will hurt you, I will find you');
-    expect(first.body.highlights).toEqual([{ start: 7, end: 15, category: 'threat' }, { start: 24, end: 32, category: 'threat' }]);
+    expect(first.body.highlights).toEqual([
+      { start: 7, end: 15, category: 'threat' },
+      { start: 24, end: 32, category: 'threat' },
+    ]);
     expect(first.body.prediction).toBeNull();
     expect(first.body).not.toHaveProperty('draw');
     expect(JSON.stringify(first.body)).not.toMatch(/seed"|random"|uncertainty/);
@@ -48,9 +71,15 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     // (they train the first model; only the random share calibrates).
     const third = await lease(rev, id);
     const fourth = await lease(rev, id);
-    expect(new Set([third.body.item.text, fourth.body.item.text])).toEqual(new Set(['a calm post', 'another calm post']));
+    expect(new Set([third.body.item.text, fourth.body.item.text])).toEqual(
+      new Set(['a calm post', 'another calm post']),
+    );
     expect((await lease(rev, id)).status).toBe(204);
-    const draws = await s.db.query<{ draw: string }>(null, 'SELECT draw FROM leases WHERE desk_id = $1 ORDER BY created_at, id', [id]);
+    const draws = await s.db.query<{ draw: string }>(
+      null,
+      'SELECT draw FROM leases WHERE desk_id = $1 ORDER BY created_at, id',
+      [id],
+    );
     expect(draws.map((d) => d.draw)).toEqual(['seed', 'seed', 'seed', 'seed']);
   });
 
@@ -59,11 +88,23 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     const l = (await lease(rev, id)).body;
     const v1 = await decide(rev, id, l, { category: 'ok', clientId: 'k-1', elapsedMs: 4200, note: 'fine' });
     expect(v1.status).toBe(201);
-    expect(v1.body.verdict).toMatchObject({ category: 'ok', abstain: false, elapsedMs: 4200, note: 'fine', modelVersion: null, shownSet: null, shownCall: null });
+    expect(v1.body.verdict).toMatchObject({
+      category: 'ok',
+      abstain: false,
+      elapsedMs: 4200,
+      note: 'fine',
+      modelVersion: null,
+      shownSet: null,
+      shownCall: null,
+    });
     const v2 = await decide(rev, id, l, { category: 'ok', clientId: 'k-1', elapsedMs: 4200 });
     expect(v2.status).toBe(200);
     expect(v2.body.verdict.id).toBe(v1.body.verdict.id);
-    const [{ n }] = await s.db.query<{ n: string | number }>(null, 'SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1', [id]);
+    const [{ n }] = await s.db.query<{ n: string | number }>(
+      null,
+      'SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1',
+      [id],
+    );
     expect(Number(n)).toBe(1);
     const reuse = await decide(rev, id, (await lease(rev, id)).body, { category: 'ok', clientId: 'k-1' });
     expect(reuse.status).toBe(409);
@@ -72,7 +113,7 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
 
   it('refuses bad verdicts with clear messages', async () => {
     const id = await desk('bad', ['x1', 'x2']);
-    const l = (await lease(rev, id)).body;
+    const l: Grant = (await lease(rev, id)).body;
     const unknown = await decide(rev, id, l, { category: 'spam', clientId: 'b-1' });
     expect(unknown.status).toBe(400);
     expect(unknown.body.message).toMatch(/unknown category "spam".*threat, harassment, ok/);
@@ -83,9 +124,18 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     expect(neither.body.message).toMatch(/exactly one of/);
     const foreign = await decide(rev2, id, l, { category: 'ok', clientId: 'b-4' });
     expect(foreign.status).toBe(403);
-    const wrongItem = await s.call(rev, 'POST', `/api/desks/${id}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id + 1, category: 'ok', clientId: 'b-5' });
+    const wrongItem = await s.call(rev, 'POST', `/api/desks/${id}/verdicts`, {
+      leaseId: l.lease.id,
+      itemId: l.item.id + 1,
+      category: 'ok',
+      clientId: 'b-5',
+    });
     expect(wrongItem.status).toBe(400);
-    const noClient = await s.call(rev, 'POST', `/api/desks/${id}/verdicts`, { leaseId: l.lease.id, itemId: l.item.id, category: 'ok' });
+    const noClient = await s.call(rev, 'POST', `/api/desks/${id}/verdicts`, {
+      leaseId: l.lease.id,
+      itemId: l.item.id,
+      category: 'ok',
+    });
     expect(noClient.status).toBe(400);
     const abstain = await decide(rev, id, l, { abstain: true, clientId: 'b-6' });
     expect(abstain.status).toBe(201);
@@ -99,7 +149,11 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     // Expire the lease by moving its time back (the shortest real lease is 30 s).
     const past = s.db.time(new Date(Date.now() - 1000));
     await s.db.query(null, 'UPDATE items SET leased_until = $1 WHERE id = $2', [past, l1.item.id]);
-    await s.db.query(null, 'UPDATE leases SET expires_at = $1, created_at = $2 WHERE id = $3', [past, s.db.time(new Date(Date.now() - 60_000)), l1.lease.id]);
+    await s.db.query(null, 'UPDATE leases SET expires_at = $1, created_at = $2 WHERE id = $3', [
+      past,
+      s.db.time(new Date(Date.now() - 60_000)),
+      l1.lease.id,
+    ]);
     // Expired but nobody took it: the late verdict is accepted.
     const late = await decide(rev, id, l1, { category: 'ok', clientId: 'late-1' });
     expect(late.status).toBe(201);
@@ -146,12 +200,20 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     }
     expect(served).toContain(l2.item.id);
     const trail = await s.call(sup, 'GET', `/api/audit?deskId=${id}`);
-    expect(trail.body.events.map((e: { action: string }) => e.action).filter((a: string) => a.startsWith('verdict.'))).toEqual(['verdict.undo', 'verdict.create', 'verdict.create']);
+    expect(
+      trail.body.events.map((e: { action: string }) => e.action).filter((a: string) => a.startsWith('verdict.')),
+    ).toEqual(['verdict.undo', 'verdict.create', 'verdict.create']);
     // Past the window: move the verdict's time back.
-    const l3 = (await lease(rev, (await desk('undo2', ['w1'])))).body;
-    const dId = l3 ? (await s.db.query<{ desk_id: number }>(null, 'SELECT desk_id FROM leases WHERE id = $1', [l3.lease.id]))[0]!.desk_id : 0;
+    const l3 = (await lease(rev, await desk('undo2', ['w1']))).body;
+    const dId = l3
+      ? (await s.db.query<{ desk_id: DbInt }>(null, 'SELECT desk_id FROM leases WHERE id = $1', [l3.lease.id]))[0]
+          .desk_id
+      : 0;
     const v3 = (await decide(rev, Number(dId), l3, { category: 'ok', clientId: 'u-3' })).body.verdict;
-    await s.db.query(null, 'UPDATE verdicts SET created_at = $1 WHERE id = $2', [s.db.time(new Date(Date.now() - 6 * 60_000)), v3.id]);
+    await s.db.query(null, 'UPDATE verdicts SET created_at = $1 WHERE id = $2', [
+      s.db.time(new Date(Date.now() - 6 * 60_000)),
+      v3.id,
+    ]);
     const tooLate = await s.call(rev, 'POST', `/api/verdicts/${v3.id}/undo`);
     expect(tooLate.status).toBe(409);
     expect(tooLate.body.message).toMatch(/undo window of 5 minutes/);
@@ -167,28 +229,53 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     const p = await s.call(rev, 'GET', `/api/desks/${id}/progress`);
     expect(p.status).toBe(200);
     expect(p.body.items).toEqual({ total: 4, open: 1, leased: 1, decided: 2 });
-    expect(p.body.verdicts).toMatchObject({ total: 2, byCategory: { threat: 1 }, abstain: 1, byDraw: { random: 2, seed: 0, uncertainty: 0, 'second-opinion': 0 } });
+    expect(p.body.verdicts).toMatchObject({
+      total: 2,
+      byCategory: { threat: 1 },
+      abstain: 1,
+      byDraw: { random: 2, seed: 0, uncertainty: 0, 'second-opinion': 0 },
+    });
     expect(p.body.reviewersActiveLastHour).toBe(2);
     expect(p.body.reviewers).toBeUndefined();
     const ps = await s.call(sup, 'GET', `/api/desks/${id}/progress`);
-    expect(ps.body.reviewers.map((r: { name: string; verdicts: number }) => [r.name, r.verdicts])).toEqual([['rev', 1], ['rev2', 1]]);
+    expect(ps.body.reviewers.map((r: { name: string; verdicts: number }) => [r.name, r.verdicts])).toEqual([
+      ['rev', 1],
+      ['rev2', 1],
+    ]);
   });
 
   it('draws the random share within its binomial tolerance', async () => {
     const texts = Array.from({ length: 400 }, (_, i) => `seed match hurt you number ${i}`);
     const id = await desk('share', texts, { seedTerms: { threat: ['hurt you'] }, randomShare: 0.3 });
     for (let i = 0; i < 400; i++) expect((await lease(rev, id)).status).toBe(201);
-    const rows = await s.db.query<{ draw: string; n: string | number }>(null, 'SELECT draw, COUNT(*) AS n FROM leases WHERE desk_id = $1 GROUP BY draw', [id]);
+    const rows = await s.db.query<{ draw: string; n: string | number }>(
+      null,
+      'SELECT draw, COUNT(*) AS n FROM leases WHERE desk_id = $1 GROUP BY draw',
+      [id],
+    );
     const random = Number(rows.find((r) => r.draw === 'random')?.n ?? 0);
     // Binomial(400, 0.3): mean 120, sd ≈ 9.2; ±4 sd (common practice, no source) keeps a false alarm below 1 in 10 000.
     expect(Math.abs(random - 120)).toBeLessThan(4 * Math.sqrt(400 * 0.3 * 0.7));
   });
 
   it('validates desk settings with clear 400s and keeps used categories', async () => {
-    const bad = await s.call(sup, 'POST', '/api/desks', { name: 'bad', categories: ['only'], coverageTarget: 0.9999, calibration: 'per-class', randomShare: 2, leaseSeconds: 5 });
+    const bad = await s.call(sup, 'POST', '/api/desks', {
+      name: 'bad',
+      categories: ['only'],
+      coverageTarget: 0.9999,
+      calibration: 'per-class',
+      randomShare: 2,
+      leaseSeconds: 5,
+    });
     expect(bad.status).toBe(400);
-    expect(bad.body.message.join(' | ')).toMatch(/categories must contain at least 2 elements.*coverageTarget.*calibration must be one of.*randomShare.*leaseSeconds/);
-    const seedBad = await s.call(sup, 'POST', '/api/desks', { name: 'bad2', categories: ['a', 'b'], seedTerms: { c: ['x'] } });
+    expect(bad.body.message.join(' | ')).toMatch(
+      /categories must contain at least 2 elements.*coverageTarget.*calibration must be one of.*randomShare.*leaseSeconds/,
+    );
+    const seedBad = await s.call(sup, 'POST', '/api/desks', {
+      name: 'bad2',
+      categories: ['a', 'b'],
+      seedTerms: { c: ['x'] },
+    });
     expect(seedBad.status).toBe(400);
     expect(seedBad.body.message.join(' ')).toMatch(/seedTerms.c: not a category/);
     const id = await desk('cats', ['c1']);
@@ -197,13 +284,19 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     const rename = await s.call(sup, 'PATCH', `/api/desks/${id}`, { categories: ['menace', 'harassment', 'ok'] });
     expect(rename.status).toBe(409);
     expect(rename.body.message).toMatch(/"threat" is used by 1 verdict/);
-    const add = await s.call(sup, 'PATCH', `/api/desks/${id}`, { categories: ['threat', 'harassment', 'ok', 'spam'], coverageTarget: 0.95 });
+    const add = await s.call(sup, 'PATCH', `/api/desks/${id}`, {
+      categories: ['threat', 'harassment', 'ok', 'spam'],
+      coverageTarget: 0.95,
+    });
     expect(add.status).toBe(200);
     expect(add.body.categories.map((c: { name: string }) => c.name)).toEqual(['threat', 'harassment', 'ok', 'spam']);
     const drop = await s.call(sup, 'PATCH', `/api/desks/${id}`, { categories: ['threat', 'harassment', 'ok'] });
     expect(drop.status).toBe(200);
     const trail = await s.call(sup, 'GET', `/api/audit?deskId=${id}`);
-    const upd = trail.body.events.find((e: { action: string; after: Record<string, unknown> }) => e.action === 'desk.update' && 'coverageTarget' in e.after);
+    const upd = trail.body.events.find(
+      (e: { action: string; after: Record<string, unknown> }) =>
+        e.action === 'desk.update' && 'coverageTarget' in e.after,
+    );
     expect(upd.before).toMatchObject({ coverageTarget: 0.9 });
     expect(upd.after).toMatchObject({ coverageTarget: 0.95 });
   });

@@ -29,16 +29,29 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     for (const r of ROLES) token[r] = await s.user(`the-${r}`, r, 'a-long-password');
     const d = await s.call(token.supervisor!, 'POST', '/api/desks', { name: 'matrix', categories: ['threat', 'ok'] });
     deskId = d.body.id;
-    const imp = await s.call(token.supervisor!, 'POST', `/api/desks/${deskId}/imports`, Array.from({ length: 50 }, (_, i) => JSON.stringify({ text: `post ${i}` })).join('\n'), { 'content-type': 'application/x-ndjson' });
+    const imp = await s.call(
+      token.supervisor!,
+      'POST',
+      `/api/desks/${deskId}/imports`,
+      Array.from({ length: 50 }, (_, i) => JSON.stringify({ text: `post ${i}` })).join('\n'),
+      { 'content-type': 'application/x-ndjson' },
+    );
     importId = imp.body.importId;
-    await eventually(async () => ((await s.call(token.supervisor!, 'GET', `/api/imports/${importId}`)).body.state === 'done' ? true : undefined));
+    await eventually(async () =>
+      (await s.call(token.supervisor!, 'GET', `/api/imports/${importId}`)).body.state === 'done' ? true : undefined,
+    );
     const l = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/leases`);
     leaseId = l.body.lease.id;
-    const v = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId, itemId: l.body.item.id, category: 'ok', clientId: 'matrix-0' });
+    const v = await s.call(token.reviewer!, 'POST', `/api/desks/${deskId}/verdicts`, {
+      leaseId,
+      itemId: l.body.item.id,
+      category: 'ok',
+      clientId: 'matrix-0',
+    });
     verdictId = v.body.verdict.id;
     itemId = l.body.item.id;
   });
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   // Who may do what. Reviewers decide but cannot change settings or read others' verdicts;
   // auditors read but cannot decide; admins manage accounts.
@@ -49,17 +62,33 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: '/api/users', allowed: ['admin'] },
     { method: 'POST', path: '/api/users', allowed: ['admin'], body: () => ({ name: `made-${n++}`, role: 'reviewer' }) },
     { method: 'PATCH', path: '/api/users/1', allowed: ['admin'], body: () => ({ role: 'reviewer' }) },
-    { method: 'POST', path: '/api/desks', allowed: ['supervisor'], body: () => ({ name: `desk-${n++}`, categories: ['a', 'b'] }) },
+    {
+      method: 'POST',
+      path: '/api/desks',
+      allowed: ['supervisor'],
+      body: () => ({ name: `desk-${n++}`, categories: ['a', 'b'] }),
+    },
     { method: 'GET', path: '/api/desks', allowed: ['reviewer', 'supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}`, allowed: ['reviewer', 'supervisor', 'auditor'] },
     { method: 'PATCH', path: `/api/desks/${deskId}`, allowed: ['supervisor'], body: () => ({ randomShare: 0.2 }) },
-    { method: 'POST', path: `/api/desks/${deskId}/imports`, allowed: ['supervisor'], body: () => `{"text":"row ${n++}"}\n`, headers: { 'content-type': 'application/x-ndjson' } },
+    {
+      method: 'POST',
+      path: `/api/desks/${deskId}/imports`,
+      allowed: ['supervisor'],
+      body: () => `{"text":"row ${n++}"}\n`,
+      headers: { 'content-type': 'application/x-ndjson' },
+    },
     { method: 'GET', path: `/api/desks/${deskId}/imports`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/imports/${importId}`, allowed: ['supervisor', 'auditor'] },
     { method: 'POST', path: `/api/desks/${deskId}/leases`, allowed: ['reviewer'] },
     { method: 'GET', path: `/api/desks/${deskId}/leases/mine`, allowed: ['reviewer'] },
     { method: 'DELETE', path: `/api/leases/${leaseId}`, allowed: ['reviewer'] },
-    { method: 'POST', path: `/api/desks/${deskId}/verdicts`, allowed: ['reviewer'], body: () => ({ leaseId, itemId: 1, category: 'ok', clientId: 'matrix-0' }) },
+    {
+      method: 'POST',
+      path: `/api/desks/${deskId}/verdicts`,
+      allowed: ['reviewer'],
+      body: () => ({ leaseId, itemId: 1, category: 'ok', clientId: 'matrix-0' }),
+    },
     { method: 'POST', path: `/api/verdicts/${verdictId}/undo`, allowed: ['reviewer'] },
     { method: 'GET', path: `/api/desks/${deskId}/verdicts`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/verdicts/mine`, allowed: ['reviewer'] },
@@ -78,7 +107,12 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'DELETE', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
     { method: 'GET', path: `/api/desks/${deskId}/agreement`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/disagreements`, allowed: ['supervisor', 'auditor'] },
-    { method: 'POST', path: `/api/items/${itemId}/settle`, allowed: ['supervisor'], body: () => ({ category: 'ok', reason: 'matrix check' }) },
+    {
+      method: 'POST',
+      path: `/api/items/${itemId}/settle`,
+      allowed: ['supervisor'],
+      body: () => ({ category: 'ok', reason: 'matrix check' }),
+    },
     { method: 'GET', path: `/api/desks/${deskId}/trail.csv`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/trail.ndjson`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
@@ -95,8 +129,11 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
         const t = who === 'anonymous' ? null : token[who]!;
         const res = await s.call(t, r.method, r.path, r.body?.(), r.headers);
         const expected = who === 'anonymous' ? [401] : r.allowed.includes(who) ? null : [403];
-        const ok = expected ? expected.includes(res.status) : res.status !== 401 && res.status !== 403 && res.status < 500;
-        if (!ok) failures.push(`${r.method} ${r.path} as ${who}: ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
+        const ok = expected
+          ? expected.includes(res.status)
+          : res.status !== 401 && res.status !== 403 && res.status < 500;
+        if (!ok)
+          failures.push(`${r.method} ${r.path} as ${who}: ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
       }
     }
     expect(failures).toEqual([]);
@@ -104,11 +141,15 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
 
   it('covers every route of the API document', async () => {
     const doc = await s.call(token.admin!, 'GET', '/api/docs-json');
-    const documented = Object.entries(doc.body.paths as Record<string, Record<string, unknown>>).flatMap(([path, ops]) => Object.keys(ops).map((m) => `${m.toUpperCase()} ${path}`));
+    const documented = Object.entries(doc.body.paths as Record<string, Record<string, unknown>>).flatMap(
+      ([path, ops]) => Object.keys(ops).map((m) => `${m.toUpperCase()} ${path}`),
+    );
     const pattern = (p: string) => p.replace(/\{[^}]+\}/g, '[^/]+');
     const tested = routes().map((r) => `${r.method} ${r.path}`);
     const public_ = ['GET /healthz', 'GET /readyz', 'POST /api/auth/login'];
-    const untested = documented.filter((d) => !public_.includes(d) && !tested.some((t) => new RegExp(`^${pattern(d)}$`).test(t)));
+    const untested = documented.filter(
+      (d) => !public_.includes(d) && !tested.some((t) => new RegExp(`^${pattern(d)}$`).test(t)),
+    );
     expect(untested).toEqual([]);
   });
 
@@ -124,7 +165,7 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     expect(cookie).toMatch(/^cribra_session=cbs_[A-Za-z0-9_-]{43};/);
     expect(cookie).toMatch(/HttpOnly/);
     expect(cookie).toMatch(/SameSite=Strict/);
-    const session = cookie.split(';')[0]!;
+    const session = cookie.split(';')[0];
     const me = await s.call(null, 'GET', '/api/auth/me', undefined, { cookie: session });
     expect(me.body).toMatchObject({ name: 'the-reviewer', role: 'reviewer', via: 'session' });
     expect((await s.call(null, 'POST', '/api/auth/logout', undefined, { cookie: session })).status).toBe(204);

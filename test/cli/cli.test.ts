@@ -9,7 +9,12 @@ import { DATABASE_KINDS, createTestDatabase, type TestDatabase } from '../suppor
 import { built } from '../support/processes.js';
 
 const cli = (args: string[], env: Record<string, string>, input?: string) =>
-  spawnSync(process.execPath, [built('apps/cli/src/main.js'), ...args], { env: { PATH: process.env.PATH ?? '', ...env }, input, encoding: 'utf8', timeout: 60_000 });
+  spawnSync(process.execPath, [built('apps/cli/src/main.js'), ...args], {
+    env: { PATH: process.env.PATH ?? '', ...env },
+    input,
+    encoding: 'utf8',
+    timeout: 60_000,
+  });
 
 describe.each(DATABASE_KINDS)('cli user add on %s', (kind) => {
   const cleanup: TestDatabase[] = [];
@@ -20,12 +25,16 @@ describe.each(DATABASE_KINDS)('cli user add on %s', (kind) => {
     cleanup.push(tdb);
     const dataDir = mkdtempSync(join(tmpdir(), 'cribra-cli-'));
     const env = { DATA_DIR: dataDir, DATABASE_URL: tdb.config.url };
-    const r = cli(['user', 'add', '--name', 'rowan', '--role', 'supervisor', '--password-stdin'], env, 'a-good-long-password\n');
+    const r = cli(
+      ['user', 'add', '--name', 'rowan', '--role', 'supervisor', '--password-stdin'],
+      env,
+      'a-good-long-password\n',
+    );
     expect(r.stderr).toBe('');
     expect(r.status).toBe(0);
     const lines = r.stdout.trim().split('\n');
     expect(lines).toHaveLength(1);
-    const out = JSON.parse(lines[0]!);
+    const out = JSON.parse(lines[0]);
     expect(Object.keys(out)).toEqual(['id', 'name', 'role', 'token']);
     expect(out).toMatchObject({ name: 'rowan', role: 'supervisor' });
     expect(out.token).toMatch(/^cbt_/);
@@ -36,7 +45,9 @@ describe.each(DATABASE_KINDS)('cli user add on %s', (kind) => {
     try {
       const auth = new AuthService(new Database(ds), { record: async () => undefined } as never, parseConfig(env));
       expect(await auth.authenticate(out.token)).toMatchObject({ name: 'rowan', role: 'supervisor', via: 'token' });
-      await expect(auth.login('rowan', 'a-good-long-password')).resolves.toMatchObject({ principal: { name: 'rowan' } });
+      await expect(auth.login('rowan', 'a-good-long-password')).resolves.toMatchObject({
+        principal: { name: 'rowan' },
+      });
       const [{ secret_hash }] = await ds.query(`SELECT secret_hash FROM credentials WHERE kind = 'token'`);
       expect(secret_hash).not.toContain(out.token.slice(4));
     } finally {
@@ -65,14 +76,22 @@ describe('boot checks', () => {
     expect(shortPw.stderr).toMatch(/at least 8 characters/);
   });
   it('lists every bad variable in one error and exits 2', () => {
-    const r = spawnSync(process.execPath, [built('apps/api/src/main.js')], { env: { PATH: process.env.PATH ?? '', PORT: 'x', DATABASE_URL: 'mysql://db', REDIS_URL: 'nope' }, encoding: 'utf8', timeout: 30_000 });
+    const r = spawnSync(process.execPath, [built('apps/api/src/main.js')], {
+      env: { PATH: process.env.PATH ?? '', PORT: 'x', DATABASE_URL: 'mysql://db', REDIS_URL: 'nope' },
+      encoding: 'utf8',
+      timeout: 30_000,
+    });
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(/Invalid configuration:\n {2}- PORT="x".*\n {2}- DATABASE_URL.*\n {2}- REDIS_URL/);
   });
 
   it('says how to install Redis when REDIS_URL is unset and redis-server is not on PATH', () => {
     const dataDir = mkdtempSync(join(tmpdir(), 'cribra-start-'));
-    const r = spawnSync(process.execPath, [built('apps/cli/src/main.js'), 'start'], { env: { PATH: '/nonexistent', DATA_DIR: dataDir }, encoding: 'utf8', timeout: 30_000 });
+    const r = spawnSync(process.execPath, [built('apps/cli/src/main.js'), 'start'], {
+      env: { PATH: '/nonexistent', DATA_DIR: dataDir },
+      encoding: 'utf8',
+      timeout: 30_000,
+    });
     expect(r.status).toBe(3);
     expect(r.stderr).toMatch(/there is none on PATH/);
     expect(r.stderr).toMatch(/apt-get install redis-server/);

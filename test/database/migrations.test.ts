@@ -20,25 +20,44 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
     await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('sam', 'supervisor', false, ?)`, [now]);
     await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('rae', 'reviewer', false, ?)`, [now]);
     for (const name of ['alpha', 'beta']) {
-      await q(`INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES (?, '{}', 0.9, 'per-category', 0.2, 600, 1, ?, ?)`, [name, now, now]);
-      await q(`INSERT INTO categories (desk_id, name, position, created_at) VALUES ((SELECT id FROM desks WHERE name = ?), 'ok', 1, ?)`, [name, now]);
+      await q(
+        `INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES (?, '{}', 0.9, 'per-category', 0.2, 600, 1, ?, ?)`,
+        [name, now, now],
+      );
+      await q(
+        `INSERT INTO categories (desk_id, name, position, created_at) VALUES ((SELECT id FROM desks WHERE name = ?), 'ok', 1, ?)`,
+        [name, now],
+      );
     }
-    await q(`INSERT INTO items (desk_id, text, normalized_text, normalized_hash, meta, imported_at, state, seed_hits, priority, rand_key) VALUES (1, 'hello', 'hello', 'h1', '{}', ?, 'open', 0, 0, 0.5)`, [now]);
+    await q(
+      `INSERT INTO items (desk_id, text, normalized_text, normalized_hash, meta, imported_at, state, seed_hits, priority, rand_key) VALUES (1, 'hello', 'hello', 'h1', '{}', ?, 'open', 0, 0, 0.5)`,
+      [now],
+    );
   });
   afterAll(async () => {
-    await ds?.destroy();
-    await tdb?.drop();
+    await (ds as DataSource | undefined)?.destroy();
+    await (tdb as TestDatabase | undefined)?.drop();
   });
 
   const verdict = (categoryId: number | null, abstain: boolean, clientId: string, reviewer = 2) =>
-    q(`INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, simulated, created_at) VALUES (1, 1, ?, ?, ?, ?, 'random', false, ?)`, [reviewer, clientId, categoryId, abstain, now]);
+    q(
+      `INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, simulated, created_at) VALUES (1, 1, ?, ?, ?, ?, 'random', false, ?)`,
+      [reviewer, clientId, categoryId, abstain, now],
+    );
 
   it('refuses a role outside the list', async () => {
-    await expect(q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('x', 'owner', false, ?)`, [now])).rejects.toThrow(/ck_users_role|CHECK/i);
+    await expect(
+      q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('x', 'owner', false, ?)`, [now]),
+    ).rejects.toThrow(/ck_users_role|CHECK/i);
   });
 
   it('refuses a coverage target outside 0.5..0.999', async () => {
-    await expect(q(`INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES ('g', '{}', 1.0, 'marginal', 0.2, 600, 1, ?, ?)`, [now, now])).rejects.toThrow();
+    await expect(
+      q(
+        `INSERT INTO desks (name, seed_terms, coverage_target, calibration, random_share, lease_seconds, created_by, created_at, updated_at) VALUES ('g', '{}', 1.0, 'marginal', 0.2, 600, 1, ?, ?)`,
+        [now, now],
+      ),
+    ).rejects.toThrow();
   });
 
   it('refuses a verdict whose category belongs to another desk', async () => {
@@ -62,43 +81,81 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
   it('refuses a second-opinion share outside 0..1 and defaults it to 0.1', async () => {
     const [row] = await q(`SELECT second_opinion_share AS share FROM desks WHERE name = 'alpha'`);
     expect(Number(row.share)).toBe(0.1);
-    await expect(q(`UPDATE desks SET second_opinion_share = 1.5 WHERE name = 'alpha'`)).rejects.toThrow(/ck_desks_second_opinion|CHECK/i);
-    await expect(q(`UPDATE desks SET second_opinion_share = -0.1 WHERE name = 'alpha'`)).rejects.toThrow(/ck_desks_second_opinion|CHECK/i);
+    await expect(q(`UPDATE desks SET second_opinion_share = 1.5 WHERE name = 'alpha'`)).rejects.toThrow(
+      /ck_desks_second_opinion|CHECK/i,
+    );
+    await expect(q(`UPDATE desks SET second_opinion_share = -0.1 WHERE name = 'alpha'`)).rejects.toThrow(
+      /ck_desks_second_opinion|CHECK/i,
+    );
   });
 
   it('refuses an empty settlement reason and a settled category of another desk', async () => {
-    await expect(q(`INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 1, '', 1, ?)`, [now])).rejects.toThrow(/ck_settlements_reason|CHECK/i);
-    await expect(q(`INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 2, 'why', 1, ?)`, [now])).rejects.toThrow(/foreign key|FOREIGN KEY/i);
-    await q(`INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 1, 'why', 1, ?)`, [now]);
+    await expect(
+      q(
+        `INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 1, '', 1, ?)`,
+        [now],
+      ),
+    ).rejects.toThrow(/ck_settlements_reason|CHECK/i);
+    await expect(
+      q(
+        `INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 2, 'why', 1, ?)`,
+        [now],
+      ),
+    ).rejects.toThrow(/foreign key|FOREIGN KEY/i);
+    await q(
+      `INSERT INTO settlements (desk_id, item_id, category_id, reason, settled_by, created_at) VALUES (1, 1, 1, 'why', 1, ?)`,
+      [now],
+    );
   });
 
-  it('keeps a second opinion\'s state and lease consistent', async () => {
-    await expect(q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'leased', ?)`, [now])).rejects.toThrow(/ck_second_opinions_lease|CHECK/i);
-    await expect(q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'waiting', ?)`, [now])).rejects.toThrow(/ck_second_opinions_state|CHECK/i);
-    await expect(q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'done', ?)`, [now])).rejects.toThrow(/ck_second_opinions_done|CHECK/i);
+  it("keeps a second opinion's state and lease consistent", async () => {
+    await expect(
+      q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'leased', ?)`, [now]),
+    ).rejects.toThrow(/ck_second_opinions_lease|CHECK/i);
+    await expect(
+      q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'waiting', ?)`, [now]),
+    ).rejects.toThrow(/ck_second_opinions_state|CHECK/i);
+    await expect(
+      q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'done', ?)`, [now]),
+    ).rejects.toThrow(/ck_second_opinions_done|CHECK/i);
     await q(`INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES (1, 1, 'due', ?)`, [now]);
   });
 
   it('keeps the audit trail append-only', async () => {
-    await q(`INSERT INTO audit_events (at, actor_name, action, entity_type, entity_id) VALUES (?, 'sam', 'desk.create', 'desk', '1')`, [now]);
+    await q(
+      `INSERT INTO audit_events (at, actor_name, action, entity_type, entity_id) VALUES (?, 'sam', 'desk.create', 'desk', '1')`,
+      [now],
+    );
     await expect(q(`UPDATE audit_events SET action = 'x'`)).rejects.toThrow(/append-only/);
     await expect(q(`DELETE FROM audit_events`)).rejects.toThrow(/append-only/);
   });
 
   it('keeps a report tied to an existing version, and a ready report complete', async () => {
-    await expect(q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now])).rejects.toThrow(/foreign key|FOREIGN KEY/i);
-    await q(`INSERT INTO model_versions (desk_id, version, state, job_key, verdict_watermark, training, calibration, timings, created_at, published_at) VALUES (1, 1, 'published', 'k-1', 0, '{}', '{}', '{}', ?, ?)`, [now, now]);
+    await expect(
+      q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now]),
+    ).rejects.toThrow(/foreign key|FOREIGN KEY/i);
+    await q(
+      `INSERT INTO model_versions (desk_id, version, state, job_key, verdict_watermark, training, calibration, timings, created_at, published_at) VALUES (1, 1, 'published', 'k-1', 0, '{}', '{}', '{}', ?, ?)`,
+      [now, now],
+    );
     await q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now]);
     await expect(q(`UPDATE model_reports SET state = 'ready'`)).rejects.toThrow(/ck_model_reports_ready|CHECK/i);
     await expect(q(`UPDATE model_reports SET state = 'failed'`)).rejects.toThrow(/ck_model_reports_failure|CHECK/i);
-    await expect(q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now])).rejects.toThrow(/unique|UNIQUE/i);
-    await q(`UPDATE model_reports SET state = 'ready', figures = '{}', html = '<p>', figures_sha256 = ?, generated_at = ?`, ['0'.repeat(64), now]);
+    await expect(
+      q(`INSERT INTO model_reports (desk_id, version, state, started_at) VALUES (1, 1, 'writing', ?)`, [now]),
+    ).rejects.toThrow(/unique|UNIQUE/i);
+    await q(
+      `UPDATE model_reports SET state = 'ready', figures = '{}', html = '<p>', figures_sha256 = ?, generated_at = ?`,
+      ['0'.repeat(64), now],
+    );
   });
 
   it('reverts every migration with down()', async () => {
     for (let i = 0; i < MIGRATIONS.length; i++) await ds.undoLastMigration({ transaction: 'each' });
     const tables: Array<{ name: string }> = await q(
-      kind === 'postgres' ? `SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public' AND table_name <> 'migrations'` : `SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT IN ('migrations', 'sqlite_sequence')`,
+      kind === 'postgres'
+        ? `SELECT table_name AS name FROM information_schema.tables WHERE table_schema = 'public' AND table_name <> 'migrations'`
+        : `SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT IN ('migrations', 'sqlite_sequence')`,
     );
     expect(tables).toEqual([]);
     await ds.runMigrations();

@@ -1,10 +1,18 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../apps/cli/src/demo-seed.js';
 import { jobOptions, JobQueueService, JOBS } from '#queues';
-import { DEMO_DESK_NAME, formatDemoBlock, generateMossbankPool, MOSSBANK_SEED_TERMS, SIMULATED_REVIEWER, type DemoSeedResult } from '#demo';
+import {
+  DEMO_DESK_NAME,
+  formatDemoBlock,
+  generateMossbankPool,
+  MOSSBANK_SEED_TERMS,
+  SIMULATED_REVIEWER,
+  type DemoSeedResult,
+} from '#demo';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { accountsInBlock } from './demo-block.js';
 import { eventually, startStack, type Stack } from '../support/stack.js';
+import type { DbInt } from '#database';
 
 describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
   let s: Stack;
@@ -13,13 +21,15 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
   const truth = new Map(generateMossbankPool().map((p) => [p.externalId, p.category]));
 
   /** A call with a signed-in user's session cookie. */
-  const as = (who: string, method: string, path: string, body?: unknown) => s.call(null, method, path, body, { cookie: session[who]! });
-  const count = async (sql: string, params: unknown[] = []) => Number((await s.db.query<{ n: number | string }>(null, sql, params))[0]!.n);
+  const as = (who: string, method: string, path: string, body?: unknown) =>
+    s.call(null, method, path, body, { cookie: session[who] });
+  const count = async (sql: string, params: unknown[] = []) =>
+    Number((await s.db.query<{ n: number | string }>(null, sql, params))[0].n);
 
   beforeAll(async () => {
     s = await startStack(kind);
   }, 240_000);
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('does nothing with DEMO=off', async () => {
     expect(await seedDemo({ ...s.config, demo: false })).toBeNull();
@@ -42,10 +52,14 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
       expect((await as(name, 'GET', '/api/auth/me')).body).toMatchObject({ name, role: name });
     }
 
-    const imp = await eventually(async () => {
-      const r = await as('supervisor', 'GET', `/api/imports/${seeded!.importId}`);
-      return r.body.state === 'done' ? r.body : undefined;
-    }, 120_000, 'the demo import');
+    const imp = await eventually(
+      async () => {
+        const r = await as('supervisor', 'GET', `/api/imports/${seeded!.importId}`);
+        return r.body.state === 'done' ? r.body : undefined;
+      },
+      120_000,
+      'the demo import',
+    );
     expect(imp.imported).toBe(3200);
     expect(imp.imported).toBeGreaterThanOrEqual(3000);
     expect(imp.rejected).toBe(0);
@@ -55,7 +69,9 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     expect(desk.categories.map((c: { name: string }) => c.name)).toEqual(['threat', 'harassment', 'ok']);
     expect(desk.seedTerms).toEqual(MOSSBANK_SEED_TERMS);
     // The hidden category is nowhere in the stored items.
-    expect(await count(`SELECT COUNT(*) AS n FROM items WHERE meta LIKE '%category%' OR meta LIKE '%harassment%'`)).toBe(0);
+    expect(
+      await count(`SELECT COUNT(*) AS n FROM items WHERE meta LIKE '%category%' OR meta LIKE '%harassment%'`),
+    ).toBe(0);
 
     // A database in use is never seeded again.
     expect(await seedDemo(s.config)).toBeNull();
@@ -78,14 +94,27 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     expect(JSON.stringify(tooLong.body)).toMatch(/minutes: expected a whole number from 1 to 10/);
 
     // A desk with the same categories but its own texts.
-    const other = await as('supervisor', 'POST', '/api/desks', { name: 'reports from elsewhere', categories: ['threat', 'harassment', 'ok'] });
-    const imp = await s.call(null, 'POST', `/api/desks/${other.body.id}/imports`, '{"text":"a post of our own"}\n{"text":"another one"}\n', { cookie: session.supervisor!, 'content-type': 'application/x-ndjson' });
-    await eventually(async () => ((await as('supervisor', 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined));
+    const other = await as('supervisor', 'POST', '/api/desks', {
+      name: 'reports from elsewhere',
+      categories: ['threat', 'harassment', 'ok'],
+    });
+    const imp = await s.call(
+      null,
+      'POST',
+      `/api/desks/${other.body.id}/imports`,
+      '{"text":"a post of our own"}\n{"text":"another one"}\n',
+      { cookie: session.supervisor, 'content-type': 'application/x-ndjson' },
+    );
+    await eventually(async () =>
+      (await as('supervisor', 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+    );
     const refused = await as('supervisor', 'POST', `/api/desks/${other.body.id}/simulation`, { minutes: 1 });
     expect(refused.status).toBe(409);
     expect(refused.body.message).toMatch(/2 item\(s\) that are not generated demo posts/);
     // No body at all means the default two minutes: refused here for the same reason, not for the body.
-    const bare = await s.call(null, 'POST', `/api/desks/${other.body.id}/simulation`, undefined, { cookie: session.supervisor! });
+    const bare = await s.call(null, 'POST', `/api/desks/${other.body.id}/simulation`, undefined, {
+      cookie: session.supervisor,
+    });
     expect(bare.status).toBe(409);
     const status = (await as('supervisor', 'GET', `/api/desks/${other.body.id}/simulation`)).body;
     expect(status).toMatchObject({ available: false, state: 'idle', verdicts: 0 });
@@ -95,8 +124,14 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
   it('works the demo desk like a reviewer, with verdicts marked simulated, until stopped; a first model appears', async () => {
     const deskId = seeded!.deskId;
     // The first model sooner than the default debounce would give it.
-    expect((await as('supervisor', 'PATCH', `/api/desks/${deskId}`, { retrainEvery: 5, retrainAfterSeconds: 2 })).status).toBe(200);
-    expect((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body).toEqual({ available: true, state: 'idle', verdicts: 0 });
+    expect(
+      (await as('supervisor', 'PATCH', `/api/desks/${deskId}`, { retrainEvery: 5, retrainAfterSeconds: 2 })).status,
+    ).toBe(200);
+    expect((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body).toEqual({
+      available: true,
+      state: 'idle',
+      verdicts: 0,
+    });
 
     const t0 = Date.now();
     const started = await as('supervisor', 'POST', `/api/desks/${deskId}/simulation`, { minutes: 1 });
@@ -109,11 +144,15 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
 
     // About 2 verdicts a second (pauses of 200–600 ms): 20 within about 10–15 s. The first model needs two
     // training verdicts in every category, so it may take a little longer when the seed terms serve few threats.
-    const running = await eventually(async () => {
-      const r = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
-      const models = (await as('supervisor', 'GET', `/api/desks/${deskId}/models`)).body;
-      return r.verdicts >= 20 && models.currentModelVersion !== null ? r : undefined;
-    }, 55_000, '20 simulated verdicts and a first model version');
+    const running = await eventually(
+      async () => {
+        const r = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
+        const models = (await as('supervisor', 'GET', `/api/desks/${deskId}/models`)).body;
+        return r.verdicts >= 20 && models.currentModelVersion !== null ? r : undefined;
+      },
+      55_000,
+      '20 simulated verdicts and a first model version',
+    );
     expect(running.state).toBe('running');
 
     const stopAsked = Date.now();
@@ -128,18 +167,38 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     expect(await count(`SELECT COUNT(*) AS n FROM items WHERE desk_id = $1 AND state = 'leased'`, [deskId])).toBe(0);
 
     // Every verdict is the simulated reviewer's, marked simulated, in the verdicts and in the audit trail.
-    const rows = await s.db.query<{ name: string; simulated: boolean | number; category: string | null; abstain: boolean | number; external_id: string; elapsed_ms: number }>(null,
+    const rows = await s.db.query<{
+      name: string;
+      simulated: boolean | number;
+      category: string | null;
+      abstain: boolean | number;
+      external_id: string;
+      elapsed_ms: DbInt;
+    }>(
+      null,
       `SELECT u.name, v.simulated, c.name AS category, v.abstain, i.external_id, v.elapsed_ms FROM verdicts v JOIN users u ON u.id = v.reviewer_id
-       JOIN items i ON i.id = v.item_id LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1`, [deskId]);
+       JOIN items i ON i.id = v.item_id LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1`,
+      [deskId],
+    );
     expect(rows.every((r) => r.name === SIMULATED_REVIEWER && (r.simulated === true || r.simulated === 1))).toBe(true);
     expect(rows.every((r) => Number(r.elapsed_ms) >= 200 && Number(r.elapsed_ms) < 600)).toBe(true);
-    const audited = await s.db.query<{ after: string }>(null, `SELECT after FROM audit_events WHERE action = 'verdict.create' AND desk_id = $1`, [deskId]);
+    const audited = await s.db.query<{ after: string }>(
+      null,
+      `SELECT after FROM audit_events WHERE action = 'verdict.create' AND desk_id = $1`,
+      [deskId],
+    );
     expect(audited).toHaveLength(rows.length);
     expect(audited.every((a) => (JSON.parse(a.after) as { simulated?: boolean }).simulated === true)).toBe(true);
     // It answers from the hidden categories: with a 5 % error rate and 1 % abstentions, at most a few of 20+ differ.
     const right = rows.filter((r) => r.category === truth.get(r.external_id)).length;
     expect(right / rows.length).toBeGreaterThanOrEqual(0.8);
-    const actions = (await s.db.query<{ action: string }>(null, `SELECT action FROM audit_events WHERE action LIKE 'simulation.%' AND desk_id = $1 ORDER BY id`, [deskId])).map((a) => a.action);
+    const actions = (
+      await s.db.query<{ action: string }>(
+        null,
+        `SELECT action FROM audit_events WHERE action LIKE 'simulation.%' AND desk_id = $1 ORDER BY id`,
+        [deskId],
+      )
+    ).map((a) => a.action);
     expect(actions).toEqual(['simulation.start', 'simulation.stop']);
 
     // The model learned from simulated verdicts only.
@@ -155,15 +214,24 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     // A run of 3 s, shorter than the API allows, put on the queue directly (after the stopped run's job is gone).
     await (await jobs.job(JOBS.simulateReviewer, jobOptions(JOBS.simulateReviewer, payload).jobId!))?.remove();
     await jobs.add(JOBS.simulateReviewer, payload);
-    const finished = await eventually(async () => {
-      const r = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
-      return r.state === 'finished' ? r : undefined;
-    }, 20_000, 'the end of a 3 s run');
+    const finished = await eventually(
+      async () => {
+        const r = (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body;
+        return r.state === 'finished' ? r : undefined;
+      },
+      20_000,
+      'the end of a 3 s run',
+    );
     expect(finished.verdicts).toBeGreaterThan(0);
     expect(Date.parse(finished.until)).toBe(payload.until);
 
     expect((await as('supervisor', 'POST', `/api/desks/${deskId}/simulation`, { minutes: 1 })).status).toBe(202);
-    await eventually(async () => ((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body.verdicts >= 3 ? true : undefined), 20_000, 'three verdicts');
+    await eventually(
+      async () =>
+        (await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body.verdicts >= 3 ? true : undefined,
+      20_000,
+      'three verdicts',
+    );
     const t0 = Date.now();
     await s.stopWorker();
     expect(Date.now() - t0).toBeLessThan(5000);
@@ -174,6 +242,9 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     expect(waiting.verdicts).toBeGreaterThanOrEqual(3);
     // Stopping a run no worker has taken simply removes it.
     expect((await as('supervisor', 'DELETE', `/api/desks/${deskId}/simulation`)).status).toBe(204);
-    expect((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body).toMatchObject({ state: 'idle', verdicts: 0 });
+    expect((await as('supervisor', 'GET', `/api/desks/${deskId}/simulation`)).body).toMatchObject({
+      state: 'idle',
+      verdicts: 0,
+    });
   }, 120_000);
 });

@@ -15,11 +15,18 @@ import { accountsInBlock } from './demo-block.js';
 function start(dataDir: string, port: number, prefix: string): { child: ChildProcess; out: () => string } {
   let out = '';
   const child = spawn(process.execPath, [built('apps/cli/src/main.js'), 'start'], {
-    env: { PATH: process.env.PATH ?? '', TZ: 'UTC', DATA_DIR: dataDir, PORT: String(port), REDIS_URL: TEST_REDIS_URL, QUEUE_PREFIX: prefix },
+    env: {
+      PATH: process.env.PATH ?? '',
+      TZ: 'UTC',
+      DATA_DIR: dataDir,
+      PORT: String(port),
+      REDIS_URL: TEST_REDIS_URL,
+      QUEUE_PREFIX: prefix,
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  child.stdout!.on('data', (d: Buffer) => (out += d.toString('utf8')));
-  child.stderr!.on('data', (d: Buffer) => (out += d.toString('utf8')));
+  child.stdout.on('data', (d: Buffer) => (out += d.toString('utf8')));
+  child.stderr.on('data', (d: Buffer) => (out += d.toString('utf8')));
   return { child, out: () => out };
 }
 
@@ -60,7 +67,11 @@ describe('npm start on an empty data folder', () => {
     expect([...accounts.keys()].sort()).toEqual(['auditor', 'reviewer', 'supervisor']);
     await waitReady(base);
     for (const [name, password] of accounts) {
-      const login = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ name, password }) });
+      const login = await fetch(`${base}/api/auth/login`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ name, password }),
+      });
       expect(login.status, name).toBe(200);
     }
     first.child.kill('SIGTERM');

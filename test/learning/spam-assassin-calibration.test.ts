@@ -8,7 +8,15 @@
  * time, per-category calibration all three at ≥ 0.90.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { ConformalCalibration, createRng, IdfTable, predictionSet, shuffleInPlace, tfidf, trainLogisticModel } from '#learning';
+import {
+  ConformalCalibration,
+  createRng,
+  IdfTable,
+  predictionSet,
+  shuffleInPlace,
+  tfidf,
+  trainLogisticModel,
+} from '#learning';
 import { CATEGORIES, loadCorpus } from './spam-assassin-shared.js';
 
 const TARGETS = [0.8, 0.9, 0.95];
@@ -76,7 +84,9 @@ beforeAll(() => {
   for (const mode of ['per-category', 'marginal'] as Mode[]) {
     for (const t of TARGETS) {
       const per = CATEGORIES.map((c) => `${c} ${mean(coverage[mode][t][c]).toFixed(3)}`).join(', ');
-      console.info(`SpamAssassin ${mode} @ ${t}: overall ${mean(overall[mode][t]).toFixed(3)}; ${per}; mean set size ${mean(setSize[mode][t]).toFixed(2)}`);
+      console.info(
+        `SpamAssassin ${mode} @ ${t}: overall ${mean(overall[mode][t]).toFixed(3)}; ${per}; mean set size ${mean(setSize[mode][t]).toFixed(2)}`,
+      );
     }
   }
 }, 300_000);

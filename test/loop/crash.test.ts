@@ -36,33 +36,70 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     for (let i = 0; i < count; i++) {
       const l = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
       expect(l.status).toBe(201);
-      const v = await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, category: labels.get(l.body.item.externalId), clientId: `c${n++}` });
+      const v = await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, {
+        leaseId: l.body.lease.id,
+        itemId: l.body.item.id,
+        category: labels.get(l.body.item.externalId),
+        clientId: `c${n++}`,
+      });
       expect(v.status).toBe(201);
     }
   };
   /** Waits for this worker's marker (an earlier worker's may still lie in the data folder). */
-  const paused = (point: string, w: ChildProcess) => eventually(async () => (readdirSync(s.config.dataDir).includes(`paused-${point}-${w.pid}`) ? true : undefined), 60_000, `worker ${w.pid} paused at ${point}`);
-  const publishedVersion = (v: number) => eventually(async () => ((await current()).currentModelVersion === v ? true : undefined), 90_000, `version ${v} current`);
+  const paused = (point: string, w: ChildProcess) =>
+    eventually(
+      async () => (readdirSync(s.config.dataDir).includes(`paused-${point}-${w.pid}`) ? true : undefined),
+      60_000,
+      `worker ${w.pid} paused at ${point}`,
+    );
+  const publishedVersion = (v: number) =>
+    eventually(
+      async () => ((await current()).currentModelVersion === v ? true : undefined),
+      90_000,
+      `version ${v} current`,
+    );
 
   beforeAll(async () => {
     s = await startStack(kind, { worker: false });
     sup = await s.user('sup', 'supervisor');
     rev = await s.user('rev', 'reviewer');
-    deskId = (await s.call(sup, 'POST', '/api/desks', { name: 'crash', categories: ['threat', 'harassment', 'ok'], randomShare: 0.3, retrainEvery: 10, retrainAfterSeconds: 600 })).body.id;
+    deskId = (
+      await s.call(sup, 'POST', '/api/desks', {
+        name: 'crash',
+        categories: ['threat', 'harassment', 'ok'],
+        randomShare: 0.3,
+        retrainEvery: 10,
+        retrainAfterSeconds: 600,
+      })
+    ).body.id;
     const pool = syntheticPool(POOL, 11);
     for (const p of pool) labels.set(p.externalId, p.label);
     const w = worker();
-    const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n'), { 'content-type': 'application/x-ndjson' });
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000);
+    const imp = await s.call(
+      sup,
+      'POST',
+      `/api/desks/${deskId}/imports`,
+      pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n'),
+      { 'content-type': 'application/x-ndjson' },
+    );
+    await eventually(
+      async () =>
+        (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+      60_000,
+    );
     // Enough verdicts for a first model (two training verdicts per category come quickly at this pool's shares).
     await decide(60);
-    await eventually(async () => ((await current()).currentModelVersion !== null ? true : undefined), 90_000, 'a first model');
+    await eventually(
+      async () => ((await current()).currentModelVersion !== null ? true : undefined),
+      90_000,
+      'a first model',
+    );
     await s.waitForQueuesIdle(90_000, { ignoreDelayed: true });
     await kill(w, 'SIGTERM');
   }, 300_000);
   afterAll(async () => {
     for (const w of workers) if (w.exitCode === null && w.signalCode === null) w.kill('SIGKILL');
-    await s?.stop();
+    await (s as Stack | undefined)?.stop();
   });
 
   async function crashAt(point: 'training' | 'scoring') {
@@ -83,8 +120,16 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     await s.waitForQueuesIdle(90_000, { ignoreDelayed: true });
     const detail = (await s.call(sup, 'GET', `/api/desks/${deskId}/models/${before + 1}`)).body;
     expect(detail.state).toBe('published');
-    const [{ open }] = await s.db.query<{ open: string | number }>(null, `SELECT COUNT(*) AS open FROM items WHERE desk_id = $1 AND state <> 'decided'`, [deskId]);
-    const [{ scored }] = await s.db.query<{ scored: string | number }>(null, `SELECT COUNT(*) AS scored FROM predictions WHERE desk_id = $1 AND model_version = $2`, [deskId, before + 1]);
+    const [{ open }] = await s.db.query<{ open: string | number }>(
+      null,
+      `SELECT COUNT(*) AS open FROM items WHERE desk_id = $1 AND state <> 'decided'`,
+      [deskId],
+    );
+    const [{ scored }] = await s.db.query<{ scored: string | number }>(
+      null,
+      `SELECT COUNT(*) AS scored FROM predictions WHERE desk_id = $1 AND model_version = $2`,
+      [deskId, before + 1],
+    );
     expect(Number(scored)).toBe(Number(open));
     await kill(healthy, 'SIGTERM');
   }
@@ -123,10 +168,21 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     await decide(10);
     await publishedVersion(before + 2);
     await kill(stuck, 'SIGKILL');
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}/models/${before + 1}`)).body.state === 'superseded' ? true : undefined), 60_000, 'the overtaken version superseded');
+    await eventually(
+      async () =>
+        (await s.call(sup, 'GET', `/api/desks/${deskId}/models/${before + 1}`)).body.state === 'superseded'
+          ? true
+          : undefined,
+      60_000,
+      'the overtaken version superseded',
+    );
     await s.waitForQueuesIdle(90_000, { ignoreDelayed: true });
     expect((await current()).currentModelVersion).toBe(before + 2);
-    const [{ left }] = await s.db.query<{ left: string | number }>(null, 'SELECT COUNT(*) AS left FROM predictions WHERE desk_id = $1 AND model_version = $2', [deskId, before + 1]);
+    const [{ left }] = await s.db.query<{ left: string | number }>(
+      null,
+      'SELECT COUNT(*) AS left FROM predictions WHERE desk_id = $1 AND model_version = $2',
+      [deskId, before + 1],
+    );
     expect(Number(left)).toBe(0);
     await kill(fresh, 'SIGTERM');
   }, 240_000);
@@ -140,11 +196,15 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
     const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
     const q = new Queue('scoring', { connection, prefix: s.config.queuePrefix });
     try {
-      const jobs = (await q.getJobs(['completed'])).filter((j) => j.data.version === before + 1 && j.data.deskId === deskId);
+      const jobs = (await q.getJobs(['completed'])).filter(
+        (j) => j.data.version === before + 1 && j.data.deskId === deskId,
+      );
       expect(jobs.length).toBe(Math.ceil((POOL - n) / 250));
       const by = new Set(jobs.map((j) => j.processedBy));
       expect(by.size).toBe(2);
-      expect([...by].sort()).toEqual([`${a.pid}`, `${b.pid}`].map((pid) => [...by].find((x) => x?.endsWith(`:${pid}`))).sort());
+      expect([...by].sort()).toEqual(
+        [`${a.pid}`, `${b.pid}`].map((pid) => [...by].find((x) => x?.endsWith(`:${pid}`))).sort(),
+      );
     } finally {
       await q.close();
       connection.disconnect();

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { eventually, startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
+import type { DbInt } from '#database';
 
 const POOL = 5000;
 const REVIEWERS = 4;
@@ -24,45 +25,70 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     for (let i = 0; i < REVIEWERS; i++) reviewers.push(await s.user(`rev${i}`, 'reviewer'));
     const d = await s.call(sup, 'POST', '/api/desks', {
       // First draws only: the checks below count uniform and uncertainty draws, and the near-duplicate check needs the top item first.
-      name: 'loop', categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] }, secondOpinionShare: 0,
-      coverageTarget: TARGET, calibration: 'per-category', randomShare: RANDOM_SHARE, retrainEvery: RETRAIN_EVERY, retrainAfterSeconds: 3,
+      name: 'loop',
+      categories: ['threat', 'harassment', 'ok'],
+      seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] },
+      secondOpinionShare: 0,
+      coverageTarget: TARGET,
+      calibration: 'per-category',
+      randomShare: RANDOM_SHARE,
+      retrainEvery: RETRAIN_EVERY,
+      retrainAfterSeconds: 3,
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
     const pool = syntheticPool(POOL);
     for (const p of pool) labels.set(p.externalId, p.label);
     const body = pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n');
-    const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, { 'content-type': 'application/x-ndjson' });
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 120_000);
+    const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, {
+      'content-type': 'application/x-ndjson',
+    });
+    await eventually(
+      async () =>
+        (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+      120_000,
+    );
   }, 240_000);
-  afterAll(async () => s?.stop());
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   /** A team of reviewers answering leases from the hidden labels until `randomWanted` random draws had a prediction shown. */
   async function work(randomWanted: number) {
     let randomShown = shown.filter((x) => x.draw === 'random' && x.hadPrediction).length;
-    await Promise.all(reviewers.map(async (token, r) => {
-      for (let n = 0; randomShown < randomWanted; n++) {
-        const l = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
-        if (l.status === 204) return;
-        expect(l.status).toBe(201);
-        const label = labels.get(l.body.item.externalId)!;
-        itemLabel.set(l.body.item.id, label);
-        const v = await s.call(token, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, category: label, clientId: `r${r}-${l.body.lease.id}` });
-        expect(v.status).toBe(201);
-        const [{ draw }] = await s.db.query<{ draw: string }>(null, 'SELECT draw FROM leases WHERE id = $1', [l.body.lease.id]);
-        shown.push({ draw, hadPrediction: l.body.prediction !== null });
-        if (draw === 'random' && l.body.prediction) randomShown++;
-        if (l.body.prediction) {
-          expect(Object.keys(l.body.prediction.probabilities)).toEqual(['threat', 'harassment', 'ok']);
-          const sum = Object.values(l.body.prediction.probabilities as Record<string, number>).reduce((a, b) => a + b, 0);
-          expect(sum).toBeCloseTo(1, 4);
-          expect(['sure', 'ambiguous', 'unfamiliar']).toContain(l.body.prediction.call);
+    await Promise.all(
+      reviewers.map(async (token, r) => {
+        for (let n = 0; randomShown < randomWanted; n++) {
+          const l = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
+          if (l.status === 204) return;
+          expect(l.status).toBe(201);
+          const label = labels.get(l.body.item.externalId)!;
+          itemLabel.set(l.body.item.id, label);
+          const v = await s.call(token, 'POST', `/api/desks/${deskId}/verdicts`, {
+            leaseId: l.body.lease.id,
+            itemId: l.body.item.id,
+            category: label,
+            clientId: `r${r}-${l.body.lease.id}`,
+          });
+          expect(v.status).toBe(201);
+          const [{ draw }] = await s.db.query<{ draw: string }>(null, 'SELECT draw FROM leases WHERE id = $1', [
+            l.body.lease.id,
+          ]);
+          shown.push({ draw, hadPrediction: l.body.prediction !== null });
+          if (draw === 'random' && l.body.prediction) randomShown++;
+          if (l.body.prediction) {
+            expect(Object.keys(l.body.prediction.probabilities)).toEqual(['threat', 'harassment', 'ok']);
+            const sum = Object.values(l.body.prediction.probabilities as Record<string, number>).reduce(
+              (a, b) => a + b,
+              0,
+            );
+            expect(sum).toBeCloseTo(1, 4);
+            expect(['sure', 'ambiguous', 'unfamiliar']).toContain(l.body.prediction.call);
+          }
         }
-      }
-    }));
+      }),
+    );
   }
 
-  it('learns: a first model appears, versions follow, sets cover the reviewers\' answers', async () => {
+  it("learns: a first model appears, versions follow, sets cover the reviewers' answers", async () => {
     await work(400);
     await s.waitForQueuesIdle(120_000);
     const models = (await s.call(sup, 'GET', `/api/desks/${deskId}/models`)).body;
@@ -71,11 +97,16 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     expect(published.length).toBeGreaterThan(1);
 
     // Debounce: each version after the first saw at least retrainEvery new verdicts, or waited retrainAfterSeconds.
-    const byVersion = [...models.models].sort((a: { version: number }, b: { version: number }) => a.version - b.version);
+    const byVersion = [...models.models].sort(
+      (a: { version: number }, b: { version: number }) => a.version - b.version,
+    );
     for (let i = 1; i < byVersion.length; i++) {
       const [prev, cur] = [byVersion[i - 1], byVersion[i]];
-      const [{ n, first }] = await s.db.query<{ n: number | string; first: unknown }>(null,
-        'SELECT COUNT(*) AS n, MIN(created_at) AS first FROM verdicts WHERE desk_id = $1 AND id > $2 AND id <= $3', [deskId, prev.verdictWatermark, cur.verdictWatermark]);
+      const [{ n, first }] = await s.db.query<{ n: number | string; first: unknown }>(
+        null,
+        'SELECT COUNT(*) AS n, MIN(created_at) AS first FROM verdicts WHERE desk_id = $1 AND id > $2 AND id <= $3',
+        [deskId, prev.verdictWatermark, cur.verdictWatermark],
+      );
       const waited = new Date(cur.createdAt).getTime() - s.db.parseTime(first)!.getTime();
       expect(Number(n) >= RETRAIN_EVERY || waited >= 3000 - 250).toBe(true);
     }
@@ -90,10 +121,15 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     }
 
     // The random share of first draws (second opinions come on top): Binomial(n, 0.5) within 4 standard deviations (common practice, no source).
-    const [{ random, total }] = await s.db.query<{ random: number | string; total: number | string }>(null,
-      `SELECT SUM(CASE WHEN draw = 'random' THEN 1 ELSE 0 END) AS random, COUNT(*) AS total FROM leases WHERE desk_id = $1 AND draw <> 'second-opinion'`, [deskId]);
+    const [{ random, total }] = await s.db.query<{ random: number | string; total: number | string }>(
+      null,
+      `SELECT SUM(CASE WHEN draw = 'random' THEN 1 ELSE 0 END) AS random, COUNT(*) AS total FROM leases WHERE desk_id = $1 AND draw <> 'second-opinion'`,
+      [deskId],
+    );
     const nTotal = Number(total);
-    expect(Math.abs(Number(random) - nTotal * RANDOM_SHARE)).toBeLessThan(4 * Math.sqrt(nTotal * RANDOM_SHARE * (1 - RANDOM_SHARE)));
+    expect(Math.abs(Number(random) - nTotal * RANDOM_SHARE)).toBeLessThan(
+      4 * Math.sqrt(nTotal * RANDOM_SHARE * (1 - RANDOM_SHARE)),
+    );
 
     // Realized coverage of the sets shown with random draws, at target 0.9, after 400 of them.
     const cov = (await s.call(sup, 'GET', `/api/desks/${deskId}/coverage`)).body;
@@ -102,8 +138,11 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     expect(n).toBeGreaterThanOrEqual(400);
     expect(covered / n).toBeGreaterThanOrEqual(0.85);
     // Recomputed here from the trail: the API's figure is the share of random verdicts whose category was in the set shown.
-    const rows = await s.db.query<{ shown_set: string; name: string }>(null,
-      `SELECT v.shown_set, c.name FROM verdicts v JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1 AND v.draw = 'random' AND v.shown_set IS NOT NULL`, [deskId]);
+    const rows = await s.db.query<{ shown_set: string; name: string }>(
+      null,
+      `SELECT v.shown_set, c.name FROM verdicts v JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1 AND v.draw = 'random' AND v.shown_set IS NOT NULL`,
+      [deskId],
+    );
     expect(rows.filter((r) => (JSON.parse(r.shown_set) as string[]).includes(r.name)).length).toBe(covered);
     expect(cov.alert.raised).toBe(false);
   }, 600_000);
@@ -120,17 +159,26 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     expect(preview.points[0].target).toBe(0.5);
     expect(preview.points[49].target).toBe(0.99);
     // A higher target never gives smaller sets on average (thresholds only grow with the target).
-    for (let i = 1; i < 50; i++) expect(preview.points[i].meanSetSize).toBeGreaterThanOrEqual(preview.points[i - 1].meanSetSize - 1e-12);
+    for (let i = 1; i < 50; i++)
+      expect(preview.points[i].meanSetSize).toBeGreaterThanOrEqual(preview.points[i - 1].meanSetSize - 1e-12);
     const sizeAt = (t: number) => preview.points.find((p: { target: number }) => p.target === t).meanSetSize;
     // The set-size distribution agrees with the shares and the mean: size 0 is unfamiliar, 1 sure, 2 or more ambiguous.
-    for (const p of preview.points as Array<{ setSizes: number[]; sureShare: number; unfamiliarShare: number; meanSetSize: number }>) {
+    for (const p of preview.points as Array<{
+      setSizes: number[];
+      sureShare: number;
+      unfamiliarShare: number;
+      meanSetSize: number;
+    }>) {
       expect(p.setSizes.reduce((a, b) => a + b, 0)).toBe(preview.items);
-      expect(p.setSizes[0]! / preview.items).toBeCloseTo(p.unfamiliarShare, 12);
-      expect(p.setSizes[1]! / preview.items).toBeCloseTo(p.sureShare, 12);
+      expect(p.setSizes[0] / preview.items).toBeCloseTo(p.unfamiliarShare, 12);
+      expect(p.setSizes[1] / preview.items).toBeCloseTo(p.sureShare, 12);
       expect(p.setSizes.reduce((a, c, size) => a + c * size, 0) / preview.items).toBeCloseTo(p.meanSetSize, 12);
     }
 
-    const page = async () => (await s.call(sup, 'GET', `/api/desks/${deskId}/items?limit=200`)).body.items.map((i: { prediction: { set: string[] } }) => i.prediction.set.length);
+    const page = async () =>
+      (await s.call(sup, 'GET', `/api/desks/${deskId}/items?limit=200`)).body.items.map(
+        (i: { prediction: { set: string[] } }) => i.prediction.set.length,
+      );
     const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
     const at90 = mean(await page());
     const patched = await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { coverageTarget: 0.6 });
@@ -142,7 +190,12 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     expect(at60).toBeLessThan(at90);
     expect(Math.abs(sizeAt(0.6) - sizeAt(0.9))).toBeGreaterThan(0);
     const sure = (await s.call(sup, 'GET', `/api/desks/${deskId}/items?call=sure&limit=20`)).body.items;
-    expect(sure.every((i: { prediction: { call: string; set: string[] } }) => i.prediction.call === 'sure' && i.prediction.set.length === 1)).toBe(true);
+    expect(
+      sure.every(
+        (i: { prediction: { call: string; set: string[] } }) =>
+          i.prediction.call === 'sure' && i.prediction.set.length === 1,
+      ),
+    ).toBe(true);
     // A target so high that the calibration counts cannot back it: the answer says how many more random verdicts are needed.
     const high = await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { coverageTarget: 0.999 });
     expect(high.body.calibrationStatus.needMore).toBeGreaterThan(0);
@@ -160,12 +213,15 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     const now = s.db.time(new Date());
     const ids: number[] = [];
     for (const [i, text] of [`${base} !`, `${base} !!`].entries()) {
-      const [row] = await s.db.query<{ id: number }>(null,
+      const [row] = await s.db.query<{ id: DbInt }>(
+        null,
         `INSERT INTO items (desk_id, text, normalized_text, normalized_hash, meta, imported_at, state, seed_hits, priority, rand_key)
-         VALUES ($1, $2, $3, $4, '{}', $5, 'open', 0, $6, 0.5) RETURNING id`, [deskId, text, text.toLowerCase(), `near-dup-${i}`, now, 100 - i]);
-      ids.push(Number(row!.id));
+         VALUES ($1, $2, $3, $4, '{}', $5, 'open', 0, $6, 0.5) RETURNING id`,
+        [deskId, text, text.toLowerCase(), `near-dup-${i}`, now, 100 - i],
+      );
+      ids.push(Number(row.id));
     }
-    const token = reviewers[0]!;
+    const token = reviewers[0];
     const first = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
     expect(first.body.item.id).toBe(ids[0]);
     const second = await s.call(token, 'POST', `/api/desks/${deskId}/leases`);
@@ -180,15 +236,33 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
   it('raises the coverage alert when the recent random checks fall short of the target', async () => {
     // Drift, simulated in the trail: 200 random checks whose answer was outside the set shown.
     await s.user('drift', 'reviewer');
-    const [{ id: reviewerId }] = await s.db.query<{ id: number }>(null, `SELECT id FROM users WHERE name = 'drift'`);
-    const [{ id: threat }] = await s.db.query<{ id: number }>(null, `SELECT id FROM categories WHERE desk_id = $1 AND name = 'threat'`, [deskId]);
+    const [{ id: reviewerId }] = await s.db.query<{ id: DbInt }>(null, `SELECT id FROM users WHERE name = 'drift'`);
+    const [{ id: threat }] = await s.db.query<{ id: DbInt }>(
+      null,
+      `SELECT id FROM categories WHERE desk_id = $1 AND name = 'threat'`,
+      [deskId],
+    );
     const { currentModelVersion } = (await s.call(sup, 'GET', `/api/desks/${deskId}/models`)).body;
-    const open = await s.db.query<{ id: number }>(null, `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY id LIMIT 200`, [deskId]);
+    const open = await s.db.query<{ id: DbInt }>(
+      null,
+      `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY id LIMIT 200`,
+      [deskId],
+    );
     for (const [i, item] of open.entries()) {
-      await s.db.query(null,
+      await s.db.query(
+        null,
         `INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, simulated, created_at)
          VALUES ($1, $2, $3, $4, $5, false, 'random', $6, '["ok"]', 'sure', false, $7)`,
-        [deskId, Number(item.id), Number(reviewerId), `drift-${i}`, Number(threat), currentModelVersion, s.db.time(new Date())]);
+        [
+          deskId,
+          Number(item.id),
+          Number(reviewerId),
+          `drift-${i}`,
+          Number(threat),
+          currentModelVersion,
+          s.db.time(new Date()),
+        ],
+      );
     }
     const cov = (await s.call(sup, 'GET', `/api/desks/${deskId}/coverage`)).body;
     expect(cov.window.n).toBe(200);

@@ -5,7 +5,15 @@ import { chromium, type BrowserContext, type Page } from 'playwright-core';
 
 /** Debian's Chromium, driven by playwright-core: no browser is downloaded. */
 export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
+const FLAGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--no-first-run',
+];
 
 export interface Browser {
   context: BrowserContext;
@@ -18,17 +26,25 @@ export interface Browser {
 /** A fresh browser profile per call, 1280×800, recording every request its pages make. */
 export async function openBrowser(origin: string): Promise<Browser> {
   const profile = mkdtempSync(join(tmpdir(), 'cribra-chromium-'));
-  const context = await chromium.launchPersistentContext(profile, { executablePath: CHROMIUM, headless: true, args: FLAGS, viewport: { width: 1280, height: 800 } });
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: FLAGS,
+    viewport: { width: 1280, height: 800 },
+  });
   const foreign: string[] = [];
   context.on('request', (r) => {
     const url = r.url();
-    if (!url.startsWith(`${origin}/`) && url !== origin && !url.startsWith('data:') && !url.startsWith('blob:')) foreign.push(url);
+    if (!url.startsWith(`${origin}/`) && url !== origin && !url.startsWith('data:') && !url.startsWith('blob:'))
+      foreign.push(url);
   });
   const page = context.pages()[0] ?? (await context.newPage());
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(e.message));
   return {
-    context, page, foreign,
+    context,
+    page,
+    foreign,
     close: async () => {
       await context.close();
       rmSync(profile, { recursive: true, force: true });

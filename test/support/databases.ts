@@ -25,7 +25,11 @@ export async function createTestDatabase(kind: 'sqlite' | 'postgres'): Promise<T
   if (kind === 'sqlite') {
     const dir = mkdtempSync(join(tmpdir(), 'cribra-db-'));
     const file = join(dir, 'test.sqlite');
-    return { kind, config: { kind: 'sqlite', file, url: `sqlite:${file}` }, drop: async () => rmSync(dir, { recursive: true, force: true }) };
+    return {
+      kind,
+      config: { kind: 'sqlite', file, url: `sqlite:${file}` },
+      drop: async () => rmSync(dir, { recursive: true, force: true }),
+    };
   }
   const name = `cribra_t_${randomBytes(5).toString('hex')}`;
   const admin = new pg.Client({ connectionString: TEST_DATABASE_URL });

@@ -25,13 +25,17 @@ export async function freePort(): Promise<number> {
 }
 
 /** Starts a built app (`api` or `worker`) as its own process with a configuration. */
-export function spawnApp(app: 'api' | 'worker', config: AppConfig, extraEnv: Record<string, string> = {}): ChildProcess {
+export function spawnApp(
+  app: 'api' | 'worker',
+  config: AppConfig,
+  extraEnv: Record<string, string> = {},
+): ChildProcess {
   // The node arguments the launcher gives the app (the API's heap limit).
   const child = spawn(process.execPath, [...nodeArgsFor(app, config), built(`apps/${app}/src/main.js`)], {
     env: { PATH: process.env.PATH ?? '', TZ: 'UTC', ...configToEnv(config), ...extraEnv },
     stdio: ['ignore', 'ignore', 'pipe'],
   });
-  child.stderr?.on('data', () => undefined);
+  child.stderr.on('data', () => undefined);
   return child;
 }
 
@@ -49,5 +53,7 @@ export async function waitReady(base: string, timeoutMs = 30_000): Promise<void>
 }
 
 export function exited(child: ChildProcess): Promise<void> {
-  return child.exitCode !== null || child.signalCode !== null ? Promise.resolve() : new Promise((r) => child.once('exit', () => r()));
+  return child.exitCode !== null || child.signalCode !== null
+    ? Promise.resolve()
+    : new Promise((r) => child.once('exit', () => r()));
 }

@@ -33,7 +33,13 @@ export interface Stack {
   tokens: Record<string, string>;
   /** Creates a user directly; returns its API token. */
   user(name: string, role: Role, password?: string): Promise<string>;
-  call<T = any>(token: string | null, method: string, path: string, body?: unknown, headers?: Record<string, string>): Promise<Reply<T>>;
+  call<T = any>(
+    token: string | null,
+    method: string,
+    path: string,
+    body?: unknown,
+    headers?: Record<string, string>,
+  ): Promise<Reply<T>>;
   /** Waits until no job is active or waiting; delayed jobs count too unless `ignoreDelayed`. */
   waitForQueuesIdle(timeoutMs?: number, options?: { ignoreDelayed?: boolean }): Promise<void>;
   /** Stops the in-process worker (nothing is learned or scored after this). */
@@ -51,13 +57,23 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const dataDir = mkdtempSync(join(tmpdir(), 'cribra-data-'));
   // Its own queue prefix: this test's jobs never meet another test's.
   const queuePrefix = `cribra-test-${randomBytes(4).toString('hex')}`;
-  const config = parseConfig({ DATA_DIR: dataDir, DATABASE_URL: tdb.config.url, REDIS_URL: TEST_REDIS_URL, QUEUE_PREFIX: queuePrefix, LOG_LEVEL: 'error', ...options.env });
+  const config = parseConfig({
+    DATA_DIR: dataDir,
+    DATABASE_URL: tdb.config.url,
+    REDIS_URL: TEST_REDIS_URL,
+    QUEUE_PREFIX: queuePrefix,
+    LOG_LEVEL: 'error',
+    ...options.env,
+  });
   const api = await createHttpApp(config);
   await api.listen(0, '127.0.0.1');
   const server = api.getHttpServer();
   const addr = server.address() as { port: number };
   const base = `http://127.0.0.1:${addr.port}`;
-  let worker = options.worker === false ? null : await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['error'] });
+  let worker =
+    options.worker === false
+      ? null
+      : await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: ['error'] });
   const auth = api.get(AuthService);
   const db = api.get(Database);
   const tokens: Record<string, string> = {};
@@ -66,12 +82,19 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     tokens[name] = token;
     return token;
   };
-  const call = async <T>(token: string | null, method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<Reply<T>> => {
+  const call = async <T>(
+    token: string | null,
+    method: string,
+    path: string,
+    body?: unknown,
+    headers: Record<string, string> = {},
+  ): Promise<Reply<T>> => {
     const h: Record<string, string> = { ...headers };
     if (token) h.authorization = `Bearer ${token}`;
     let payload: RequestInit['body'];
     if (body !== undefined) {
-      if (typeof body === 'string' || body instanceof Uint8Array || body instanceof FormData) payload = body as RequestInit['body'];
+      if (typeof body === 'string' || body instanceof Uint8Array || body instanceof FormData)
+        payload = body as RequestInit['body'];
       else {
         payload = JSON.stringify(body);
         h['content-type'] ??= 'application/json';
@@ -93,13 +116,20 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     try {
       const deadline = Date.now() + timeoutMs;
       // Quiet twice in a row: a job finishing on one queue may have just added one to another that was already counted.
-      for (let quiet = 0; quiet < 2; ) {
+      for (let quiet = 0; quiet < 2;) {
         // Delayed first: a job only moves forward (delayed → waiting → active), so it cannot slip between the two reads.
         // The periodic sweep always has its next run scheduled: it does not count as work.
-        const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed'])))).flat().filter((j) => j && j.name !== 'sweep-desks' && !opts.ignoreDelayed);
-        const counts = await Promise.all(queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')));
+        const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed']))))
+          .flat()
+          .filter((j) => j.name !== 'sweep-desks' && !opts.ignoreDelayed);
+        const counts = await Promise.all(
+          queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')),
+        );
         quiet = delayed.length === 0 && counts.every((c) => Object.values(c).every((n) => n === 0)) ? quiet + 1 : 0;
-        if (quiet === 0 && Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`);
+        if (quiet === 0 && Date.now() > deadline)
+          throw new Error(
+            `queues still busy after ${timeoutMs} ms: ${JSON.stringify(counts)}, ${delayed.length} delayed`,
+          );
         await new Promise((r) => setTimeout(r, 50));
       }
     } finally {
@@ -125,11 +155,30 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     rmSync(dataDir, { recursive: true, force: true });
     await tdb.drop();
   };
-  return { kind, config, base, api, get worker() { return worker; }, db, tokens, user, call, waitForQueuesIdle, stopWorker, stop };
+  return {
+    kind,
+    config,
+    base,
+    api,
+    get worker() {
+      return worker;
+    },
+    db,
+    tokens,
+    user,
+    call,
+    waitForQueuesIdle,
+    stopWorker,
+    stop,
+  };
 }
 
 /** Polls until `probe` returns a value other than undefined. */
-export async function eventually<T>(probe: () => Promise<T | undefined>, timeoutMs = 30_000, what = 'condition'): Promise<T> {
+export async function eventually<T>(
+  probe: () => Promise<T | undefined>,
+  timeoutMs = 30_000,
+  what = 'condition',
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const v = await probe();

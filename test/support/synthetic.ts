@@ -5,16 +5,45 @@ import { createRng } from '#learning';
  * categories, each with its own cue words mixed into shared filler, with
  * some overlap so that the model is not always sure. Test data only.
  */
-export function syntheticPool(n: number, seed = 7): Array<{ externalId: string; text: string; label: 'threat' | 'harassment' | 'ok' }> {
+export function syntheticPool(
+  n: number,
+  seed = 7,
+): Array<{ externalId: string; text: string; label: 'threat' | 'harassment' | 'ok' }> {
   const g = createRng(seed);
   const rng = () => g.next();
-  const pick = <T>(xs: readonly T[]): T => xs[Math.floor(rng() * xs.length)]!;
+  const pick = <T>(xs: readonly T[]): T => xs[Math.floor(rng() * xs.length)];
   const cues = {
-    threat: ['hurt', 'find you', 'regret', 'waiting outside', 'burn', 'pay for this', 'coming for', 'know where you live'],
+    threat: [
+      'hurt',
+      'find you',
+      'regret',
+      'waiting outside',
+      'burn',
+      'pay for this',
+      'coming for',
+      'know where you live',
+    ],
     harassment: ['idiot', 'pathetic', 'loser', 'nobody likes you', 'shut up', 'clown', 'ugly', 'worthless'],
     ok: ['market', 'garden', 'meeting', 'thanks', 'recipe', 'bus route', 'library', 'weekend'],
   } as const;
-  const filler = ['the', 'a', 'near', 'park', 'street', 'today', 'tonight', 'neighbour', 'post', 'again', 'really', 'about', 'square', 'corner', 'bakery', 'rain'];
+  const filler = [
+    'the',
+    'a',
+    'near',
+    'park',
+    'street',
+    'today',
+    'tonight',
+    'neighbour',
+    'post',
+    'again',
+    'really',
+    'about',
+    'square',
+    'corner',
+    'bakery',
+    'rain',
+  ];
   const labels = ['threat', 'harassment', 'ok'] as const;
   const out: Array<{ externalId: string; text: string; label: 'threat' | 'harassment' | 'ok' }> = [];
   for (let i = 0; i < n; i++) {

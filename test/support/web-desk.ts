@@ -16,13 +16,20 @@ export interface WebDesk {
  * synthetic pool imported, and, when asked, reviewers' verdicts given through
  * the API from the hidden labels until a model version is current.
  */
-export async function webDesk(s: Stack, options: { pool?: number; verdicts?: number; extraTexts?: string[] } = {}): Promise<WebDesk> {
+export async function webDesk(
+  s: Stack,
+  options: { pool?: number; verdicts?: number; extraTexts?: string[] } = {},
+): Promise<WebDesk> {
   const sup = await s.user('sasha', 'supervisor', PASSWORD);
   const rev = await s.user('robin', 'reviewer', PASSWORD);
   await s.user('ada', 'auditor', PASSWORD);
   const d = await s.call(sup, 'POST', '/api/desks', {
-    name: 'Mossbank Commons', categories: ['threat', 'harassment', 'ok'], seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot', 'clown'], ok: ['thanks'] },
-    randomShare: 0.3, retrainEvery: 20, retrainAfterSeconds: 2,
+    name: 'Mossbank Commons',
+    categories: ['threat', 'harassment', 'ok'],
+    seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot', 'clown'], ok: ['thanks'] },
+    randomShare: 0.3,
+    retrainEvery: 20,
+    retrainAfterSeconds: 2,
   });
   expect(d.status).toBe(201);
   const deskId = d.body.id as number;
@@ -34,17 +41,34 @@ export async function webDesk(s: Stack, options: { pool?: number; verdicts?: num
     labels.set(`extra-${i}`, 'ok');
   }
   const body = rows.map((r) => JSON.stringify(r)).join('\n');
-  const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, { 'content-type': 'application/x-ndjson' });
-  await eventually(async () => ((await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined), 60_000, 'import done');
+  const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, {
+    'content-type': 'application/x-ndjson',
+  });
+  await eventually(
+    async () =>
+      (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+    60_000,
+    'import done',
+  );
   for (let i = 0; i < (options.verdicts ?? 0); i++) {
     // The pool is far from used up: an item comes back even while a version is being published.
     const l = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
     expect(l.status).toBe(201);
-    const v = await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, category: labels.get(l.body.item.externalId), clientId: `setup-${i}`, elapsedMs: 4000 + i });
+    const v = await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, {
+      leaseId: l.body.lease.id,
+      itemId: l.body.item.id,
+      category: labels.get(l.body.item.externalId),
+      clientId: `setup-${i}`,
+      elapsedMs: 4000 + i,
+    });
     expect(v.status).toBe(201);
   }
   if (options.verdicts) {
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined), 60_000, 'a model version');
+    await eventually(
+      async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined),
+      60_000,
+      'a model version',
+    );
     // Let the debounced retrains run out, so the version the screens show stays current while a test reads it,
     // and let the desk settings cache (2 s) see it.
     await s.waitForQueuesIdle(60_000);

@@ -15,11 +15,17 @@ async function writeControls(page: Page): Promise<string[]> {
   return page.evaluate(() => {
     const found: string[] = [];
     for (const b of Array.from(document.querySelectorAll('button'))) {
-      const t = (b.textContent ?? '').trim();
+      const t = b.textContent.trim();
       if (!['Sign out', 'Filter', 'Older verdicts', 'More'].includes(t)) found.push(`button “${t}”`);
     }
-    for (const f of Array.from(document.querySelectorAll('form'))) if (f.getAttribute('role') !== 'search') found.push('a form that is not a search');
-    for (const i of Array.from(document.querySelectorAll('input[type=file], input[type=range], input[type=radio], input[type=checkbox], textarea'))) found.push(`${i.tagName.toLowerCase()} ${(i as HTMLInputElement).type}`);
+    for (const f of Array.from(document.querySelectorAll('form')))
+      if (f.getAttribute('role') !== 'search') found.push('a form that is not a search');
+    for (const i of Array.from(
+      document.querySelectorAll(
+        'input[type=file], input[type=range], input[type=radio], input[type=checkbox], textarea',
+      ),
+    ))
+      found.push(`${i.tagName.toLowerCase()} ${(i as HTMLInputElement).type}`);
     return found;
   });
 }
@@ -35,8 +41,8 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     b = await openBrowser(s.base);
   }, 180_000);
   afterAll(async () => {
-    await b?.close();
-    await s?.stop();
+    await (b as Browser | undefined)?.close();
+    await (s as Stack | undefined)?.stop();
   });
 
   it('reads model versions, one version in detail and the decision trail, and finds no control that changes data', async () => {
@@ -53,9 +59,21 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
 
     // Each published version's oversight report is listed once written.
     const current = models.currentModelVersion as number;
-    await eventually(async () => ((await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/reports`)).body.reports.find((r: { version: number; status: string }) => r.version === current)?.status === 'ready' ? true : undefined), 60_000, 'the report');
+    await eventually(
+      async () =>
+        (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/reports`)).body.reports.find(
+          (r: { version: number; status: string }) => r.version === current,
+        )?.status === 'ready'
+          ? true
+          : undefined,
+      60_000,
+      'the report',
+    );
     await page.reload();
-    const reportLink = table.locator('tbody tr').filter({ hasText: `v${current}` }).getByRole('link', { name: 'HTML' });
+    const reportLink = table
+      .locator('tbody tr')
+      .filter({ hasText: `v${current}` })
+      .getByRole('link', { name: 'HTML' });
     await reportLink.waitFor();
     const href = await reportLink.getAttribute('href');
     expect(href).toBe(`/api/desks/${desk.deskId}/models/${current}/report.html`);
@@ -70,7 +88,9 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     // Counts behind the version, as the API has them.
     const detail = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/models/${current}`)).body;
     const rows = await page.locator('table.data tbody tr').allInnerTexts();
-    expect(rows[0]).toMatch(new RegExp(`^threat\\s+${detail.training.counts.threat}\\s+${detail.calibration.counts.threat}`));
+    expect(rows[0]).toMatch(
+      new RegExp(`^threat\\s+${detail.training.counts.threat}\\s+${detail.calibration.counts.threat}`),
+    );
     // The set-size chart is drawn with its axis title and one bar per possible size.
     await page.locator('svg.chart').first().waitFor();
     const sizeBars = page.locator('svg.chart').filter({ hasText: 'open items' }).locator('g.bar');
@@ -92,7 +112,8 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     await page.getByLabel('Category').selectOption('threat');
     await page.getByRole('button', { name: 'Filter' }).click();
     await page.waitForURL(/category=threat/);
-    const threat = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?category=threat&limit=1000`)).body.verdicts.length;
+    const threat = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?category=threat&limit=1000`)).body
+      .verdicts.length;
     await page.waitForFunction((n) => document.querySelectorAll('table.trail tbody tr').length === n, threat);
     for (const r of await trail.allInnerTexts()) expect(r.split('\t')[3]).toBe('threat');
     // A date range that holds no verdict empties the table and says so.
@@ -105,11 +126,16 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
 
   it('is refused the supervisor screens, and the API refuses the writes', async () => {
     const { page } = b;
-    for (const path of [`/desks/${desk.deskId}`, `/desks/${desk.deskId}/coverage`, `/desks/${desk.deskId}/import`, `/desks/${desk.deskId}/queue`]) {
+    for (const path of [
+      `/desks/${desk.deskId}`,
+      `/desks/${desk.deskId}/coverage`,
+      `/desks/${desk.deskId}/import`,
+      `/desks/${desk.deskId}/queue`,
+    ]) {
       await page.goto(`${s.base}${path}`);
       await page.getByRole('alert').filter({ hasText: 'Not open to your role' }).waitFor();
     }
-    const auditor = s.tokens.ada!;
+    const auditor = s.tokens.ada;
     expect((await s.call(auditor, 'PATCH', `/api/desks/${desk.deskId}`, { coverageTarget: 0.8 })).status).toBe(403);
     expect((await s.call(auditor, 'POST', `/api/desks/${desk.deskId}/leases`)).status).toBe(403);
   });
@@ -118,6 +144,8 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     const { page } = b;
     await page.goto(`${s.base}/desks/${desk.deskId}/trail?from=2026-02-30`);
     // (February has no 30th.)
-    await expect(page.getByRole('alert').innerText()).resolves.toContain('from: expected an ISO 8601 date or date-time');
+    await expect(page.getByRole('alert').innerText()).resolves.toContain(
+      'from: expected an ISO 8601 date or date-time',
+    );
   });
 });

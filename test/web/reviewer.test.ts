@@ -18,8 +18,8 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     b = await openBrowser(s.base);
   }, 180_000);
   afterAll(async () => {
-    await b?.close();
-    await s?.stop();
+    await (b as Browser | undefined)?.close();
+    await (s as Stack | undefined)?.stop();
   });
 
   it('decides five items with the keyboard only, undoes one, and sees the next item at once', async () => {
@@ -36,7 +36,8 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     await expect(page.locator('table.probabilities tr').count()).resolves.toBe(3);
     // The reviewer is never told why an item was served.
     const text = (await page.locator('main').innerText()).toLowerCase();
-    for (const word of ['random', 'uncertainty', 'draw', 'second opinion', 'second-opinion']) expect(text).not.toContain(word);
+    for (const word of ['random', 'uncertainty', 'draw', 'second opinion', 'second-opinion'])
+      expect(text).not.toContain(word);
     await expect(page.locator('footer').innerText()).resolves.toContain('emergency services');
 
     const decided: Array<{ itemId: number; category: string }> = [];
@@ -48,16 +49,22 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
       const key = String(['threat', 'harassment', 'ok'].indexOf(category) + 1);
       const t0 = Date.now();
       await page.keyboard.press(key);
-      await page.waitForFunction((prev) => {
-        const el = document.querySelector('article.item');
-        return (el && el.getAttribute('data-item-id') !== String(prev)) || document.querySelector('.empty-queue');
-      }, itemId, { polling: 'raf' });
+      await page.waitForFunction(
+        (prev) => {
+          const el = document.querySelector('article.item');
+          return (el && el.getAttribute('data-item-id') !== String(prev)) || document.querySelector('.empty-queue');
+        },
+        itemId,
+        { polling: 'raf' },
+      );
       timings.push(Date.now() - t0);
       decided.push({ itemId, category });
     }
     timings.sort((a, b) => a - b);
-    const median = timings[2]!;
-    process.stdout.write(`${JSON.stringify({ measure: 'verdict key to next item rendered', kind, ms: timings, median, target: NEXT_ITEM_TARGET_MS })}\n`);
+    const median = timings[2];
+    process.stdout.write(
+      `${JSON.stringify({ measure: 'verdict key to next item rendered', kind, ms: timings, median, target: NEXT_ITEM_TARGET_MS })}\n`,
+    );
     expect(median).toBeLessThanOrEqual(NEXT_ITEM_TARGET_MS);
 
     // `u` undoes the last verdict; the screen says so and keeps the item in front of the reviewer.
@@ -66,12 +73,13 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     await page.getByRole('status').filter({ hasText: 'undone' }).waitFor();
     expect(await item.getAttribute('data-item-id')).toBe(current);
 
-    const mine = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=10`)).body.verdicts as Array<{ itemId: number; category: string; undoneAt: string | null; elapsedMs: number }>;
+    const mine = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=10`)).body
+      .verdicts as Array<{ itemId: number; category: string; undoneAt: string | null; elapsedMs: number }>;
     const fromScreen = mine.filter((v) => decided.some((d) => d.itemId === v.itemId));
     expect(fromScreen).toHaveLength(5);
     for (const v of fromScreen) expect(v.category).toBe(decided.find((d) => d.itemId === v.itemId)!.category);
     const undone = fromScreen.filter((v) => v.undoneAt !== null);
-    expect(undone.map((v) => v.itemId)).toEqual([decided[4]!.itemId]);
+    expect(undone.map((v) => v.itemId)).toEqual([decided[4].itemId]);
     expect(fromScreen.every((v) => v.elapsedMs >= 0)).toBe(true);
     expect(b.foreign).toEqual([]);
   });
@@ -89,7 +97,10 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     await page.getByText('Press Enter to confirm').waitFor();
     expect(await item.getAttribute('data-item-id')).toBe(itemId);
     await page.keyboard.press('Enter');
-    await page.waitForFunction((prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev, itemId);
+    await page.waitForFunction(
+      (prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev,
+      itemId,
+    );
     const [v] = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1`)).body.verdicts;
     expect(v).toMatchObject({ itemId: Number(itemId), category: 'ok', note: 'mentions a neighbour by name' });
   });
@@ -98,16 +109,22 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     const { page } = b;
     await page.getByLabel('Confirm each verdict with Enter').uncheck();
     await page.locator('body').click({ position: { x: 5, y: 300 } });
-    const before = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts.length;
+    const before = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts
+      .length;
     const itemId = await page.locator('article.item').getAttribute('data-item-id');
     await page.keyboard.press('3');
     await page.keyboard.press('3');
-    await page.waitForFunction((prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev, itemId);
+    await page.waitForFunction(
+      (prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev,
+      itemId,
+    );
     await new Promise((r) => setTimeout(r, 300));
     const mine = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts;
     // One live verdict for the item shown (an item undone earlier can come back), two at most in all when the second
     // press reached the next item: never two for one item.
-    const onItem = mine.filter((v: { itemId: number; undoneAt: string | null }) => v.itemId === Number(itemId) && v.undoneAt === null);
+    const onItem = mine.filter(
+      (v: { itemId: number; undoneAt: string | null }) => v.itemId === Number(itemId) && v.undoneAt === null,
+    );
     expect(onItem).toHaveLength(1);
     expect(mine.length - before).toBeGreaterThanOrEqual(1);
     expect(mine.length - before).toBeLessThanOrEqual(2);
@@ -134,7 +151,10 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     const [lease] = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/leases/mine`)).body.leases;
     const left = new Date(lease.expiresAt).getTime() - Date.now();
     // The screen counts down to the expiry the server gave; move the page's clock past it.
-    await page.evaluate((ms) => { const real = Date.now.bind(Date); Date.now = () => real() + ms; }, left + 1000);
+    await page.evaluate((ms) => {
+      const real = Date.now.bind(Date);
+      Date.now = () => real() + ms;
+    }, left + 1000);
     const warning = page.getByRole('alert').filter({ hasText: 'Your hold on this item ended' });
     await warning.waitFor({ timeout: 5000 });
     await expect(page.locator('.timers').innerText()).resolves.toContain('ended');

@@ -3,8 +3,10 @@ import { startStack, type Stack } from '../support/stack.js';
 
 describe('the web screens are served by the API', () => {
   let s: Stack;
-  beforeAll(async () => { s = await startStack('sqlite', { worker: false }); });
-  afterAll(async () => s?.stop());
+  beforeAll(async () => {
+    s = await startStack('sqlite', { worker: false });
+  });
+  afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('answers every screen path with the page, under a same-origin content policy', async () => {
     for (const path of ['/', '/signin', '/desks/7/queue', '/desks/7/models/3']) {
@@ -32,7 +34,7 @@ describe('the web screens are served by the API', () => {
 
   it('caches the hashed assets and nothing else', async () => {
     const html = await (await fetch(`${s.base}/`)).text();
-    const script = html.match(/src="(\/assets\/[^"]+\.js)"/)![1]!;
+    const script = html.match(/src="(\/assets\/[^"]+\.js)"/)![1];
     const r = await fetch(`${s.base}${script}`);
     expect(r.status).toBe(200);
     expect(r.headers.get('cache-control')).toBe('public, max-age=31536000, immutable');

@@ -21,8 +21,8 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     b = await openBrowser(s.base);
   }, 120_000);
   afterAll(async () => {
-    await b?.close();
-    await s?.stop();
+    await (b as Browser | undefined)?.close();
+    await (s as Stack | undefined)?.stop();
   });
 
   it('creates a desk with its categories and seed terms', async () => {
@@ -59,7 +59,11 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     const rows = pool.map((p) => JSON.stringify({ text: p.text, externalId: p.externalId, source: 'board/general' }));
     rows.splice(10, 0, '{"text": "unterminated');
     rows.splice(200, 0, JSON.stringify({ source: 'board/general', note: 'no text here' }));
-    await page.locator('input[type=file]').setInputFiles({ name: 'reported-posts.ndjson', mimeType: 'application/x-ndjson', buffer: Buffer.from(`${rows.join('\n')}\n`) });
+    await page.locator('input[type=file]').setInputFiles({
+      name: 'reported-posts.ndjson',
+      mimeType: 'application/x-ndjson',
+      buffer: Buffer.from(`${rows.join('\n')}\n`),
+    });
     await page.getByRole('button', { name: 'Import' }).click();
     const progress = page.locator('section.import-progress');
     await progress.waitFor();
@@ -81,9 +85,18 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     for (let i = 0; i < 80; i++) {
       const l = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
       if (l.status === 204) break;
-      await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: l.body.lease.id, itemId: l.body.item.id, category: labels.get(l.body.item.externalId), clientId: `c${i}` });
+      await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, {
+        leaseId: l.body.lease.id,
+        itemId: l.body.item.id,
+        category: labels.get(l.body.item.externalId),
+        clientId: `c${i}`,
+      });
     }
-    await eventually(async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined), 60_000, 'a model version');
+    await eventually(
+      async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined),
+      60_000,
+      'a model version',
+    );
     await s.waitForQueuesIdle(60_000, { ignoreDelayed: true });
     // No newer version may replace the one the screen previews while the test compares the two.
     await s.stopWorker();
@@ -115,15 +128,38 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { secondOpinionShare: 1 });
     await new Promise((r) => setTimeout(r, 2100)); // the desk settings cache lives 2 s
     const first = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
-    expect((await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: first.body.lease.id, itemId: first.body.item.id, category: 'ok', clientId: 'd1' })).status).toBe(201);
+    expect(
+      (
+        await s.call(rev, 'POST', `/api/desks/${deskId}/verdicts`, {
+          leaseId: first.body.lease.id,
+          itemId: first.body.item.id,
+          category: 'ok',
+          clientId: 'd1',
+        })
+      ).status,
+    ).toBe(201);
     // Older items are due for a second opinion too (the desk's default share): answer them as the first reviewer would have, until ours comes.
     let second = await s.call(other, 'POST', `/api/desks/${deskId}/leases`);
     for (let n = 0; second.body.item.id !== first.body.item.id; n++) {
       expect(n).toBeLessThan(40);
-      await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: second.body.lease.id, itemId: second.body.item.id, category: labels.get(second.body.item.externalId), clientId: `d-other-${n}` });
+      await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, {
+        leaseId: second.body.lease.id,
+        itemId: second.body.item.id,
+        category: labels.get(second.body.item.externalId),
+        clientId: `d-other-${n}`,
+      });
       second = await s.call(other, 'POST', `/api/desks/${deskId}/leases`);
     }
-    expect((await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, { leaseId: second.body.lease.id, itemId: second.body.item.id, category: 'threat', clientId: 'd2' })).status).toBe(201);
+    expect(
+      (
+        await s.call(other, 'POST', `/api/desks/${deskId}/verdicts`, {
+          leaseId: second.body.lease.id,
+          itemId: second.body.item.id,
+          category: 'threat',
+          clientId: 'd2',
+        })
+      ).status,
+    ).toBe(201);
     await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { secondOpinionShare: 0.1 });
 
     await page.goto(`${s.base}/desks/${deskId}/disagreements`);
@@ -136,8 +172,14 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     await card.getByLabel('Reason').fill('abuse aimed at a named neighbour; no threat');
     await card.getByRole('button', { name: 'Settle' }).click();
     await card.getByText('Settled as harassment').waitFor();
-    const listed = (await s.call(sup, 'GET', `/api/desks/${deskId}/disagreements`)).body.disagreements.find((d: { item: { id: number } }) => d.item.id === first.body.item.id);
-    expect(listed.settled).toMatchObject({ category: 'harassment', reason: 'abuse aimed at a named neighbour; no threat', settledBy: 'sasha' });
+    const listed = (await s.call(sup, 'GET', `/api/desks/${deskId}/disagreements`)).body.disagreements.find(
+      (d: { item: { id: number } }) => d.item.id === first.body.item.id,
+    );
+    expect(listed.settled).toMatchObject({
+      category: 'harassment',
+      reason: 'abuse aimed at a named neighbour; no threat',
+      settledBy: 'sasha',
+    });
   });
 
   it('shows progress per category and per reviewer on the overview', async () => {
@@ -145,7 +187,9 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     await page.goto(`${s.base}/desks/${deskId}`);
     await page.locator('dl.figures').waitFor();
     const progress = (await s.call(sup, 'GET', `/api/desks/${deskId}/progress`)).body;
-    await expect(page.locator('dl.figures').innerText()).resolves.toMatch(new RegExp(`Verdicts\\s+${progress.verdicts.total}`));
+    await expect(page.locator('dl.figures').innerText()).resolves.toMatch(
+      new RegExp(`Verdicts\\s+${progress.verdicts.total}`),
+    );
     await expect(page.locator('table.data').innerText()).resolves.toContain('robin');
     await page.locator('svg.chart').first().waitFor();
     expect(b.foreign).toEqual([]);

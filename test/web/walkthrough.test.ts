@@ -22,8 +22,8 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
     b = await openBrowser(s.base);
   }, 180_000);
   afterAll(async () => {
-    await b?.close();
-    await s?.stop();
+    await (b as Browser | undefined)?.close();
+    await (s as Stack | undefined)?.stop();
   });
 
   it('1. signs in: the cautions are on the first screen', async () => {
@@ -37,15 +37,29 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
 
   it('2. the supervisor lets a simulated reviewer work and watches the first model versions appear', async () => {
     const { page } = b;
-    await eventually(async () => ((await s.call(null, 'GET', `/api/imports/${seeded.importId}`, undefined, { cookie: await cookie() })).body.state === 'done' ? true : undefined), 60_000, 'the demo import');
+    await eventually(
+      async () =>
+        (await s.call(null, 'GET', `/api/imports/${seeded.importId}`, undefined, { cookie: await cookie() })).body
+          .state === 'done'
+          ? true
+          : undefined,
+      60_000,
+      'the demo import',
+    );
     await page.getByRole('link', { name: 'Mossbank Commons' }).click();
     await page.getByRole('button', { name: 'Let a simulated reviewer work for 2 minutes' }).click();
     await page.getByText(/Working until/).waitFor();
     // Two published versions give the learning curve a line.
-    await eventually(async () => {
-      const m = (await s.call(null, 'GET', `/api/desks/${seeded.deskId}/models`, undefined, { cookie: await cookie() })).body;
-      return m.models.filter((v: { state: string }) => v.state === 'published').length >= 3 ? true : undefined;
-    }, 150_000, 'three published versions');
+    await eventually(
+      async () => {
+        const m = (
+          await s.call(null, 'GET', `/api/desks/${seeded.deskId}/models`, undefined, { cookie: await cookie() })
+        ).body;
+        return m.models.filter((v: { state: string }) => v.state === 'published').length >= 3 ? true : undefined;
+      },
+      150_000,
+      'three published versions',
+    );
     await page.getByText(/Serving model version/).waitFor({ timeout: 10_000 });
     await page.locator('polyline').first().waitFor();
     await screenshot(page, '2-supervisor-overview');
@@ -71,7 +85,10 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
     for (let i = 0; i < 15 && (await page.locator('mark.seed').count()) === 0; i++) {
       const id = await page.locator('article.item').getAttribute('data-item-id');
       await page.keyboard.press('0');
-      await page.waitForFunction((prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev, id);
+      await page.waitForFunction(
+        (prev) => document.querySelector('article.item')?.getAttribute('data-item-id') !== prev,
+        id,
+      );
     }
     await page.locator('.call .call-word').waitFor();
     await screenshot(page, '4-reviewer-queue');
@@ -83,7 +100,8 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
     await signIn(page, s.base, 'auditor', accounts.get('auditor')!);
     await page.getByRole('link', { name: 'Mossbank Commons' }).click();
     await page.locator('table.models-table').waitFor();
-    const current = (await s.call(null, 'GET', `/api/desks/${seeded.deskId}`, undefined, { cookie: await cookie() })).body.currentModelVersion;
+    const current = (await s.call(null, 'GET', `/api/desks/${seeded.deskId}`, undefined, { cookie: await cookie() }))
+      .body.currentModelVersion;
     await page.getByRole('link', { name: `v${current}`, exact: true }).click();
     await page.getByRole('heading', { name: 'Quality on the calibration set', exact: false }).waitFor();
     await screenshot(page, '5-auditor-model-version');
@@ -106,7 +124,10 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
   let session: string | null = null;
   async function cookie(): Promise<string> {
     if (!session) {
-      const login = await s.call(null, 'POST', '/api/auth/login', { name: 'supervisor', password: accounts.get('supervisor')! });
+      const login = await s.call(null, 'POST', '/api/auth/login', {
+        name: 'supervisor',
+        password: accounts.get('supervisor')!,
+      });
       session = login.headers.get('set-cookie')!.split(';')[0]!;
     }
     return session;

@@ -20,7 +20,20 @@ export class ApiModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: ApiModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, AuthModule, DesksModule, ImportsModule, LeasesModule, VerdictsModule, ModelsModule, DemoModule, ReportsModule],
+      imports: [
+        ConfigModule.forRoot(config),
+        DatabaseModule.forRoot(),
+        QueuesModule,
+        AuditModule,
+        AuthModule,
+        DesksModule,
+        ImportsModule,
+        LeasesModule,
+        VerdictsModule,
+        ModelsModule,
+        DemoModule,
+        ReportsModule,
+      ],
       controllers: [HealthController, AuditController],
     };
   }

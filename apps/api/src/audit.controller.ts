@@ -1,7 +1,21 @@
 import { BadRequestException, Controller, Get, Inject, Query } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { Roles } from '#auth';
-import { Database } from '#database';
+import { Database, type DbInt } from '#database';
+
+/** A row of `audit_events` as the list query reads it. */
+interface AuditRow {
+  id: DbInt;
+  at: unknown;
+  actor_id: DbInt | null;
+  actor_name: string;
+  action: string;
+  entity_type: string;
+  entity_id: string;
+  desk_id: DbInt | null;
+  before: string | null;
+  after: string | null;
+}
 
 /** Reads the append-only audit trail. */
 @ApiTags('audit')
@@ -14,21 +28,39 @@ export class AuditController {
   async list(@Query('deskId') deskId?: string, @Query('before') before?: string, @Query('limit') limit?: string) {
     const params: unknown[] = [];
     const where: string[] = [];
-    for (const [name, v] of [['deskId', deskId], ['before', before], ['limit', limit]] as const) {
+    for (const [name, v] of [
+      ['deskId', deskId],
+      ['before', before],
+      ['limit', limit],
+    ] as const) {
       if (v !== undefined && !/^\d+$/.test(v)) throw new BadRequestException(`${name}: expected a whole number`);
     }
-    if (deskId) { params.push(Number(deskId)); where.push(`desk_id = $${params.length}`); }
-    if (before) { params.push(Number(before)); where.push(`id < $${params.length}`); }
+    if (deskId) {
+      params.push(Number(deskId));
+      where.push(`desk_id = $${params.length}`);
+    }
+    if (before) {
+      params.push(Number(before));
+      where.push(`id < $${params.length}`);
+    }
     const n = Math.min(1000, Math.max(1, Number(limit ?? 200)));
-    const rows: Array<Record<string, unknown>> = await this.db.query(null, 
+    const rows = await this.db.query<AuditRow>(
+      null,
       `SELECT id, at, actor_id, actor_name, action, entity_type, entity_id, desk_id, before, after FROM audit_events ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY id DESC LIMIT ${n}`,
       params,
     );
     return {
       events: rows.map((r) => ({
-        id: Number(r.id), at: this.db.parseTime(r.at), actorId: r.actor_id === null ? null : Number(r.actor_id), actor: r.actor_name, action: r.action,
-        entityType: r.entity_type, entityId: r.entity_id, deskId: r.desk_id === null ? null : Number(r.desk_id),
-        before: r.before ? JSON.parse(String(r.before)) : null, after: r.after ? JSON.parse(String(r.after)) : null,
+        id: Number(r.id),
+        at: this.db.parseTime(r.at),
+        actorId: r.actor_id === null ? null : Number(r.actor_id),
+        actor: r.actor_name,
+        action: r.action,
+        entityType: r.entity_type,
+        entityId: r.entity_id,
+        deskId: r.desk_id === null ? null : Number(r.desk_id),
+        before: r.before ? (JSON.parse(r.before) as unknown) : null,
+        after: r.after ? (JSON.parse(r.after) as unknown) : null,
       })),
     };
   }

@@ -7,7 +7,10 @@ import { JobQueueService } from '#queues';
 @ApiTags('health')
 @Controller()
 export class HealthController {
-  constructor(@Inject(Database) private readonly db: Database, @Inject(JobQueueService) private readonly jobs: JobQueueService) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+  ) {}
 
   /** The process is up. */
   @Public()
@@ -22,7 +25,10 @@ export class HealthController {
   @Get('readyz')
   async ready() {
     const [database, redis] = await Promise.all([
-      this.db.query(null, 'SELECT 1').then(() => true, () => false),
+      this.db.query(null, 'SELECT 1').then(
+        () => true,
+        () => false,
+      ),
       this.jobs.ping(),
     ]);
     if (!database || !redis) throw new ServiceUnavailableException({ status: 'not ready', database, redis });

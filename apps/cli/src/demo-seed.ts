@@ -14,7 +14,9 @@ import { QueuesModule } from '#queues';
  */
 export async function seedDemo(config: AppConfig): Promise<DemoSeedResult | null> {
   if (!config.demo) return null;
-  @Module({ imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, DemoSeedModule] })
+  @Module({
+    imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, DemoSeedModule],
+  })
   class DemoSeedCliModule {}
   const app = await NestFactory.createApplicationContext(DemoSeedCliModule, { logger: ['error'] });
   try {

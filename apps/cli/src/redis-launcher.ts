@@ -30,25 +30,49 @@ async function freePort(): Promise<number> {
  * append-only file on so queued work survives a restart. Resolves once it
  * answers PING.
  */
-export async function startPrivateRedis(dataDir: string): Promise<{ url: string; process: ChildProcess; stop: () => Promise<void> }> {
+export async function startPrivateRedis(
+  dataDir: string,
+): Promise<{ url: string; process: ChildProcess; stop: () => Promise<void> }> {
   const found = spawnSync('redis-server', ['--version'], { stdio: 'ignore' });
   if (found.error || found.status !== 0) throw new RedisMissingError();
   const dir = join(dataDir, 'redis');
   mkdirSync(dir, { recursive: true });
   const port = await freePort();
-  const child = spawn('redis-server', ['--port', String(port), '--bind', '127.0.0.1', '--dir', dir, '--appendonly', 'yes', '--appendfsync', 'everysec', '--save', '', '--logfile', 'redis.log', '--protected-mode', 'yes'], { stdio: 'ignore' });
+  const child = spawn(
+    'redis-server',
+    [
+      '--port',
+      String(port),
+      '--bind',
+      '127.0.0.1',
+      '--dir',
+      dir,
+      '--appendonly',
+      'yes',
+      '--appendfsync',
+      'everysec',
+      '--save',
+      '',
+      '--logfile',
+      'redis.log',
+      '--protected-mode',
+      'yes',
+    ],
+    { stdio: 'ignore' },
+  );
   const url = `redis://127.0.0.1:${port}`;
   const deadline = Date.now() + 15_000;
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`redis-server exited at start with code ${child.exitCode}; see ${join(dir, 'redis.log')}`);
+    if (child.exitCode !== null)
+      throw new Error(`redis-server exited at start with code ${child.exitCode}; see ${join(dir, 'redis.log')}`);
     const probe = new Redis(url, { lazyConnect: true, maxRetriesPerRequest: 0, retryStrategy: () => null });
     probe.on('error', () => undefined);
     try {
       await probe.connect();
-      if ((await probe.ping()) === 'PONG') {
-        probe.disconnect();
-        break;
-      }
+      // PING answers PONG or an error (a server still loading its data), which rejects.
+      await probe.ping();
+      probe.disconnect();
+      break;
     } catch {
       probe.disconnect();
     }
@@ -63,7 +87,10 @@ export async function startPrivateRedis(dataDir: string): Promise<{ url: string;
     process: child,
     stop: () =>
       new Promise<void>((resolve) => {
-        if (child.exitCode !== null) return resolve();
+        if (child.exitCode !== null) {
+          resolve();
+          return;
+        }
         child.once('exit', () => resolve());
         child.kill('SIGTERM');
       }),

@@ -59,7 +59,9 @@ export async function startCommand(argv: string[]): Promise<number> {
     if (stopping) return;
     stopping = true;
     for (const c of children) if (c.exitCode === null) c.kill('SIGTERM');
-    await Promise.all(children.map((c) => (c.exitCode !== null ? Promise.resolve() : new Promise((r) => c.once('exit', r)))));
+    await Promise.all(
+      children.map((c) => (c.exitCode !== null ? Promise.resolve() : new Promise((r) => c.once('exit', r)))),
+    );
     await redis?.stop();
     process.exit(code);
   };
@@ -82,4 +84,3 @@ export async function startCommand(argv: string[]): Promise<number> {
   if (seeded) process.stdout.write(`${formatDemoBlock(url, seeded)}\n`);
   return new Promise<number>(() => undefined);
 }
-

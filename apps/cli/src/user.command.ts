@@ -12,7 +12,9 @@ const USAGE = 'usage: cribra user add --name NAME --role reviewer|supervisor|aud
 async function readStdin(): Promise<string> {
   const chunks: Buffer[] = [];
   for await (const c of process.stdin) chunks.push(c as Buffer);
-  return Buffer.concat(chunks).toString('utf8').replace(/\r?\n$/, '');
+  return Buffer.concat(chunks)
+    .toString('utf8')
+    .replace(/\r?\n$/, '');
 }
 
 /** `user add`: creates a user and prints `{"id","name","role","token"}` on one line; the token is shown once. */
@@ -49,7 +51,9 @@ export async function userCommand(argv: string[]): Promise<number> {
   class UserCliModule {}
   const app = await NestFactory.createApplicationContext(UserCliModule, { logger: ['error'] });
   try {
-    const { user, token } = await app.get(AuthService).createUser({ id: null, name: 'cli' }, { name, role: role as Role, password });
+    const { user, token } = await app
+      .get(AuthService)
+      .createUser({ id: null, name: 'cli' }, { name, role: role as Role, password });
     process.stdout.write(`${JSON.stringify({ id: user.id, name: user.name, role: user.role, token })}\n`);
     return 0;
   } catch (e) {

@@ -45,7 +45,14 @@ export interface Highlight {
 
 export interface LeaseGrant {
   lease: { id: string; expiresAt: string };
-  item: { id: number; text: string; meta: Record<string, unknown>; externalId: string | null; source: string | null; postedAt: string | null };
+  item: {
+    id: number;
+    text: string;
+    meta: Record<string, unknown>;
+    externalId: string | null;
+    source: string | null;
+    postedAt: string | null;
+  };
   highlights: Highlight[];
   prediction: Prediction | null;
 }
@@ -109,7 +116,13 @@ export interface ModelMetrics {
   logLoss: number;
   brier: number;
   ece: number;
-  reliability?: Array<{ lower: number; upper: number; count: number; meanConfidence: number | null; accuracy: number | null }>;
+  reliability?: Array<{
+    lower: number;
+    upper: number;
+    count: number;
+    meanConfidence: number | null;
+    accuracy: number | null;
+  }>;
 }
 
 export interface ModelSummary {
@@ -141,14 +154,17 @@ export interface ImportView {
 }
 
 export class ApiError extends Error {
-  constructor(readonly status: number, message: string) {
+  constructor(
+    readonly status: number,
+    message: string,
+  ) {
     super(message);
   }
 }
 
 function messageOf(body: unknown, status: number): string {
   if (body && typeof body === 'object' && 'message' in body) {
-    const m = (body as { message: unknown }).message;
+    const m = body.message;
     if (Array.isArray(m)) return m.join('; ');
     if (typeof m === 'string') return m;
   }
@@ -187,7 +203,11 @@ export const patch = <T>(path: string, body: unknown) => api<T>('PATCH', path, b
  * file's name and type), reporting bytes sent; XMLHttpRequest because fetch
  * has no upload progress.
  */
-export function uploadFile(path: string, file: File, onProgress: (sent: number, total: number) => void): Promise<{ importId: string }> {
+export function uploadFile(
+  path: string,
+  file: File,
+  onProgress: (sent: number, total: number) => void,
+): Promise<{ importId: string }> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', `/api${path}`);

@@ -47,16 +47,32 @@ export const ROUTES: Route[] = [
   { pattern: '/desks/:deskId/disagreements', roles: READERS, title: 'Agreement', page: DisagreementsPage },
 ];
 
-const ROLE_NAMES: Record<Role, string> = { reviewer: 'reviewer', supervisor: 'supervisor', auditor: 'auditor', admin: 'administrator' };
+const ROLE_NAMES: Record<Role, string> = {
+  reviewer: 'reviewer',
+  supervisor: 'supervisor',
+  auditor: 'auditor',
+  admin: 'administrator',
+};
 
 /** The desk's sections a role can open, in the order of the tab bar. */
 export function deskTabs(role: Role, deskId: number | string): Array<{ href: string; label: string }> {
   const base = `/desks/${deskId}`;
   if (role === 'reviewer') return [{ href: `${base}/queue`, label: 'Queue' }];
-  const tabs = role === 'supervisor'
-    ? [{ href: base, label: 'Overview' }, { href: `${base}/import`, label: 'Import' }, { href: `${base}/coverage`, label: 'Coverage' }, { href: `${base}/settings`, label: 'Settings' }]
-    : [];
-  if (role === 'supervisor' || role === 'auditor') tabs.push({ href: `${base}/models`, label: 'Models' }, { href: `${base}/disagreements`, label: 'Agreement' }, { href: `${base}/trail`, label: 'Trail' });
+  const tabs =
+    role === 'supervisor'
+      ? [
+          { href: base, label: 'Overview' },
+          { href: `${base}/import`, label: 'Import' },
+          { href: `${base}/coverage`, label: 'Coverage' },
+          { href: `${base}/settings`, label: 'Settings' },
+        ]
+      : [];
+  if (role === 'supervisor' || role === 'auditor')
+    tabs.push(
+      { href: `${base}/models`, label: 'Models' },
+      { href: `${base}/disagreements`, label: 'Agreement' },
+      { href: `${base}/trail`, label: 'Trail' },
+    );
   return tabs;
 }
 
@@ -72,29 +88,59 @@ export function App() {
   }, []);
 
   useEffect(() => {
-    if (me === null && where.path !== '/signin') navigate(`/signin?next=${encodeURIComponent(where.path + (where.query.toString() ? `?${where.query}` : ''))}`, true);
+    if (me === null && where.path !== '/signin')
+      navigate(
+        `/signin?next=${encodeURIComponent(where.path + (where.query.toString() ? `?${where.query}` : ''))}`,
+        true,
+      );
   }, [me, where.path]);
 
-  if (me === undefined) return <p class="loading" role="status">Loading…</p>;
+  if (me === undefined)
+    return (
+      <p class="loading" role="status">
+        Loading…
+      </p>
+    );
   if (me === null || where.path === '/signin') {
-    return <SignIn onSignedIn={(m) => { setMe(m); navigate(safeNext(where.query.get('next')), true); }} signedIn={me} />;
+    return (
+      <SignIn
+        onSignedIn={(m) => {
+          setMe(m);
+          navigate(safeNext(where.query.get('next')), true);
+        }}
+        signedIn={me}
+      />
+    );
   }
 
   let found: { route: Route; params: Record<string, string> } | null = null;
   for (const route of ROUTES) {
     const params = match(route.pattern, where.path);
-    if (params) { found = { route, params }; break; }
+    if (params) {
+      found = { route, params };
+      break;
+    }
   }
   document.title = found ? `${found.route.title} · Cribra` : 'Not found · Cribra';
   const deskId = found?.params.deskId;
+  const signOut = async () => {
+    await post('/auth/logout').catch(() => undefined);
+    setMe(null);
+  };
   return (
     <div class="shell" onClick={onLinkClick}>
       <header class="topbar">
-        <a class="brand" href="/">Cribra</a>
+        <a class="brand" href="/">
+          Cribra
+        </a>
         {deskId && <DeskTabs me={me} deskId={deskId} path={where.path} />}
         <div class="who">
-          <span>{me.name} <span class="role">({ROLE_NAMES[me.role]})</span></span>
-          <button type="button" class="quiet" onClick={async () => { await post('/auth/logout').catch(() => undefined); setMe(null); }}>Sign out</button>
+          <span>
+            {me.name} <span class="role">({ROLE_NAMES[me.role]})</span>
+          </span>
+          <button type="button" class="quiet" onClick={() => void signOut()}>
+            Sign out
+          </button>
         </div>
       </header>
       <main id="main">
@@ -105,9 +151,13 @@ export function App() {
             text={`This screen is for ${found.route.roles.map((r) => ROLE_NAMES[r]).join(' and ')} accounts. You are signed in as ${me.name}, a ${ROLE_NAMES[me.role]}; the server refuses its data to your role as well.`}
           />
         )}
-        {found && found.route.roles.includes(me.role) && <found.route.page me={me} params={found.params} query={where.query} />}
+        {found && found.route.roles.includes(me.role) && (
+          <found.route.page me={me} params={found.params} query={where.query} />
+        )}
       </main>
-      <footer class="footer"><Cautions compact /></footer>
+      <footer class="footer">
+        <Cautions compact />
+      </footer>
     </div>
   );
 }
@@ -118,13 +168,20 @@ function safeNext(next: string | null): string {
 
 function DeskTabs({ me, deskId, path }: { me: Me; deskId: string; path: string }) {
   const [desk, setDesk] = useState<Desk | null>(null);
-  useEffect(() => { get<Desk>(`/desks/${deskId}`).then(setDesk, () => setDesk(null)); }, [deskId]);
+  useEffect(() => {
+    get<Desk>(`/desks/${deskId}`).then(setDesk, () => setDesk(null));
+  }, [deskId]);
   const tabs = deskTabs(me.role, deskId);
   return (
     <nav class="desk-tabs" aria-label="Desk sections">
       <span class="desk-name">{desk?.name ?? `Desk ${deskId}`}</span>
       {tabs.map((t) => (
-        <a href={t.href} aria-current={path === t.href || (t.label === 'Models' && path.startsWith(`${t.href}/`)) ? 'page' : undefined}>{t.label}</a>
+        <a
+          href={t.href}
+          aria-current={path === t.href || (t.label === 'Models' && path.startsWith(`${t.href}/`)) ? 'page' : undefined}
+        >
+          {t.label}
+        </a>
       ))}
     </nav>
   );
@@ -135,7 +192,9 @@ export function Refusal({ title, text }: { title: string; text: string }) {
     <section class="refusal" role="alert">
       <h1>{title}</h1>
       <p>{text}</p>
-      <p><a href="/">Back to your desks</a></p>
+      <p>
+        <a href="/">Back to your desks</a>
+      </p>
     </section>
   );
 }
@@ -148,8 +207,20 @@ export function useData<T>(path: string | null, deps: unknown[] = []): [T | null
   useEffect(() => {
     if (!path) return;
     let live = true;
-    get<T>(path).then((d) => { if (live) { setData(d); setError(null); } }, (e: unknown) => { if (live) setError(e instanceof ApiError ? e.message : String(e)); });
-    return () => { live = false; };
+    get<T>(path).then(
+      (d) => {
+        if (live) {
+          setData(d);
+          setError(null);
+        }
+      },
+      (e: unknown) => {
+        if (live) setError(e instanceof ApiError ? e.message : String(e));
+      },
+    );
+    return () => {
+      live = false;
+    };
   }, [path, tick, ...deps]);
   return [data, error, () => setTick((t) => t + 1)];
 }

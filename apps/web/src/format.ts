@@ -1,12 +1,20 @@
 /** Number and time formatting shared by the screens. */
-export const pct = (x: number | null | undefined, digits = 0): string => (x === null || x === undefined || Number.isNaN(x) ? '–' : `${(x * 100).toFixed(digits)} %`);
-export const num = (x: number | null | undefined, digits = 2): string => (x === null || x === undefined || Number.isNaN(x) ? '–' : x.toFixed(digits));
+export const pct = (x: number | null | undefined, digits = 0): string =>
+  x === null || x === undefined || Number.isNaN(x) ? '–' : `${(x * 100).toFixed(digits)} %`;
+export const num = (x: number | null | undefined, digits = 2): string =>
+  x === null || x === undefined || Number.isNaN(x) ? '–' : x.toFixed(digits);
 export const count = (x: number): string => x.toLocaleString('en-GB');
 
 export function when(iso: string | null | undefined): string {
   if (!iso) return '–';
   const d = new Date(iso);
-  return d.toLocaleString('en-GB', { year: 'numeric', month: 'short', day: '2-digit', hour: '2-digit', minute: '2-digit' });
+  return d.toLocaleString('en-GB', {
+    year: 'numeric',
+    month: 'short',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+  });
 }
 
 /** m:ss for the timers on the queue screen. */

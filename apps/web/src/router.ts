@@ -30,7 +30,7 @@ export function match(pattern: string, path: string): Record<string, string> | n
   if (p.length !== a.length) return null;
   const params: Record<string, string> = {};
   for (let i = 0; i < p.length; i++) {
-    if (p[i]!.startsWith(':')) params[p[i]!.slice(1)] = decodeURIComponent(a[i]!);
+    if (p[i].startsWith(':')) params[p[i].slice(1)] = decodeURIComponent(a[i]);
     else if (p[i] !== a[i]) return null;
   }
   return params;
@@ -39,8 +39,9 @@ export function match(pattern: string, path: string): Record<string, string> | n
 /** Intercepts plain left clicks on same-origin links so they change screens without a page load. */
 export function onLinkClick(e: MouseEvent): void {
   if (e.defaultPrevented || e.button !== 0 || e.metaKey || e.ctrlKey || e.shiftKey || e.altKey) return;
-  const a = (e.target as Element | null)?.closest?.('a');
-  if (!a || a.target || a.hasAttribute('download') || a.origin !== location.origin || a.pathname.startsWith('/api/')) return;
+  const a = e.target instanceof Element ? e.target.closest('a') : null;
+  if (!a || a.target || a.hasAttribute('download') || a.origin !== location.origin || a.pathname.startsWith('/api/'))
+    return;
   e.preventDefault();
   navigate(a.pathname + a.search);
 }

@@ -6,7 +6,9 @@ import { WorkerModule } from './worker.module.js';
 
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
-  const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), { logger: nestLogLevels(config.logLevel) });
+  const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), {
+    logger: nestLogLevels(config.logLevel),
+  });
   const logger = new Logger('Worker');
   let closing = false;
   const stop = async (signal: string) => {

@@ -16,7 +16,16 @@ export class WorkerModule {
   static forRoot(config: AppConfig): DynamicModule {
     return {
       module: WorkerModule,
-      imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, ImportsWorkModule, ModelsWorkModule.register({ pause: pauseHook(config) }), DemoWorkModule, ReportsWorkModule],
+      imports: [
+        ConfigModule.forRoot(config),
+        DatabaseModule.forRoot(),
+        QueuesModule,
+        AuditModule,
+        ImportsWorkModule,
+        ModelsWorkModule.register({ pause: pauseHook(config) }),
+        DemoWorkModule,
+        ReportsWorkModule,
+      ],
       providers: [
         ...PROCESSORS,
         { provide: JOB_HANDLERS, inject: PROCESSORS, useFactory: (...handlers: unknown[]) => handlers },

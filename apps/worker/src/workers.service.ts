@@ -2,9 +2,23 @@ import { hostname } from 'node:os';
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
 import { UnrecoverableError, Worker } from 'bullmq';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { createRedis, handlerTable, JOB_QUEUE, JOBS, JobQueueService, QUEUES, type JobHandler, type JobName } from '#queues';
+import {
+  createRedis,
+  handlerTable,
+  JOB_QUEUE,
+  JOBS,
+  JobQueueService,
+  QUEUES,
+  type JobHandler,
+  type JobName,
+} from '#queues';
 import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
-import { PublishVersionProcessor, RetrainDeskProcessor, ScoreChunkProcessor, SweepDesksProcessor } from './learning.processor.js';
+import {
+  PublishVersionProcessor,
+  RetrainDeskProcessor,
+  ScoreChunkProcessor,
+  SweepDesksProcessor,
+} from './learning.processor.js';
 import { SimulateReviewerProcessor } from './simulation.processor.js';
 import { WriteReportProcessor } from './report.processor.js';
 
@@ -22,7 +36,11 @@ const SIMULATIONS_PER_WORKER = 4;
  * BullMQ's default of one fails a job the second time a busy machine delays a renewal.
  */
 const MAX_STALLED = 5;
-const CONCURRENCY: Partial<Record<string, number>> = { [QUEUES.imports]: 2, [QUEUES.scoring]: 2, [QUEUES.simulation]: SIMULATIONS_PER_WORKER };
+const CONCURRENCY: Partial<Record<string, number>> = {
+  [QUEUES.imports]: 2,
+  [QUEUES.scoring]: 2,
+  [QUEUES.simulation]: SIMULATIONS_PER_WORKER,
+};
 
 /**
  * Runs one BullMQ worker per queue and dispatches each job to the one handler
@@ -34,7 +52,11 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   private readonly workers: Worker[] = [];
   private readonly table: Map<JobName, JobHandler>;
 
-  constructor(@Inject(APP_CONFIG) private readonly config: AppConfig, @Inject(JOB_HANDLERS) handlers: JobHandler[], @Inject(JobQueueService) private readonly jobs: JobQueueService) {
+  constructor(
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(JOB_HANDLERS) handlers: JobHandler[],
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+  ) {
     this.table = handlerTable(handlers);
   }
 
@@ -46,17 +68,34 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
         queue,
         async (job) => {
           const handler = this.table.get(job.name as JobName);
-          if (!handler || JOB_QUEUE[job.name as JobName] !== queue) throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
+          if (!handler || JOB_QUEUE[job.name as JobName] !== queue)
+            throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
           return handler.handle(job as never);
         },
-        { name: `${hostname()}:${process.pid}`, connection, prefix: this.config.queuePrefix, concurrency: CONCURRENCY[queue] ?? 1, lockDuration: this.config.jobLockSeconds * 1000, stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000), maxStalledCount: MAX_STALLED },
+        {
+          name: `${hostname()}:${process.pid}`,
+          connection,
+          prefix: this.config.queuePrefix,
+          concurrency: CONCURRENCY[queue] ?? 1,
+          lockDuration: this.config.jobLockSeconds * 1000,
+          stalledInterval: Math.min(30_000, this.config.jobLockSeconds * 1000),
+          maxStalledCount: MAX_STALLED,
+        },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
-      worker.on('failed', (job, e) => this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`));
+      worker.on('failed', (job, e) =>
+        this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`),
+      );
       this.workers.push(worker);
     }
     // Every SWEEP_SECONDS (default a minute), one worker (whichever takes the job) looks for desks whose verdicts no version has learned from.
-    await this.jobs.queue(QUEUES.maintenance).upsertJobScheduler('sweep-desks', { every: this.config.sweepSeconds * 1000 }, { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } });
+    await this.jobs
+      .queue(QUEUES.maintenance)
+      .upsertJobScheduler(
+        'sweep-desks',
+        { every: this.config.sweepSeconds * 1000 },
+        { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } },
+      );
     this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
   }
 
@@ -65,4 +104,13 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   }
 }
 
-export const PROCESSORS = [ImportFileProcessor, ReseedDeskProcessor, RetrainDeskProcessor, ScoreChunkProcessor, PublishVersionProcessor, SweepDesksProcessor, SimulateReviewerProcessor, WriteReportProcessor];
+export const PROCESSORS = [
+  ImportFileProcessor,
+  ReseedDeskProcessor,
+  RetrainDeskProcessor,
+  ScoreChunkProcessor,
+  PublishVersionProcessor,
+  SweepDesksProcessor,
+  SimulateReviewerProcessor,
+  WriteReportProcessor,
+];

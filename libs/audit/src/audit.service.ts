@@ -28,9 +28,20 @@ export class AuditService {
 
   async record(m: EntityManager, actor: AuditActor, rec: AuditRecord): Promise<void> {
     // Raw SQL: this runs inside every verdict's transaction, and TypeORM's insert builder costs more than the row.
-    await this.db.query(m, 'INSERT INTO audit_events (at, actor_id, actor_name, action, entity_type, entity_id, desk_id, before, after) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)', [
-      this.db.time(new Date()), actor.id, actor.name, rec.action, rec.entityType, String(rec.entityId), rec.deskId ?? null,
-      rec.before ? JSON.stringify(rec.before) : null, rec.after ? JSON.stringify(rec.after) : null,
-    ]);
+    await this.db.query(
+      m,
+      'INSERT INTO audit_events (at, actor_id, actor_name, action, entity_type, entity_id, desk_id, before, after) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)',
+      [
+        this.db.time(new Date()),
+        actor.id,
+        actor.name,
+        rec.action,
+        rec.entityType,
+        String(rec.entityId),
+        rec.deskId ?? null,
+        rec.before ? JSON.stringify(rec.before) : null,
+        rec.after ? JSON.stringify(rec.after) : null,
+      ],
+    );
   }
 }

@@ -1,4 +1,20 @@
-import { BadRequestException, Body, ConflictException, Controller, Get, HttpCode, Inject, NotFoundException, Param, ParseIntPipe, Patch, Post, Req, Res, UnauthorizedException } from '@nestjs/common';
+import {
+  BadRequestException,
+  Body,
+  ConflictException,
+  Controller,
+  Get,
+  HttpCode,
+  Inject,
+  NotFoundException,
+  Param,
+  ParseIntPipe,
+  Patch,
+  Post,
+  Req,
+  Res,
+  UnauthorizedException,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Request, Response } from 'express';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -9,7 +25,13 @@ import { readCookie } from './auth.guard.js';
 import { SESSION_COOKIE, type Principal } from './principal.js';
 import { CurrentUser, Public, Roles } from './roles.decorator.js';
 
-const publicUser = (u: UserEntity) => ({ id: u.id, name: u.name, role: u.role, disabled: u.disabled, createdAt: u.createdAt });
+const publicUser = (u: UserEntity) => ({
+  id: u.id,
+  name: u.name,
+  role: u.role,
+  disabled: u.disabled,
+  createdAt: u.createdAt,
+});
 
 function toHttp(e: unknown): never {
   if (e instanceof AuthError) {
@@ -23,7 +45,10 @@ function toHttp(e: unknown): never {
 @ApiTags('auth')
 @Controller('api/auth')
 export class AuthController {
-  constructor(@Inject(AuthService) private readonly auth: AuthService, @Inject(APP_CONFIG) private readonly config: AppConfig) {}
+  constructor(
+    @Inject(AuthService) private readonly auth: AuthService,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
+  ) {}
 
   /** Signs in with name and password; sets an HttpOnly, SameSite=Strict session cookie. */
   @Public()
@@ -32,7 +57,13 @@ export class AuthController {
   async login(@Body() body: LoginDto, @Res({ passthrough: true }) res: Response) {
     try {
       const { secret, principal, expiresAt } = await this.auth.login(body.name, body.password);
-      res.cookie(SESSION_COOKIE, secret, { httpOnly: true, sameSite: 'strict', secure: this.config.cookieSecure, path: '/', expires: expiresAt });
+      res.cookie(SESSION_COOKIE, secret, {
+        httpOnly: true,
+        sameSite: 'strict',
+        secure: this.config.cookieSecure,
+        path: '/',
+        expires: expiresAt,
+      });
       return { user: { id: principal.id, name: principal.name, role: principal.role }, expiresAt };
     } catch (e) {
       if (e instanceof AuthError) throw new UnauthorizedException(e.message);
@@ -46,7 +77,12 @@ export class AuthController {
   async logout(@Req() req: Request, @Res({ passthrough: true }) res: Response): Promise<void> {
     const secret = readCookie(req.headers.cookie, SESSION_COOKIE);
     if (secret) await this.auth.logout(secret);
-    res.clearCookie(SESSION_COOKIE, { httpOnly: true, sameSite: 'strict', secure: this.config.cookieSecure, path: '/' });
+    res.clearCookie(SESSION_COOKIE, {
+      httpOnly: true,
+      sameSite: 'strict',
+      secure: this.config.cookieSecure,
+      path: '/',
+    });
   }
 
   @Roles(...ROLES)
@@ -88,7 +124,11 @@ export class UsersController {
 
   @Roles('admin')
   @Patch(':userId')
-  async update(@CurrentUser() admin: Principal, @Param('userId', ParseIntPipe) id: number, @Body() body: UpdateUserDto) {
+  async update(
+    @CurrentUser() admin: Principal,
+    @Param('userId', ParseIntPipe) id: number,
+    @Body() body: UpdateUserDto,
+  ) {
     try {
       return publicUser(await this.auth.updateUser(admin, id, body));
     } catch (e) {

@@ -12,13 +12,16 @@ export class CreateTokenDto {
 }
 
 export class CreateUserDto {
-  @ApiProperty({ example: 'rowan' }) @IsString() @Matches(/^[\p{L}\p{N}_.@-]{1,100}$/u, { message: 'name: 1–100 letters, digits, or _ . @ -' }) name!: string;
-  @ApiProperty({ enum: ROLES }) @IsIn(ROLES as unknown as string[]) role!: Role;
+  @ApiProperty({ example: 'rowan' })
+  @IsString()
+  @Matches(/^[\p{L}\p{N}_.@-]{1,100}$/u, { message: 'name: 1–100 letters, digits, or _ . @ -' })
+  name!: string;
+  @ApiProperty({ enum: ROLES }) @IsIn(ROLES) role!: Role;
   @ApiPropertyOptional({ minLength: 8 }) @IsOptional() @IsString() @Length(8, 500) password?: string;
 }
 
 export class UpdateUserDto {
-  @ApiPropertyOptional({ enum: ROLES }) @IsOptional() @IsIn(ROLES as unknown as string[]) role?: Role;
+  @ApiPropertyOptional({ enum: ROLES }) @IsOptional() @IsIn(ROLES) role?: Role;
   @ApiPropertyOptional() @IsOptional() @IsBoolean() disabled?: boolean;
   @ApiPropertyOptional({ minLength: 8 }) @IsOptional() @IsString() @Length(8, 500) password?: string;
 }

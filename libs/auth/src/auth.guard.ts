@@ -1,4 +1,11 @@
-import { ForbiddenException, Inject, Injectable, UnauthorizedException, type CanActivate, type ExecutionContext } from '@nestjs/common';
+import {
+  ForbiddenException,
+  Inject,
+  Injectable,
+  UnauthorizedException,
+  type CanActivate,
+  type ExecutionContext,
+} from '@nestjs/common';
 import { Reflector } from '@nestjs/core';
 import type { Role } from '#database';
 import { AuthService } from './auth.service.js';
@@ -29,21 +36,27 @@ export function readCookie(header: string | string[] | undefined, name: string):
  */
 @Injectable()
 export class AuthGuard implements CanActivate {
-  constructor(@Inject(Reflector) private readonly reflector: Reflector, @Inject(AuthService) private readonly auth: AuthService) {}
+  constructor(
+    @Inject(Reflector) private readonly reflector: Reflector,
+    @Inject(AuthService) private readonly auth: AuthService,
+  ) {}
 
   async canActivate(ctx: ExecutionContext): Promise<boolean> {
     const targets = [ctx.getHandler(), ctx.getClass()];
     if (this.reflector.getAllAndOverride<boolean>(PUBLIC_KEY, targets)) return true;
     const req = ctx.switchToHttp().getRequest<RequestLike>();
     const authz = req.headers.authorization;
-    const bearer = typeof authz === 'string' && /^Bearer\s+/i.test(authz) ? authz.replace(/^Bearer\s+/i, '').trim() : null;
+    const bearer =
+      typeof authz === 'string' && /^Bearer\s+/i.test(authz) ? authz.replace(/^Bearer\s+/i, '').trim() : null;
     const secret = bearer ?? readCookie(req.headers.cookie, SESSION_COOKIE);
     const principal = secret ? await this.auth.authenticate(secret) : null;
     if (!principal) throw new UnauthorizedException('sign in first (session cookie or Authorization: Bearer token)');
     req.principal = principal;
     const roles = this.reflector.getAllAndOverride<Role[] | undefined>(ROLES_KEY, targets);
     if (!roles || !roles.includes(principal.role)) {
-      throw new ForbiddenException(`the ${principal.role} role may not do this${roles ? ` (allowed: ${roles.join(', ')})` : ''}`);
+      throw new ForbiddenException(
+        `the ${principal.role} role may not do this${roles ? ` (allowed: ${roles.join(', ')})` : ''}`,
+      );
     }
     return true;
   }

@@ -1,7 +1,12 @@
 import { createHash, randomBytes, scrypt, timingSafeEqual } from 'node:crypto';
 import { promisify } from 'node:util';
 
-const scryptAsync = promisify(scrypt) as (pw: string, salt: Buffer, keylen: number, opts: { N: number; r: number; p: number; maxmem: number }) => Promise<Buffer>;
+const scryptAsync = promisify(scrypt) as (
+  pw: string,
+  salt: Buffer,
+  keylen: number,
+  opts: { N: number; r: number; p: number; maxmem: number },
+) => Promise<Buffer>;
 
 // scrypt cost: N = 2^15, r = 8, p = 1 (the parameters RFC 7914 §2 discusses for
 // interactive logins; OWASP's password storage guidance lists the same; from memory).
@@ -24,7 +29,12 @@ export async function verifyPassword(password: string, stored: string): Promise<
   if (parts.length !== 6 || parts[0] !== 'scrypt') return false;
   const [, n, r, p, salt, key] = parts as [string, string, string, string, string, string];
   const expected = Buffer.from(key, 'base64url');
-  const actual = await scryptAsync(password.normalize('NFKC'), Buffer.from(salt, 'base64url'), expected.length, { N: Number(n), r: Number(r), p: Number(p), maxmem: 64 * 1024 * 1024 });
+  const actual = await scryptAsync(password.normalize('NFKC'), Buffer.from(salt, 'base64url'), expected.length, {
+    N: Number(n),
+    r: Number(r),
+    p: Number(p),
+    maxmem: 64 * 1024 * 1024,
+  });
   return actual.length === expected.length && timingSafeEqual(actual, expected);
 }
 

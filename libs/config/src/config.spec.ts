@@ -6,7 +6,11 @@ describe('parseConfig', () => {
     const c = parseConfig({}, '/srv/cribra');
     expect(c.port).toBe(8080);
     expect(c.dataDir).toBe('/srv/cribra/data');
-    expect(c.database).toEqual({ kind: 'sqlite', file: '/srv/cribra/data/cribra.sqlite', url: 'sqlite:/srv/cribra/data/cribra.sqlite' });
+    expect(c.database).toEqual({
+      kind: 'sqlite',
+      file: '/srv/cribra/data/cribra.sqlite',
+      url: 'sqlite:/srv/cribra/data/cribra.sqlite',
+    });
     expect(c.redisUrl).toBeNull();
     expect(c.maxTextLength).toBe(100_000);
     expect(c.undoWindowSeconds).toBe(300);
@@ -28,14 +32,26 @@ describe('parseConfig', () => {
   it('lists every bad variable in one error', () => {
     let error: unknown;
     try {
-      parseConfig({ PORT: 'eighty', DATABASE_URL: 'mysql://x', REDIS_URL: 'localhost:6379', COOKIE_SECURE: 'maybe', LOG_LEVEL: 'loud' });
+      parseConfig({
+        PORT: 'eighty',
+        DATABASE_URL: 'mysql://x',
+        REDIS_URL: 'localhost:6379',
+        COOKIE_SECURE: 'maybe',
+        LOG_LEVEL: 'loud',
+      });
     } catch (e) {
       error = e;
     }
     expect(error).toBeInstanceOf(ConfigError);
     const problems = (error as ConfigError).problems;
     expect(problems).toHaveLength(5);
-    expect(problems.map((p) => p.split(/[=:]/)[0])).toEqual(['PORT', 'DATABASE_URL', 'REDIS_URL', 'LOG_LEVEL', 'COOKIE_SECURE']);
+    expect(problems.map((p) => p.split(/[=:]/)[0])).toEqual([
+      'PORT',
+      'DATABASE_URL',
+      'REDIS_URL',
+      'LOG_LEVEL',
+      'COOKIE_SECURE',
+    ]);
     expect((error as Error).message).toContain('PORT="eighty"');
   });
 

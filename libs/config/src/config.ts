@@ -1,9 +1,7 @@
 import { isAbsolute, resolve } from 'node:path';
 
 /** How the service reaches its relational database. */
-export type DatabaseConfig =
-  | { kind: 'sqlite'; file: string; url: string }
-  | { kind: 'postgres'; url: string };
+export type DatabaseConfig = { kind: 'sqlite'; file: string; url: string } | { kind: 'postgres'; url: string };
 
 /** The one typed configuration object of every Cribra process. */
 export interface AppConfig {
@@ -50,8 +48,24 @@ type Env = Record<string, string | undefined>;
 
 /** Variables a deployment may set, with their defaults; `config/cribra.env.example` documents each. */
 export const CONFIG_VARIABLES = [
-  'PORT', 'HOST', 'DATA_DIR', 'DATABASE_URL', 'REDIS_URL', 'QUEUE_PREFIX', 'MAX_TEXT_LENGTH',
-  'SESSION_HOURS', 'COOKIE_SECURE', 'UNDO_WINDOW_SECONDS', 'IMPORT_BATCH_SIZE', 'LOG_LEVEL', 'SCORING_CHUNK_SIZE', 'JOB_LOCK_SECONDS', 'SWEEP_SECONDS', 'API_HEAP_MB', 'DEMO', 'CRIBRA_TEST_PAUSE',
+  'PORT',
+  'HOST',
+  'DATA_DIR',
+  'DATABASE_URL',
+  'REDIS_URL',
+  'QUEUE_PREFIX',
+  'MAX_TEXT_LENGTH',
+  'SESSION_HOURS',
+  'COOKIE_SECURE',
+  'UNDO_WINDOW_SECONDS',
+  'IMPORT_BATCH_SIZE',
+  'LOG_LEVEL',
+  'SCORING_CHUNK_SIZE',
+  'JOB_LOCK_SECONDS',
+  'SWEEP_SECONDS',
+  'API_HEAP_MB',
+  'DEMO',
+  'CRIBRA_TEST_PAUSE',
 ] as const;
 
 /**
@@ -106,27 +120,38 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     const file = isAbsolute(path) ? path : resolve(cwd, path);
     database = { kind: 'sqlite', file, url: `sqlite:${file}` };
   } else {
-    problems.push(`DATABASE_URL: expected postgres://… or sqlite:PATH (got a value starting ${JSON.stringify(dbUrl.slice(0, 12))})`);
+    problems.push(
+      `DATABASE_URL: expected postgres://… or sqlite:PATH (got a value starting ${JSON.stringify(dbUrl.slice(0, 12))})`,
+    );
     database = { kind: 'sqlite', file: resolve(dataDir, 'cribra.sqlite'), url: '' };
   }
 
   const redisRaw = str('REDIS_URL');
   let redisUrl: string | null = null;
   if (redisRaw !== undefined) {
-    if (!/^rediss?:\/\//.test(redisRaw)) problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: expected redis://host:port or rediss://…`);
+    if (!/^rediss?:\/\//.test(redisRaw))
+      problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: expected redis://host:port or rediss://…`);
     else {
-      try { new URL(redisRaw); redisUrl = redisRaw; } catch { problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: not a valid URL`); }
+      try {
+        new URL(redisRaw);
+        redisUrl = redisRaw;
+      } catch {
+        problems.push(`REDIS_URL=${JSON.stringify(redisRaw)}: not a valid URL`);
+      }
     }
   }
 
   const queuePrefix = str('QUEUE_PREFIX') ?? 'cribra';
-  if (!/^[A-Za-z0-9_.-]{1,64}$/.test(queuePrefix)) problems.push(`QUEUE_PREFIX=${JSON.stringify(queuePrefix)}: use 1–64 letters, digits, '_', '.', '-'`);
+  if (!/^[A-Za-z0-9_.-]{1,64}$/.test(queuePrefix))
+    problems.push(`QUEUE_PREFIX=${JSON.stringify(queuePrefix)}: use 1–64 letters, digits, '_', '.', '-'`);
 
   const logLevel = (str('LOG_LEVEL') ?? 'warn') as AppConfig['logLevel'];
-  if (!['error', 'warn', 'log', 'debug'].includes(logLevel)) problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
+  if (!['error', 'warn', 'log', 'debug'].includes(logLevel))
+    problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
 
   const pause = str('CRIBRA_TEST_PAUSE') ?? null;
-  if (pause !== null && pause !== 'training' && pause !== 'scoring') problems.push(`CRIBRA_TEST_PAUSE=${JSON.stringify(pause)}: expected training or scoring`);
+  if (pause !== null && pause !== 'training' && pause !== 'scoring')
+    problems.push(`CRIBRA_TEST_PAUSE=${JSON.stringify(pause)}: expected training or scoring`);
 
   const config: AppConfig = {
     port,

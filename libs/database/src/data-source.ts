@@ -21,15 +21,40 @@ import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
-  return [userSchema, credentialSchema, deskSchema, categorySchema, importSchema, itemSchema, leaseSchema, verdictSchema, auditEventSchema, modelVersionSchema, modelReportSchema].map((f) => f(dialect));
+  return [
+    userSchema,
+    credentialSchema,
+    deskSchema,
+    categorySchema,
+    importSchema,
+    itemSchema,
+    leaseSchema,
+    verdictSchema,
+    auditEventSchema,
+    modelVersionSchema,
+    modelReportSchema,
+  ].map((f) => f(dialect));
 }
 
 /** Every migration, in order. */
-export const MIGRATIONS = [Foundation1764600000000, LearningLoop1764700000000, Agreement1764800000000, ModelReports1764900000000, TrailIndex1765000000000, TermCounts1765100000000];
+export const MIGRATIONS = [
+  Foundation1764600000000,
+  LearningLoop1764700000000,
+  Agreement1764800000000,
+  ModelReports1764900000000,
+  TrailIndex1765000000000,
+  TermCounts1765100000000,
+];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
 export function createDataSource(db: DatabaseConfig, options: { poolSize?: number } = {}): DataSource {
-  const common = { entities: entitySchemas(db.kind), migrations: MIGRATIONS, synchronize: false, migrationsRun: false, logging: false } as const;
+  const common = {
+    entities: entitySchemas(db.kind),
+    migrations: MIGRATIONS,
+    synchronize: false,
+    migrationsRun: false,
+    logging: false,
+  } as const;
   const opts: DataSourceOptions =
     db.kind === 'postgres'
       ? { ...common, type: 'postgres', url: db.url, extra: { max: options.poolSize ?? 20 } }
@@ -48,7 +73,10 @@ export function createDataSource(db: DatabaseConfig, options: { poolSize?: numbe
 }
 
 /** Connects and brings the schema up to date. */
-export async function openDatabase(db: DatabaseConfig, options: { poolSize?: number; migrate?: boolean } = {}): Promise<DataSource> {
+export async function openDatabase(
+  db: DatabaseConfig,
+  options: { poolSize?: number; migrate?: boolean } = {},
+): Promise<DataSource> {
   const ds = createDataSource(db, options);
   await ds.initialize();
   if (options.migrate !== false) await ds.runMigrations({ transaction: 'each' });

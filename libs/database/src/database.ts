@@ -8,6 +8,14 @@ export interface InsertColumn {
   pgType: 'integer' | 'double precision' | 'text' | 'bytea';
 }
 
+/**
+ * An integer column of a row read by {@link Database.query}, as the drivers hand it over: PostgreSQL's `pg` gives
+ * `integer` as a number but `bigint`, `COUNT(*)` and `SUM(…)` as text (they may not fit a double), better-sqlite3
+ * a number. Row types say so, and readers convert with `Number(…)`, so that an aggregate or a wider column cannot
+ * turn arithmetic into string concatenation.
+ */
+export type DbInt = number | string;
+
 /** Rows per statement of {@link Database.insertRows} on PostgreSQL. */
 const INSERT_PAGE = 10_000;
 
@@ -72,6 +80,8 @@ export class Database {
         await qr.commitTransaction();
         return result;
       } catch (e) {
+        // commitTransaction clears the flag, which the checker cannot see after the `true` set above.
+        // eslint-disable-next-line @typescript-eslint/no-unnecessary-condition -- the runner changes the flag
         if (state.isTransactionActive) await qr.rollbackTransaction();
         throw e;
       }
@@ -88,8 +98,9 @@ export class Database {
   parseTime(value: unknown): Date | null {
     if (value === null || value === undefined) return null;
     if (value instanceof Date) return value;
-    const s = String(value);
-    return new Date(/[zZ]|[+-]\d\d:?\d\d$/.test(s) ? s : `${s.replace(' ', 'T')}Z`);
+    // PostgreSQL's driver gives a Date; SQLite keeps times as text.
+    if (typeof value !== 'string') throw new TypeError(`parseTime: not a time: ${typeof value}`);
+    return new Date(/[zZ]|[+-]\d\d:?\d\d$/.test(value) ? value : `${value.replace(' ', 'T')}Z`);
   }
 
   /**
@@ -102,17 +113,34 @@ export class Database {
     if (this.pg) {
       const res: unknown = await runner.query(sql, params);
       // TypeORM answers UPDATE and DELETE on PostgreSQL with [rows, affectedCount]; give every statement the same shape.
-      if (/^\s*(UPDATE|DELETE)\b/i.test(sql) && Array.isArray(res) && res.length === 2 && Array.isArray(res[0]) && typeof res[1] === 'number') return res[0] as T[];
+      if (
+        /^\s*(UPDATE|DELETE)\b/i.test(sql) &&
+        Array.isArray(res) &&
+        res.length === 2 &&
+        Array.isArray(res[0]) &&
+        typeof res[1] === 'number'
+      )
+        return res[0] as T[];
       return res as T[];
     }
     const ordered: unknown[] = [];
     const text = sql.replace(/\$(\d+)/g, (_, n: string) => {
       const i = Number(n) - 1;
-      if (i < 0 || i >= params.length) throw new RangeError(`query: placeholder $${n} has no parameter (got ${params.length})`);
+      if (i < 0 || i >= params.length)
+        throw new RangeError(`query: placeholder $${n} has no parameter (got ${params.length})`);
       ordered.push(params[i]);
       return '?';
     });
-    return runner.query(text, ordered) as Promise<T[]>;
+    return runner.query<T[]>(text, ordered);
+  }
+
+  /** The first row {@link query} returns, or `undefined` when there is none. */
+  async queryOne<T = Record<string, unknown>>(
+    m: EntityManager | null,
+    sql: string,
+    params: unknown[] = [],
+  ): Promise<T | undefined> {
+    return (await this.query<T>(m, sql, params)).at(0);
   }
 
   /**
@@ -123,7 +151,12 @@ export class Database {
    * `unnest` (no per-row placeholders to parse). SQLite: one prepared
    * statement run per row on the connection the transaction holds.
    */
-  async insertRows(m: EntityManager, table: string, columns: readonly InsertColumn[], rows: readonly (readonly unknown[])[]): Promise<void> {
+  async insertRows(
+    m: EntityManager,
+    table: string,
+    columns: readonly InsertColumn[],
+    rows: readonly (readonly unknown[])[],
+  ): Promise<void> {
     if (rows.length === 0) return;
     const names = columns.map((c) => c.name).join(', ');
     if (this.pg) {
@@ -131,14 +164,19 @@ export class Database {
       const sql = `INSERT INTO ${table} (${names}) SELECT * FROM unnest(${spread}) ON CONFLICT DO NOTHING`;
       for (let at = 0; at < rows.length; at += INSERT_PAGE) {
         const page = rows.slice(at, at + INSERT_PAGE);
-        await m.query(sql, columns.map((_, i) => page.map((r) => r[i])));
+        await m.query(
+          sql,
+          columns.map((_, i) => page.map((r) => r[i])),
+        );
       }
       return;
     }
     const sql = `INSERT INTO ${table} (${names}) VALUES (${columns.map(() => '?').join(', ')}) ON CONFLICT DO NOTHING`;
     let statement = this.statements.get(sql);
     if (!statement) {
-      statement = (this.dataSource.driver as unknown as { databaseConnection: SqliteConnection }).databaseConnection.prepare(sql);
+      statement = (
+        this.dataSource.driver as unknown as { databaseConnection: SqliteConnection }
+      ).databaseConnection.prepare(sql);
       this.statements.set(sql, statement);
     }
     for (const r of rows) statement.run(...r);

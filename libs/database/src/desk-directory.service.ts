@@ -27,7 +27,12 @@ export class DeskDirectory {
     const hit = this.cache.get(deskId);
     if (hit && hit.until > now) return hit.entry;
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    const entry = desk ? { desk, categories: await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } }) } : null;
+    const entry = desk
+      ? {
+          desk,
+          categories: await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } }),
+        }
+      : null;
     this.cache.set(deskId, { entry, until: now + DESK_CACHE_MS });
     return entry;
   }

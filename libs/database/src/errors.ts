@@ -7,5 +7,10 @@ export function dbErrorCode(e: unknown): string | undefined {
 /** True when a database error is a unique-constraint violation (either database). */
 export function isUniqueViolation(e: unknown): boolean {
   const code = dbErrorCode(e);
-  return code === '23505' || code === 'SQLITE_CONSTRAINT_UNIQUE' || /UNIQUE constraint failed/.test(String((e as Error)?.message));
+  const message = (e as { message?: unknown } | null | undefined)?.message;
+  return (
+    code === '23505' ||
+    code === 'SQLITE_CONSTRAINT_UNIQUE' ||
+    (typeof message === 'string' && /UNIQUE constraint failed/.test(message))
+  );
 }

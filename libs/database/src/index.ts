@@ -1,4 +1,4 @@
-export { Database, type InsertColumn } from './database.js';
+export { Database, type DbInt, type InsertColumn } from './database.js';
 export { DatabaseModule } from './database.module.js';
 export { DeskDirectory, DESK_CACHE_MS, type DeskEntry } from './desk-directory.service.js';
 export { createDataSource, openDatabase, entitySchemas, MIGRATIONS } from './data-source.js';
@@ -6,14 +6,34 @@ export type { Dialect } from './dialect.js';
 export { Mutex } from './mutex.js';
 export { UserEntity, ROLES, type Role } from './entities/user.entity.js';
 export { CredentialEntity } from './entities/credential.entity.js';
-export { DeskEntity, CALIBRATION_MODES, STRATEGIES, SCORES, type CalibrationMode, type Strategy, type ScoreKind } from './entities/desk.entity.js';
+export {
+  DeskEntity,
+  CALIBRATION_MODES,
+  STRATEGIES,
+  SCORES,
+  type CalibrationMode,
+  type Strategy,
+  type ScoreKind,
+} from './entities/desk.entity.js';
 export { CategoryEntity } from './entities/category.entity.js';
 export { ImportEntity, IMPORT_STATES, type ImportState, type ImportRowError } from './entities/import.entity.js';
 export { ItemEntity, ITEM_STATES, type ItemState } from './entities/item.entity.js';
-export { LeaseEntity, DRAW_KINDS, TRIAGE_CALLS, type DrawKind, type TriageCall, type ShownPrediction } from './entities/lease.entity.js';
+export {
+  LeaseEntity,
+  DRAW_KINDS,
+  TRIAGE_CALLS,
+  type DrawKind,
+  type TriageCall,
+  type ShownPrediction,
+} from './entities/lease.entity.js';
 export { VerdictEntity } from './entities/verdict.entity.js';
 export { AuditEventEntity } from './entities/audit-event.entity.js';
-export { ModelVersionEntity, MODEL_STATES, type ModelState, type VerdictSetSummary } from './entities/model-version.entity.js';
+export {
+  ModelVersionEntity,
+  MODEL_STATES,
+  type ModelState,
+  type VerdictSetSummary,
+} from './entities/model-version.entity.js';
 export { dbErrorCode, isUniqueViolation } from './errors.js';
 export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
 export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';

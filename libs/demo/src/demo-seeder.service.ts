@@ -3,10 +3,17 @@ import { Readable } from 'node:stream';
 import { Inject, Injectable } from '@nestjs/common';
 import { AuthService } from '#auth';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, type Role } from '#database';
+import { Database, type DbInt, type Role } from '#database';
 import { DesksService } from '#desks';
 import { ImportsService } from '#imports';
-import { DEMO_POOL_SEED, DEMO_POOL_SIZE, generateMossbankPool, MOSSBANK_CATEGORIES, MOSSBANK_SEED_TERMS, mossbankNdjson } from './pool/index.js';
+import {
+  DEMO_POOL_SEED,
+  DEMO_POOL_SIZE,
+  generateMossbankPool,
+  MOSSBANK_CATEGORIES,
+  MOSSBANK_SEED_TERMS,
+  mossbankNdjson,
+} from './pool/index.js';
 
 export const DEMO_DESK_NAME = 'Mossbank Commons';
 
@@ -43,8 +50,11 @@ export class DemoSeeder {
   /** Seeds when DEMO is on and the database has neither users nor desks; otherwise does nothing and returns null. */
   async seedIfEmpty(): Promise<DemoSeedResult | null> {
     if (!this.config.demo) return null;
-    const [row] = await this.db.query<{ users: number | string; desks: number | string }>(null, 'SELECT (SELECT COUNT(*) FROM users) AS users, (SELECT COUNT(*) FROM desks) AS desks');
-    if (Number(row?.users) > 0 || Number(row?.desks) > 0) return null;
+    const [row] = await this.db.query<{ users: DbInt; desks: DbInt }>(
+      null,
+      'SELECT (SELECT COUNT(*) FROM users) AS users, (SELECT COUNT(*) FROM desks) AS desks',
+    );
+    if (Number(row.users) > 0 || Number(row.desks) > 0) return null;
 
     const accounts: DemoSeedResult['accounts'] = [];
     const ids = new Map<string, number>();
@@ -63,7 +73,9 @@ export class DemoSeeder {
       seedTerms: Object.fromEntries(Object.entries(MOSSBANK_SEED_TERMS).map(([c, terms]) => [c, [...terms]])),
     });
     const posts = generateMossbankPool({ seed: DEMO_POOL_SEED, count: DEMO_POOL_SIZE });
-    const body = Object.assign(Readable.from([Buffer.from(mossbankNdjson(posts), 'utf8')]), { headers: { 'content-type': 'application/x-ndjson' } });
+    const body = Object.assign(Readable.from([Buffer.from(mossbankNdjson(posts), 'utf8')]), {
+      headers: { 'content-type': 'application/x-ndjson' },
+    });
     const { importId } = await this.imports.start(supervisor, desk.id, body);
     return { deskId: desk.id, importId, posts: posts.length, accounts };
   }

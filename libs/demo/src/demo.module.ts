@@ -18,7 +18,11 @@ export class DemoModule {}
  * Worker side: the simulated reviewer itself, working through the leases and
  * verdicts services (their modules' controllers are inert in a worker, which serves no HTTP).
  */
-@Module({ imports: [LeasesModule, VerdictsModule, AuthCoreModule], providers: [SimulatedReviewerService, DemoDeskService], exports: [SimulatedReviewerService] })
+@Module({
+  imports: [LeasesModule, VerdictsModule, AuthCoreModule],
+  providers: [SimulatedReviewerService, DemoDeskService],
+  exports: [SimulatedReviewerService],
+})
 export class DemoWorkModule {}
 
 /** For `start`: seeding the demo on an empty service. */

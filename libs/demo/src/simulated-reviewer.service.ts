@@ -46,7 +46,11 @@ export class SimulatedReviewerService implements OnModuleDestroy {
    * `report` receives the running verdict count; `done` is the count of an
    * earlier attempt of the same run (a retried job goes on counting).
    */
-  run(payload: SimulateReviewerPayload, report: (verdicts: number) => Promise<unknown>, done = 0): Promise<SimulationOutcome> {
+  run(
+    payload: SimulateReviewerPayload,
+    report: (verdicts: number) => Promise<unknown>,
+    done = 0,
+  ): Promise<SimulationOutcome> {
     const work = this.work(payload, report, done);
     this.runs.add(work);
     return work.finally(() => this.runs.delete(work));
@@ -58,7 +62,11 @@ export class SimulatedReviewerService implements OnModuleDestroy {
     await Promise.allSettled([...this.runs]);
   }
 
-  private async work(payload: SimulateReviewerPayload, report: (verdicts: number) => Promise<unknown>, done: number): Promise<SimulationOutcome> {
+  private async work(
+    payload: SimulateReviewerPayload,
+    report: (verdicts: number) => Promise<unknown>,
+    done: number,
+  ): Promise<SimulationOutcome> {
     const { deskId, until } = payload;
     const availability = await this.demoDesks.availability(deskId);
     if (!availability.available) throw new UnrecoverableError(availability.reason);
@@ -85,6 +93,8 @@ export class SimulatedReviewerService implements OnModuleDestroy {
       }
       const pause = readingPauseMs(rng);
       await sleep(pause);
+      // onModuleDestroy may set `closing` during the sleep; the checker still holds the loop's first check of it.
+      // eslint-disable-next-line @typescript-eslint/no-unnecessary-condition -- set by onModuleDestroy meanwhile
       if (this.closing || (await stopRequested())) {
         // Hand the item back rather than answer it after being told to stop.
         await this.leases.giveBack(reviewer, grant.lease.id);
@@ -92,7 +102,18 @@ export class SimulatedReviewerService implements OnModuleDestroy {
       }
       const answer = simulatedAnswer(truth, categories, rng);
       try {
-        await this.verdicts.submit(reviewer, deskId, { leaseId: grant.lease.id, itemId: grant.item.id, clientId: `simulated-${grant.lease.id}`, elapsedMs: pause, ...answer }, { simulated: true });
+        await this.verdicts.submit(
+          reviewer,
+          deskId,
+          {
+            leaseId: grant.lease.id,
+            itemId: grant.item.id,
+            clientId: `simulated-${grant.lease.id}`,
+            elapsedMs: pause,
+            ...answer,
+          },
+          { simulated: true },
+        );
       } catch (e) {
         // The lease ran out and someone else took the item: as for a person, the answer is simply not recorded.
         if (e instanceof ConflictException) continue;
@@ -109,7 +130,8 @@ export class SimulatedReviewerService implements OnModuleDestroy {
     let user = await find();
     if (!user) {
       try {
-        user = (await this.auth.createUser({ id: null, name: 'demo' }, { name: SIMULATED_REVIEWER, role: 'reviewer' })).user;
+        user = (await this.auth.createUser({ id: null, name: 'demo' }, { name: SIMULATED_REVIEWER, role: 'reviewer' }))
+          .user;
         this.logger.log(`created the account ${SIMULATED_REVIEWER}`);
       } catch (e) {
         // Another worker made it at the same moment.
@@ -117,7 +139,8 @@ export class SimulatedReviewerService implements OnModuleDestroy {
         user = await find();
       }
     }
-    if (!user || user.role !== 'reviewer' || user.disabled) throw new UnrecoverableError(`the account ${SIMULATED_REVIEWER} exists but is not an active reviewer`);
+    if (!user || user.role !== 'reviewer' || user.disabled)
+      throw new UnrecoverableError(`the account ${SIMULATED_REVIEWER} exists but is not an active reviewer`);
     return { id: user.id, name: user.name, role: 'reviewer', via: 'token' };
   }
 }

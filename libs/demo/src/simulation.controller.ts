@@ -14,8 +14,13 @@ export class SimulationController {
   @Roles('supervisor')
   @Post()
   @HttpCode(202)
-  start(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Body() body: StartSimulationDto) {
-    return this.simulation.start(user, deskId, body?.minutes ?? 2);
+  start(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Body() body: StartSimulationDto,
+  ) {
+    // A POST without a body leaves it undefined.
+    return this.simulation.start(user, deskId, (body as StartSimulationDto | undefined)?.minutes ?? 2);
   }
 
   @Roles('supervisor')

@@ -34,7 +34,9 @@ export type SimulationRun = Omit<SimulationStatus, 'available' | 'reason'>;
 
 /** The verdict count a run reports as its job's progress (`{ verdicts }`); 0 before the first. */
 export function verdictsSoFar(progress: unknown): number {
-  return typeof progress === 'object' && progress !== null ? Number((progress as { verdicts?: number }).verdicts ?? 0) : 0;
+  return typeof progress === 'object' && progress !== null
+    ? Number((progress as { verdicts?: unknown }).verdicts ?? 0)
+    : 0;
 }
 
 const RUNNING = ['active', 'waiting', 'delayed', 'prioritized', 'waiting-children'];
@@ -71,7 +73,11 @@ export class SimulationService {
     if (!availability.available) throw new ConflictException(availability.reason);
     const current = await this.run(deskId);
     if (current.state === 'running') {
-      throw new ConflictException({ statusCode: 409, message: `a simulated reviewer is already working on this desk, until ${current.until}`, ...current });
+      throw new ConflictException({
+        statusCode: 409,
+        message: `a simulated reviewer is already working on this desk, until ${current.until}`,
+        ...current,
+      });
     }
     // A finished run keeps the job id until it is removed; the new run takes it over.
     await (await this.job(deskId))?.remove();
@@ -79,8 +85,21 @@ export class SimulationService {
     const startedAt = Date.now();
     const until = startedAt + minutes * 60_000;
     await this.jobs.add(JOBS.simulateReviewer, { deskId, startedAt, until });
-    await this.db.write((m) => this.audit.record(m, actor, { action: 'simulation.start', entityType: 'desk', entityId: deskId, deskId, after: { minutes, until: new Date(until).toISOString() } }));
-    return { state: 'running', startedAt: new Date(startedAt).toISOString(), until: new Date(until).toISOString(), verdicts: 0 };
+    await this.db.write((m) =>
+      this.audit.record(m, actor, {
+        action: 'simulation.start',
+        entityType: 'desk',
+        entityId: deskId,
+        deskId,
+        after: { minutes, until: new Date(until).toISOString() },
+      }),
+    );
+    return {
+      state: 'running',
+      startedAt: new Date(startedAt).toISOString(),
+      until: new Date(until).toISOString(),
+      verdicts: 0,
+    };
   }
 
   /** Stops the desk's run, if one is going, and waits (a few seconds at most) until it has. */
@@ -98,7 +117,9 @@ export class SimulationService {
       const deadline = Date.now() + STOP_WAIT_MS;
       while (Date.now() < deadline && (await job.getState()) === 'active') await new Promise((r) => setTimeout(r, 100));
     }
-    await this.db.write((m) => this.audit.record(m, actor, { action: 'simulation.stop', entityType: 'desk', entityId: deskId, deskId }));
+    await this.db.write((m) =>
+      this.audit.record(m, actor, { action: 'simulation.stop', entityType: 'desk', entityId: deskId, deskId }),
+    );
   }
 
   private async run(deskId: number): Promise<SimulationRun> {
@@ -106,12 +127,21 @@ export class SimulationService {
     if (!job) return { state: 'idle', verdicts: 0 };
     const state = await job.getState();
     const progress = verdictsSoFar(job.progress);
-    const times = { startedAt: new Date(job.data.startedAt).toISOString(), until: new Date(job.data.until).toISOString() };
+    const times = {
+      startedAt: new Date(job.data.startedAt).toISOString(),
+      until: new Date(job.data.until).toISOString(),
+    };
     if (RUNNING.includes(state)) return { state: 'running', ...times, verdicts: progress };
     if (state === 'completed') {
       // The state can turn to completed between reading the job and reading its state: read the job again for its outcome.
-      const out = (job.returnvalue as SimulationOutcome | null) ?? ((await this.job(deskId))?.returnvalue as SimulationOutcome | null) ?? { verdicts: progress, stopped: false };
-      return { state: out.stopped ? 'stopped' : 'finished', ...times, verdicts: out.verdicts, ...(out.detail ? { detail: out.detail } : {}) };
+      const out = (job.returnvalue as SimulationOutcome | null) ??
+        ((await this.job(deskId))?.returnvalue as SimulationOutcome | null) ?? { verdicts: progress, stopped: false };
+      return {
+        state: out.stopped ? 'stopped' : 'finished',
+        ...times,
+        verdicts: out.verdicts,
+        ...(out.detail ? { detail: out.detail } : {}),
+      };
     }
     return { state: 'stopped', ...times, verdicts: progress, detail: job.failedReason || 'the run failed' };
   }

@@ -1,31 +1,98 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
 import { Transform } from 'class-transformer';
-import { ArrayMaxSize, ArrayMinSize, ArrayUnique, IsArray, IsIn, IsInt, IsNumber, IsObject, IsOptional, IsString, Length, Max, Min, NotContains } from 'class-validator';
+import {
+  ArrayMaxSize,
+  ArrayMinSize,
+  ArrayUnique,
+  IsArray,
+  IsIn,
+  IsInt,
+  IsNumber,
+  IsObject,
+  IsOptional,
+  IsString,
+  Length,
+  Max,
+  Min,
+  NotContains,
+} from 'class-validator';
 import { CALIBRATION_MODES, SCORES, STRATEGIES, type CalibrationMode, type ScoreKind, type Strategy } from '#database';
 
-const trimAll = ({ value }: { value: unknown }) => (Array.isArray(value) ? value.map((v) => (typeof v === 'string' ? v.trim() : v)) : value);
+const trimAll = ({ value }: { value: unknown }) =>
+  Array.isArray(value) ? value.map((v: unknown) => (typeof v === 'string' ? v.trim() : v)) : value;
 
 export class CreateDeskDto {
   @ApiProperty({ example: 'Mossbank Commons reports' }) @IsString() @Length(1, 200) name!: string;
 
   @ApiProperty({ type: [String], minItems: 2, maxItems: 20, example: ['threat', 'harassment', 'ok'] })
-  @Transform(trimAll) @IsArray() @ArrayMinSize(2) @ArrayMaxSize(20) @ArrayUnique() @IsString({ each: true }) @Length(1, 100, { each: true })
+  @Transform(trimAll)
+  @IsArray()
+  @ArrayMinSize(2)
+  @ArrayMaxSize(20)
+  @ArrayUnique()
+  @IsString({ each: true })
+  @Length(1, 100, { each: true })
   @NotContains('\n', { each: true })
   categories!: string[];
 
-  @ApiPropertyOptional({ type: 'object', additionalProperties: { type: 'array', items: { type: 'string' } }, example: { threat: ['hurt you', 'watch your back'] } })
-  @IsOptional() @IsObject() seedTerms?: Record<string, string[]>;
+  @ApiPropertyOptional({
+    type: 'object',
+    additionalProperties: { type: 'array', items: { type: 'string' } },
+    example: { threat: ['hurt you', 'watch your back'] },
+  })
+  @IsOptional()
+  @IsObject()
+  seedTerms?: Record<string, string[]>;
 
-  @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999, default: 0.9 }) @IsOptional() @IsNumber() @Min(0.5) @Max(0.999) coverageTarget?: number;
-  @ApiPropertyOptional({ enum: CALIBRATION_MODES, default: 'per-category' }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
-  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.2 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
+  @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999, default: 0.9 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0.5)
+  @Max(0.999)
+  coverageTarget?: number;
+  @ApiPropertyOptional({ enum: CALIBRATION_MODES, default: 'per-category' })
+  @IsOptional()
+  @IsIn(CALIBRATION_MODES)
+  calibration?: CalibrationMode;
+  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.2 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0)
+  @Max(1)
+  randomShare?: number;
   /** Share of decided items served again to a different reviewer, for agreement figures. */
-  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) secondOpinionShare?: number;
-  @ApiPropertyOptional({ minimum: 30, maximum: 86400, default: 600 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
-  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
-  @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;
-  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 }) @IsOptional() @IsInt() @Min(1) @Max(100000) retrainEvery?: number;
-  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 }) @IsOptional() @IsInt() @Min(1) @Max(86400) retrainAfterSeconds?: number;
+  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.1 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0)
+  @Max(1)
+  secondOpinionShare?: number;
+  @ApiPropertyOptional({ minimum: 30, maximum: 86400, default: 600 })
+  @IsOptional()
+  @IsInt()
+  @Min(30)
+  @Max(86400)
+  leaseSeconds?: number;
+  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' })
+  @IsOptional()
+  @IsIn(STRATEGIES)
+  strategy?: Strategy;
+  @ApiPropertyOptional({ enum: SCORES, default: 'lac' })
+  @IsOptional()
+  @IsIn(SCORES)
+  score?: ScoreKind;
+  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 })
+  @IsOptional()
+  @IsInt()
+  @Min(1)
+  @Max(100000)
+  retrainEvery?: number;
+  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 })
+  @IsOptional()
+  @IsInt()
+  @Min(1)
+  @Max(86400)
+  retrainAfterSeconds?: number;
 }
 
 export class UpdateDeskDto {
@@ -33,17 +100,61 @@ export class UpdateDeskDto {
 
   /** The full new list. Categories may be added; one a verdict uses may not be removed or renamed. */
   @ApiPropertyOptional({ type: [String], minItems: 2, maxItems: 20 })
-  @IsOptional() @Transform(trimAll) @IsArray() @ArrayMinSize(2) @ArrayMaxSize(20) @ArrayUnique() @IsString({ each: true }) @Length(1, 100, { each: true })
+  @IsOptional()
+  @Transform(trimAll)
+  @IsArray()
+  @ArrayMinSize(2)
+  @ArrayMaxSize(20)
+  @ArrayUnique()
+  @IsString({ each: true })
+  @Length(1, 100, { each: true })
   categories?: string[];
 
-  @ApiPropertyOptional({ type: 'object', additionalProperties: { type: 'array', items: { type: 'string' } } }) @IsOptional() @IsObject() seedTerms?: Record<string, string[]>;
-  @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999 }) @IsOptional() @IsNumber() @Min(0.5) @Max(0.999) coverageTarget?: number;
-  @ApiPropertyOptional({ enum: CALIBRATION_MODES }) @IsOptional() @IsIn(CALIBRATION_MODES as unknown as string[]) calibration?: CalibrationMode;
+  @ApiPropertyOptional({ type: 'object', additionalProperties: { type: 'array', items: { type: 'string' } } })
+  @IsOptional()
+  @IsObject()
+  seedTerms?: Record<string, string[]>;
+  @ApiPropertyOptional({ minimum: 0.5, maximum: 0.999 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0.5)
+  @Max(0.999)
+  coverageTarget?: number;
+  @ApiPropertyOptional({ enum: CALIBRATION_MODES })
+  @IsOptional()
+  @IsIn(CALIBRATION_MODES)
+  calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
-  @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) secondOpinionShare?: number;
-  @ApiPropertyOptional({ minimum: 30, maximum: 86400 }) @IsOptional() @IsInt() @Min(30) @Max(86400) leaseSeconds?: number;
-  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' }) @IsOptional() @IsIn(STRATEGIES as unknown as string[]) strategy?: Strategy;
-  @ApiPropertyOptional({ enum: SCORES, default: 'lac' }) @IsOptional() @IsIn(SCORES as unknown as string[]) score?: ScoreKind;
-  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 }) @IsOptional() @IsInt() @Min(1) @Max(100000) retrainEvery?: number;
-  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 }) @IsOptional() @IsInt() @Min(1) @Max(86400) retrainAfterSeconds?: number;
+  @ApiPropertyOptional({ minimum: 0, maximum: 1 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0)
+  @Max(1)
+  secondOpinionShare?: number;
+  @ApiPropertyOptional({ minimum: 30, maximum: 86400 })
+  @IsOptional()
+  @IsInt()
+  @Min(30)
+  @Max(86400)
+  leaseSeconds?: number;
+  @ApiPropertyOptional({ enum: STRATEGIES, default: 'entropy' })
+  @IsOptional()
+  @IsIn(STRATEGIES)
+  strategy?: Strategy;
+  @ApiPropertyOptional({ enum: SCORES, default: 'lac' })
+  @IsOptional()
+  @IsIn(SCORES)
+  score?: ScoreKind;
+  @ApiPropertyOptional({ minimum: 1, maximum: 100000, default: 10 })
+  @IsOptional()
+  @IsInt()
+  @Min(1)
+  @Max(100000)
+  retrainEvery?: number;
+  @ApiPropertyOptional({ minimum: 1, maximum: 86400, default: 30 })
+  @IsOptional()
+  @IsInt()
+  @Min(1)
+  @Max(86400)
+  retrainAfterSeconds?: number;
 }

@@ -32,16 +32,27 @@ const MAX_TERMS = 200;
 /** Checks seed terms against the desk's categories; returns them cleaned (trimmed, de-duplicated). */
 export function validateSeedTerms(seedTerms: unknown, categories: string[]): Record<string, string[]> {
   if (seedTerms === undefined || seedTerms === null) return {};
-  if (typeof seedTerms !== 'object' || Array.isArray(seedTerms)) throw new BadRequestException('seedTerms: expected an object mapping category names to lists of terms');
+  if (typeof seedTerms !== 'object' || Array.isArray(seedTerms))
+    throw new BadRequestException('seedTerms: expected an object mapping category names to lists of terms');
   const out: Record<string, string[]> = {};
   const problems: string[] = [];
   for (const [category, terms] of Object.entries(seedTerms as Record<string, unknown>)) {
-    if (!categories.includes(category)) { problems.push(`seedTerms.${category}: not a category of this desk`); continue; }
-    if (!Array.isArray(terms) || terms.some((t) => typeof t !== 'string')) { problems.push(`seedTerms.${category}: expected a list of strings`); continue; }
+    if (!categories.includes(category)) {
+      problems.push(`seedTerms.${category}: not a category of this desk`);
+      continue;
+    }
+    if (!Array.isArray(terms) || terms.some((t) => typeof t !== 'string')) {
+      problems.push(`seedTerms.${category}: expected a list of strings`);
+      continue;
+    }
     const clean = [...new Set((terms as string[]).map((t) => t.trim()).filter((t) => t.length > 0))];
-    if (clean.length > MAX_TERMS) problems.push(`seedTerms.${category}: at most ${MAX_TERMS} terms (got ${clean.length})`);
+    if (clean.length > MAX_TERMS)
+      problems.push(`seedTerms.${category}: at most ${MAX_TERMS} terms (got ${clean.length})`);
     const long = clean.find((t) => t.length > 100);
-    if (long) problems.push(`seedTerms.${category}: a term is longer than 100 characters (${JSON.stringify(long.slice(0, 20))}…)`);
+    if (long)
+      problems.push(
+        `seedTerms.${category}: a term is longer than 100 characters (${JSON.stringify(long.slice(0, 20))}…)`,
+      );
     if (clean.length > 0) out[category] = clean;
   }
   if (problems.length) throw new BadRequestException(problems);
@@ -50,9 +61,13 @@ export function validateSeedTerms(seedTerms: unknown, categories: string[]): Rec
 
 function checkCategoryNames(names: string[]): void {
   const reserved = names.filter((n) => RESERVED_CATEGORY_NAMES.includes(n.toLowerCase()));
-  if (reserved.length) throw new BadRequestException([`categories: ${JSON.stringify(reserved[0])} is reserved (abstaining is always possible)`]);
+  if (reserved.length)
+    throw new BadRequestException([
+      `categories: ${JSON.stringify(reserved[0])} is reserved (abstaining is always possible)`,
+    ]);
   const folded = names.map((n) => n.normalize('NFKC').toLowerCase());
-  if (new Set(folded).size !== folded.length) throw new BadRequestException(['categories: two names differ only by case or form']);
+  if (new Set(folded).size !== folded.length)
+    throw new BadRequestException(['categories: two names differ only by case or form']);
 }
 
 @Injectable()
@@ -69,16 +84,41 @@ export class DesksService {
     checkCategoryNames(dto.categories);
     const seedTerms = validateSeedTerms(dto.seedTerms, dto.categories);
     const deskId = await this.db.write(async (m) => {
-      if (await m.findOneBy(DeskEntity, { name: dto.name })) throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
+      if (await m.findOneBy(DeskEntity, { name: dto.name }))
+        throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
       const now = new Date();
-      const desk = await m.save(DeskEntity, m.create(DeskEntity, {
-        name: dto.name, seedTerms, coverageTarget: dto.coverageTarget ?? 0.9, calibration: dto.calibration ?? 'per-category',
-        randomShare: dto.randomShare ?? 0.2, secondOpinionShare: dto.secondOpinionShare ?? 0.1, leaseSeconds: dto.leaseSeconds ?? 600, currentModelVersion: null,
-        strategy: dto.strategy ?? 'entropy', score: dto.score ?? 'lac', retrainEvery: dto.retrainEvery ?? 10, retrainAfterSeconds: dto.retrainAfterSeconds ?? 30, createdBy: actor.id ?? 0, createdAt: now, updatedAt: now,
-      }));
-      await m.insert(CategoryEntity, dto.categories.map((name, i) => ({ deskId: desk.id, name, position: i + 1, createdAt: now })));
+      const desk = await m.save(
+        DeskEntity,
+        m.create(DeskEntity, {
+          name: dto.name,
+          seedTerms,
+          coverageTarget: dto.coverageTarget ?? 0.9,
+          calibration: dto.calibration ?? 'per-category',
+          randomShare: dto.randomShare ?? 0.2,
+          secondOpinionShare: dto.secondOpinionShare ?? 0.1,
+          leaseSeconds: dto.leaseSeconds ?? 600,
+          currentModelVersion: null,
+          strategy: dto.strategy ?? 'entropy',
+          score: dto.score ?? 'lac',
+          retrainEvery: dto.retrainEvery ?? 10,
+          retrainAfterSeconds: dto.retrainAfterSeconds ?? 30,
+          createdBy: actor.id ?? 0,
+          createdAt: now,
+          updatedAt: now,
+        }),
+      );
+      await m.insert(
+        CategoryEntity,
+        dto.categories.map((name, i) => ({ deskId: desk.id, name, position: i + 1, createdAt: now })),
+      );
       const view = await this.viewIn(m, desk.id);
-      await this.audit.record(m, actor, { action: 'desk.create', entityType: 'desk', entityId: desk.id, deskId: desk.id, after: settingsOf(view) });
+      await this.audit.record(m, actor, {
+        action: 'desk.create',
+        entityType: 'desk',
+        entityId: desk.id,
+        deskId: desk.id,
+        after: settingsOf(view),
+      });
       return desk.id;
     });
     return this.get(deskId);
@@ -87,7 +127,12 @@ export class DesksService {
   async list(): Promise<DeskView[]> {
     const desks = await this.db.manager.find(DeskEntity, { order: { id: 'ASC' } });
     const cats = await this.db.manager.find(CategoryEntity, { order: { position: 'ASC' } });
-    return desks.map((d) => toView(d, cats.filter((c) => c.deskId === d.id)));
+    return desks.map((d) =>
+      toView(
+        d,
+        cats.filter((c) => c.deskId === d.id),
+      ),
+    );
   }
 
   async get(deskId: number): Promise<DeskView> {
@@ -99,9 +144,12 @@ export class DesksService {
    * set at once (sets are read from the stored calibration scores); the
    * answer then says what backs the new thresholds.
    */
-  async update(actor: AuditActor, deskId: number, dto: UpdateDeskDto): Promise<DeskView & { calibrationStatus?: CalibrationStatus | null }> {
-    let seedTermsChanged = false;
-    await this.db.write(async (m) => {
+  async update(
+    actor: AuditActor,
+    deskId: number,
+    dto: UpdateDeskDto,
+  ): Promise<DeskView & { calibrationStatus?: CalibrationStatus | null }> {
+    const seedTermsChanged = await this.db.write(async (m) => {
       const before = await this.viewIn(m, deskId);
       const desk = (await m.findOneBy(DeskEntity, { id: deskId }))!;
       const now = new Date();
@@ -111,9 +159,16 @@ export class DesksService {
         const removed = before.categories.filter((c) => !dto.categories!.includes(c.name));
         for (const c of removed) {
           const used = await m.countBy(VerdictEntity, { categoryId: c.id });
-          if (used > 0) throw new ConflictException(`category ${JSON.stringify(c.name)} is used by ${used} verdict(s): categories can be added, but one in use cannot be removed or renamed`);
+          if (used > 0)
+            throw new ConflictException(
+              `category ${JSON.stringify(c.name)} is used by ${used} verdict(s): categories can be added, but one in use cannot be removed or renamed`,
+            );
         }
-        if (removed.length) await m.delete(CategoryEntity, removed.map((c) => c.id));
+        if (removed.length)
+          await m.delete(
+            CategoryEntity,
+            removed.map((c) => c.id),
+          );
         for (const [i, name] of dto.categories.entries()) {
           const existing = before.categories.find((c) => c.name === name);
           if (existing) await m.update(CategoryEntity, { id: existing.id }, { position: i + 1 });
@@ -132,7 +187,7 @@ export class DesksService {
         // Terms of a removed category go with it.
         desk.seedTerms = Object.fromEntries(Object.entries(desk.seedTerms).filter(([k]) => categoryNames.includes(k)));
       }
-      seedTermsChanged = JSON.stringify(desk.seedTerms) !== JSON.stringify(before.seedTerms);
+      const termsChanged = JSON.stringify(desk.seedTerms) !== JSON.stringify(before.seedTerms);
       if (dto.coverageTarget !== undefined) desk.coverageTarget = dto.coverageTarget;
       if (dto.calibration !== undefined) desk.calibration = dto.calibration;
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
@@ -149,10 +204,15 @@ export class DesksService {
       const changed = Object.keys(a).filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k]));
       if (changed.length) {
         await this.audit.record(m, actor, {
-          action: 'desk.update', entityType: 'desk', entityId: deskId, deskId,
-          before: Object.fromEntries(changed.map((k) => [k, b[k]])), after: Object.fromEntries(changed.map((k) => [k, a[k]])),
+          action: 'desk.update',
+          entityType: 'desk',
+          entityId: deskId,
+          deskId,
+          before: Object.fromEntries(changed.map((k) => [k, b[k]])),
+          after: Object.fromEntries(changed.map((k) => [k, a[k]])),
         });
       }
+      return termsChanged;
     });
     this.directory.forget(deskId);
     if (seedTermsChanged) await this.jobs.add(JOBS.reseedDesk, { deskId });
@@ -173,16 +233,38 @@ export class DesksService {
 
 function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
   return {
-    id: d.id, name: d.name, categories: cats.map((c) => ({ id: c.id, name: c.name, position: c.position })), seedTerms: d.seedTerms,
-    coverageTarget: d.coverageTarget, calibration: d.calibration, randomShare: d.randomShare, secondOpinionShare: d.secondOpinionShare, leaseSeconds: d.leaseSeconds,
-    strategy: d.strategy, score: d.score, retrainEvery: d.retrainEvery, retrainAfterSeconds: d.retrainAfterSeconds,
-    currentModelVersion: d.currentModelVersion, createdAt: d.createdAt, updatedAt: d.updatedAt,
+    id: d.id,
+    name: d.name,
+    categories: cats.map((c) => ({ id: c.id, name: c.name, position: c.position })),
+    seedTerms: d.seedTerms,
+    coverageTarget: d.coverageTarget,
+    calibration: d.calibration,
+    randomShare: d.randomShare,
+    secondOpinionShare: d.secondOpinionShare,
+    leaseSeconds: d.leaseSeconds,
+    strategy: d.strategy,
+    score: d.score,
+    retrainEvery: d.retrainEvery,
+    retrainAfterSeconds: d.retrainAfterSeconds,
+    currentModelVersion: d.currentModelVersion,
+    createdAt: d.createdAt,
+    updatedAt: d.updatedAt,
   };
 }
 
 function settingsOf(v: DeskView): Record<string, unknown> {
   return {
-    name: v.name, categories: v.categories.map((c) => c.name), seedTerms: v.seedTerms, coverageTarget: v.coverageTarget, calibration: v.calibration, randomShare: v.randomShare, secondOpinionShare: v.secondOpinionShare,
-    leaseSeconds: v.leaseSeconds, strategy: v.strategy, score: v.score, retrainEvery: v.retrainEvery, retrainAfterSeconds: v.retrainAfterSeconds,
+    name: v.name,
+    categories: v.categories.map((c) => c.name),
+    seedTerms: v.seedTerms,
+    coverageTarget: v.coverageTarget,
+    calibration: v.calibration,
+    randomShare: v.randomShare,
+    secondOpinionShare: v.secondOpinionShare,
+    leaseSeconds: v.leaseSeconds,
+    strategy: v.strategy,
+    score: v.score,
+    retrainEvery: v.retrainEvery,
+    retrainAfterSeconds: v.retrainAfterSeconds,
   };
 }

@@ -1,2 +1,2 @@
-export { csvField, csvLine } from './csv.js';
+export { csvField, csvLine, type CsvValue } from './csv.js';
 export { streamText } from './stream-text.js';

@@ -9,7 +9,13 @@ import type { Response } from 'express';
  * `pipeline` stops reading when the client goes away. Once the headers are
  * sent an error can only cut the body short; `onError` hears of it.
  */
-export async function streamText(res: Response, contentType: string, fileName: string, chunks: AsyncIterable<string>, onError: (e: Error) => void): Promise<void> {
+export async function streamText(
+  res: Response,
+  contentType: string,
+  fileName: string,
+  chunks: AsyncIterable<string>,
+  onError: (e: Error) => void,
+): Promise<void> {
   res.status(200);
   res.setHeader('Content-Type', contentType);
   res.setHeader('Content-Disposition', `attachment; filename="${fileName}"`);

@@ -3,14 +3,29 @@ import { Inject, Injectable, Logger } from '@nestjs/common';
 import { UnrecoverableError } from 'bullmq';
 import type { EntityManager } from 'typeorm';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, DeskEntity, ImportEntity, type ImportRowError } from '#database';
+import { Database, DeskEntity, ImportEntity, type DbInt, type ImportRowError } from '#database';
 import { compileSeedTerms, type SeedTermMatcher } from '#learning';
 import { DeskFeaturesService, RetrainScheduler } from '#models';
 import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } from './parsing/index.js';
 import { uploadPath } from './imports.service.js';
 
 const MAX_STORED_ERRORS = 1000;
-const ITEM_COLUMNS = ['desk_id', 'import_id', 'external_id', 'source', 'text', 'normalized_text', 'normalized_hash', 'meta', 'posted_at', 'imported_at', 'state', 'seed_hits', 'priority', 'rand_key'] as const;
+const ITEM_COLUMNS = [
+  'desk_id',
+  'import_id',
+  'external_id',
+  'source',
+  'text',
+  'normalized_text',
+  'normalized_hash',
+  'meta',
+  'posted_at',
+  'imported_at',
+  'state',
+  'seed_hits',
+  'priority',
+  'rand_key',
+] as const;
 
 /**
  * The worker side of imports: reads the uploaded file row by row and writes
@@ -29,7 +44,10 @@ export class ImportRunner {
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
   ) {}
 
-  async run(importId: string, reportProgress: (rowsRead: number) => Promise<void> = async () => undefined): Promise<ImportEntity> {
+  async run(
+    importId: string,
+    reportProgress: (rowsRead: number) => Promise<void> = () => Promise.resolve(),
+  ): Promise<ImportEntity> {
     const imp = await this.db.manager.findOneBy(ImportEntity, { id: importId });
     if (!imp) throw new UnrecoverableError(`no import ${importId}`);
     if (imp.state === 'done' || imp.state === 'failed') return imp;
@@ -40,7 +58,13 @@ export class ImportRunner {
       await this.fail(importId, 'the uploaded file is missing from the data folder');
       throw new UnrecoverableError(`upload of import ${importId} is missing`);
     }
-    await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'running', ...(imp.startedAt ? {} : { startedAt: new Date() }) }));
+    await this.db.write((m) =>
+      m.update(
+        ImportEntity,
+        { id: importId },
+        { state: 'running', ...(imp.startedAt ? {} : { startedAt: new Date() }) },
+      ),
+    );
     const matcher = compileSeedTerms(desk.seedTerms);
     const resumeAfter = imp.rowsCommitted;
     let records: ImportRecord[] = [];
@@ -58,20 +82,26 @@ export class ImportRunner {
         const cur = (await m.findOneBy(ImportEntity, { id: importId }))!;
         const room = Math.max(0, MAX_STORED_ERRORS - cur.errors.length);
         const errors: ImportRowError[] = room > 0 ? [...cur.errors, ...bad.slice(0, room)] : cur.errors;
-        await m.update(ImportEntity, { id: importId }, {
-          rowsRead: cur.rowsRead + batch.length + bad.length,
-          imported: cur.imported + inserted,
-          duplicates: cur.duplicates + batch.length - inserted,
-          rejected: cur.rejected + bad.length,
-          errors: errors as never,
-          rowsCommitted: upTo,
-        });
+        await m.update(
+          ImportEntity,
+          { id: importId },
+          {
+            rowsRead: cur.rowsRead + batch.length + bad.length,
+            imported: cur.imported + inserted,
+            duplicates: cur.duplicates + batch.length - inserted,
+            rejected: cur.rejected + bad.length,
+            errors: errors,
+            rowsCommitted: upTo,
+          },
+        );
       });
       await reportProgress(upTo);
     };
 
     try {
-      for await (const row of parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, { maxTextLength: this.config.maxTextLength })) {
+      for await (const row of parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, {
+        maxTextLength: this.config.maxTextLength,
+      })) {
         const n = row.ok ? row.record.row : row.rejected.row;
         if (n <= resumeAfter) continue;
         lastRow = n;
@@ -94,28 +124,63 @@ export class ImportRunner {
     // (autovacuum may be off or late; SQLite has no automatic statistics at all).
     await this.db.query(null, 'ANALYZE items');
     // New items need scoring: with a model, that is a retrain request.
-    await this.retrain.check(imp.deskId, 'import').catch((e) => this.logger.warn(`retrain request after import failed: ${(e as Error).message}`));
+    await this.retrain
+      .check(imp.deskId, 'import')
+      .catch((e: unknown) => this.logger.warn(`retrain request after import failed: ${(e as Error).message}`));
     rmSync(path, { force: true });
     const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
-    this.logger.log(`import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`);
+    this.logger.log(
+      `import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`,
+    );
     return done;
   }
 
   private async fail(importId: string, failure: string): Promise<void> {
-    await this.db.write((m) => m.update(ImportEntity, { id: importId }, { state: 'failed', failure, finishedAt: new Date() }));
+    await this.db.write((m) =>
+      m.update(ImportEntity, { id: importId }, { state: 'failed', failure, finishedAt: new Date() }),
+    );
   }
 
   /** Inserts a batch; rows that collide with an existing external id or text are skipped and counted as duplicates. */
-  private async insertItems(m: EntityManager, deskId: number, importId: string, batch: ImportRecord[], matcher: SeedTermMatcher): Promise<number> {
+  private async insertItems(
+    m: EntityManager,
+    deskId: number,
+    importId: string,
+    batch: ImportRecord[],
+    matcher: SeedTermMatcher,
+  ): Promise<number> {
     const now = this.db.time(new Date());
     const params: unknown[] = [];
     const tuples: string[] = [];
     for (const r of batch) {
       const hits = matcher.count(r.text);
-      const values = [deskId, importId, r.externalId, r.source, r.text, r.normalizedText, r.textHash, JSON.stringify(r.meta), r.createdAt ? this.db.time(r.createdAt) : null, now, 'open', hits, hits, Math.random()];
-      tuples.push(`(${values.map((v) => { params.push(v); return `$${params.length}`; }).join(', ')})`);
+      const values = [
+        deskId,
+        importId,
+        r.externalId,
+        r.source,
+        r.text,
+        r.normalizedText,
+        r.textHash,
+        JSON.stringify(r.meta),
+        r.createdAt ? this.db.time(r.createdAt) : null,
+        now,
+        'open',
+        hits,
+        hits,
+        Math.random(),
+      ];
+      tuples.push(
+        `(${values
+          .map((v) => {
+            params.push(v);
+            return `$${params.length}`;
+          })
+          .join(', ')})`,
+      );
     }
-    const rows = await this.db.query<{ id: number; normalized_hash: string }>(m,
+    const rows = await this.db.query<{ id: DbInt; normalized_hash: string }>(
+      m,
       `INSERT INTO items (${ITEM_COLUMNS.join(', ')}) VALUES ${tuples.join(', ')} ON CONFLICT DO NOTHING RETURNING id, normalized_hash`,
       params,
     );

@@ -10,5 +10,9 @@ import { ReseedService } from './reseed.service.js';
 export class ImportsModule {}
 
 /** Worker side: reading files into items, recounting seed terms. */
-@Module({ imports: [ModelsCoreModule], providers: [ImportRunner, ReseedService], exports: [ImportRunner, ReseedService] })
+@Module({
+  imports: [ModelsCoreModule],
+  providers: [ImportRunner, ReseedService],
+  exports: [ImportRunner, ReseedService],
+})
 export class ImportsWorkModule {}

@@ -1,5 +1,5 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database, DeskEntity } from '#database';
+import { Database, DeskEntity, type DbInt } from '#database';
 import { compileSeedTerms } from '#learning';
 
 const CHUNK = 1000;
@@ -20,17 +20,22 @@ export class ReseedService {
     let after = 0;
     let updated = 0;
     for (;;) {
-      const rows: Array<{ id: number; text: string; seed_hits: number; priority_model_version: number | null }> = await this.db.query(null, 
-        `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = $1 AND state <> 'decided' AND id > $2 ORDER BY id LIMIT ${CHUNK}`,
-        [deskId, after],
-      );
+      const rows: Array<{ id: DbInt; text: string; seed_hits: DbInt; priority_model_version: DbInt | null }> =
+        await this.db.query(
+          null,
+          `SELECT id, text, seed_hits, priority_model_version FROM items WHERE desk_id = $1 AND state <> 'decided' AND id > $2 ORDER BY id LIMIT ${CHUNK}`,
+          [deskId, after],
+        );
       if (rows.length === 0) return updated;
-      after = rows[rows.length - 1]!.id;
-      const changes = rows.map((r) => ({ r, hits: matcher.count(r.text) })).filter(({ r, hits }) => hits !== Number(r.seed_hits));
+      after = Number(rows[rows.length - 1].id);
+      const changes = rows
+        .map((r) => ({ r, hits: matcher.count(r.text) }))
+        .filter(({ r, hits }) => hits !== Number(r.seed_hits));
       if (changes.length === 0) continue;
       await this.db.write(async (m) => {
         for (const { r, hits } of changes) {
-          if (r.priority_model_version === null) await this.db.query(m, `UPDATE items SET seed_hits = $1, priority = $2 WHERE id = $3`, [hits, hits, r.id]);
+          if (r.priority_model_version === null)
+            await this.db.query(m, `UPDATE items SET seed_hits = $1, priority = $2 WHERE id = $3`, [hits, hits, r.id]);
           else await this.db.query(m, `UPDATE items SET seed_hits = $1 WHERE id = $2`, [hits, r.id]);
         }
       });

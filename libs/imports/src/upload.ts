@@ -11,7 +11,10 @@ export interface ReceivedUpload {
 }
 
 export class UploadError extends Error {
-  constructor(message: string, readonly status: 400 | 415 = 400) {
+  constructor(
+    message: string,
+    readonly status: 400 | 415 = 400,
+  ) {
     super(message);
   }
 }
@@ -43,17 +46,28 @@ export async function receiveUpload(
   const contentType = String(req.headers['content-type'] ?? '');
   if (!/^multipart\/form-data/i.test(contentType)) {
     const format = detectImportFormat(contentType);
-    if (!format) throw new UploadError(`unsupported Content-Type ${JSON.stringify(contentType || '(none)')}: send application/x-ndjson, text/csv, application/json, or a multipart/form-data file`, 415);
+    if (!format)
+      throw new UploadError(
+        `unsupported Content-Type ${JSON.stringify(contentType || '(none)')}: send application/x-ndjson, text/csv, application/json, or a multipart/form-data file`,
+        415,
+      );
     await onFormat(format, null);
     let bytes = 0;
-    await pipeline(req, counter((n) => { bytes = n; onBytes(n); }), createWriteStream(path));
+    await pipeline(
+      req,
+      counter((n) => {
+        bytes = n;
+        onBytes(n);
+      }),
+      createWriteStream(path),
+    );
     return { format, fileName: null, bytes };
   }
 
   return new Promise<ReceivedUpload>((resolve, reject) => {
     let bb: busboy.Busboy;
     try {
-      bb = busboy({ headers: req.headers as busboy.BusboyConfig['headers'], limits: { files: 1 } });
+      bb = busboy({ headers: req.headers, limits: { files: 1 } });
     } catch (e) {
       reject(new UploadError(`malformed multipart request: ${(e as Error).message}`));
       return;
@@ -61,18 +75,33 @@ export async function receiveUpload(
     let started = false;
     let done: Promise<ReceivedUpload> | null = null;
     bb.on('file', (_field, file, info) => {
-      if (started) { file.resume(); return; }
+      if (started) {
+        file.resume();
+        return;
+      }
       started = true;
       const format = detectImportFormat(info.mimeType, info.filename);
       if (!format) {
         file.resume();
-        reject(new UploadError(`cannot tell the format of ${JSON.stringify(info.filename ?? 'the file')} (type ${info.mimeType}): use .ndjson/.jsonl, .csv or .json`, 415));
+        reject(
+          new UploadError(
+            `cannot tell the format of ${JSON.stringify(info.filename ?? 'the file')} (type ${info.mimeType}): use .ndjson/.jsonl, .csv or .json`,
+            415,
+          ),
+        );
         return;
       }
       done = (async () => {
         await onFormat(format, info.filename ?? null);
         let bytes = 0;
-        await pipeline(file, counter((n) => { bytes = n; onBytes(n); }), createWriteStream(path));
+        await pipeline(
+          file,
+          counter((n) => {
+            bytes = n;
+            onBytes(n);
+          }),
+          createWriteStream(path),
+        );
         return { format, fileName: info.filename ?? null, bytes };
       })();
       done.catch(reject);

@@ -28,13 +28,28 @@ export { assertAlpha, assertLabel, assertProbabilities, PROBABILITY_SUM_TOLERANC
 export { entropy, leastConfidence, margin, uncertainty } from './uncertainty/uncertainty-scores.js';
 export type { UncertaintyStrategy } from './uncertainty/uncertainty-scores.js';
 export { apsScore, lacScore, rankByProbability } from './conformal/nonconformity.js';
-export { calibrationSizeNeeded, conformalRank, conformalThreshold, RANK_TOLERANCE } from './conformal/conformal-quantile.js';
+export {
+  calibrationSizeNeeded,
+  conformalRank,
+  conformalThreshold,
+  RANK_TOLERANCE,
+} from './conformal/conformal-quantile.js';
 export { ConformalCalibration } from './conformal/conformal-calibration.js';
-export type { CalibrationMode, ConformalCalibrationJson, ConformalThreshold, NonconformityScore } from './conformal/conformal-calibration.js';
+export type {
+  CalibrationMode,
+  ConformalCalibrationJson,
+  ConformalThreshold,
+  NonconformityScore,
+} from './conformal/conformal-calibration.js';
 export { predictionSet, SCORE_TIE_TOLERANCE, triageCall } from './conformal/prediction-set.js';
 export type { PredictionSet, PredictionSetOptions, TriageCall } from './conformal/prediction-set.js';
 
-export { clopperPearsonInterval, wilsonContinuityCorrectedInterval, wilsonInterval, Z_95 } from './intervals/binomial-intervals.js';
+export {
+  clopperPearsonInterval,
+  wilsonContinuityCorrectedInterval,
+  wilsonInterval,
+  Z_95,
+} from './intervals/binomial-intervals.js';
 export type { ProportionInterval } from './intervals/binomial-intervals.js';
 export { inverseRegularizedIncompleteBeta, logGamma, regularizedIncompleteBeta } from './intervals/incomplete-beta.js';
 export { accuracy } from './metrics/accuracy.js';
@@ -48,13 +63,26 @@ export { pickBatch } from './uncertainty/batch-picker.js';
 export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncertainty/batch-picker.js';
 
 export { prepareRehearsal, runRehearsal } from './rehearsal/rehearsal.js';
-export type { CurvePoint, LabelledItem, RehearsalCurve, RehearsalData, RehearsalOptions, RehearsalResult } from './rehearsal/rehearsal.js';
+export type {
+  CurvePoint,
+  LabelledItem,
+  RehearsalCurve,
+  RehearsalData,
+  RehearsalOptions,
+  RehearsalResult,
+} from './rehearsal/rehearsal.js';
 
 export { cohenKappa, cohenKappaFromMatrix } from './agreement/cohen-kappa.js';
 export type { CohenKappa } from './agreement/cohen-kappa.js';
 export { fleissKappa } from './agreement/fleiss-kappa.js';
 export type { FleissKappa } from './agreement/fleiss-kappa.js';
-export { addCoincidences, alphaFromCoincidences, alphaOfCounts, countValues, krippendorffAlpha } from './agreement/krippendorff-alpha.js';
+export {
+  addCoincidences,
+  alphaFromCoincidences,
+  alphaOfCounts,
+  countValues,
+  krippendorffAlpha,
+} from './agreement/krippendorff-alpha.js';
 export type { AlphaLevel, KrippendorffAlpha, ReliabilityTable, ValueCounts } from './agreement/krippendorff-alpha.js';
 export { alphaBootstrap, sortedQuantile } from './agreement/alpha-bootstrap.js';
 export type { AlphaBootstrapOptions, AlphaInterval } from './agreement/alpha-bootstrap.js';

@@ -1,4 +1,15 @@
-import { Controller, Delete, Get, HttpCode, Inject, Param, ParseIntPipe, ParseUUIDPipe, Post, Res } from '@nestjs/common';
+import {
+  Controller,
+  Delete,
+  Get,
+  HttpCode,
+  Inject,
+  Param,
+  ParseIntPipe,
+  ParseUUIDPipe,
+  Post,
+  Res,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { CurrentUser, Roles, type Principal } from '#auth';
@@ -12,7 +23,11 @@ export class LeasesController {
   /** The next item for the reviewer: 201 with the lease, or 204 when nothing is left. */
   @Roles('reviewer')
   @Post('desks/:deskId/leases')
-  async lease(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Res({ passthrough: true }) res: Response) {
+  async lease(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Res({ passthrough: true }) res: Response,
+  ) {
     const grant = await this.leases.lease(user, deskId);
     if (!grant) {
       res.status(204);
@@ -31,7 +46,10 @@ export class LeasesController {
   @Roles('reviewer')
   @Delete('leases/:leaseId')
   @HttpCode(204)
-  async giveBack(@CurrentUser() user: Principal, @Param('leaseId', new ParseUUIDPipe()) leaseId: string): Promise<void> {
+  async giveBack(
+    @CurrentUser() user: Principal,
+    @Param('leaseId', new ParseUUIDPipe()) leaseId: string,
+  ): Promise<void> {
     await this.leases.giveBack(user, leaseId);
   }
 }

@@ -3,14 +3,30 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, dbErrorCode, DeskDirectory, LeaseEntity, type DeskEntity, type DrawKind, type ShownPrediction } from '#database';
+import {
+  Database,
+  dbErrorCode,
+  DeskDirectory,
+  type DbInt,
+  LeaseEntity,
+  type DeskEntity,
+  type DrawKind,
+  type ShownPrediction,
+} from '#database';
 import { cosineSimilarity } from '#learning';
 import { PredictionsService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
 export interface LeaseGrant {
   lease: { id: string; expiresAt: Date };
-  item: { id: number; text: string; meta: Record<string, unknown>; externalId: string | null; source: string | null; postedAt: Date | null };
+  item: {
+    id: number;
+    text: string;
+    meta: Record<string, unknown>;
+    externalId: string | null;
+    source: string | null;
+    postedAt: Date | null;
+  };
   highlights: Highlight[];
   prediction: ShownPrediction | null;
 }
@@ -20,13 +36,13 @@ export const LEASE_RANDOM = Symbol('LEASE_RANDOM');
 export type UniformSource = () => number;
 
 interface PickedRow {
-  id: number;
+  id: DbInt;
   text: string;
   meta: string;
   external_id: string | null;
   source: string | null;
   posted_at: unknown;
-  seed_hits: number;
+  seed_hits: DbInt;
 }
 
 /** How often, and how long each time, a lease waits for a pool held by another transaction (PostgreSQL). */
@@ -68,13 +84,18 @@ export class LeasesService {
     const now = new Date();
     const expiresAt = new Date(now.getTime() + desk.leaseSeconds * 1000);
     const picked = await this.db.write(async (m) => {
-      const claim = (where: string, order: string, params: unknown[]) => this.claim(m, leaseId, expiresAt, deskId, where, order, params);
+      const claim = (where: string, order: string, params: unknown[]) =>
+        this.claim(m, leaseId, expiresAt, deskId, where, order, params);
       let draw: DrawKind = wantRandom ? 'random' : coldStart ? 'seed' : 'uncertainty';
       // An item whose lease expired goes out again first, under the draw it was first served by;
       // the uniform draws below stay uniform over the open items.
       let row = await claim(`state = 'leased' AND leased_until < $4`, 'leased_until', [this.db.time(now)]);
       if (row) {
-        const [prev] = await this.db.query<{ draw: DrawKind }>(m, 'SELECT draw FROM leases WHERE item_id = $1 ORDER BY created_at DESC LIMIT 1', [row.id]);
+        const prev = await this.db.queryOne<{ draw: DrawKind }>(
+          m,
+          'SELECT draw FROM leases WHERE item_id = $1 ORDER BY created_at DESC LIMIT 1',
+          [row.id],
+        );
         draw = prev?.draw ?? 'random';
       } else if ((row = await this.claimSecondOpinion(m, reviewer, deskId, leaseId, expiresAt, now))) {
         draw = 'second-opinion';
@@ -90,25 +111,46 @@ export class LeasesService {
       // cold start once no open item matches a seed term (still recorded as `seed`: such verdicts train
       // the first model, which otherwise could never appear on a desk without seed terms).
       if (!row) {
-        row = (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ?? (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
+        row =
+          (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ??
+          (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
       }
       if (!row) return null;
       // What the reviewer is shown is recorded with the lease, and later with the verdict.
       const prediction = await this.predictions.forItem(m, desk, Number(row.id), row.text);
-      await this.db.query(m, 'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)', [
-        leaseId, deskId, row.id, reviewer.id, draw, prediction ? JSON.stringify(prediction) : null, this.db.time(now), this.db.time(expiresAt),
-      ]);
+      await this.db.query(
+        m,
+        'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)',
+        [
+          leaseId,
+          deskId,
+          row.id,
+          reviewer.id,
+          draw,
+          prediction ? JSON.stringify(prediction) : null,
+          this.db.time(now),
+          this.db.time(expiresAt),
+        ],
+      );
       return { row, prediction };
     });
     if (!picked) {
-      if (this.db.pg && attempt < POOL_LOCK_RETRIES && (await this.waitForHeldPool(deskId))) return this.lease(reviewer, deskId, attempt + 1);
+      if (this.db.pg && attempt < POOL_LOCK_RETRIES && (await this.waitForHeldPool(deskId)))
+        return this.lease(reviewer, deskId, attempt + 1);
       return null;
     }
     const { prediction } = picked;
     const row = picked.row;
     return {
       lease: { id: leaseId, expiresAt },
-      item: { id: Number(row.id), text: row.text, meta: JSON.parse(row.meta) as Record<string, unknown>, externalId: row.external_id, source: row.source, postedAt: this.db.parseTime(row.posted_at) },
+      item: {
+        id: Number(row.id),
+        text: row.text,
+        meta: JSON.parse(row.meta) as Record<string, unknown>,
+        externalId: row.external_id,
+        source: row.source,
+        postedAt: this.db.parseTime(row.posted_at),
+      },
       highlights: this.highlighter.highlights(desk, row.text),
       prediction,
     };
@@ -125,7 +167,11 @@ export class LeasesService {
     try {
       return await this.db.write(async (m) => {
         await this.db.query(m, `SET LOCAL lock_timeout = '${POOL_LOCK_WAIT_MS}ms'`, []);
-        const rows = await this.db.query<{ id: number }>(m, `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' LIMIT 1 FOR UPDATE`, [deskId]);
+        const rows = await this.db.query<{ id: number }>(
+          m,
+          `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' LIMIT 1 FOR UPDATE`,
+          [deskId],
+        );
         return rows.length > 0;
       });
     } catch (e) {
@@ -142,9 +188,18 @@ export class LeasesService {
    * concurrent reviewers never get the same item; on SQLite the surrounding
    * write transaction is already serialised. Extra parameters start at `$4`.
    */
-  private async claim(m: EntityManager, leaseId: string, expiresAt: Date, deskId: number, where: string, order: string, params: unknown[]): Promise<PickedRow | null> {
+  private async claim(
+    m: EntityManager,
+    leaseId: string,
+    expiresAt: Date,
+    deskId: number,
+    where: string,
+    order: string,
+    params: unknown[],
+  ): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const rows = await this.db.query<PickedRow>(m,
+    const rows = await this.db.query<PickedRow>(
+      m,
       `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2
        WHERE id = (SELECT id FROM items WHERE desk_id = $3 AND ${where} ORDER BY ${order} LIMIT 1${lock})
        RETURNING ${PICK_COLUMNS}`,
@@ -162,9 +217,17 @@ export class LeasesService {
    * the reviewers who held it). The item stays `decided`: it never re-enters
    * the open pool of first draws. Nothing about the earlier verdict is read.
    */
-  private async claimSecondOpinion(m: EntityManager, reviewer: Principal, deskId: number, leaseId: string, expiresAt: Date, now: Date): Promise<PickedRow | null> {
+  private async claimSecondOpinion(
+    m: EntityManager,
+    reviewer: Principal,
+    deskId: number,
+    leaseId: string,
+    expiresAt: Date,
+    now: Date,
+  ): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE OF so SKIP LOCKED' : '';
-    const [due] = await this.db.query<{ item_id: number }>(m,
+    const due = await this.db.queryOne<{ item_id: DbInt }>(
+      m,
       `UPDATE second_opinions SET state = 'leased', lease_id = $1, leased_until = $2
        WHERE item_id = (
          SELECT so.item_id FROM second_opinions so
@@ -173,9 +236,10 @@ export class LeasesService {
            AND NOT EXISTS (SELECT 1 FROM verdicts v WHERE v.item_id = so.item_id AND v.reviewer_id = $5)
          ORDER BY so.created_at, so.item_id LIMIT 1${lock})
        RETURNING item_id`,
-      [leaseId, this.db.time(expiresAt), deskId, this.db.time(now), reviewer.id]);
+      [leaseId, this.db.time(expiresAt), deskId, this.db.time(now), reviewer.id],
+    );
     if (!due) return null;
-    const [row] = await this.db.query<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE id = $1`, [due.item_id]);
+    const row = await this.db.queryOne<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE id = $1`, [due.item_id]);
     return row ?? null;
   }
 
@@ -184,22 +248,39 @@ export class LeasesService {
    * of tf-idf vectors under the current model) of the item this reviewer was
    * served last: among the top few candidates, the first that is not one.
    */
-  private async claimUncertain(m: EntityManager, reviewer: Principal, desk: DeskEntity, leaseId: string, expiresAt: Date): Promise<PickedRow | null> {
+  private async claimUncertain(
+    m: EntityManager,
+    reviewer: Principal,
+    desk: DeskEntity,
+    leaseId: string,
+    expiresAt: Date,
+  ): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
-    const candidates = await this.db.query<{ id: number; text: string }>(m,
-      `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`, [desk.id]);
+    const candidates = await this.db.query<{ id: number; text: string }>(
+      m,
+      `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`,
+      [desk.id],
+    );
     if (candidates.length === 0) return null;
-    let chosen = candidates[0]!;
+    let chosen = candidates[0];
     const model = candidates.length > 1 ? await this.predictions.current(desk) : null;
     if (model) {
-      const [last] = await this.db.query<{ text: string }>(m,
-        'SELECT i.text FROM leases l JOIN items i ON i.id = l.item_id WHERE l.desk_id = $1 AND l.reviewer_id = $2 ORDER BY l.created_at DESC LIMIT 1', [desk.id, reviewer.id]);
+      const last = await this.db.queryOne<{ text: string }>(
+        m,
+        'SELECT i.text FROM leases l JOIN items i ON i.id = l.item_id WHERE l.desk_id = $1 AND l.reviewer_id = $2 ORDER BY l.created_at DESC LIMIT 1',
+        [desk.id, reviewer.id],
+      );
       if (last) {
         const previous = model.vectorize(last.text);
-        chosen = candidates.find((c) => cosineSimilarity(model.vectorize(c.text), previous) < NEAR_DUPLICATE_COSINE) ?? chosen;
+        chosen =
+          candidates.find((c) => cosineSimilarity(model.vectorize(c.text), previous) < NEAR_DUPLICATE_COSINE) ?? chosen;
       }
     }
-    const rows = await this.db.query<PickedRow>(m, `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3 RETURNING ${PICK_COLUMNS}`, [leaseId, this.db.time(expiresAt), chosen.id]);
+    const rows = await this.db.query<PickedRow>(
+      m,
+      `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3 RETURNING ${PICK_COLUMNS}`,
+      [leaseId, this.db.time(expiresAt), chosen.id],
+    );
     return rows[0] ?? null;
   }
 
@@ -219,15 +300,30 @@ export class LeasesService {
       if (lease.closedAt) return;
       const now = new Date();
       await m.update(LeaseEntity, { id: leaseId }, { closedAt: now, closedReason: 'returned' });
-      await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1 AND lease_id = $2`, [lease.itemId, leaseId]);
-      await this.db.query(m, `UPDATE second_opinions SET state = 'due', lease_id = NULL, leased_until = NULL WHERE lease_id = $1 AND state = 'leased'`, [leaseId]);
-      await this.audit.record(m, reviewer, { action: 'lease.return', entityType: 'lease', entityId: leaseId, deskId: lease.deskId, after: { itemId: lease.itemId } });
+      await this.db.query(
+        m,
+        `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1 AND lease_id = $2`,
+        [lease.itemId, leaseId],
+      );
+      await this.db.query(
+        m,
+        `UPDATE second_opinions SET state = 'due', lease_id = NULL, leased_until = NULL WHERE lease_id = $1 AND state = 'leased'`,
+        [leaseId],
+      );
+      await this.audit.record(m, reviewer, {
+        action: 'lease.return',
+        entityType: 'lease',
+        entityId: leaseId,
+        deskId: lease.deskId,
+        after: { itemId: lease.itemId },
+      });
     });
   }
 
   /** The reviewer's open, unexpired leases on a desk (to resume after a reload). */
   async mine(reviewer: Principal, deskId: number): Promise<Array<{ id: string; itemId: number; expiresAt: Date }>> {
-    const rows: Array<{ id: string; item_id: number; expires_at: unknown }> = await this.db.query(null, 
+    const rows: Array<{ id: string; item_id: number; expires_at: unknown }> = await this.db.query(
+      null,
       `SELECT l.id, l.item_id, l.expires_at FROM leases l JOIN items i ON i.id = l.item_id LEFT JOIN second_opinions so ON so.item_id = l.item_id AND so.lease_id = l.id
        WHERE (i.lease_id = l.id OR so.lease_id = l.id) AND l.desk_id = $1 AND l.reviewer_id = $2 AND l.closed_at IS NULL AND l.expires_at > $3 ORDER BY l.created_at`,
       [deskId, reviewer.id, this.db.time(new Date())],

@@ -1,11 +1,20 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
-import { Database, type InsertColumn } from '#database';
-import { createFeaturizer, DEFAULT_HASH_BITS, IdfTable, type Featurizer, type FeaturizerOptions, type IdfTableJson } from '#learning';
+import { Database, type DbInt, type InsertColumn } from '#database';
+import {
+  createFeaturizer,
+  DEFAULT_HASH_BITS,
+  IdfTable,
+  type Featurizer,
+  type FeaturizerOptions,
+  type IdfTableJson,
+} from '#learning';
 import { encodeTermCounts, featurizerKey } from './term-counts.js';
 
 const TERM_COUNT_COLUMNS: InsertColumn[] = [
-  { name: 'item_id', pgType: 'integer' }, { name: 'featurizer', pgType: 'text' }, { name: 'counts', pgType: 'bytea' },
+  { name: 'item_id', pgType: 'integer' },
+  { name: 'featurizer', pgType: 'text' },
+  { name: 'counts', pgType: 'bytea' },
 ];
 
 /**
@@ -23,7 +32,11 @@ export class DeskFeaturesService {
   /** The featuriser with these settings (default settings at `hashBits`), made once per process (each holds a 2^hashBits scratch table). */
   featurizer(options: number | FeaturizerOptions = DEFAULT_HASH_BITS): Featurizer {
     const wanted = typeof options === 'number' ? { hashBits: options } : options;
-    const key = JSON.stringify([wanted.hashBits ?? DEFAULT_HASH_BITS, wanted.maxWordNgram ?? null, wanted.charNgrams === undefined ? 'default' : wanted.charNgrams]);
+    const key = JSON.stringify([
+      wanted.hashBits ?? DEFAULT_HASH_BITS,
+      wanted.maxWordNgram ?? null,
+      wanted.charNgrams === undefined ? 'default' : wanted.charNgrams,
+    ]);
     let f = this.featurizers.get(key);
     if (!f) {
       f = createFeaturizer(wanted);
@@ -39,7 +52,11 @@ export class DeskFeaturesService {
   async addItems(m: EntityManager, deskId: number, items: ReadonlyArray<{ id: number; text: string }>): Promise<void> {
     if (items.length === 0) return;
     const lock = this.db.pg ? ' FOR UPDATE' : '';
-    const [row] = await this.db.query<{ hash_bits: number; df: string }>(m, `SELECT hash_bits, df FROM desk_features WHERE desk_id = $1${lock}`, [deskId]);
+    const row = await this.db.queryOne<{ hash_bits: DbInt; df: string }>(
+      m,
+      `SELECT hash_bits, df FROM desk_features WHERE desk_id = $1${lock}`,
+      [deskId],
+    );
     const table = row ? IdfTable.fromJSON(JSON.parse(row.df) as IdfTableJson) : IdfTable.create(DEFAULT_HASH_BITS);
     const f = this.featurizer(table.hashBits);
     const key = featurizerKey(f.options);
@@ -51,8 +68,18 @@ export class DeskFeaturesService {
     }
     const json = JSON.stringify(table.toJSON());
     const now = this.db.time(new Date());
-    if (row) await this.db.query(m, 'UPDATE desk_features SET document_count = $1, df = $2, updated_at = $3 WHERE desk_id = $4', [table.documentCount, json, now, deskId]);
-    else await this.db.query(m, 'INSERT INTO desk_features (desk_id, hash_bits, document_count, df, updated_at) VALUES ($1, $2, $3, $4, $5)', [deskId, table.hashBits, table.documentCount, json, now]);
+    if (row)
+      await this.db.query(
+        m,
+        'UPDATE desk_features SET document_count = $1, df = $2, updated_at = $3 WHERE desk_id = $4',
+        [table.documentCount, json, now, deskId],
+      );
+    else
+      await this.db.query(
+        m,
+        'INSERT INTO desk_features (desk_id, hash_bits, document_count, df, updated_at) VALUES ($1, $2, $3, $4, $5)',
+        [deskId, table.hashBits, table.documentCount, json, now],
+      );
     await this.storeCounts(m, cached);
   }
 
@@ -63,7 +90,9 @@ export class DeskFeaturesService {
 
   /** The desk's current table; an empty one when nothing was imported. */
   async table(deskId: number): Promise<IdfTable> {
-    const [row] = await this.db.query<{ df: string }>(null, 'SELECT df FROM desk_features WHERE desk_id = $1', [deskId]);
+    const row = await this.db.queryOne<{ df: string }>(null, 'SELECT df FROM desk_features WHERE desk_id = $1', [
+      deskId,
+    ]);
     return row ? IdfTable.fromJSON(JSON.parse(row.df) as IdfTableJson) : IdfTable.create(DEFAULT_HASH_BITS);
   }
 }

@@ -5,7 +5,12 @@ import { IdfWeights } from './idf-weights.js';
 describe('IdfWeights', () => {
   it('gives exactly the numbers of tfidf()', () => {
     const f = createFeaturizer({ hashBits: 14 });
-    const texts = ['the bins were late again', 'late late late: a broken lamp', 'a lovely morning at the market', 'again and again'];
+    const texts = [
+      'the bins were late again',
+      'late late late: a broken lamp',
+      'a lovely morning at the market',
+      'again and again',
+    ];
     const idf = IdfTable.create(14);
     for (const t of texts) idf.addDocument(f.counts(t));
     const w = new IdfWeights(idf);

@@ -23,17 +23,18 @@ export class IdfWeights {
     const values = new Float64Array(indices.length);
     let norm = 0;
     for (let i = 0; i < indices.length; i++) {
-      const tf = counts.values[i]!;
-      const index = indices[i]!;
+      const tf = counts.values[i];
+      const index = indices[i];
       if (!(tf >= 0)) throw new RangeError(`counts.values[${i}] must be a non-negative count, got ${tf}`);
-      if (index < 0 || index >= idf.length) throw new RangeError(`counts.indices[${i}] = ${index} is outside the idf table's 0…${idf.length - 1}`);
-      const w = (tf === 0 ? 0 : 1 + Math.log(tf)) * idf[index]!;
+      if (index < 0 || index >= idf.length)
+        throw new RangeError(`counts.indices[${i}] = ${index} is outside the idf table's 0…${idf.length - 1}`);
+      const w = (tf === 0 ? 0 : 1 + Math.log(tf)) * idf[index];
       values[i] = w;
       norm += w * w;
     }
     if (norm > 0) {
       const inv = 1 / Math.sqrt(norm);
-      for (let i = 0; i < values.length; i++) values[i]! *= inv;
+      for (let i = 0; i < values.length; i++) values[i] *= inv;
     }
     return { indices, values };
   }

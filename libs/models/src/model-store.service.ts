@@ -1,6 +1,16 @@
 import { Inject, Injectable } from '@nestjs/common';
 import { Database, ModelVersionEntity } from '#database';
-import { ConformalCalibration, IdfTable, LogisticModel, type ConformalCalibrationJson, type Featurizer, type FeaturizerOptions, type IdfTableJson, type LogisticModelJson, type SparseVector } from '#learning';
+import {
+  ConformalCalibration,
+  IdfTable,
+  LogisticModel,
+  type ConformalCalibrationJson,
+  type Featurizer,
+  type FeaturizerOptions,
+  type IdfTableJson,
+  type LogisticModelJson,
+  type SparseVector,
+} from '#learning';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { IdfWeights } from './idf-weights.js';
 import { featurizerKey } from './term-counts.js';
@@ -31,7 +41,10 @@ export class ModelStore {
   private readonly cache = new Map<string, LoadedModel>();
   private readonly loading = new Map<string, Promise<LoadedModel | null>>();
 
-  constructor(@Inject(Database) private readonly db: Database, @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
+  ) {}
 
   async load(deskId: number, version: number): Promise<LoadedModel | null> {
     const key = `${deskId}:${version}`;
@@ -56,10 +69,19 @@ export class ModelStore {
     const classifier = LogisticModel.fromJSON(row.model.classifier as LogisticModelJson);
     const idf = IdfTable.fromJSON(row.model.idf as IdfTableJson);
     // Versions written before the featuriser settings were stored used the defaults at the idf's size.
-    const featurizer = this.features.featurizer((row.model.featurizer as FeaturizerOptions | undefined) ?? idf.hashBits);
+    const featurizer = this.features.featurizer(
+      (row.model.featurizer as FeaturizerOptions | undefined) ?? idf.hashBits,
+    );
     const weights = new IdfWeights(idf);
     const loaded: LoadedModel = {
-      deskId, version, state: row.state, categories: [...classifier.categories], classifier, idf, featurizer, featurizerKey: featurizerKey(featurizer.options),
+      deskId,
+      version,
+      state: row.state,
+      categories: [...classifier.categories],
+      classifier,
+      idf,
+      featurizer,
+      featurizerKey: featurizerKey(featurizer.options),
       calibration: ConformalCalibration.fromJSON(row.calibration.scores as ConformalCalibrationJson),
       vectorize: (text) => weights.weigh(featurizer.counts(text)),
       weigh: (counts) => weights.weigh(counts),

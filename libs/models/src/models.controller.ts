@@ -1,7 +1,16 @@
-import { BadRequestException, Controller, Get, Inject, NotFoundException, Param, ParseIntPipe, Query } from '@nestjs/common';
+import {
+  BadRequestException,
+  Controller,
+  Get,
+  Inject,
+  NotFoundException,
+  Param,
+  ParseIntPipe,
+  Query,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { Roles } from '#auth';
-import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS } from '#database';
+import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS, type DbInt } from '#database';
 import { ModelStore } from './model-store.service.js';
 import { PredictionsService } from './predictions.service.js';
 
@@ -29,7 +38,25 @@ export class ModelsController {
   @Get('models')
   async list(@Param('deskId', ParseIntPipe) deskId: number) {
     const desk = await this.desk(deskId);
-    const rows = await this.db.manager.find(ModelVersionEntity, { where: { deskId }, order: { version: 'DESC' }, select: { id: true, deskId: true, version: true, parentVersion: true, state: true, verdictWatermark: true, training: true, calibration: true, metrics: true, timings: true, failure: true, createdAt: true, publishedAt: true } });
+    const rows = await this.db.manager.find(ModelVersionEntity, {
+      where: { deskId },
+      order: { version: 'DESC' },
+      select: {
+        id: true,
+        deskId: true,
+        version: true,
+        parentVersion: true,
+        state: true,
+        verdictWatermark: true,
+        training: true,
+        calibration: true,
+        metrics: true,
+        timings: true,
+        failure: true,
+        createdAt: true,
+        publishedAt: true,
+      },
+    });
     return {
       currentModelVersion: desk.currentModelVersion,
       models: rows.map((r) => this.summary(r)),
@@ -53,8 +80,17 @@ export class ModelsController {
 
   private summary(r: ModelVersionEntity) {
     return {
-      version: r.version, parentVersion: r.parentVersion, state: r.state, createdAt: r.createdAt, publishedAt: r.publishedAt, verdictWatermark: r.verdictWatermark,
-      trainingCounts: r.training.counts, calibrationCounts: r.calibration.counts, metrics: r.metrics, timings: r.timings, failure: r.failure,
+      version: r.version,
+      parentVersion: r.parentVersion,
+      state: r.state,
+      createdAt: r.createdAt,
+      publishedAt: r.publishedAt,
+      verdictWatermark: r.verdictWatermark,
+      trainingCounts: r.training.counts,
+      calibrationCounts: r.calibration.counts,
+      metrics: r.metrics,
+      timings: r.timings,
+      failure: r.failure,
     };
   }
 
@@ -75,13 +111,23 @@ export class ModelsController {
   /** Open items with their current predictions, by item id; filter by call and by a category in the set. */
   @Roles(...READERS)
   @Get('items')
-  async items(@Param('deskId', ParseIntPipe) deskId: number, @Query('call') call?: string, @Query('category') category?: string, @Query('cursor') cursor?: string, @Query('limit') limit?: string) {
-    if (call !== undefined && !(TRIAGE_CALLS as readonly string[]).includes(call)) throw new BadRequestException(`call: expected one of ${TRIAGE_CALLS.join(', ')}`);
-    if (cursor !== undefined && !/^\d+$/.test(cursor)) throw new BadRequestException('cursor: expected the nextCursor of a previous page');
-    if (limit !== undefined && (!/^\d+$/.test(limit) || Number(limit) < 1 || Number(limit) > 500)) throw new BadRequestException('limit: expected a whole number from 1 to 500');
+  async items(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('call') call?: string,
+    @Query('category') category?: string,
+    @Query('cursor') cursor?: string,
+    @Query('limit') limit?: string,
+  ) {
+    if (call !== undefined && !(TRIAGE_CALLS as readonly string[]).includes(call))
+      throw new BadRequestException(`call: expected one of ${TRIAGE_CALLS.join(', ')}`);
+    if (cursor !== undefined && !/^\d+$/.test(cursor))
+      throw new BadRequestException('cursor: expected the nextCursor of a previous page');
+    if (limit !== undefined && (!/^\d+$/.test(limit) || Number(limit) < 1 || Number(limit) > 500))
+      throw new BadRequestException('limit: expected a whole number from 1 to 500');
     const desk = await this.desk(deskId);
     const entry = (await this.directory.get(deskId))!;
-    if (category !== undefined && !entry.categories.some((c) => c.name === category)) throw new BadRequestException(`category: this desk has ${entry.categories.map((c) => c.name).join(', ')}`);
+    if (category !== undefined && !entry.categories.some((c) => c.name === category))
+      throw new BadRequestException(`category: this desk has ${entry.categories.map((c) => c.name).join(', ')}`);
     const model = await this.predictions.current(desk);
     if (!model) return { modelVersion: null, items: [], nextCursor: null };
     const want = Number(limit ?? 50);
@@ -90,25 +136,41 @@ export class ModelsController {
     let after = Number(cursor ?? 0);
     // Sets depend on the current target, so filtering happens here, page by page of stored probabilities.
     outer: for (;;) {
-      const rows = await this.db.query<{ item_id: number; probabilities: string }>(null,
+      const rows = await this.db.query<{ item_id: DbInt; probabilities: string }>(
+        null,
         `SELECT p.item_id, p.probabilities FROM predictions p JOIN items i ON i.id = p.item_id WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT 1000`,
-        [deskId, model.version, after]);
+        [deskId, model.version, after],
+      );
       for (const r of rows) {
         const pred = this.predictions.show(desk, model, JSON.parse(r.probabilities) as number[]);
         after = Number(r.item_id);
         if (call !== undefined && pred.call !== call) continue;
         if (category !== undefined && !pred.set.includes(category)) continue;
         found.push({ itemId: Number(r.item_id), prediction: pred });
-        if (found.length === want) { next = after; break outer; }
+        if (found.length === want) {
+          next = after;
+          break outer;
+        }
       }
       if (rows.length < 1000) break;
     }
-    const texts = found.length ? await this.db.query<{ id: number; text: string; external_id: string | null; source: string | null }>(null,
-      `SELECT id, text, external_id, source FROM items WHERE id IN (${found.map((_, i) => `$${i + 1}`).join(', ')})`, found.map((f) => f.itemId)) : [];
+    const texts = found.length
+      ? await this.db.query<{ id: DbInt; text: string; external_id: string | null; source: string | null }>(
+          null,
+          `SELECT id, text, external_id, source FROM items WHERE id IN (${found.map((_, i) => `$${i + 1}`).join(', ')})`,
+          found.map((f) => f.itemId),
+        )
+      : [];
     const byId = new Map(texts.map((t) => [Number(t.id), t]));
     return {
       modelVersion: model.version,
-      items: found.map((f) => ({ id: f.itemId, text: byId.get(f.itemId)?.text, externalId: byId.get(f.itemId)?.external_id ?? null, source: byId.get(f.itemId)?.source ?? null, prediction: f.prediction })),
+      items: found.map((f) => ({
+        id: f.itemId,
+        text: byId.get(f.itemId)?.text,
+        externalId: byId.get(f.itemId)?.external_id ?? null,
+        source: byId.get(f.itemId)?.source ?? null,
+        prediction: f.prediction,
+      })),
       nextCursor: next === null ? null : String(next),
     };
   }

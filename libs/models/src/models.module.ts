@@ -16,7 +16,11 @@ const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainSche
 export class ModelsCoreModule {}
 
 /** The HTTP side: model versions, coverage, preview, items with predictions. */
-@Module({ imports: [ModelsCoreModule], controllers: [ModelsController, PredictionsExportController], exports: [ModelsCoreModule] })
+@Module({
+  imports: [ModelsCoreModule],
+  controllers: [ModelsController, PredictionsExportController],
+  exports: [ModelsCoreModule],
+})
 export class ModelsModule {}
 
 /** The worker side: training, scoring, publishing. `pause` is the crash tests' hook; it does nothing by default. */
@@ -26,7 +30,12 @@ export class ModelsWorkModule {
     return {
       module: ModelsWorkModule,
       imports: [ModelsCoreModule],
-      providers: [TrainingService, ScoringService, PublishService, { provide: PAUSE_HOOK, useValue: options.pause ?? (async () => undefined) }],
+      providers: [
+        TrainingService,
+        ScoringService,
+        PublishService,
+        { provide: PAUSE_HOOK, useValue: options.pause ?? (() => Promise.resolve()) },
+      ],
       exports: [ModelsCoreModule, TrainingService, ScoringService, PublishService],
     };
   }

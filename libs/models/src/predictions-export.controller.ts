@@ -2,14 +2,14 @@ import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
-import { Database, DeskEntity } from '#database';
+import { Database, DeskEntity, type DbInt } from '#database';
 import { csvLine, streamText } from '#exports';
 import { PredictionsService } from './predictions.service.js';
 
 const PAGE = 2000;
 
 interface Row {
-  item_id: number;
+  item_id: DbInt;
   probabilities: string;
   external_id: string | null;
   source: string | null;
@@ -25,17 +25,41 @@ interface Row {
 export class PredictionsExportController {
   private readonly logger = new Logger('PredictionsExport');
 
-  constructor(@Inject(Database) private readonly db: Database, @Inject(PredictionsService) private readonly predictions: PredictionsService) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(PredictionsService) private readonly predictions: PredictionsService,
+  ) {}
 
   @Roles('supervisor', 'auditor')
   @Get('predictions.csv')
   async csv(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
     const { desk, categories, rows } = await this.rows(deskId);
     async function* lines() {
-      yield csvLine(['item_id', 'external_id', 'source', 'model_version', 'call', 'set', ...categories.map((c) => `p_${c}`), 'text']);
-      for await (const r of rows) yield csvLine([r.itemId, r.externalId, r.source, r.modelVersion, r.call, r.set.join('|'), ...categories.map((c) => r.probabilities[c]), r.text]);
+      yield csvLine([
+        'item_id',
+        'external_id',
+        'source',
+        'model_version',
+        'call',
+        'set',
+        ...categories.map((c) => `p_${c}`),
+        'text',
+      ]);
+      for await (const r of rows)
+        yield csvLine([
+          r.itemId,
+          r.externalId,
+          r.source,
+          r.modelVersion,
+          r.call,
+          r.set.join('|'),
+          ...categories.map((c) => r.probabilities[c]),
+          r.text,
+        ]);
     }
-    await streamText(res, 'text/csv; charset=utf-8; header=present', `desk-${desk.id}-predictions.csv`, lines(), (e) => this.stopped(deskId, e));
+    await streamText(res, 'text/csv; charset=utf-8; header=present', `desk-${desk.id}-predictions.csv`, lines(), (e) =>
+      this.stopped(deskId, e),
+    );
   }
 
   @Roles('supervisor', 'auditor')
@@ -45,7 +69,9 @@ export class PredictionsExportController {
     async function* lines() {
       for await (const r of rows) yield `${JSON.stringify(r)}\n`;
     }
-    await streamText(res, 'application/x-ndjson; charset=utf-8', `desk-${desk.id}-predictions.ndjson`, lines(), (e) => this.stopped(deskId, e));
+    await streamText(res, 'application/x-ndjson; charset=utf-8', `desk-${desk.id}-predictions.ndjson`, lines(), (e) =>
+      this.stopped(deskId, e),
+    );
   }
 
   private stopped(deskId: number, e: Error): void {
@@ -62,16 +88,27 @@ export class PredictionsExportController {
     async function* rows() {
       if (!model) return;
       for (let after = 0; ;) {
-        const page = await db.query<Row>(null,
+        const page = await db.query<Row>(
+          null,
           `SELECT p.item_id, p.probabilities, i.external_id, i.source, i.text FROM predictions p JOIN items i ON i.id = p.item_id
            WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT ${PAGE}`,
-          [deskId, model.version, after]);
+          [deskId, model.version, after],
+        );
         for (const r of page) {
           const shown = predictions.show(desk!, model, JSON.parse(r.probabilities) as number[]);
-          yield { itemId: Number(r.item_id), externalId: r.external_id, source: r.source, modelVersion: model.version, call: shown.call, set: shown.set, probabilities: shown.probabilities, text: r.text };
+          yield {
+            itemId: Number(r.item_id),
+            externalId: r.external_id,
+            source: r.source,
+            modelVersion: model.version,
+            call: shown.call,
+            set: shown.set,
+            probabilities: shown.probabilities,
+            text: r.text,
+          };
         }
         if (page.length < PAGE) return;
-        after = Number(page[page.length - 1]!.item_id);
+        after = Number(page[page.length - 1].item_id);
       }
     }
     return { desk, categories, rows: rows() };

@@ -11,36 +11,59 @@ import { JOBS, JobQueueService, type PublishVersionPayload } from '#queues';
 export class PublishService {
   private readonly logger = new Logger('Publish');
 
-  constructor(@Inject(Database) private readonly db: Database, @Inject(JobQueueService) private readonly jobs: JobQueueService) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+  ) {}
 
   async run(p: PublishVersionPayload): Promise<{ published: boolean; reason?: string }> {
     const started = Date.now();
     const result = await this.db.write(async (m) => {
       const lock = this.db.pg ? ' FOR UPDATE' : '';
-      const [v] = await this.db.query<{ state: string; timings: string }>(m, `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`, [p.deskId, p.version]);
+      const v = await this.db.queryOne<{ state: string; timings: string }>(
+        m,
+        `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`,
+        [p.deskId, p.version],
+      );
       if (!v || v.state !== 'scoring') return { published: false, reason: `version is ${v?.state ?? 'gone'}` };
       // Fresh statistics on the rows the chunks just wrote, so the planner joins them by hash rather than row by row.
       // Only the join columns: statistics of the probabilities text would cost time and guide nothing.
       if (this.db.pg) await this.db.query(m, 'ANALYZE predictions (desk_id, model_version, item_id)');
-      await this.db.query(m,
+      await this.db.query(
+        m,
         `UPDATE items SET priority = predictions.priority, priority_model_version = $1 FROM predictions
-         WHERE predictions.item_id = items.id AND predictions.model_version = $1 AND items.desk_id = $2 AND predictions.desk_id = $2`, [p.version, p.deskId]);
+         WHERE predictions.item_id = items.id AND predictions.model_version = $1 AND items.desk_id = $2 AND predictions.desk_id = $2`,
+        [p.version, p.deskId],
+      );
       await this.db.query(m, `UPDATE desks SET current_model_version = $1 WHERE id = $2`, [p.version, p.deskId]);
-      const timings = JSON.parse(v.timings) as Record<string, number>;
+      const timings = JSON.parse(v.timings) as Partial<Record<string, number>>;
       timings.scoreMs = started - (timings.scoringStartedAt ?? started);
       timings.publishMs = Date.now() - started;
-      await this.db.query(m, `UPDATE model_versions SET state = 'published', published_at = $1, timings = $2 WHERE desk_id = $3 AND version = $4`, [this.db.time(new Date()), JSON.stringify(timings), p.deskId, p.version]);
+      await this.db.query(
+        m,
+        `UPDATE model_versions SET state = 'published', published_at = $1, timings = $2 WHERE desk_id = $3 AND version = $4`,
+        [this.db.time(new Date()), JSON.stringify(timings), p.deskId, p.version],
+      );
       return { published: true };
     });
     // Predictions no one will serve: older versions once this one is current, or this one when it was discarded.
     if (result.published) {
-      await this.db.write((m) => this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version < $2`, [p.deskId, p.version]));
+      await this.db.write((m) =>
+        this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version < $2`, [p.deskId, p.version]),
+      );
     } else {
-      await this.db.write((m) => this.db.query(m, `DELETE FROM predictions WHERE desk_id = $1 AND model_version = $2 AND model_version NOT IN (SELECT current_model_version FROM desks WHERE id = $1 AND current_model_version IS NOT NULL)`, [p.deskId, p.version]));
+      await this.db.write((m) =>
+        this.db.query(
+          m,
+          `DELETE FROM predictions WHERE desk_id = $1 AND model_version = $2 AND model_version NOT IN (SELECT current_model_version FROM desks WHERE id = $1 AND current_model_version IS NOT NULL)`,
+          [p.deskId, p.version],
+        ),
+      );
     }
     if (result.published) this.logger.log(`desk ${p.deskId}: version ${p.version} is current`);
     // The oversight report of the version now current; also on a retry after the switch, in case that enqueue was lost.
-    if (result.published || result.reason === 'version is published') await this.jobs.add(JOBS.writeReport, { deskId: p.deskId, version: p.version });
+    if (result.published || result.reason === 'version is published')
+      await this.jobs.add(JOBS.writeReport, { deskId: p.deskId, version: p.version });
     return result;
   }
 }

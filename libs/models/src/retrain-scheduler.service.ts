@@ -1,5 +1,5 @@
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { Database, DeskDirectory } from '#database';
+import { Database, DeskDirectory, type DbInt } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 
 /** Verdicts of each training category a desk needs before its first model. */
@@ -38,9 +38,11 @@ export class RetrainScheduler {
     p.timer = setTimeout(() => {
       p.timer = null;
       p.last = Date.now();
-      this.check(deskId, reason).catch((e) => this.logger.warn(`retrain check of desk ${deskId} failed: ${(e as Error).message}`));
+      this.check(deskId, reason).catch((e: unknown) =>
+        this.logger.warn(`retrain check of desk ${deskId} failed: ${(e as Error).message}`),
+      );
     }, wait);
-    p.timer.unref?.();
+    p.timer.unref();
   }
 
   /** Stops pending checks (at shutdown). */
@@ -55,22 +57,33 @@ export class RetrainScheduler {
     const entry = await this.directory.get(deskId);
     if (!entry) return null;
     const { desk, categories } = entry;
-    const [w] = await this.db.query<{ base: number | null; live: number | string }>(null,
-      `SELECT MAX(verdict_watermark) AS base, COUNT(*) AS live FROM model_versions WHERE desk_id = $1 AND state IN ('training', 'scoring', 'published')`, [deskId]);
-    const base = Number(w?.base ?? 0);
-    const hasModel = Number(w?.live ?? 0) > 0;
+    // Aggregates answer one row; MAX is null over no rows.
+    const [w] = await this.db.query<{ base: DbInt | null; live: DbInt }>(
+      null,
+      `SELECT MAX(verdict_watermark) AS base, COUNT(*) AS live FROM model_versions WHERE desk_id = $1 AND state IN ('training', 'scoring', 'published')`,
+      [deskId],
+    );
+    const base = Number(w.base ?? 0);
+    const hasModel = Number(w.live) > 0;
     let delay: number | null;
     if (!hasModel) {
-      const rows = await this.db.query<{ category_id: number; n: number | string }>(null,
-        `SELECT category_id, COUNT(DISTINCT item_id) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL AND category_id IS NOT NULL AND draw <> 'random' GROUP BY category_id`, [deskId]);
+      const rows = await this.db.query<{ category_id: DbInt; n: DbInt }>(
+        null,
+        `SELECT category_id, COUNT(DISTINCT item_id) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL AND category_id IS NOT NULL AND draw <> 'random' GROUP BY category_id`,
+        [deskId],
+      );
       const have = new Map(rows.map((r) => [Number(r.category_id), Number(r.n)]));
       delay = categories.every((c) => (have.get(c.id) ?? 0) >= FIRST_MODEL_MIN_PER_CATEGORY) ? 0 : null;
     } else {
-      const [s] = await this.db.query<{ n: number | string; first: unknown }>(null,
-        'SELECT COUNT(*) AS n, MIN(created_at) AS first FROM verdicts WHERE desk_id = $1 AND id > $2', [deskId, base]);
-      const n = Number(s?.n ?? 0);
+      const [s] = await this.db.query<{ n: DbInt; first: unknown }>(
+        null,
+        'SELECT COUNT(*) AS n, MIN(created_at) AS first FROM verdicts WHERE desk_id = $1 AND id > $2',
+        [deskId, base],
+      );
+      const n = Number(s.n);
       if (n >= desk.retrainEvery) delay = 0;
-      else if (n > 0) delay = Math.max(0, this.db.parseTime(s!.first)!.getTime() + desk.retrainAfterSeconds * 1000 - Date.now());
+      else if (n > 0)
+        delay = Math.max(0, this.db.parseTime(s.first)!.getTime() + desk.retrainAfterSeconds * 1000 - Date.now());
       else if (reason === 'undo' || reason === 'import' || reason === 'settle') delay = desk.retrainAfterSeconds * 1000;
       else delay = null;
     }

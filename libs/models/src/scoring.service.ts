@@ -1,5 +1,5 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database, DeskEntity, type InsertColumn } from '#database';
+import { Database, DeskEntity, type DbInt, type InsertColumn } from '#database';
 import { predictionSet, uncertainty, type SparseVector } from '#learning';
 import type { ScoreChunkPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
@@ -9,12 +9,16 @@ import { decodeTermCounts, encodeTermCounts } from './term-counts.js';
 import { PAUSE_HOOK, type PauseHook } from './training.service.js';
 
 const PREDICTION_COLUMNS: InsertColumn[] = [
-  { name: 'item_id', pgType: 'integer' }, { name: 'model_version', pgType: 'integer' }, { name: 'desk_id', pgType: 'integer' },
-  { name: 'probabilities', pgType: 'text' }, { name: 'uncertainty', pgType: 'double precision' }, { name: 'priority', pgType: 'double precision' },
+  { name: 'item_id', pgType: 'integer' },
+  { name: 'model_version', pgType: 'integer' },
+  { name: 'desk_id', pgType: 'integer' },
+  { name: 'probabilities', pgType: 'text' },
+  { name: 'uncertainty', pgType: 'double precision' },
+  { name: 'priority', pgType: 'double precision' },
 ];
 
 interface ChunkRow {
-  id: number;
+  id: DbInt;
   featurizer: string | null;
   counts: Uint8Array | null;
   /** Only when the cached counts are missing or were made with other featuriser settings. */
@@ -39,15 +43,22 @@ export class ScoringService {
   ) {}
 
   async run(p: ScoreChunkPayload): Promise<{ scored: number; tokenised?: number; skipped?: string }> {
-    const [state] = await this.db.query<{ state: string }>(null, 'SELECT state FROM model_versions WHERE desk_id = $1 AND version = $2', [p.deskId, p.version]);
+    const state = await this.db.queryOne<{ state: string }>(
+      null,
+      'SELECT state FROM model_versions WHERE desk_id = $1 AND version = $2',
+      [p.deskId, p.version],
+    );
     if (state?.state !== 'scoring') return { scored: 0, skipped: `version is ${state?.state ?? 'gone'}` };
     const model = await this.store.load(p.deskId, p.version);
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: p.deskId });
     if (!model || !desk) return { scored: 0, skipped: 'version or desk gone' };
-    const items = await this.db.query<ChunkRow>(null,
+    const items = await this.db.query<ChunkRow>(
+      null,
       `SELECT i.id, t.featurizer, t.counts, CASE WHEN t.featurizer IS NULL OR t.featurizer <> $4 THEN i.text END AS text
        FROM items i LEFT JOIN item_term_counts t ON t.item_id = i.id
-       WHERE i.desk_id = $1 AND i.id >= $2 AND i.id < $3 AND i.state <> 'decided' ORDER BY i.id`, [p.deskId, p.fromId, p.toId, model.featurizerKey]);
+       WHERE i.desk_id = $1 AND i.id >= $2 AND i.id < $3 AND i.state <> 'decided' ORDER BY i.id`,
+      [p.deskId, p.fromId, p.toId, model.featurizerKey],
+    );
     await this.pause('scoring');
     const alpha = 1 - desk.coverageTarget;
     const strategy = desk.strategy === 'set-size' ? 'entropy' : desk.strategy;
@@ -64,8 +75,19 @@ export class ScoringService {
         if (it.featurizer === null) backfill.push([id, model.featurizerKey, encodeTermCounts(counts)]);
       }
       const probs = model.classifier.predictProba(model.weigh(counts));
-      const setSize = desk.strategy === 'set-size' ? predictionSet(probs, model.calibration, { alpha, score: desk.score, mode: desk.calibration }).categories.length : 0;
-      rows.push([id, p.version, p.deskId, JSON.stringify(Array.from(probs)), uncertainty(probs, strategy), priorityOf(probs, desk.strategy, setSize)]);
+      const setSize =
+        desk.strategy === 'set-size'
+          ? predictionSet(probs, model.calibration, { alpha, score: desk.score, mode: desk.calibration }).categories
+              .length
+          : 0;
+      rows.push([
+        id,
+        p.version,
+        p.deskId,
+        JSON.stringify(Array.from(probs)),
+        uncertainty(probs, strategy),
+        priorityOf(probs, desk.strategy, setSize),
+      ]);
     }
     // Retried chunks skip rows already written.
     await this.db.write(async (m) => {

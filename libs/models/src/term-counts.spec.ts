@@ -5,7 +5,12 @@ import { decodeTermCounts, encodeTermCounts, featurizerKey } from './term-counts
 describe('term counts', () => {
   it('round-trips the hashed counts of texts exactly', () => {
     const f = createFeaturizer({ hashBits: 18 });
-    for (const text of ['Mossbank Commons: the bins were late again, late again!', 'Привет мир 東京に行く', 'ok', '— …']) {
+    for (const text of [
+      'Mossbank Commons: the bins were late again, late again!',
+      'Привет мир 東京に行く',
+      'ok',
+      '— …',
+    ]) {
       const c = f.counts(text);
       const back = decodeTermCounts(encodeTermCounts(c));
       expect(Array.from(back.indices)).toEqual(Array.from(c.indices));
@@ -25,13 +30,23 @@ describe('term counts', () => {
     expect(bigBytes.length).toBe(1 + 1 + 4 + 4);
     expect(Array.from(decodeTermCounts(bigBytes).indices)).toEqual([2 ** 28 - 1]);
     expect(Array.from(decodeTermCounts(bigBytes).values)).toEqual([2 ** 28 - 1]);
-    expect(Array.from(decodeTermCounts(encodeTermCounts({ indices: new Int32Array(0), values: new Float64Array(0) })).indices)).toEqual([]);
+    expect(
+      Array.from(
+        decodeTermCounts(encodeTermCounts({ indices: new Int32Array(0), values: new Float64Array(0) })).indices,
+      ),
+    ).toEqual([]);
   });
 
   it('refuses counts it cannot store and bytes it did not write', () => {
-    expect(() => encodeTermCounts({ indices: Int32Array.from([3, 3]), values: Float64Array.from([1, 1]) })).toThrow(/ascending/);
-    expect(() => encodeTermCounts({ indices: Int32Array.from([3]), values: Float64Array.from([0.5]) })).toThrow(/whole count/);
-    expect(() => encodeTermCounts({ indices: Int32Array.from([3]), values: Float64Array.from([2 ** 28]) })).toThrow(/whole count/);
+    expect(() => encodeTermCounts({ indices: Int32Array.from([3, 3]), values: Float64Array.from([1, 1]) })).toThrow(
+      /ascending/,
+    );
+    expect(() => encodeTermCounts({ indices: Int32Array.from([3]), values: Float64Array.from([0.5]) })).toThrow(
+      /whole count/,
+    );
+    expect(() => encodeTermCounts({ indices: Int32Array.from([3]), values: Float64Array.from([2 ** 28]) })).toThrow(
+      /whole count/,
+    );
     expect(() => decodeTermCounts(Uint8Array.from([2, 0]))).toThrow(/format/);
     expect(() => decodeTermCounts(Uint8Array.from([1, 2, 5]))).toThrow(/truncated/);
     expect(() => decodeTermCounts(Uint8Array.from([1, 1, 0x85]))).toThrow(/truncated/);
@@ -42,6 +57,8 @@ describe('term counts', () => {
 
   it('names the featuriser settings', () => {
     expect(featurizerKey(createFeaturizer({ hashBits: 18 }).options)).toBe('h18w2c3-5');
-    expect(featurizerKey(createFeaturizer({ hashBits: 12, maxWordNgram: 1, charNgrams: null }).options)).toBe('h12w1c0');
+    expect(featurizerKey(createFeaturizer({ hashBits: 12, maxWordNgram: 1, charNgrams: null }).options)).toBe(
+      'h12w1c0',
+    );
   });
 });

@@ -40,10 +40,12 @@ export function encodeTermCounts(counts: SparseVector): Buffer {
   put(n);
   let prev = -1;
   for (let i = 0; i < n; i++) {
-    const index = indices[i]!;
-    const count = values[i]!;
-    if (!(index > prev) || !Number.isInteger(index) || index >= MAX_VALUE) throw new RangeError(`counts.indices[${i}] = ${index}: expected whole numbers below 2^28, strictly ascending`);
-    if (!Number.isInteger(count) || count < 1 || count >= MAX_VALUE) throw new RangeError(`counts.values[${i}] = ${count}: expected a whole count from 1 to 2^28 − 1`);
+    const index = indices[i];
+    const count = values[i];
+    if (!(index > prev) || !Number.isInteger(index) || index >= MAX_VALUE)
+      throw new RangeError(`counts.indices[${i}] = ${index}: expected whole numbers below 2^28, strictly ascending`);
+    if (!Number.isInteger(count) || count < 1 || count >= MAX_VALUE)
+      throw new RangeError(`counts.values[${i}] = ${count}: expected a whole count from 1 to 2^28 − 1`);
     put(index - prev - 1);
     put(count);
     prev = index;
@@ -57,7 +59,7 @@ let cursor = 0;
 /** The unsigned LEB128 varint at {@link cursor} (below 2^28, so shifts stay exact); moves the cursor past it. */
 function varint(bytes: Uint8Array, end: number): number {
   if (cursor >= end) throw new RangeError('term counts: truncated');
-  let b = bytes[cursor++]!;
+  let b = bytes[cursor++];
   let x = b & 0x7f;
   for (let shift = 7; b >= 0x80; shift += 7) {
     if (cursor >= end) throw new RangeError('term counts: truncated');
@@ -70,7 +72,8 @@ function varint(bytes: Uint8Array, end: number): number {
 /** Decodes a row written by {@link encodeTermCounts}. */
 export function decodeTermCounts(bytes: Uint8Array): SparseVector {
   const end = bytes.length;
-  if (end < 2 || bytes[0] !== FORMAT_VERSION) throw new RangeError(`term counts: unknown format ${bytes[0]} (length ${end})`);
+  if (end < 2 || bytes[0] !== FORMAT_VERSION)
+    throw new RangeError(`term counts: unknown format ${bytes[0]} (length ${end})`);
   cursor = 1;
   const n = varint(bytes, end);
   if (n > (end - cursor) / 2) throw new RangeError('term counts: truncated');

@@ -38,7 +38,12 @@ function trainingThread(): Worker {
 }
 
 /** Trains in the process's training thread; the vectors' buffers are moved, not copied. */
-export async function trainInThread(vectors: SparseVector[], labels: string[], categories: string[], hashBits: number): Promise<LogisticModelJson> {
+export async function trainInThread(
+  vectors: SparseVector[],
+  labels: string[],
+  categories: string[],
+  hashBits: number,
+): Promise<LogisticModelJson> {
   const req: TrainRequest = {
     indices: vectors.map((v) => Int32Array.from(v.indices)),
     values: vectors.map((v) => Float64Array.from(v.values)),
@@ -54,13 +59,25 @@ export async function trainInThread(vectors: SparseVector[], labels: string[], c
         worker.off('error', onError);
         worker.off('exit', onExit);
       };
-      const onMessage = (r: TrainReply) => { done(); resolve(r); };
-      const onError = (e: Error) => { done(); reject(e); };
-      const onExit = (code: number) => { done(); reject(new Error(`training thread exited with code ${code}`)); };
+      const onMessage = (r: TrainReply) => {
+        done();
+        resolve(r);
+      };
+      const onError = (e: Error) => {
+        done();
+        reject(e);
+      };
+      const onExit = (code: number) => {
+        done();
+        reject(new Error(`training thread exited with code ${code}`));
+      };
       worker.on('message', onMessage);
       worker.on('error', onError);
       worker.on('exit', onExit);
-      worker.postMessage(req, [...req.indices.map((a) => a.buffer as ArrayBuffer), ...req.values.map((a) => a.buffer as ArrayBuffer)]);
+      worker.postMessage(req, [
+        ...req.indices.map((a) => a.buffer as ArrayBuffer),
+        ...req.values.map((a) => a.buffer as ArrayBuffer),
+      ]);
     });
   });
   if (!reply.ok) throw new Error(reply.error);

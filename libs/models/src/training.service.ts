@@ -1,8 +1,25 @@
 import { Inject, Injectable, Logger } from '@nestjs/common';
 import { UnrecoverableError } from 'bullmq';
-import { CategoryEntity, Database, DeskEntity, ModelVersionEntity, type VerdictSetSummary } from '#database';
 import {
-  accuracy, brierScore, ConformalCalibration, expectedCalibrationError, IdfTable, LogisticModel, logLoss, macroF1, reliabilityBins, tfidf, topLabelConfidence,
+  CategoryEntity,
+  Database,
+  DeskEntity,
+  ModelVersionEntity,
+  type DbInt,
+  type VerdictSetSummary,
+} from '#database';
+import {
+  accuracy,
+  brierScore,
+  ConformalCalibration,
+  expectedCalibrationError,
+  IdfTable,
+  LogisticModel,
+  logLoss,
+  macroF1,
+  reliabilityBins,
+  tfidf,
+  topLabelConfidence,
 } from '#learning';
 import { JOBS, JobQueueService, type RetrainDeskPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
@@ -13,7 +30,7 @@ import { trainInThread } from './training-protocol.js';
 export const DEFAULT_CHUNK_SIZE = 5000;
 
 interface LabelledRow {
-  item_id: number;
+  item_id: DbInt;
   draw: string;
   category: string | null;
   text: string;
@@ -40,36 +57,62 @@ export class TrainingService {
     @Inject(PAUSE_HOOK) private readonly pause: PauseHook,
   ) {}
 
-  async run(payload: RetrainDeskPayload, chunkSize = DEFAULT_CHUNK_SIZE): Promise<{ version: number | null; reason?: string }> {
+  async run(
+    payload: RetrainDeskPayload,
+    chunkSize = DEFAULT_CHUNK_SIZE,
+  ): Promise<{ version: number | null; reason?: string }> {
     const { deskId, base } = payload;
     const jobKey = `retrain-${deskId}-${base}`;
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
     if (!desk) throw new UnrecoverableError(`no desk ${deskId}`);
-    const categories = (await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } })).map((c) => c.name);
-    let row = await this.db.manager.findOneBy(ModelVersionEntity, { jobKey });
-    if (row && (row.state === 'published' || row.state === 'superseded')) return { version: row.version, reason: `already ${row.state}` };
+    const categories = (
+      await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } })
+    ).map((c) => c.name);
+    const row = await this.db.manager.findOneBy(ModelVersionEntity, { jobKey });
+    if (row && (row.state === 'published' || row.state === 'superseded'))
+      return { version: row.version, reason: `already ${row.state}` };
     if (row && row.state === 'scoring') {
       // A retry after the flow was (maybe) created: adding it again is a no-op.
       await this.startScoring(deskId, row.version, chunkSize);
       return { version: row.version };
     }
     const t0 = performance.now();
-    const [wm] = await this.db.query<{ w: number | null }>(null, 'SELECT MAX(id) AS w FROM verdicts WHERE desk_id = $1', [deskId]);
-    const watermark = Number(wm?.w ?? 0);
-    const labelled = await this.db.query<LabelledRow>(null,
+    // MAX answers one row, null over no rows.
+    const [wm] = await this.db.query<{ w: DbInt | null }>(
+      null,
+      'SELECT MAX(id) AS w FROM verdicts WHERE desk_id = $1',
+      [deskId],
+    );
+    const watermark = Number(wm.w ?? 0);
+    const labelled = await this.db.query<LabelledRow>(
+      null,
       `SELECT v.item_id, v.draw, c.name AS category, i.text FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
-       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.id <= $2 ORDER BY v.id`, [deskId, watermark]);
-    const settled = await this.db.query<{ item_id: number; category: string }>(null,
+       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.id <= $2 ORDER BY v.id`,
+      [deskId, watermark],
+    );
+    const settled = await this.db.query<{ item_id: DbInt; category: string }>(
+      null,
       `SELECT s.item_id, c.name AS category FROM settlements s JOIN categories c ON c.id = s.category_id
-       WHERE s.desk_id = $1 AND s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = s.item_id)`, [deskId]);
+       WHERE s.desk_id = $1 AND s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = s.item_id)`,
+      [deskId],
+    );
     // One label per item: the supervisor's latest settlement when the item was settled, else the latest verdict of its
     // original draw, never a second opinion. A second opinion is served because the item was decided already, so taking
     // its label instead would replace the labels of the items reviewers disagree on (the hard cases) by later ones: the
     // labels of random draws would no longer be those of a uniform draw, and the calibration would be biased.
     // An item ever drawn uniformly at random calibrates and never trains; settling does not change its draw.
-    const byItem = new Map<number, { label: string | null; random: boolean; settled: boolean; text: string; draws: Set<string> }>();
+    const byItem = new Map<
+      number,
+      { label: string | null; random: boolean; settled: boolean; text: string; draws: Set<string> }
+    >();
     for (const r of labelled) {
-      const e = byItem.get(Number(r.item_id)) ?? { label: null, random: false, settled: false, text: r.text, draws: new Set<string>() };
+      const e = byItem.get(Number(r.item_id)) ?? {
+        label: null,
+        random: false,
+        settled: false,
+        text: r.text,
+        draws: new Set<string>(),
+      };
       byItem.set(Number(r.item_id), e);
       if (r.draw === 'second-opinion') continue;
       if (r.category !== null) e.label = r.category;
@@ -80,25 +123,47 @@ export class TrainingService {
       const e = byItem.get(Number(r.item_id));
       if (e) Object.assign(e, { label: r.category, settled: true });
     }
-    const labelledItems = [...byItem.entries()].filter((x): x is [number, typeof x[1] & { label: string }] => x[1].label !== null);
+    const labelledItems = [...byItem.entries()].filter(
+      (x): x is [number, (typeof x)[1] & { label: string }] => x[1].label !== null,
+    );
     const train = labelledItems.filter(([, e]) => !e.random).sort((a, b) => a[0] - b[0]);
     const calib = labelledItems.filter(([, e]) => e.random).sort((a, b) => a[0] - b[0]);
     const hasModel = desk.currentModelVersion !== null;
-    const perCategory = (rows: typeof train) => Object.fromEntries(categories.map((c) => [c, rows.filter(([, e]) => e.label === c).length]));
-    if (!hasModel && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY)) return { version: null, reason: 'not enough training verdicts for a first model' };
-    if (new Set(train.map(([, e]) => e.label)).size < 2) return { version: null, reason: 'training verdicts cover fewer than two categories' };
+    const perCategory = (rows: typeof train) =>
+      Object.fromEntries(categories.map((c) => [c, rows.filter(([, e]) => e.label === c).length]));
+    if (!hasModel && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY))
+      return { version: null, reason: 'not enough training verdicts for a first model' };
+    if (new Set(train.map(([, e]) => e.label)).size < 2)
+      return { version: null, reason: 'training verdicts cover fewer than two categories' };
 
     const version = row?.version ?? (await this.nextVersion(deskId));
     const summary = (rows: typeof train): VerdictSetSummary => {
       const draws: Record<string, number> = {};
       for (const [, e] of rows) for (const d of e.draws) draws[d] = (draws[d] ?? 0) + 1;
-      return { counts: perCategory(rows), draws, itemIds: rows.map(([id]) => id), settledItemIds: rows.filter(([, e]) => e.settled).map(([id]) => id) };
+      return {
+        counts: perCategory(rows),
+        draws,
+        itemIds: rows.map(([id]) => id),
+        settledItemIds: rows.filter(([, e]) => e.settled).map(([id]) => id),
+      };
     };
     if (!row) {
       await this.db.write(async (m) => {
         await m.insert(ModelVersionEntity, {
-          deskId, version, parentVersion: desk.currentModelVersion, state: 'training', jobKey, verdictWatermark: watermark, training: summary(train),
-          calibration: { ...summary(calib), scores: null }, model: null, metrics: null, timings: {}, failure: null, createdAt: new Date(), publishedAt: null,
+          deskId,
+          version,
+          parentVersion: desk.currentModelVersion,
+          state: 'training',
+          jobKey,
+          verdictWatermark: watermark,
+          training: summary(train),
+          calibration: { ...summary(calib), scores: null },
+          model: null,
+          metrics: null,
+          timings: {},
+          failure: null,
+          createdAt: new Date(),
+          publishedAt: null,
         } as never);
       });
     }
@@ -111,7 +176,12 @@ export class TrainingService {
     const trainVectors = train.map(([, e]) => vectorize(e.text));
     const calibVectors = calib.map(([, e]) => vectorize(e.text));
     const tTrain = performance.now();
-    const classifierJson = await trainInThread(trainVectors, train.map(([, e]) => e.label), categories, idf.hashBits);
+    const classifierJson = await trainInThread(
+      trainVectors,
+      train.map(([, e]) => e.label),
+      categories,
+      idf.hashBits,
+    );
     const classifier = LogisticModel.fromJSON(classifierJson);
     const tCal = performance.now();
     const probs = calibVectors.map((v) => classifier.predictProba(v));
@@ -119,35 +189,66 @@ export class TrainingService {
     const calibration = ConformalCalibration.fromScores(categories, probs, labels);
     const metrics = probs.length > 0 ? qualityFigures(probs, labels, categories.length) : null;
     const tDone = performance.now();
-    const timings = { loadMs: tFeat - t0, featurizeMs: tTrain - tFeat, trainMs: tCal - tTrain, calibrateMs: tDone - tCal, scoringStartedAt: Date.now() };
+    const timings = {
+      loadMs: tFeat - t0,
+      featurizeMs: tTrain - tFeat,
+      trainMs: tCal - tTrain,
+      calibrateMs: tDone - tCal,
+      scoringStartedAt: Date.now(),
+    };
     await this.db.write(async (m) => {
-      await m.update(ModelVersionEntity, { jobKey }, {
-        state: 'scoring', calibration: { ...summary(calib), scores: calibration.toJSON() } as never, model: { classifier: classifierJson, idf: idf.toJSON(), featurizer: featurizer.options } as never,
-        metrics: metrics as never, timings: timings as never,
-      });
+      await m.update(
+        ModelVersionEntity,
+        { jobKey },
+        {
+          state: 'scoring',
+          calibration: { ...summary(calib), scores: calibration.toJSON() },
+          model: { classifier: classifierJson, idf: idf.toJSON(), featurizer: featurizer.options },
+          metrics: metrics,
+          timings: timings,
+        },
+      );
       // A newer version supersedes older ones still on their way: they stop and are discarded.
-      await this.db.query(m, `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version < $2 AND state IN ('training', 'scoring')`, [deskId, version]);
+      await this.db.query(
+        m,
+        `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version < $2 AND state IN ('training', 'scoring')`,
+        [deskId, version],
+      );
     });
     await this.startScoring(deskId, version, chunkSize);
-    this.logger.log(`desk ${deskId} v${version}: trained on ${train.length}, calibrated on ${calib.length} in ${Math.round(tDone - t0)} ms`);
+    this.logger.log(
+      `desk ${deskId} v${version}: trained on ${train.length}, calibrated on ${calib.length} in ${Math.round(tDone - t0)} ms`,
+    );
     return { version };
   }
 
   private async nextVersion(deskId: number): Promise<number> {
-    const [r] = await this.db.query<{ v: number | null }>(null, 'SELECT MAX(version) AS v FROM model_versions WHERE desk_id = $1', [deskId]);
-    return Number(r?.v ?? 0) + 1;
+    // MAX answers one row, null over no rows.
+    const [r] = await this.db.query<{ v: DbInt | null }>(
+      null,
+      'SELECT MAX(version) AS v FROM model_versions WHERE desk_id = $1',
+      [deskId],
+    );
+    return Number(r.v ?? 0) + 1;
   }
 
   /** The scoring flow: one child job per chunk of open items, and the publish job as their parent. */
   private async startScoring(deskId: number, version: number, chunkSize: number): Promise<void> {
-    const ids = await this.db.query<{ id: number }>(null, `SELECT id FROM items WHERE desk_id = $1 AND state <> 'decided' ORDER BY id`, [deskId]);
+    const ids = await this.db.query<{ id: DbInt }>(
+      null,
+      `SELECT id FROM items WHERE desk_id = $1 AND state <> 'decided' ORDER BY id`,
+      [deskId],
+    );
     const chunks: Array<{ fromId: number; toId: number }> = [];
     for (let i = 0; i < ids.length; i += chunkSize) {
-      const fromId = Number(ids[i]!.id);
-      const toId = i + chunkSize < ids.length ? Number(ids[i + chunkSize]!.id) : Number(ids[ids.length - 1]!.id) + 1;
+      const fromId = Number(ids[i].id);
+      const toId = i + chunkSize < ids.length ? Number(ids[i + chunkSize].id) : Number(ids[ids.length - 1].id) + 1;
       chunks.push({ fromId, toId });
     }
-    await this.jobs.flow({ name: JOBS.publishVersion, payload: { deskId, version } }, chunks.map((c) => ({ name: JOBS.scoreChunk, payload: { deskId, version, ...c } })));
+    await this.jobs.flow(
+      { name: JOBS.publishVersion, payload: { deskId, version } },
+      chunks.map((c) => ({ name: JOBS.scoreChunk, payload: { deskId, version, ...c } })),
+    );
   }
 }
 

@@ -6,7 +6,7 @@ import type { TrainRequest, TrainReply } from './training-protocol.js';
 parentPort?.on('message', (req: TrainRequest) => {
   let reply: TrainReply;
   try {
-    const vectors = req.indices.map((indices, i) => ({ indices, values: req.values[i]! }));
+    const vectors = req.indices.map((indices, i) => ({ indices, values: req.values[i] }));
     const model = trainLogisticModel(vectors, req.labels, { categories: req.categories, hashBits: req.hashBits });
     reply = { ok: true, model: model.toJSON() };
   } catch (e) {

@@ -1,4 +1,19 @@
-export { QUEUES, JOBS, JOB_QUEUE, type QueueName, type JobName, type JobPayloads, type ImportFilePayload, type ReseedDeskPayload, type RetrainDeskPayload, type ScoreChunkPayload, type PublishVersionPayload, type SweepDesksPayload, type SimulateReviewerPayload, type WriteReportPayload } from './queue-names.js';
+export {
+  QUEUES,
+  JOBS,
+  JOB_QUEUE,
+  type QueueName,
+  type JobName,
+  type JobPayloads,
+  type ImportFilePayload,
+  type ReseedDeskPayload,
+  type RetrainDeskPayload,
+  type ScoreChunkPayload,
+  type PublishVersionPayload,
+  type SweepDesksPayload,
+  type SimulateReviewerPayload,
+  type WriteReportPayload,
+} from './queue-names.js';
 export { jobOptions } from './job-options.js';
 export { createRedis } from './redis.js';
 export { JobQueueService, REDIS } from './job-queue.service.js';

@@ -19,7 +19,8 @@ export function handlerTable(handlers: readonly JobHandler[]): Map<JobName, JobH
     table.set(h.jobName, h);
   }
   for (const name of Object.values(JOBS)) if (!table.has(name)) problems.push(`job ${name} has no handler`);
-  for (const name of table.keys()) if (!(Object.values(JOBS) as string[]).includes(name)) problems.push(`handler for unknown job ${name}`);
+  for (const name of table.keys())
+    if (!(Object.values(JOBS) as string[]).includes(name)) problems.push(`handler for unknown job ${name}`);
   if (problems.length) throw new Error(`Worker set-up is wrong: ${problems.join('; ')}`);
   return table;
 }

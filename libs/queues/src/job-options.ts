@@ -13,36 +13,74 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
   switch (name) {
     case JOBS.importFile:
       // One job per import; a retried job resumes after the last committed batch.
-      return { ...keep, jobId: `import-${(payload as JobPayloads['import-file']).importId}`, attempts: 5, backoff: { type: 'exponential', delay: 2000 } };
+      return {
+        ...keep,
+        jobId: `import-${(payload as JobPayloads['import-file']).importId}`,
+        attempts: 5,
+        backoff: { type: 'exponential', delay: 2000 },
+      };
     case JOBS.reseedDesk:
       // A job id with a time bucket: a burst of edits gives one recount, a later edit a new one.
-      return { ...keep, jobId: `reseed-${(payload as JobPayloads['reseed-desk']).deskId}-${Date.now()}`, attempts: 3, backoff: { type: 'exponential', delay: 1000 } };
+      return {
+        ...keep,
+        jobId: `reseed-${(payload as JobPayloads['reseed-desk']).deskId}-${Date.now()}`,
+        attempts: 3,
+        backoff: { type: 'exponential', delay: 1000 },
+      };
     case JOBS.retrainDesk: {
       // One id per desk and watermark: every verdict until a new version starts maps to the same job.
       const p = payload as JobPayloads['retrain-desk'];
-      return { ...vanish, jobId: `retrain-${p.deskId}-${p.base}`, attempts: 5, backoff: { type: 'exponential', delay: 1000 } };
+      return {
+        ...vanish,
+        jobId: `retrain-${p.deskId}-${p.base}`,
+        attempts: 5,
+        backoff: { type: 'exponential', delay: 1000 },
+      };
     }
     case JOBS.scoreChunk: {
       const p = payload as JobPayloads['score-chunk'];
       // Kept for an hour after completion: which worker scored which chunk is worth seeing. A chunk that failed for good
       // is removed at once: the retried retrain adds the same chunk ids again, and a kept failed job would block them.
-      return { removeOnComplete: { age: 3600 }, removeOnFail: true, jobId: `score-${p.deskId}-v${p.version}-${p.fromId}`, attempts: 5, backoff: { type: 'exponential', delay: 500 }, failParentOnFailure: true };
+      return {
+        removeOnComplete: { age: 3600 },
+        removeOnFail: true,
+        jobId: `score-${p.deskId}-v${p.version}-${p.fromId}`,
+        attempts: 5,
+        backoff: { type: 'exponential', delay: 500 },
+        failParentOnFailure: true,
+      };
     }
     case JOBS.publishVersion: {
       const p = payload as JobPayloads['publish-version'];
-      return { ...vanish, jobId: `publish-${p.deskId}-v${p.version}`, attempts: 5, backoff: { type: 'exponential', delay: 500 } };
+      return {
+        ...vanish,
+        jobId: `publish-${p.deskId}-v${p.version}`,
+        attempts: 5,
+        backoff: { type: 'exponential', delay: 500 },
+      };
     }
     case JOBS.writeReport: {
       // One id per desk and version: a second request while one is queued or running is the same job; once done the id is free, so a report can be written again.
       const p = payload as JobPayloads['write-report'];
-      return { ...vanish, jobId: `report-${p.deskId}-v${p.version}`, attempts: 3, backoff: { type: 'exponential', delay: 2000 } };
+      return {
+        ...vanish,
+        jobId: `report-${p.deskId}-v${p.version}`,
+        attempts: 3,
+        backoff: { type: 'exponential', delay: 2000 },
+      };
     }
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
     case JOBS.simulateReviewer:
       // One run per desk at a time; kept a day so its final count stays readable. A retry (after a worker
       // crash or shutdown) goes on until the same end time.
-      return { ...keep, removeOnComplete: { age: 24 * 3600 }, jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`, attempts: 3, backoff: { type: 'fixed', delay: 1000 } };
+      return {
+        ...keep,
+        removeOnComplete: { age: 24 * 3600 },
+        jobId: `simulate-${(payload as JobPayloads['simulate-reviewer']).deskId}`,
+        attempts: 3,
+        backoff: { type: 'fixed', delay: 1000 },
+      };
     default:
       throw new TypeError(`no job options for job name ${JSON.stringify(name)}`);
   }

@@ -14,8 +14,12 @@ export class JobQueueService implements OnApplicationShutdown {
   private readonly queues = new Map<QueueName, Queue>();
   private readonly flows: FlowProducer;
 
-  constructor(@Inject(REDIS) private readonly redis: Redis, @Inject(APP_CONFIG) config: AppConfig) {
-    for (const name of Object.values(QUEUES)) this.queues.set(name, new Queue(name, { connection: redis, prefix: config.queuePrefix }));
+  constructor(
+    @Inject(REDIS) private readonly redis: Redis,
+    @Inject(APP_CONFIG) config: AppConfig,
+  ) {
+    for (const name of Object.values(QUEUES))
+      this.queues.set(name, new Queue(name, { connection: redis, prefix: config.queuePrefix }));
     this.flows = new FlowProducer({ connection: redis, prefix: config.queuePrefix });
   }
 
@@ -40,20 +44,30 @@ export class JobQueueService implements OnApplicationShutdown {
    * A parent job that runs once all its children are done (a BullMQ flow);
    * the ids come from {@link jobOptions}, so adding the same flow again is a no-op.
    */
-  async flow<P extends JobName, C extends JobName>(parent: { name: P; payload: JobPayloads[P] }, children: Array<{ name: C; payload: JobPayloads[C] }>): Promise<void> {
+  async flow<P extends JobName, C extends JobName>(
+    parent: { name: P; payload: JobPayloads[P] },
+    children: Array<{ name: C; payload: JobPayloads[C] }>,
+  ): Promise<void> {
     await this.flows.add({
       name: parent.name,
       queueName: JOB_QUEUE[parent.name],
       data: parent.payload,
       opts: jobOptions(parent.name, parent.payload),
-      children: children.map((c) => ({ name: c.name, queueName: JOB_QUEUE[c.name], data: c.payload, opts: jobOptions(c.name, c.payload) })),
+      children: children.map((c) => ({
+        name: c.name,
+        queueName: JOB_QUEUE[c.name],
+        data: c.payload,
+        opts: jobOptions(c.name, c.payload),
+      })),
     });
   }
 
   /** True when Redis answers. */
   async ping(): Promise<boolean> {
     try {
-      return (await this.redis.ping()) === 'PONG';
+      // PING answers PONG or an error, which rejects.
+      await this.redis.ping();
+      return true;
     } catch {
       return false;
     }

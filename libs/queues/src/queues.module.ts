@@ -11,7 +11,10 @@ import { createRedis } from './redis.js';
       provide: REDIS,
       inject: [APP_CONFIG],
       useFactory: (config: AppConfig) => {
-        if (!config.redisUrl) throw new Error('REDIS_URL is not set: start Cribra with `npm start`, which runs a private redis-server, or set REDIS_URL');
+        if (!config.redisUrl)
+          throw new Error(
+            'REDIS_URL is not set: start Cribra with `npm start`, which runs a private redis-server, or set REDIS_URL',
+          );
         return createRedis(config.redisUrl, `cribra-${process.pid}`);
       },
     },
@@ -22,7 +25,7 @@ import { createRedis } from './redis.js';
 export class QueuesModule implements OnApplicationShutdown {
   constructor(@Inject(REDIS) private readonly redis: Redis) {}
 
-  async onApplicationShutdown(): Promise<void> {
+  onApplicationShutdown(): void {
     // After JobQueueService closed its queues (Nest shuts down dependants first).
     this.redis.disconnect();
   }

@@ -8,7 +8,8 @@ export const REPORT_DECIMALS = 6;
  * same bytes, whichever order the code happened to build them in.
  */
 export function canonicalValue(value: unknown, decimals = REPORT_DECIMALS): unknown {
-  if (!Number.isInteger(decimals) || decimals < 0 || decimals > 12) throw new RangeError(`decimals must be an integer in 0…12, got ${decimals}`);
+  if (!Number.isInteger(decimals) || decimals < 0 || decimals > 12)
+    throw new RangeError(`decimals must be an integer in 0…12, got ${decimals}`);
   const scale = 10 ** decimals;
   const walk = (v: unknown): unknown => {
     if (v === null || typeof v === 'string' || typeof v === 'boolean') return v;
@@ -21,7 +22,7 @@ export function canonicalValue(value: unknown, decimals = REPORT_DECIMALS): unkn
     if (Array.isArray(v)) return v.map((x) => (x === undefined ? null : walk(x)));
     if (typeof v === 'object') {
       const out: Record<string, unknown> = {};
-      for (const k of Object.keys(v as object).sort()) {
+      for (const k of Object.keys(v).sort()) {
         const x = (v as Record<string, unknown>)[k];
         if (x !== undefined) out[k] = walk(x);
       }

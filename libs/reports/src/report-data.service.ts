@@ -1,5 +1,5 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database, DeskEntity, ModelVersionEntity, type VerdictSetSummary } from '#database';
+import { Database, DeskEntity, ModelVersionEntity, type DbInt, type VerdictSetSummary } from '#database';
 import { ModelStore } from '#models';
 import { AgreementService } from '#verdicts';
 import { activityFigures } from './figures/activity-figures.js';
@@ -36,18 +36,26 @@ export class ReportData {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     if (!desk || !row) throw new ReportNotPossible(`desk ${deskId} has no model version ${version}`);
-    if (row.state !== 'published' || !row.publishedAt) throw new ReportNotPossible(`version ${version} of desk ${deskId} is ${row.state}, not published`);
+    if (row.state !== 'published' || !row.publishedAt)
+      throw new ReportNotPossible(`version ${version} of desk ${deskId} is ${row.state}, not published`);
     const model = await this.store.load(deskId, version);
     if (!model) throw new ReportNotPossible(`version ${version} of desk ${deskId} has no stored model`);
     const categories = model.categories;
     const to = row.publishedAt;
-    const parent = row.parentVersion === null ? null : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: row.parentVersion });
+    const parent =
+      row.parentVersion === null
+        ? null
+        : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: row.parentVersion });
     const from = parent?.publishedAt ?? desk.createdAt;
     const history = await this.settingsHistory(desk);
     const inForce = history.at(to);
     const settings: Settings = {
-      coverageTarget: Number(inForce.coverageTarget), calibration: inForce.calibration as Settings['calibration'], score: inForce.score as Settings['score'],
-      strategy: String(inForce.strategy), randomShare: Number(inForce.randomShare), secondOpinionShare: Number(inForce.secondOpinionShare),
+      coverageTarget: Number(inForce.coverageTarget),
+      calibration: inForce.calibration as Settings['calibration'],
+      score: inForce.score as Settings['score'],
+      strategy: String(inForce.strategy),
+      randomShare: Number(inForce.randomShare),
+      secondOpinionShare: Number(inForce.secondOpinionShare),
     };
     const checks = await this.randomChecks(deskId, to);
     const inPeriod = checks.filter((c) => c.at.getTime() > from.getTime());
@@ -55,9 +63,19 @@ export class ReportData {
     return {
       format: 'cribra-model-report',
       formatVersion: 1,
-      desk: { id: deskId, name: String(inForce.name ?? desk.name), categories },
-      version: { version, parentVersion: row.parentVersion, createdAt: row.createdAt.toISOString(), publishedAt: to.toISOString(), verdictWatermark: row.verdictWatermark },
-      period: { from: from.toISOString(), to: to.toISOString(), startsAt: parent?.publishedAt ? 'parent-published' : 'desk-created' },
+      desk: { id: deskId, name: typeof inForce.name === 'string' ? inForce.name : desk.name, categories },
+      version: {
+        version,
+        parentVersion: row.parentVersion,
+        createdAt: row.createdAt.toISOString(),
+        publishedAt: to.toISOString(),
+        verdictWatermark: row.verdictWatermark,
+      },
+      period: {
+        from: from.toISOString(),
+        to: to.toISOString(),
+        startsAt: parent?.publishedAt ? 'parent-published' : 'desk-created',
+      },
       settings,
       training: counts(row.training, categories),
       calibration: counts(row.calibration, categories),
@@ -66,7 +84,10 @@ export class ReportData {
         mode: settings.calibration,
         checkedVersions: [...new Set(inPeriod.map((c) => c.version))].sort((a, b) => a - b),
         overall: coverageFigure(inPeriod),
-        perCategory: categories.map((category) => ({ category, ...coverageFigure(inPeriod.filter((c) => c.category === category)) })),
+        perCategory: categories.map((category) => ({
+          category,
+          ...coverageFigure(inPeriod.filter((c) => c.category === category)),
+        })),
       },
       pool,
       quality: quality(row.metrics),
@@ -74,55 +95,126 @@ export class ReportData {
       agreement: await this.agreement.forDesk(deskId, to),
       activity: activityFigures(await this.activity(deskId, from, to)),
       alerts: alertEpisodes(checks, from, (t) => Number(history.at(t).coverageTarget)),
-      settingsChanges: history.between(from, to).map((e) => ({ at: e.at.toISOString(), actor: e.actor, before: e.before ?? {}, after: e.after ?? {} })),
+      settingsChanges: history
+        .between(from, to)
+        .map((e) => ({ at: e.at.toISOString(), actor: e.actor, before: e.before ?? {}, after: e.after ?? {} })),
     };
   }
 
   private async settingsHistory(desk: DeskEntity): Promise<SettingsHistory> {
-    const rows = await this.db.query<{ at: unknown; actor_name: string; action: string; before: string | null; after: string | null }>(null,
-      `SELECT at, actor_name, action, before, after FROM audit_events WHERE desk_id = $1 AND entity_type = 'desk' AND action = 'desk.update' ORDER BY id`, [desk.id]);
-    const current = { name: desk.name, coverageTarget: desk.coverageTarget, calibration: desk.calibration, score: desk.score, strategy: desk.strategy, randomShare: desk.randomShare, secondOpinionShare: desk.secondOpinionShare };
-    return new SettingsHistory(current, rows.map((r) => ({
-      at: this.db.parseTime(r.at)!, actor: r.actor_name, action: r.action,
-      before: r.before ? (JSON.parse(r.before) as Record<string, unknown>) : null, after: r.after ? (JSON.parse(r.after) as Record<string, unknown>) : null,
-    })));
+    const rows = await this.db.query<{
+      at: unknown;
+      actor_name: string;
+      action: string;
+      before: string | null;
+      after: string | null;
+    }>(
+      null,
+      `SELECT at, actor_name, action, before, after FROM audit_events WHERE desk_id = $1 AND entity_type = 'desk' AND action = 'desk.update' ORDER BY id`,
+      [desk.id],
+    );
+    const current = {
+      name: desk.name,
+      coverageTarget: desk.coverageTarget,
+      calibration: desk.calibration,
+      score: desk.score,
+      strategy: desk.strategy,
+      randomShare: desk.randomShare,
+      secondOpinionShare: desk.secondOpinionShare,
+    };
+    return new SettingsHistory(
+      current,
+      rows.map((r) => ({
+        at: this.db.parseTime(r.at)!,
+        actor: r.actor_name,
+        action: r.action,
+        before: r.before ? (JSON.parse(r.before) as Record<string, unknown>) : null,
+        after: r.after ? (JSON.parse(r.after) as Record<string, unknown>) : null,
+      })),
+    );
   }
 
   /** Every random check up to `to`, oldest first, as it stood at `to`: the verdict's category against the set shown with it. */
   private async randomChecks(deskId: number, to: Date): Promise<Array<RandomCheck & { version: number }>> {
-    const rows = await this.db.query<{ created_at: unknown; category: string; shown_set: string; model_version: number }>(null,
+    const rows = await this.db.query<{
+      created_at: unknown;
+      category: string;
+      shown_set: string;
+      model_version: DbInt;
+    }>(
+      null,
       `SELECT v.created_at, c.name AS category, v.shown_set, v.model_version FROM verdicts v JOIN categories c ON c.id = v.category_id
        WHERE v.desk_id = $1 AND v.draw = 'random' AND v.model_version IS NOT NULL AND v.shown_set IS NOT NULL
-         AND v.created_at <= $2 AND (v.undone_at IS NULL OR v.undone_at > $2) ORDER BY v.id`, [deskId, this.db.time(to)]);
-    return rows.map((r) => ({ at: this.db.parseTime(r.created_at)!, category: r.category, covered: (JSON.parse(r.shown_set) as string[]).includes(r.category), version: Number(r.model_version) }));
+         AND v.created_at <= $2 AND (v.undone_at IS NULL OR v.undone_at > $2) ORDER BY v.id`,
+      [deskId, this.db.time(to)],
+    );
+    return rows.map((r) => ({
+      at: this.db.parseTime(r.created_at)!,
+      category: r.category,
+      covered: (JSON.parse(r.shown_set) as string[]).includes(r.category),
+      version: Number(r.model_version),
+    }));
   }
 
   /** Pool figures from this version's stored predictions; null when they are gone. One statement, so a concurrent clean-up cannot leave half. */
-  private async poolFigures(deskId: number, version: number, calibration: Parameters<typeof poolFigures>[1], s: Settings): Promise<PoolSection | null> {
-    const rows = await this.db.query<{ probabilities: string }>(null, 'SELECT probabilities FROM predictions WHERE desk_id = $1 AND model_version = $2 ORDER BY item_id', [deskId, version]);
+  private async poolFigures(
+    deskId: number,
+    version: number,
+    calibration: Parameters<typeof poolFigures>[1],
+    s: Settings,
+  ): Promise<PoolSection | null> {
+    const rows = await this.db.query<{ probabilities: string }>(
+      null,
+      'SELECT probabilities FROM predictions WHERE desk_id = $1 AND model_version = $2 ORDER BY item_id',
+      [deskId, version],
+    );
     if (rows.length === 0) return null;
-    return poolFigures(rows.map((r) => JSON.parse(r.probabilities) as number[]), calibration, { target: s.coverageTarget, mode: s.calibration, score: s.score });
+    return poolFigures(
+      rows.map((r) => JSON.parse(r.probabilities) as number[]),
+      calibration,
+      { target: s.coverageTarget, mode: s.calibration, score: s.score },
+    );
   }
 
   private async learningCurve(deskId: number, upTo: number): Promise<LearningPoint[]> {
-    const rows = await this.db.manager.find(ModelVersionEntity, { where: { deskId, state: 'published' }, order: { version: 'ASC' }, select: { id: true, version: true, publishedAt: true, metrics: true, calibration: true } });
-    return rows.filter((r) => r.version <= upTo && r.publishedAt).map((r) => ({
-      version: r.version, publishedAt: r.publishedAt!.toISOString(), calibrationItems: r.calibration.itemIds.length,
-      macroF1: typeof r.metrics?.macroF1 === 'number' ? r.metrics.macroF1 : null, accuracy: typeof r.metrics?.accuracy === 'number' ? r.metrics.accuracy : null,
-    }));
+    const rows = await this.db.manager.find(ModelVersionEntity, {
+      where: { deskId, state: 'published' },
+      order: { version: 'ASC' },
+      select: { id: true, version: true, publishedAt: true, metrics: true, calibration: true },
+    });
+    return rows
+      .filter((r) => r.version <= upTo && r.publishedAt)
+      .map((r) => ({
+        version: r.version,
+        publishedAt: r.publishedAt!.toISOString(),
+        calibrationItems: r.calibration.itemIds.length,
+        macroF1: typeof r.metrics?.macroF1 === 'number' ? r.metrics.macroF1 : null,
+        accuracy: typeof r.metrics?.accuracy === 'number' ? r.metrics.accuracy : null,
+      }));
   }
 
   /** Verdicts of the period (after `from`, up to `to`) as they stood at its end: undone later still count, undone within it do not. */
   private async activity(deskId: number, from: Date, to: Date) {
-    const rows = await this.db.query<{ name: string; category_id: number | null; elapsed_ms: number | null }>(null,
+    const rows = await this.db.query<{ name: string; category_id: DbInt | null; elapsed_ms: DbInt | null }>(
+      null,
       `SELECT u.name, v.category_id, v.elapsed_ms FROM verdicts v JOIN users u ON u.id = v.reviewer_id
-       WHERE v.desk_id = $1 AND v.created_at > $2 AND v.created_at <= $3 AND (v.undone_at IS NULL OR v.undone_at > $3) ORDER BY v.id`, [deskId, this.db.time(from), this.db.time(to)]);
-    return rows.map((r) => ({ reviewer: r.name, abstained: r.category_id === null, elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms) }));
+       WHERE v.desk_id = $1 AND v.created_at > $2 AND v.created_at <= $3 AND (v.undone_at IS NULL OR v.undone_at > $3) ORDER BY v.id`,
+      [deskId, this.db.time(from), this.db.time(to)],
+    );
+    return rows.map((r) => ({
+      reviewer: r.name,
+      abstained: r.category_id === null,
+      elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms),
+    }));
   }
 }
 
 function counts(s: VerdictSetSummary, categories: readonly string[]): VerdictCounts {
-  return { total: s.itemIds.length, perCategory: categories.map((category) => ({ category, verdicts: s.counts[category] ?? 0 })), draws: { ...s.draws } };
+  return {
+    total: s.itemIds.length,
+    perCategory: categories.map((category) => ({ category, verdicts: s.counts[category] ?? 0 })),
+    draws: { ...s.draws },
+  };
 }
 
 function quality(m: Record<string, unknown> | null): QualitySection | null {
@@ -130,7 +222,18 @@ function quality(m: Record<string, unknown> | null): QualitySection | null {
   const num = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
   const bins = Array.isArray(m.reliability) ? (m.reliability as Array<Record<string, unknown>>) : [];
   return {
-    calibrationItems: m.n, accuracy: Number(m.accuracy), macroF1: Number(m.macroF1), logLoss: Number(m.logLoss), brier: Number(m.brier), ece: Number(m.ece),
-    reliability: bins.map((b) => ({ lower: Number(b.lower), upper: Number(b.upper), count: Number(b.count), meanConfidence: num(b.meanConfidence), accuracy: num(b.accuracy) })),
+    calibrationItems: m.n,
+    accuracy: Number(m.accuracy),
+    macroF1: Number(m.macroF1),
+    logLoss: Number(m.logLoss),
+    brier: Number(m.brier),
+    ece: Number(m.ece),
+    reliability: bins.map((b) => ({
+      lower: Number(b.lower),
+      upper: Number(b.upper),
+      count: Number(b.count),
+      meanConfidence: num(b.meanConfidence),
+      accuracy: num(b.accuracy),
+    })),
   };
 }

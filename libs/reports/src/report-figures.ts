@@ -8,11 +8,24 @@ export interface ReportFigures {
   format: 'cribra-model-report';
   formatVersion: 1;
   desk: { id: number; name: string; categories: string[] };
-  version: { version: number; parentVersion: number | null; createdAt: string; publishedAt: string; verdictWatermark: number };
+  version: {
+    version: number;
+    parentVersion: number | null;
+    createdAt: string;
+    publishedAt: string;
+    verdictWatermark: number;
+  };
   /** Verdict times covered: after the parent version was published (or from the desk's creation) up to this version's publication. */
   period: { from: string; to: string; startsAt: 'parent-published' | 'desk-created' };
   /** Settings in force when this version was published (read back from the audit trail). */
-  settings: { coverageTarget: number; calibration: 'marginal' | 'per-category'; score: 'lac' | 'aps'; strategy: string; randomShare: number; secondOpinionShare: number };
+  settings: {
+    coverageTarget: number;
+    calibration: 'marginal' | 'per-category';
+    score: 'lac' | 'aps';
+    strategy: string;
+    randomShare: number;
+    secondOpinionShare: number;
+  };
   training: VerdictCounts;
   calibration: VerdictCounts;
   coverage: CoverageSection;
@@ -73,7 +86,13 @@ export interface QualitySection {
   logLoss: number;
   brier: number;
   ece: number;
-  reliability: Array<{ lower: number; upper: number; count: number; meanConfidence: number | null; accuracy: number | null }>;
+  reliability: Array<{
+    lower: number;
+    upper: number;
+    count: number;
+    meanConfidence: number | null;
+    accuracy: number | null;
+  }>;
 }
 
 export interface LearningPoint {

@@ -1,4 +1,14 @@
-import { BadRequestException, Controller, Get, Header, Inject, NotFoundException, Param, ParseIntPipe, Res } from '@nestjs/common';
+import {
+  BadRequestException,
+  Controller,
+  Get,
+  Header,
+  Inject,
+  NotFoundException,
+  Param,
+  ParseIntPipe,
+  Res,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
@@ -8,7 +18,9 @@ import { JOBS, JobQueueService, jobOptions } from '#queues';
 const READERS = ['supervisor', 'auditor'] as const;
 
 /** The version number in a path: a whole number from 1 on. */
-const versionPipe = new ParseIntPipe({ exceptionFactory: () => new BadRequestException('version: expected a whole number from 1') });
+const versionPipe = new ParseIntPipe({
+  exceptionFactory: () => new BadRequestException('version: expected a whole number from 1'),
+});
 
 /**
  * Oversight reports per model version. The page allows nothing to load (its
@@ -18,20 +30,37 @@ const versionPipe = new ParseIntPipe({ exceptionFactory: () => new BadRequestExc
 @ApiTags('reports')
 @Controller('api/desks/:deskId')
 export class ReportsController {
-  constructor(@Inject(Database) private readonly db: Database, @Inject(JobQueueService) private readonly jobs: JobQueueService) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+  ) {}
 
   /** Every published version with the state of its report. */
   @Roles(...READERS)
   @Get('reports')
   async list(@Param('deskId', ParseIntPipe) deskId: number) {
     await this.desk(deskId);
-    const versions = await this.db.manager.find(ModelVersionEntity, { where: { deskId, state: 'published' }, order: { version: 'DESC' }, select: { id: true, version: true, publishedAt: true } });
-    const reports = await this.db.manager.find(ModelReportEntity, { where: { deskId }, select: { id: true, version: true, state: true, generatedAt: true, figuresSha256: true, failure: true } });
+    const versions = await this.db.manager.find(ModelVersionEntity, {
+      where: { deskId, state: 'published' },
+      order: { version: 'DESC' },
+      select: { id: true, version: true, publishedAt: true },
+    });
+    const reports = await this.db.manager.find(ModelReportEntity, {
+      where: { deskId },
+      select: { id: true, version: true, state: true, generatedAt: true, figuresSha256: true, failure: true },
+    });
     const byVersion = new Map(reports.map((r) => [r.version, r]));
     return {
       reports: versions.map((v) => {
         const r = byVersion.get(v.version);
-        return { version: v.version, publishedAt: v.publishedAt, status: r?.state ?? 'pending', generatedAt: r?.generatedAt ?? null, figuresSha256: r?.figuresSha256 ?? null, failure: r?.failure ?? null };
+        return {
+          version: v.version,
+          publishedAt: v.publishedAt,
+          status: r?.state ?? 'pending',
+          generatedAt: r?.generatedAt ?? null,
+          figuresSha256: r?.figuresSha256 ?? null,
+          failure: r?.failure ?? null,
+        };
       }),
     };
   }
@@ -39,7 +68,11 @@ export class ReportsController {
   @Roles(...READERS)
   @Get('models/:version/report.json')
   @Header('Content-Type', 'application/json; charset=utf-8')
-  async json(@Param('deskId', ParseIntPipe) deskId: number, @Param('version', versionPipe) version: number, @Res({ passthrough: true }) res: Response): Promise<string> {
+  async json(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Param('version', versionPipe) version: number,
+    @Res({ passthrough: true }) res: Response,
+  ): Promise<string> {
     const report = await this.ready(deskId, version);
     res.setHeader('Content-Disposition', `inline; filename="desk-${deskId}-model-${version}-report.json"`);
     return report.figures!;
@@ -48,8 +81,15 @@ export class ReportsController {
   @Roles(...READERS)
   @Get('models/:version/report.html')
   @Header('Content-Type', 'text/html; charset=utf-8')
-  @Header('Content-Security-Policy', "default-src 'none'; style-src 'unsafe-inline'; img-src data:; frame-ancestors 'none'")
-  async html(@Param('deskId', ParseIntPipe) deskId: number, @Param('version', versionPipe) version: number, @Res({ passthrough: true }) res: Response): Promise<string> {
+  @Header(
+    'Content-Security-Policy',
+    "default-src 'none'; style-src 'unsafe-inline'; img-src data:; frame-ancestors 'none'",
+  )
+  async html(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Param('version', versionPipe) version: number,
+    @Res({ passthrough: true }) res: Response,
+  ): Promise<string> {
     const report = await this.ready(deskId, version);
     res.setHeader('Content-Disposition', `inline; filename="desk-${deskId}-model-${version}-report.html"`);
     return report.html!;
@@ -65,20 +105,44 @@ export class ReportsController {
   private async ready(deskId: number, version: number): Promise<ModelReportEntity> {
     if (version < 1) throw new BadRequestException('version: expected a whole number from 1');
     await this.desk(deskId);
-    const v = await this.db.manager.findOne(ModelVersionEntity, { where: { deskId, version }, select: { id: true, state: true } });
+    const v = await this.db.manager.findOne(ModelVersionEntity, {
+      where: { deskId, version },
+      select: { id: true, state: true },
+    });
     if (!v) throw new NotFoundException(`desk ${deskId} has no model version ${version}`);
     if (v.state !== 'published') {
-      throw new NotFoundException(v.state === 'training' || v.state === 'scoring'
-        ? `model version ${version} is still ${v.state}: its report is written once it is published`
-        : `model version ${version} was never published (${v.state}), so it has no report`);
+      throw new NotFoundException(
+        v.state === 'training' || v.state === 'scoring'
+          ? `model version ${version} is still ${v.state}: its report is written once it is published`
+          : `model version ${version} was never published (${v.state}), so it has no report`,
+      );
     }
     const report = await this.db.manager.findOneBy(ModelReportEntity, { deskId, version });
     if (report?.state === 'ready') return report;
-    if (report?.state === 'writing') throw new NotFoundException({ statusCode: 404, message: `the report of model version ${version} is still being written; try again shortly`, status: 'writing' });
-    if (report?.state === 'failed') throw new NotFoundException({ statusCode: 404, message: `the report of model version ${version} could not be written: ${report.failure}`, status: 'failed' });
+    if (report?.state === 'writing')
+      throw new NotFoundException({
+        statusCode: 404,
+        message: `the report of model version ${version} is still being written; try again shortly`,
+        status: 'writing',
+      });
+    if (report?.state === 'failed')
+      throw new NotFoundException({
+        statusCode: 404,
+        message: `the report of model version ${version} could not be written: ${report.failure}`,
+        status: 'failed',
+      });
     const id = jobOptions(JOBS.writeReport, { deskId, version }).jobId!;
     const job = await this.jobs.job(JOBS.writeReport, id);
-    if (job) throw new NotFoundException({ statusCode: 404, message: `the report of model version ${version} is queued and will be written shortly`, status: 'writing' });
-    throw new NotFoundException({ statusCode: 404, message: `model version ${version} has no report yet`, status: 'missing' });
+    if (job)
+      throw new NotFoundException({
+        statusCode: 404,
+        message: `the report of model version ${version} is queued and will be written shortly`,
+        status: 'writing',
+      });
+    throw new NotFoundException({
+      statusCode: 404,
+      message: `model version ${version} has no report yet`,
+      status: 'missing',
+    });
   }
 }

@@ -10,5 +10,9 @@ import { ReportWriter } from './report-writer.service.js';
 export class ReportsModule {}
 
 /** The worker side: gathering the figures and writing the report files. */
-@Module({ imports: [ModelsCoreModule], providers: [AgreementService, ReportData, ReportWriter], exports: [ReportWriter] })
+@Module({
+  imports: [ModelsCoreModule],
+  providers: [AgreementService, ReportData, ReportWriter],
+  exports: [ReportWriter],
+})
 export class ReportsWorkModule {}

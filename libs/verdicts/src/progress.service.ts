@@ -4,7 +4,13 @@ import { Database, DeskEntity } from '#database';
 export interface DeskProgress {
   deskId: number;
   items: { total: number; open: number; leased: number; decided: number };
-  verdicts: { total: number; byCategory: Record<string, number>; abstain: number; byDraw: Record<string, number>; undone: number };
+  verdicts: {
+    total: number;
+    byCategory: Record<string, number>;
+    abstain: number;
+    byDraw: Record<string, number>;
+    undone: number;
+  };
   reviewersActiveLastHour: number;
   /** Per reviewer counts; only for roles that may see other reviewers' work. */
   reviewers?: Array<{ name: string; verdicts: number; lastAt: Date | null }>;
@@ -30,9 +36,17 @@ export class ProgressService {
         `SELECT c.name, COUNT(*) AS n FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id WHERE v.desk_id = $1 AND v.undone_at IS NULL GROUP BY c.name`,
         [deskId],
       ),
-      q<{ draw: string; n: number | string }>(`SELECT draw, COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL GROUP BY draw`, [deskId]),
-      q<{ n: number | string }>(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NOT NULL`, [deskId]),
-      q<{ n: number | string }>(`SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = $1 AND created_at > $2`, [deskId, this.db.time(new Date(Date.now() - 3600_000))]),
+      q<{ draw: string; n: number | string }>(
+        `SELECT draw, COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL GROUP BY draw`,
+        [deskId],
+      ),
+      q<{ n: number | string }>(`SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND undone_at IS NOT NULL`, [
+        deskId,
+      ]),
+      q<{ n: number | string }>(
+        `SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = $1 AND created_at > $2`,
+        [deskId, this.db.time(new Date(Date.now() - 3600_000))],
+      ),
     ]);
     const items = { total: 0, open: 0, leased: 0, decided: 0 };
     for (const s of states) {
@@ -52,8 +66,11 @@ export class ProgressService {
     for (const d of draws) byDraw[d.draw] = Number(d.n);
     const total = Object.values(byCategory).reduce((a, b) => a + b, 0) + abstain;
     const out: DeskProgress = {
-      deskId, items, verdicts: { total, byCategory, abstain, byDraw, undone: Number(undone[0]?.n ?? 0) },
-      reviewersActiveLastHour: Number(active[0]?.n ?? 0), currentModelVersion: desk.currentModelVersion,
+      deskId,
+      items,
+      verdicts: { total, byCategory, abstain, byDraw, undone: Number(undone[0]?.n ?? 0) },
+      reviewersActiveLastHour: Number(active[0]?.n ?? 0),
+      currentModelVersion: desk.currentModelVersion,
     };
     if (withReviewers) {
       const rows = await q<{ name: string; n: number | string; last_at: unknown }>(

@@ -4,9 +4,21 @@ import { Equals, IsInt, IsOptional, IsString, IsUUID, Length, Max, Min } from 'c
 export class CreateVerdictDto {
   @ApiProperty({ format: 'uuid' }) @IsUUID() leaseId!: string;
   @ApiProperty() @IsInt() @Min(1) itemId!: number;
-  @ApiPropertyOptional({ description: 'A category name of the desk; give this or abstain' }) @IsOptional() @IsString() @Length(1, 100) category?: string;
-  @ApiPropertyOptional({ description: 'true when the reviewer cannot tell' }) @IsOptional() @Equals(true, { message: 'abstain: when given, must be true' }) abstain?: true;
-  @ApiProperty({ description: 'Client-chosen idempotency key, unique per reviewer; replaying it returns the stored verdict' }) @IsString() @Length(1, 100) clientId!: string;
+  @ApiPropertyOptional({ description: 'A category name of the desk; give this or abstain' })
+  @IsOptional()
+  @IsString()
+  @Length(1, 100)
+  category?: string;
+  @ApiPropertyOptional({ description: 'true when the reviewer cannot tell' })
+  @IsOptional()
+  @Equals(true, { message: 'abstain: when given, must be true' })
+  abstain?: true;
+  @ApiProperty({
+    description: 'Client-chosen idempotency key, unique per reviewer; replaying it returns the stored verdict',
+  })
+  @IsString()
+  @Length(1, 100)
+  clientId!: string;
   @ApiPropertyOptional({ minimum: 0 }) @IsOptional() @IsInt() @Min(0) @Max(7 * 24 * 3600 * 1000) elapsedMs?: number;
   @ApiPropertyOptional({ maxLength: 2000 }) @IsOptional() @IsString() @Length(0, 2000) note?: string;
 }

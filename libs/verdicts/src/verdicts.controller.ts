@@ -1,4 +1,15 @@
-import { BadRequestException, Body, Controller, Get, Inject, Param, ParseIntPipe, Post, Query, Res } from '@nestjs/common';
+import {
+  BadRequestException,
+  Body,
+  Controller,
+  Get,
+  Inject,
+  Param,
+  ParseIntPipe,
+  Post,
+  Query,
+  Res,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { CurrentUser, Roles, type Principal } from '#auth';
@@ -9,7 +20,8 @@ import { VerdictsService } from './verdicts.service.js';
 
 const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SAFE_INTEGER): number | undefined => {
   if (v === undefined || v === '') return undefined;
-  if (!/^\d+$/.test(v) || Number(v) < 1 || Number(v) > max) throw new BadRequestException(`${name}: expected a whole number from 1 to ${max}`);
+  if (!/^\d+$/.test(v) || Number(v) < 1 || Number(v) > max)
+    throw new BadRequestException(`${name}: expected a whole number from 1 to ${max}`);
   return Number(v);
 };
 
@@ -17,19 +29,30 @@ const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SA
 const timeOrUndefined = (name: string, v: string | undefined): Date | undefined => {
   if (v === undefined || v === '') return undefined;
   const d = parseIsoDateTime(v);
-  if (!d) throw new BadRequestException(`${name}: expected an ISO 8601 date or date-time (e.g. 2026-01-31 or 2026-01-31T12:00:00Z), got ${JSON.stringify(v)}`);
+  if (!d)
+    throw new BadRequestException(
+      `${name}: expected an ISO 8601 date or date-time (e.g. 2026-01-31 or 2026-01-31T12:00:00Z), got ${JSON.stringify(v)}`,
+    );
   return d;
 };
 
 @ApiTags('verdicts')
 @Controller('api')
 export class VerdictsController {
-  constructor(@Inject(VerdictsService) private readonly verdicts: VerdictsService, @Inject(ProgressService) private readonly progressService: ProgressService) {}
+  constructor(
+    @Inject(VerdictsService) private readonly verdicts: VerdictsService,
+    @Inject(ProgressService) private readonly progressService: ProgressService,
+  ) {}
 
   /** 201 with the new verdict; 200 with the stored one when the clientId was seen before. */
   @Roles('reviewer')
   @Post('desks/:deskId/verdicts')
-  async create(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Body() body: CreateVerdictDto, @Res({ passthrough: true }) res: Response) {
+  async create(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Body() body: CreateVerdictDto,
+    @Res({ passthrough: true }) res: Response,
+  ) {
     const { verdict, replayed } = await this.verdicts.submit(user, deskId, body);
     res.status(replayed ? 200 : 201);
     return { verdict };
@@ -45,8 +68,13 @@ export class VerdictsController {
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/verdicts')
   async list(
-    @Param('deskId', ParseIntPipe) deskId: number, @Query('before') before?: string, @Query('limit') limit?: string, @Query('reviewer') reviewer?: string,
-    @Query('category') category?: string, @Query('from') from?: string, @Query('to') to?: string,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('before') before?: string,
+    @Query('limit') limit?: string,
+    @Query('reviewer') reviewer?: string,
+    @Query('category') category?: string,
+    @Query('from') from?: string,
+    @Query('to') to?: string,
   ) {
     // `from` inclusive, `to` exclusive, as in the trail export.
     const since = timeOrUndefined('from', from);
@@ -56,8 +84,12 @@ export class VerdictsController {
     if (reviewer && reviewerId === null) return { verdicts: [] };
     return {
       verdicts: await this.verdicts.listForDesk(deskId, {
-        before: intOrUndefined('before', before), limit: intOrUndefined('limit', limit, 1000) ?? 100, reviewerId: reviewerId ?? undefined,
-        category: category || undefined, from: since, to: until,
+        before: intOrUndefined('before', before),
+        limit: intOrUndefined('limit', limit, 1000) ?? 100,
+        reviewerId: reviewerId ?? undefined,
+        category: category || undefined,
+        from: since,
+        to: until,
       }),
     };
   }
@@ -65,8 +97,17 @@ export class VerdictsController {
   /** The signed-in reviewer's own verdicts on a desk, newest first. */
   @Roles('reviewer')
   @Get('desks/:deskId/verdicts/mine')
-  async mine(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Query('limit') limit?: string) {
-    return { verdicts: await this.verdicts.listForDesk(deskId, { limit: intOrUndefined('limit', limit, 1000) ?? 20, reviewerId: user.id }) };
+  async mine(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('limit') limit?: string,
+  ) {
+    return {
+      verdicts: await this.verdicts.listForDesk(deskId, {
+        limit: intOrUndefined('limit', limit, 1000) ?? 20,
+        reviewerId: user.id,
+      }),
+    };
   }
 
   @Roles('reviewer', 'supervisor', 'auditor', 'admin')

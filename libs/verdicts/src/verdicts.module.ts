@@ -11,5 +11,18 @@ import { ProgressService } from './progress.service.js';
 import { VerdictsController } from './verdicts.controller.js';
 import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
 
-@Module({ imports: [ModelsCoreModule], controllers: [VerdictsController, AgreementController, SettlingController, TrailController], providers: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService, TrailService, { provide: SECOND_OPINION_RANDOM, useValue: Math.random }], exports: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService] })
+@Module({
+  imports: [ModelsCoreModule],
+  controllers: [VerdictsController, AgreementController, SettlingController, TrailController],
+  providers: [
+    VerdictsService,
+    ProgressService,
+    AgreementService,
+    SettlementsService,
+    DisagreementsService,
+    TrailService,
+    { provide: SECOND_OPINION_RANDOM, useValue: Math.random },
+  ],
+  exports: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService],
+})
 export class VerdictsModule {}

@@ -1,8 +1,24 @@
-import { BadRequestException, ConflictException, ForbiddenException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import {
+  BadRequestException,
+  ConflictException,
+  ForbiddenException,
+  Inject,
+  Injectable,
+  NotFoundException,
+} from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
-import { Database, DeskDirectory, isUniqueViolation, UserEntity, VerdictEntity, type DrawKind, type ShownPrediction } from '#database';
+import {
+  Database,
+  DeskDirectory,
+  type DbInt,
+  isUniqueViolation,
+  UserEntity,
+  VerdictEntity,
+  type DrawKind,
+  type ShownPrediction,
+} from '#database';
 import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
 
@@ -26,20 +42,39 @@ export interface VerdictView {
 }
 
 interface LeaseAndItem {
-  desk_id: number;
-  item_id: number;
-  reviewer_id: number;
+  desk_id: DbInt;
+  item_id: DbInt;
+  reviewer_id: DbInt;
   draw: DrawKind;
   prediction: string | null;
   closed_at: unknown;
   state: string;
   item_lease_id: string | null;
   leased_until: unknown;
-  existing_id: number | null;
-  existing_item: number | null;
+  existing_id: DbInt | null;
+  existing_item: DbInt | null;
   so_state: string | null;
   so_lease_id: string | null;
   so_leased_until: unknown;
+}
+
+/** A row of {@link VerdictsService.listWhere}'s query. */
+interface VerdictRow {
+  id: DbInt;
+  desk_id: DbInt;
+  item_id: DbInt;
+  reviewer: string;
+  category: string | null;
+  abstain: boolean | number;
+  client_id: string;
+  model_version: DbInt | null;
+  shown_set: string | null;
+  shown_call: VerdictView['shownCall'];
+  elapsed_ms: DbInt | null;
+  note: string | null;
+  simulated: boolean | number;
+  created_at: unknown;
+  undone_at: unknown;
 }
 
 /** Source of uniform numbers in [0, 1) that decides which decided items get a second opinion; injectable for tests. */
@@ -61,7 +96,12 @@ export class VerdictsService {
    * Records a verdict; `replayed` is true when the client id was seen before and nothing was written.
    * `simulated` marks a verdict given by the demo's simulated reviewer, in the verdict row and its audit event.
    */
-  async submit(reviewer: Principal, deskId: number, dto: CreateVerdictDto, options: { simulated?: boolean } = {}): Promise<{ verdict: VerdictView; replayed: boolean }> {
+  async submit(
+    reviewer: Principal,
+    deskId: number,
+    dto: CreateVerdictDto,
+    options: { simulated?: boolean } = {},
+  ): Promise<{ verdict: VerdictView; replayed: boolean }> {
     const simulated = options.simulated === true;
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
       throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
@@ -71,7 +111,10 @@ export class VerdictsService {
     let categoryId: number | null = null;
     if (dto.category !== undefined) {
       const cat = entry.categories.find((c) => c.name === dto.category);
-      if (!cat) throw new BadRequestException(`unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`);
+      if (!cat)
+        throw new BadRequestException(
+          `unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`,
+        );
       categoryId = cat.id;
     }
     // Drawn for every verdict, used only for one on a first draw: the item is then due for a second opinion.
@@ -80,7 +123,8 @@ export class VerdictsService {
       const result = await this.db.write(async (m) => {
         // One statement: the lease, its item (locked until commit on PostgreSQL), and any verdict already stored under this client id.
         const lock = this.db.pg ? ' FOR UPDATE OF i' : '';
-        const [row] = await this.db.query<LeaseAndItem>(m,
+        const row = await this.db.queryOne<LeaseAndItem>(
+          m,
           `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until,
                   (SELECT v.id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_id,
                   (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item,
@@ -89,70 +133,153 @@ export class VerdictsService {
           [dto.leaseId, reviewer.id, dto.clientId],
         );
         if (row && row.existing_id !== null) {
-          if (Number(row.existing_item) !== dto.itemId) throw new ConflictException(`clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${row.existing_item}`);
+          if (Number(row.existing_item) !== dto.itemId)
+            throw new ConflictException(
+              `clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${row.existing_item}`,
+            );
           return { replayOf: Number(row.existing_id) };
         }
         if (!row) {
-          const [other] = await this.db.query<{ item_id: number }>(m, 'SELECT item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
-          if (other) throw new ConflictException(`clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${other.item_id}`);
+          const other = await this.db.queryOne<{ item_id: DbInt }>(
+            m,
+            'SELECT item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2',
+            [reviewer.id, dto.clientId],
+          );
+          if (other)
+            throw new ConflictException(
+              `clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${other.item_id}`,
+            );
           throw new NotFoundException(`no lease ${dto.leaseId}`);
         }
-        if (Number(row.reviewer_id) !== reviewer.id) throw new ForbiddenException('this lease belongs to another reviewer');
-        if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId) throw new BadRequestException(`lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`);
+        if (Number(row.reviewer_id) !== reviewer.id)
+          throw new ForbiddenException('this lease belongs to another reviewer');
+        if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId)
+          throw new BadRequestException(
+            `lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`,
+          );
         const now = new Date();
-        const heldByOther = row.state === 'leased' && row.item_lease_id !== dto.leaseId && this.db.parseTime(row.leased_until)!.getTime() > now.getTime();
+        const heldByOther =
+          row.state === 'leased' &&
+          row.item_lease_id !== dto.leaseId &&
+          this.db.parseTime(row.leased_until)!.getTime() > now.getTime();
         const secondOpinion = row.draw === 'second-opinion';
         const decided = row.state === 'decided' && !secondOpinion;
         // A second opinion is taken once: refuse a late one when another reviewer took over the item and gave it.
-        const opinionTaken = secondOpinion && (row.so_state !== 'leased' || row.so_lease_id !== dto.leaseId)
-          && (row.so_state !== 'due' && !(row.so_state === 'leased' && this.db.parseTime(row.so_leased_until)!.getTime() <= now.getTime()));
+        const opinionTaken =
+          secondOpinion &&
+          (row.so_state !== 'leased' || row.so_lease_id !== dto.leaseId) &&
+          row.so_state !== 'due' &&
+          !(row.so_state === 'leased' && this.db.parseTime(row.so_leased_until)!.getTime() <= now.getTime());
         if (heldByOther || decided || opinionTaken) {
           // On PostgreSQL the statement above may have waited for the item's lock while a request with the same
           // client id committed; its snapshot predates that verdict, so look again before refusing.
-          const [mine] = await this.db.query<{ id: number; item_id: number }>(m, 'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
+          const mine = await this.db.queryOne<{ id: DbInt; item_id: DbInt }>(
+            m,
+            'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2',
+            [reviewer.id, dto.clientId],
+          );
           if (mine && Number(mine.item_id) === dto.itemId) return { replayOf: Number(mine.id) };
-          throw new ConflictException(heldByOther || (opinionTaken && row.so_state === 'leased')
-            ? 'your lease on this item expired and another reviewer holds it now; your verdict was not recorded'
-            : 'your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded');
+          throw new ConflictException(
+            heldByOther || (opinionTaken && row.so_state === 'leased')
+              ? 'your lease on this item expired and another reviewer holds it now; your verdict was not recorded'
+              : 'your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded',
+          );
         }
         const prediction = row.prediction ? (JSON.parse(row.prediction) as ShownPrediction) : null;
         const view: Omit<VerdictView, 'id'> = {
-          deskId, itemId: dto.itemId, reviewer: reviewer.name, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId,
-          modelVersion: prediction?.modelVersion ?? null, shownSet: prediction?.set ?? null, shownCall: prediction?.call ?? null,
-          elapsedMs: dto.elapsedMs ?? null, note: dto.note ?? null, simulated, createdAt: now, undoneAt: null,
+          deskId,
+          itemId: dto.itemId,
+          reviewer: reviewer.name,
+          category: dto.category ?? null,
+          abstain: dto.abstain === true,
+          clientId: dto.clientId,
+          modelVersion: prediction?.modelVersion ?? null,
+          shownSet: prediction?.set ?? null,
+          shownCall: prediction?.call ?? null,
+          elapsedMs: dto.elapsedMs ?? null,
+          note: dto.note ?? null,
+          simulated,
+          createdAt: now,
+          undoneAt: null,
         };
-        const [ins] = await this.db.query<{ id: number }>(m,
+        const [ins] = await this.db.query<{ id: DbInt }>(
+          m,
           `INSERT INTO verdicts (desk_id, item_id, reviewer_id, lease_id, client_id, category_id, abstain, draw, model_version, shown_set, shown_call, shown_probabilities, elapsed_ms, note, simulated, created_at, undone_at)
            VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, NULL) RETURNING id`,
-          [deskId, dto.itemId, reviewer.id, dto.leaseId, dto.clientId, categoryId, view.abstain, row.draw, view.modelVersion,
-            prediction ? JSON.stringify(prediction.set) : null, view.shownCall, prediction ? JSON.stringify(prediction.probabilities) : null,
-            view.elapsedMs, view.note, simulated, this.db.time(now)],
+          [
+            deskId,
+            dto.itemId,
+            reviewer.id,
+            dto.leaseId,
+            dto.clientId,
+            categoryId,
+            view.abstain,
+            row.draw,
+            view.modelVersion,
+            prediction ? JSON.stringify(prediction.set) : null,
+            view.shownCall,
+            prediction ? JSON.stringify(prediction.probabilities) : null,
+            view.elapsedMs,
+            view.note,
+            simulated,
+            this.db.time(now),
+          ],
         );
-        const verdictId = Number(ins!.id);
+        const verdictId = Number(ins.id);
         if (secondOpinion) {
-          await this.db.query(m, `UPDATE second_opinions SET state = 'done', lease_id = NULL, leased_until = NULL, verdict_id = $1, done_at = $2 WHERE item_id = $3`, [verdictId, this.db.time(now), dto.itemId]);
+          await this.db.query(
+            m,
+            `UPDATE second_opinions SET state = 'done', lease_id = NULL, leased_until = NULL, verdict_id = $1, done_at = $2 WHERE item_id = $3`,
+            [verdictId, this.db.time(now), dto.itemId],
+          );
           await this.db.query(m, `UPDATE items SET state = 'decided' WHERE id = $1 AND state = 'open'`, [dto.itemId]);
         } else {
-          await this.db.query(m, `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`, [dto.itemId]);
+          await this.db.query(
+            m,
+            `UPDATE items SET state = 'decided', lease_id = NULL, leased_until = NULL WHERE id = $1`,
+            [dto.itemId],
+          );
           if (wantSecondOpinion) {
-            await this.db.query(m, `INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES ($1, $2, 'due', $3) ON CONFLICT (item_id) DO NOTHING`, [dto.itemId, deskId, this.db.time(now)]);
+            await this.db.query(
+              m,
+              `INSERT INTO second_opinions (item_id, desk_id, state, created_at) VALUES ($1, $2, 'due', $3) ON CONFLICT (item_id) DO NOTHING`,
+              [dto.itemId, deskId, this.db.time(now)],
+            );
           }
         }
-        if (row.closed_at === null) await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [this.db.time(now), dto.leaseId]);
+        if (row.closed_at === null)
+          await this.db.query(m, `UPDATE leases SET closed_at = $1, closed_reason = 'verdict' WHERE id = $2`, [
+            this.db.time(now),
+            dto.leaseId,
+          ]);
         await this.audit.record(m, reviewer, {
-          action: 'verdict.create', entityType: 'verdict', entityId: verdictId, deskId,
-          after: { itemId: dto.itemId, category: dto.category ?? null, abstain: dto.abstain === true, clientId: dto.clientId, ...(simulated ? { simulated: true } : {}) },
+          action: 'verdict.create',
+          entityType: 'verdict',
+          entityId: verdictId,
+          deskId,
+          after: {
+            itemId: dto.itemId,
+            category: dto.category ?? null,
+            abstain: dto.abstain === true,
+            clientId: dto.clientId,
+            ...(simulated ? { simulated: true } : {}),
+          },
         });
         return { created: { id: verdictId, ...view } };
       });
       if (result.replayOf !== undefined) return { verdict: await this.view(result.replayOf), replayed: true };
       this.retrain.nudge(deskId, 'verdict');
-      return { verdict: result.created!, replayed: false };
+      return { verdict: result.created, replayed: false };
     } catch (e) {
       if (isUniqueViolation(e)) {
         // A concurrent request with the same client id won the race: answer as a replay.
-        const [again] = await this.db.query<{ id: number; item_id: number }>(null, 'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2', [reviewer.id, dto.clientId]);
-        if (again && Number(again.item_id) === dto.itemId) return { verdict: await this.view(Number(again.id)), replayed: true };
+        const again = await this.db.queryOne<{ id: DbInt; item_id: DbInt }>(
+          null,
+          'SELECT id, item_id FROM verdicts WHERE reviewer_id = $1 AND client_id = $2',
+          [reviewer.id, dto.clientId],
+        );
+        if (again && Number(again.item_id) === dto.itemId)
+          return { verdict: await this.view(Number(again.id)), replayed: true };
         throw new ConflictException('you have already given a verdict on this item');
       }
       throw e;
@@ -167,21 +294,42 @@ export class VerdictsService {
       if (v.reviewerId !== reviewer.id) throw new ForbiddenException('only the author may undo a verdict');
       if (v.undoneAt) throw new ConflictException('this verdict was already undone');
       const windowMs = this.config.undoWindowSeconds * 1000;
-      if (Date.now() - v.createdAt.getTime() > windowMs) throw new ConflictException(`the undo window of ${Math.round(windowMs / 60000)} minutes has passed`);
-      const last = await m.findOne(VerdictEntity, { where: { reviewerId: reviewer.id }, order: { createdAt: 'DESC', id: 'DESC' } });
+      if (Date.now() - v.createdAt.getTime() > windowMs)
+        throw new ConflictException(`the undo window of ${Math.round(windowMs / 60000)} minutes has passed`);
+      const last = await m.findOne(VerdictEntity, {
+        where: { reviewerId: reviewer.id },
+        order: { createdAt: 'DESC', id: 'DESC' },
+      });
       if (!last || last.id !== v.id) throw new ConflictException('only your last verdict can be undone');
       const now = new Date();
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
-      const [{ n }] = (await this.db.query(m, `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = $1 AND undone_at IS NULL`, [v.itemId])) as Array<{ n: number | string }>;
+      const [{ n }] = await this.db.query<{ n: DbInt }>(
+        m,
+        `SELECT COUNT(*) AS n FROM verdicts WHERE item_id = $1 AND undone_at IS NULL`,
+        [v.itemId],
+      );
       if (Number(n) === 0) {
-        await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [v.itemId]);
+        await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [
+          v.itemId,
+        ]);
         // Back in the open pool: a second opinion nobody has started yet is no longer due.
         await this.db.query(m, `DELETE FROM second_opinions WHERE item_id = $1 AND state = 'due'`, [v.itemId]);
       } else if (v.draw === 'second-opinion') {
         // The opinion taken back is due again, for a reviewer who has not seen the item.
-        await this.db.query(m, `UPDATE second_opinions SET state = 'due', verdict_id = NULL, done_at = NULL WHERE item_id = $1 AND verdict_id = $2`, [v.itemId, v.id]);
+        await this.db.query(
+          m,
+          `UPDATE second_opinions SET state = 'due', verdict_id = NULL, done_at = NULL WHERE item_id = $1 AND verdict_id = $2`,
+          [v.itemId, v.id],
+        );
       }
-      await this.audit.record(m, reviewer, { action: 'verdict.undo', entityType: 'verdict', entityId: v.id, deskId: v.deskId, before: { undoneAt: null }, after: { undoneAt: now.toISOString() } });
+      await this.audit.record(m, reviewer, {
+        action: 'verdict.undo',
+        entityType: 'verdict',
+        entityId: v.id,
+        deskId: v.deskId,
+        before: { undoneAt: null },
+        after: { undoneAt: now.toISOString() },
+      });
     });
     const undone = await this.view(verdictId);
     this.retrain.nudge(undone.deskId, 'undo');
@@ -195,20 +343,39 @@ export class VerdictsService {
   }
 
   /** Verdicts of a desk, newest first, paged by id. */
-  async listForDesk(deskId: number, opts: { before?: number; limit: number; reviewerId?: number; category?: string; from?: Date; to?: Date }): Promise<VerdictView[]> {
+  async listForDesk(
+    deskId: number,
+    opts: { before?: number; limit: number; reviewerId?: number; category?: string; from?: Date; to?: Date },
+  ): Promise<VerdictView[]> {
     const params: unknown[] = [deskId];
     let where = `v.desk_id = $1`;
-    if (opts.before) { params.push(opts.before); where += ` AND v.id < $${params.length}`; }
-    if (opts.reviewerId) { params.push(opts.reviewerId); where += ` AND v.reviewer_id = $${params.length}`; }
+    if (opts.before) {
+      params.push(opts.before);
+      where += ` AND v.id < $${params.length}`;
+    }
+    if (opts.reviewerId) {
+      params.push(opts.reviewerId);
+      where += ` AND v.reviewer_id = $${params.length}`;
+    }
     if (opts.category === 'abstain') where += ' AND v.category_id IS NULL';
-    else if (opts.category) { params.push(opts.category); where += ` AND c.name = $${params.length}`; }
-    if (opts.from) { params.push(this.db.time(opts.from)); where += ` AND v.created_at >= $${params.length}`; }
-    if (opts.to) { params.push(this.db.time(opts.to)); where += ` AND v.created_at < $${params.length}`; }
+    else if (opts.category) {
+      params.push(opts.category);
+      where += ` AND c.name = $${params.length}`;
+    }
+    if (opts.from) {
+      params.push(this.db.time(opts.from));
+      where += ` AND v.created_at >= $${params.length}`;
+    }
+    if (opts.to) {
+      params.push(this.db.time(opts.to));
+      where += ` AND v.created_at < $${params.length}`;
+    }
     return this.listWhere(where, params, opts.limit);
   }
 
   private async listWhere(where: string, params: unknown[], limit: number): Promise<VerdictView[]> {
-    const rows: Array<Record<string, unknown>> = await this.db.query(null, 
+    const rows = await this.db.query<VerdictRow>(
+      null,
       `SELECT v.id, v.desk_id, v.item_id, u.name AS reviewer, c.name AS category, v.abstain, v.client_id, v.model_version, v.shown_set, v.shown_call,
               v.elapsed_ms, v.note, v.simulated, v.created_at, v.undone_at
        FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id
@@ -216,11 +383,21 @@ export class VerdictsService {
       params,
     );
     return rows.map((r) => ({
-      id: Number(r.id), deskId: Number(r.desk_id), itemId: Number(r.item_id), reviewer: String(r.reviewer), category: (r.category as string | null) ?? null,
-      abstain: r.abstain === true || r.abstain === 1, clientId: String(r.client_id), modelVersion: r.model_version === null ? null : Number(r.model_version),
-      shownSet: r.shown_set ? (JSON.parse(String(r.shown_set)) as string[]) : null, shownCall: (r.shown_call as VerdictView['shownCall']) ?? null,
-      elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms), note: (r.note as string | null) ?? null, simulated: r.simulated === true || r.simulated === 1,
-      createdAt: this.db.parseTime(r.created_at)!, undoneAt: this.db.parseTime(r.undone_at),
+      id: Number(r.id),
+      deskId: Number(r.desk_id),
+      itemId: Number(r.item_id),
+      reviewer: r.reviewer,
+      category: r.category,
+      abstain: r.abstain === true || r.abstain === 1,
+      clientId: r.client_id,
+      modelVersion: r.model_version === null ? null : Number(r.model_version),
+      shownSet: r.shown_set ? (JSON.parse(r.shown_set) as string[]) : null,
+      shownCall: r.shown_call,
+      elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms),
+      note: r.note,
+      simulated: r.simulated === true || r.simulated === 1,
+      createdAt: this.db.parseTime(r.created_at)!,
+      undoneAt: this.db.parseTime(r.undone_at),
     }));
   }
 

@@ -5,9 +5,22 @@ const pct = (x: number): string => `${(100 * x).toFixed(1)}%`;
 /** A plain-text table of the learning curve and the summary lines. */
 export function formatRehearsal(result: RehearsalResult): string {
   const lines: string[] = [];
-  lines.push(`classes: ${result.classes.join(', ')}   pool: ${result.pool}   test: ${result.test}   target coverage: ${pct(result.target)}`);
+  lines.push(
+    `classes: ${result.classes.join(', ')}   pool: ${result.pool}   test: ${result.test}   target coverage: ${pct(result.target)}`,
+  );
   lines.push('');
-  const header = ['labels', 'train', 'calib', 'accuracy', 'macro-F1', 'coverage', 'set size', 'sure', 'unfamiliar', ...result.classes.map((c) => `cov ${c}`)];
+  const header = [
+    'labels',
+    'train',
+    'calib',
+    'accuracy',
+    'macro-F1',
+    'coverage',
+    'set size',
+    'sure',
+    'unfamiliar',
+    ...result.classes.map((c) => `cov ${c}`),
+  ];
   const rows = result.curve.map((p, i) => [
     String(p.labels),
     String(p.trainLabels),
@@ -30,7 +43,9 @@ export function formatRehearsal(result: RehearsalResult): string {
   lines.push(fmt(header));
   for (const r of rows) lines.push(fmt(r));
   lines.push('');
-  lines.push(`full pool model: accuracy ${result.full.accuracy.toFixed(3)}, macro-F1 ${result.full.macroF1.toFixed(3)}`);
+  lines.push(
+    `full pool model: accuracy ${result.full.accuracy.toFixed(3)}, macro-F1 ${result.full.macroF1.toFixed(3)}`,
+  );
   const reach = (r: { '0.95': number | null; '0.98': number | null }): string =>
     `95% of full macro-F1 at ${r['0.95'] ?? 'not reached'}, 98% at ${r['0.98'] ?? 'not reached'}`;
   lines.push(`uncertainty run: ${reach(result.labelsToReach)}`);

@@ -34,22 +34,29 @@ export async function readLabelledJsonl(path: string, textField: string, labelFi
     } catch (error) {
       throw new InputError(`line ${n}: not valid JSON (${(error as Error).message})`);
     }
-    if (row === null || typeof row !== 'object' || Array.isArray(row)) throw new InputError(`line ${n}: expected a JSON object`);
+    if (row === null || typeof row !== 'object' || Array.isArray(row))
+      throw new InputError(`line ${n}: expected a JSON object`);
     const record = row as Record<string, unknown>;
     const text = record[textField];
     if (text === undefined) throw new InputError(`line ${n}: text field "${textField}" is missing`);
-    if (typeof text !== 'string') throw new InputError(`line ${n}: text field "${textField}" must be a string, got ${typeof text}`);
+    if (typeof text !== 'string')
+      throw new InputError(`line ${n}: text field "${textField}" must be a string, got ${typeof text}`);
     const label = record[labelField];
-    if (label === undefined || label === null || label === '') throw new InputError(`line ${n}: label field "${labelField}" is missing`);
+    if (label === undefined || label === null || label === '')
+      throw new InputError(`line ${n}: label field "${labelField}" is missing`);
     if (typeof label !== 'string' && typeof label !== 'number' && typeof label !== 'boolean') {
-      throw new InputError(`line ${n}: label field "${labelField}" must be a string, number or boolean, got ${typeof label}`);
+      throw new InputError(
+        `line ${n}: label field "${labelField}" must be a string, number or boolean, got ${typeof label}`,
+      );
     }
     out.push({ text, label: String(label) });
   }
   if (out.length === 0) throw new InputError(`${path} holds no rows`);
   const classes = new Set(out.map((r) => r.label));
   if (classes.size < 2) {
-    throw new InputError(`label field "${labelField}" has only one class (${JSON.stringify([...classes][0])}); a rehearsal needs at least two`);
+    throw new InputError(
+      `label field "${labelField}" has only one class (${JSON.stringify([...classes][0])}); a rehearsal needs at least two`,
+    );
   }
   return out;
 }

@@ -2,7 +2,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { createRng } from '#learning';
+import { createRng, type RehearsalResult } from '#learning';
 import { rehearseCommand } from '../rehearse.command.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'rehearse-'));
@@ -29,7 +29,11 @@ function generate(path: string, n: number, seed: number): void {
   writeFileSync(path, lines.join('\n') + '\n');
 }
 
-function capture(): { io: { stdout: { write(s: string): boolean }; stderr: { write(s: string): boolean } }; out: () => string; err: () => string } {
+function capture(): {
+  io: { stdout: { write(s: string): boolean }; stderr: { write(s: string): boolean } };
+  out: () => string;
+  err: () => string;
+} {
   let out = '';
   let err = '';
   return {
@@ -42,14 +46,29 @@ function capture(): { io: { stdout: { write(s: string): boolean }; stderr: { wri
 describe('rehearse command', () => {
   const file = join(dir, 'posts.jsonl');
   generate(file, 400, 1);
-  const base = ['--input', file, '--text-field', 'body', '--label-field', 'topic', '--start', '10', '--batch', '10', '--budget', '80', '--seed', '3'];
+  const base = [
+    '--input',
+    file,
+    '--text-field',
+    'body',
+    '--label-field',
+    'topic',
+    '--start',
+    '10',
+    '--batch',
+    '10',
+    '--budget',
+    '80',
+    '--seed',
+    '3',
+  ];
 
   it('prints one JSON object with the curve, the full model and labels to reach', async () => {
     const c = capture();
     const code = await rehearseCommand([...base, '--json', '--compare-random', '--calibration', 'per-category'], c.io);
     expect(c.err()).toBe('');
     expect(code).toBe(0);
-    const result = JSON.parse(c.out());
+    const result = JSON.parse(c.out()) as RehearsalResult;
     expect(result.classes).toEqual(['food', 'sport', 'weather']);
     expect(result.pool + result.test).toBe(400);
     expect(result.test).toBe(80);
@@ -64,11 +83,11 @@ describe('rehearse command', () => {
     }
     // The start set trains; the random share (0.2 of each batch) calibrates.
     expect(result.curve[0]).toMatchObject({ trainLabels: 10, calibrationLabels: 0, coverage: 1, meanSetSize: 3 });
-    const last = result.curve.at(-1);
+    const last = result.curve.at(-1)!;
     expect(last.calibrationLabels).toBeGreaterThan(5);
     expect(last.calibrationLabels).toBeLessThan(25);
     expect(result.full.macroF1).toBeGreaterThan(0.8);
-    expect(result.random.curve.length).toBe(result.curve.length);
+    expect(result.random!.curve.length).toBe(result.curve.length);
     expect(Object.keys(result.labelsToReach)).toEqual(['0.95', '0.98']);
     expect(Object.keys(result.timings).sort()).toEqual(['featurizeMs', 'scoreMsMean', 'trainMsMean']);
   });
@@ -106,7 +125,9 @@ describe('rehearse command', () => {
     const missing = join(dir, 'missing.jsonl');
     writeFileSync(missing, '{"body":"a","topic":"x"}\n{"body":"b"}\n');
     const c1 = capture();
-    expect(await rehearseCommand(['--input', missing, '--text-field', 'body', '--label-field', 'topic'], c1.io)).toBe(1);
+    expect(await rehearseCommand(['--input', missing, '--text-field', 'body', '--label-field', 'topic'], c1.io)).toBe(
+      1,
+    );
     expect(c1.err()).toMatch(/line 2: label field "topic" is missing/);
     const one = join(dir, 'one.jsonl');
     writeFileSync(one, '{"body":"a","topic":"x"}\n{"body":"b","topic":"x"}\n');

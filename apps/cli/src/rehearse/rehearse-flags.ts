@@ -27,19 +27,32 @@ export const REHEARSE_USAGE = `usage: cribra rehearse --input FILE.jsonl [--text
   [--compare-random] [--json]`;
 
 const VALUE_FLAGS = new Set([
-  'input', 'text-field', 'label-field', 'target', 'calibration', 'score', 'strategy',
-  'random-share', 'start', 'batch', 'budget', 'test-share', 'seed',
+  'input',
+  'text-field',
+  'label-field',
+  'target',
+  'calibration',
+  'score',
+  'strategy',
+  'random-share',
+  'start',
+  'batch',
+  'budget',
+  'test-share',
+  'seed',
 ]);
 const BOOLEAN_FLAGS = new Set(['compare-random', 'json']);
 
 function number(flag: string, raw: string, check: (n: number) => boolean, rule: string): number {
   const n = Number(raw);
-  if (raw.trim() === '' || !Number.isFinite(n) || !check(n)) throw new UsageError(`--${flag} must be ${rule}, got ${JSON.stringify(raw)}`);
+  if (raw.trim() === '' || !Number.isFinite(n) || !check(n))
+    throw new UsageError(`--${flag} must be ${rule}, got ${JSON.stringify(raw)}`);
   return n;
 }
 
 function choice<T extends string>(flag: string, raw: string, options: readonly T[]): T {
-  if (!(options as readonly string[]).includes(raw)) throw new UsageError(`--${flag} must be one of ${options.join(', ')}, got ${JSON.stringify(raw)}`);
+  if (!(options as readonly string[]).includes(raw))
+    throw new UsageError(`--${flag} must be one of ${options.join(', ')}, got ${JSON.stringify(raw)}`);
   return raw as T;
 }
 
@@ -61,7 +74,7 @@ export function parseRehearseFlags(argv: readonly string[]): RehearseFlags {
     let value: string | undefined;
     if (eq >= 0) value = arg.slice(eq + 1);
     else {
-      value = argv[i + 1];
+      value = argv.at(i + 1);
       if (value === undefined || value.startsWith('--')) throw new UsageError(`--${name} needs a value`);
       i++;
     }
@@ -80,18 +93,29 @@ export function parseRehearseFlags(argv: readonly string[]): RehearseFlags {
     target: number('target', get('target', '0.9'), (n) => n > 0 && n < 1, 'a number strictly between 0 and 1'),
     calibration: choice('calibration', get('calibration', 'marginal'), ['marginal', 'per-category'] as const),
     score: choice('score', get('score', 'lac'), ['lac', 'aps'] as const),
-    strategy: choice('strategy', get('strategy', 'entropy'), ['entropy', 'margin', 'least-confidence', 'random'] as const),
+    strategy: choice('strategy', get('strategy', 'entropy'), [
+      'entropy',
+      'margin',
+      'least-confidence',
+      'random',
+    ] as const),
     randomShare: number('random-share', get('random-share', '0.2'), (n) => n >= 0 && n <= 1, 'a number from 0 to 1'),
     start: integer('start', '20', 1),
     batch: integer('batch', '20', 1),
     budget: integer('budget', '600', 1),
-    testShare: number('test-share', get('test-share', '0.2'), (n) => n > 0 && n < 1, 'a number strictly between 0 and 1'),
+    testShare: number(
+      'test-share',
+      get('test-share', '0.2'),
+      (n) => n > 0 && n < 1,
+      'a number strictly between 0 and 1',
+    ),
     seed: number('seed', get('seed', '1'), (n) => Number.isSafeInteger(n), 'an integer'),
     compareRandom: booleans.has('compare-random'),
     json: booleans.has('json'),
   };
   if (flags.textField === '') throw new UsageError('--text-field must not be empty');
   if (flags.labelField === '') throw new UsageError('--label-field must not be empty');
-  if (flags.budget < flags.start) throw new UsageError(`--budget (${flags.budget}) must be at least --start (${flags.start})`);
+  if (flags.budget < flags.start)
+    throw new UsageError(`--budget (${flags.budget}) must be at least --start (${flags.start})`);
   return flags;
 }

@@ -20,20 +20,43 @@ export function CallStatement({ prediction, target }: { prediction: Prediction |
     <div class={`call call-${call}`} data-call={call}>
       {call === 'sure' && (
         <>
-          <p class="call-word"><span aria-hidden="true" class="call-icon">●</span> Sure: <strong>{set[0]}</strong></p>
+          <p class="call-word">
+            <span aria-hidden="true" class="call-icon">
+              ●
+            </span>{' '}
+            Sure: <strong>{set[0]}</strong>
+          </p>
           <p class="call-detail">At {level} coverage the prediction set holds one category.</p>
         </>
       )}
       {call === 'ambiguous' && (
         <>
-          <p class="call-word"><span aria-hidden="true" class="call-icon">◐</span> Ambiguous: <strong>{set.length === 2 ? set.join(' or ') : `${set.slice(0, -1).join(', ')} or ${set[set.length - 1]}`}</strong></p>
-          <p class="call-detail">At {level} coverage the model cannot narrow it to one of these {set.length}.</p>
+          <p class="call-word">
+            <span aria-hidden="true" class="call-icon">
+              ◐
+            </span>{' '}
+            Ambiguous:{' '}
+            <strong>
+              {set.length === 2 ? set.join(' or ') : `${set.slice(0, -1).join(', ')} or ${set[set.length - 1]}`}
+            </strong>
+          </p>
+          <p class="call-detail">
+            At {level} coverage the model cannot narrow it to one of these {set.length}.
+          </p>
         </>
       )}
       {call === 'unfamiliar' && (
         <>
-          <p class="call-word"><span aria-hidden="true" class="call-icon">○</span> Unfamiliar</p>
-          <p class="call-detail">This text is unlike anything calibrated so far: the set is empty at {level} coverage. Read it without the model's help.</p>
+          <p class="call-word">
+            <span aria-hidden="true" class="call-icon">
+              ○
+            </span>{' '}
+            Unfamiliar
+          </p>
+          <p class="call-detail">
+            This text is unlike anything calibrated so far: the set is empty at {level} coverage. Read it without the
+            model's help.
+          </p>
         </>
       )}
     </div>
@@ -49,8 +72,13 @@ export function Probabilities({ prediction }: { prediction: Prediction }) {
       <tbody>
         {rows.map(([c, p]) => (
           <tr class={prediction.set.includes(c) ? 'in-set' : ''}>
-            <th scope="row">{c}{prediction.set.includes(c) && <span class="in-set-mark"> · in set</span>}</th>
-            <td><span class="prob-bar" style={{ width: `${Math.max(1, p * 100)}%` }} /></td>
+            <th scope="row">
+              {c}
+              {prediction.set.includes(c) && <span class="in-set-mark"> · in set</span>}
+            </th>
+            <td>
+              <span class="prob-bar" style={{ width: `${Math.max(1, p * 100)}%` }} />
+            </td>
             <td class="num">{pct(p, 1)}</td>
           </tr>
         ))}

@@ -35,27 +35,41 @@ function Axes({ f, children, summary }: { f: Frame; children: ComponentChildren;
   return (
     <svg class="chart" viewBox={`0 0 ${w} ${h}`} role="img" aria-label={summary} preserveAspectRatio="xMidYMid meet">
       <g class="grid">
-        {f.yTicks.map((t) => <line x1={M.left} x2={w - M.right} y1={sy(t)} y2={sy(t)} />)}
+        {f.yTicks.map((t) => (
+          <line x1={M.left} x2={w - M.right} y1={sy(t)} y2={sy(t)} />
+        ))}
       </g>
       <g class="axis x-axis">
         <line x1={M.left} x2={w - M.right} y1={h - M.bottom} y2={h - M.bottom} />
         {f.xTicks.map((t) => (
           <g>
             <line x1={sx(t)} x2={sx(t)} y1={h - M.bottom} y2={h - M.bottom + 5} />
-            <text x={sx(t)} y={h - M.bottom + 18} text-anchor="middle">{fx(t)}</text>
+            <text x={sx(t)} y={h - M.bottom + 18} text-anchor="middle">
+              {fx(t)}
+            </text>
           </g>
         ))}
-        <text class="axis-title" x={(M.left + w - M.right) / 2} y={h - 6} text-anchor="middle">{f.xLabel}</text>
+        <text class="axis-title" x={(M.left + w - M.right) / 2} y={h - 6} text-anchor="middle">
+          {f.xLabel}
+        </text>
       </g>
       <g class="axis y-axis">
         <line x1={M.left} x2={M.left} y1={M.top} y2={h - M.bottom} />
         {f.yTicks.map((t) => (
           <g>
             <line x1={M.left - 5} x2={M.left} y1={sy(t)} y2={sy(t)} />
-            <text x={M.left - 8} y={sy(t) + 4} text-anchor="end">{fy(t)}</text>
+            <text x={M.left - 8} y={sy(t) + 4} text-anchor="end">
+              {fy(t)}
+            </text>
           </g>
         ))}
-        <text class="axis-title" transform={`translate(14 ${(M.top + h - M.bottom) / 2}) rotate(-90)`} text-anchor="middle">{f.yLabel}</text>
+        <text
+          class="axis-title"
+          transform={`translate(14 ${(M.top + h - M.bottom) / 2}) rotate(-90)`}
+          text-anchor="middle"
+        >
+          {f.yLabel}
+        </text>
       </g>
       {children}
     </svg>
@@ -75,7 +89,9 @@ export function LineChart(props: Frame & { series: Series[]; marker?: number; su
   return (
     <figure class="chart-figure">
       <Axes f={props} summary={props.summary}>
-        {props.marker !== undefined && <line class="marker" x1={sx(props.marker)} x2={sx(props.marker)} y1={M.top} y2={h - M.bottom} />}
+        {props.marker !== undefined && (
+          <line class="marker" x1={sx(props.marker)} x2={sx(props.marker)} y1={M.top} y2={h - M.bottom} />
+        )}
         {props.series.map((s) => (
           <g class={`series ${s.className}`}>
             <polyline fill="none" points={s.points.map(([x, y]) => `${sx(x)},${sy(y)}`).join(' ')} />
@@ -84,14 +100,27 @@ export function LineChart(props: Frame & { series: Series[]; marker?: number; su
         ))}
       </Axes>
       <figcaption class="legend">
-        {props.series.map((s) => <span class={`key ${s.className}`}><i aria-hidden="true" />{s.name}</span>)}
+        {props.series.map((s) => (
+          <span class={`key ${s.className}`}>
+            <i aria-hidden="true" />
+            {s.name}
+          </span>
+        ))}
       </figcaption>
     </figure>
   );
 }
 
 /** Horizontal bars with their values written at the end. */
-export function BarChart({ bars, unit, summary }: { bars: Array<{ label: string; value: number; className?: string }>; unit: string; summary: string }) {
+export function BarChart({
+  bars,
+  unit,
+  summary,
+}: {
+  bars: Array<{ label: string; value: number; className?: string }>;
+  unit: string;
+  summary: string;
+}) {
   const max = Math.max(1, ...bars.map((b) => b.value));
   const rowH = 28;
   const labelW = 150;
@@ -104,14 +133,24 @@ export function BarChart({ bars, unit, summary }: { bars: Array<{ label: string;
       <svg class="chart" viewBox={`0 0 ${w} ${h}`} role="img" aria-label={summary}>
         <g class="axis x-axis">
           <line x1={labelW} x2={w - 70} y1={bars.length * rowH + 4} y2={bars.length * rowH + 4} />
-          {ticks.map((t) => <text x={sx(t)} y={bars.length * rowH + 20} text-anchor="middle">{t}</text>)}
-          <text class="axis-title" x={(labelW + w - 70) / 2} y={h - 4} text-anchor="middle">{unit}</text>
+          {ticks.map((t) => (
+            <text x={sx(t)} y={bars.length * rowH + 20} text-anchor="middle">
+              {t}
+            </text>
+          ))}
+          <text class="axis-title" x={(labelW + w - 70) / 2} y={h - 4} text-anchor="middle">
+            {unit}
+          </text>
         </g>
         {bars.map((b, i) => (
           <g class={`bar ${b.className ?? ''}`}>
-            <text class="bar-label" x={labelW - 8} y={i * rowH + 18} text-anchor="end">{b.label}</text>
+            <text class="bar-label" x={labelW - 8} y={i * rowH + 18} text-anchor="end">
+              {b.label}
+            </text>
             <rect x={labelW} y={i * rowH + 4} width={Math.max(1, sx(b.value) - labelW)} height={rowH - 10} />
-            <text class="bar-value" x={sx(b.value) + 6} y={i * rowH + 18}>{b.value}</text>
+            <text class="bar-value" x={sx(b.value) + 6} y={i * rowH + 18}>
+              {b.value}
+            </text>
           </g>
         ))}
       </svg>
@@ -120,7 +159,15 @@ export function BarChart({ bars, unit, summary }: { bars: Array<{ label: string;
 }
 
 /** Realized proportions with their intervals against a promised level (the dashed line). */
-export function IntervalChart({ rows, target, summary }: { rows: Array<{ label: string; value: number | null; lower: number | null; upper: number | null; n: number }>; target: number; summary: string }) {
+export function IntervalChart({
+  rows,
+  target,
+  summary,
+}: {
+  rows: Array<{ label: string; value: number | null; lower: number | null; upper: number | null; n: number }>;
+  target: number;
+  summary: string;
+}) {
   const rowH = 32;
   const labelW = 170;
   const w = 560;
@@ -134,19 +181,38 @@ export function IntervalChart({ rows, target, summary }: { rows: Array<{ label: 
       <svg class="chart" viewBox={`0 0 ${w} ${h}`} role="img" aria-label={summary}>
         <g class="axis x-axis">
           <line x1={labelW} x2={w - 24} y1={rows.length * rowH + 6} y2={rows.length * rowH + 6} />
-          {ticks.map((t) => <text x={sx(t)} y={rows.length * rowH + 22} text-anchor="middle">{Math.round(t * 100)}</text>)}
-          <text class="axis-title" x={(labelW + w - 24) / 2} y={h - 4} text-anchor="middle">realized coverage on random checks (%), 95 % Wilson interval</text>
+          {ticks.map((t) => (
+            <text x={sx(t)} y={rows.length * rowH + 22} text-anchor="middle">
+              {Math.round(t * 100)}
+            </text>
+          ))}
+          <text class="axis-title" x={(labelW + w - 24) / 2} y={h - 4} text-anchor="middle">
+            realized coverage on random checks (%), 95 % Wilson interval
+          </text>
         </g>
         <line class="marker" x1={sx(target)} x2={sx(target)} y1={0} y2={rows.length * rowH + 6} />
         {rows.map((r, i) => (
           <g class="interval">
-            <text class="bar-label" x={labelW - 8} y={i * rowH + 20} text-anchor="end">{r.label} (n = {r.n})</text>
-            {r.lower !== null && r.upper !== null && <line x1={sx(r.lower)} x2={sx(r.upper)} y1={i * rowH + 16} y2={i * rowH + 16} />}
+            <text class="bar-label" x={labelW - 8} y={i * rowH + 20} text-anchor="end">
+              {r.label} (n = {r.n})
+            </text>
+            {r.lower !== null && r.upper !== null && (
+              <line x1={sx(r.lower)} x2={sx(r.upper)} y1={i * rowH + 16} y2={i * rowH + 16} />
+            )}
             {r.value !== null && <circle cx={sx(r.value)} cy={i * rowH + 16} r={5} />}
           </g>
         ))}
       </svg>
-      <figcaption class="legend"><span class="key marker-key"><i aria-hidden="true" />promised coverage {Math.round(target * 100)} %</span><span class="key interval-key"><i aria-hidden="true" />realized, with 95 % interval</span></figcaption>
+      <figcaption class="legend">
+        <span class="key marker-key">
+          <i aria-hidden="true" />
+          promised coverage {Math.round(target * 100)} %
+        </span>
+        <span class="key interval-key">
+          <i aria-hidden="true" />
+          realized, with 95 % interval
+        </span>
+      </figcaption>
     </figure>
   );
 }

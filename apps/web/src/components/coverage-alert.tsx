@@ -12,14 +12,19 @@ export function CoverageAlert({ deskId, coverage }: { deskId: string; coverage?:
       <div class="alert" role="alert">
         <h2>Coverage alert</h2>
         <p>{c.alert.message}</p>
-        <p class="muted">What to do: keep serving random draws (they recalibrate the next versions), read sure calls with care, and look at what is new in the recent imports.</p>
+        <p class="muted">
+          What to do: keep serving random draws (they recalibrate the next versions), read sure calls with care, and
+          look at what is new in the recent imports.
+        </p>
       </div>
     );
   }
   if (c.window.n === 0) return null;
   return (
     <p class="coverage-ok">
-      Realized coverage over the last {c.window.n} random checks: <strong>{pct(c.window.coverage, 1)}</strong> (95 % interval {pct(c.window.interval?.lower ?? null, 1)} to {pct(c.window.interval?.upper ?? null, 1)}), promised {pct(c.target, 1)}.
+      Realized coverage over the last {c.window.n} random checks: <strong>{pct(c.window.coverage, 1)}</strong> (95 %
+      interval {pct(c.window.interval?.lower ?? null, 1)} to {pct(c.window.interval?.upper ?? null, 1)}), promised{' '}
+      {pct(c.target, 1)}.
     </p>
   );
 }

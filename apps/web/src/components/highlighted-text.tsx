@@ -5,7 +5,15 @@ import type { Highlight } from '../api';
  * category's number (the key that decides for it) as well as its tint, so
  * the highlight does not rely on colour alone.
  */
-export function HighlightedText({ text, highlights, categories }: { text: string; highlights: Highlight[]; categories: string[] }) {
+export function HighlightedText({
+  text,
+  highlights,
+  categories,
+}: {
+  text: string;
+  highlights: Highlight[];
+  categories: string[];
+}) {
   const parts = [];
   let at = 0;
   for (const h of [...highlights].sort((a, b) => a.start - b.start)) {
@@ -15,7 +23,9 @@ export function HighlightedText({ text, highlights, categories }: { text: string
     parts.push(
       <mark class={`seed seed-${index % 8}`} title={`seed term of “${h.category}”`} data-category={h.category}>
         {text.slice(h.start, h.end)}
-        <sup class="seed-key" aria-label={`seed term of ${h.category}`}>{index + 1}</sup>
+        <sup class="seed-key" aria-label={`seed term of ${h.category}`}>
+          {index + 1}
+        </sup>
       </mark>,
     );
     at = h.end;

@@ -16,32 +16,65 @@ interface Simulation {
 
 /** The supervisor's desk: progress, the learning curve, the coverage alert, exports, and the simulated reviewer. */
 export function DeskOverview({ params }: PageProps) {
-  const deskId = params.deskId!;
+  const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const [progress, progressError, reloadProgress] = useData<Progress>(`/desks/${deskId}/progress`);
-  const [models, , reloadModels] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(`/desks/${deskId}/models`);
+  const [models, , reloadModels] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(
+    `/desks/${deskId}/models`,
+  );
   const [coverage, , reloadCoverage] = useData<Coverage>(`/desks/${deskId}/coverage`);
-  useInterval(() => { reloadProgress(); reloadModels(); reloadCoverage(); }, 5000);
+  useInterval(() => {
+    reloadProgress();
+    reloadModels();
+    reloadCoverage();
+  }, 5000);
 
-  const published = (models?.models ?? []).filter((m) => m.state === 'published' && m.metrics).sort((a, b) => a.version - b.version);
+  const published = (models?.models ?? [])
+    .filter((m) => m.state === 'published' && m.metrics)
+    .sort((a, b) => a.version - b.version);
   const maxVersion = Math.max(1, ...published.map((m) => m.version));
 
   return (
     <section class="page">
       <div class="page-head">
         <h1>{desk?.name ?? 'Desk'}</h1>
-        <p class="muted">{models?.currentModelVersion ? `Serving model version ${models.currentModelVersion}` : 'No model version yet'}{desk ? ` · coverage target ${Math.round(desk.coverageTarget * 100)} % (${desk.calibration})` : ''}</p>
+        <p class="muted">
+          {models?.currentModelVersion ? `Serving model version ${models.currentModelVersion}` : 'No model version yet'}
+          {desk ? ` · coverage target ${Math.round(desk.coverageTarget * 100)} % (${desk.calibration})` : ''}
+        </p>
       </div>
-      {progressError && <p class="error" role="alert">{progressError}</p>}
+      {progressError && (
+        <p class="error" role="alert">
+          {progressError}
+        </p>
+      )}
       <CoverageAlert deskId={deskId} coverage={coverage} />
       {progress && (
         <dl class="figures">
-          <div><dt>Items</dt><dd>{count(progress.items.total)}</dd></div>
-          <div><dt>Open</dt><dd>{count(progress.items.open)}</dd></div>
-          <div><dt>Being decided</dt><dd>{count(progress.items.leased)}</dd></div>
-          <div><dt>Decided</dt><dd>{count(progress.items.decided)}</dd></div>
-          <div><dt>Verdicts</dt><dd>{count(progress.verdicts.total)}</dd></div>
-          <div><dt>Undone</dt><dd>{count(progress.verdicts.undone)}</dd></div>
+          <div>
+            <dt>Items</dt>
+            <dd>{count(progress.items.total)}</dd>
+          </div>
+          <div>
+            <dt>Open</dt>
+            <dd>{count(progress.items.open)}</dd>
+          </div>
+          <div>
+            <dt>Being decided</dt>
+            <dd>{count(progress.items.leased)}</dd>
+          </div>
+          <div>
+            <dt>Decided</dt>
+            <dd>{count(progress.items.decided)}</dd>
+          </div>
+          <div>
+            <dt>Verdicts</dt>
+            <dd>{count(progress.verdicts.total)}</dd>
+          </div>
+          <div>
+            <dt>Undone</dt>
+            <dd>{count(progress.verdicts.undone)}</dd>
+          </div>
         </dl>
       )}
       <div class="chart-pair">
@@ -51,7 +84,14 @@ export function DeskOverview({ params }: PageProps) {
             <BarChart
               unit="verdicts"
               summary={`Verdicts per category: ${desk.categories.map((c) => `${c.name} ${progress.verdicts.byCategory[c.name] ?? 0}`).join(', ')}, abstain ${progress.verdicts.abstain}.`}
-              bars={[...desk.categories.map((c, i) => ({ label: c.name, value: progress.verdicts.byCategory[c.name] ?? 0, className: `cat-${i % 8}` })), { label: 'abstain', value: progress.verdicts.abstain, className: 'abstain' }]}
+              bars={[
+                ...desk.categories.map((c, i) => ({
+                  label: c.name,
+                  value: progress.verdicts.byCategory[c.name] ?? 0,
+                  className: `cat-${i % 8}`,
+                })),
+                { label: 'abstain', value: progress.verdicts.abstain, className: 'abstain' },
+              ]}
             />
           </section>
         )}
@@ -61,10 +101,24 @@ export function DeskOverview({ params }: PageProps) {
           {published.length > 0 && (
             <LineChart
               summary={`Macro-F1 on the calibration set by model version: ${published.map((m) => `v${m.version} ${num(m.metrics!.macroF1)}`).join(', ')}.`}
-              xLabel="model version" yLabel="macro-F1 on calibration set" x={[published.length > 1 ? published[0]!.version : 0, maxVersion]} y={[0, 1]}
-              xTicks={niceTicks(published.length > 1 ? published[0]!.version : 0, maxVersion, Math.min(6, maxVersion)).filter((v) => Number.isInteger(v))}
-              yTicks={[0, 0.25, 0.5, 0.75, 1]} yFormat={(v) => v.toFixed(2)}
-              series={[{ name: 'macro-F1 (calibration verdicts)', className: 's-f1', points: published.map((m) => [m.version, m.metrics!.macroF1]) }]}
+              xLabel="model version"
+              yLabel="macro-F1 on calibration set"
+              x={[published.length > 1 ? published[0].version : 0, maxVersion]}
+              y={[0, 1]}
+              xTicks={niceTicks(
+                published.length > 1 ? published[0].version : 0,
+                maxVersion,
+                Math.min(6, maxVersion),
+              ).filter((v) => Number.isInteger(v))}
+              yTicks={[0, 0.25, 0.5, 0.75, 1]}
+              yFormat={(v) => v.toFixed(2)}
+              series={[
+                {
+                  name: 'macro-F1 (calibration verdicts)',
+                  className: 's-f1',
+                  points: published.map((m) => [m.version, m.metrics!.macroF1]),
+                },
+              ]}
             />
           )}
         </section>
@@ -74,10 +128,26 @@ export function DeskOverview({ params }: PageProps) {
           <h2>Reviewers</h2>
           <p class="muted">In alphabetical order; counts show the work done, not a ranking.</p>
           <table class="data">
-            <thead><tr><th>Reviewer</th><th class="num">Verdicts</th><th>Last verdict</th></tr></thead>
+            <thead>
+              <tr>
+                <th>Reviewer</th>
+                <th class="num">Verdicts</th>
+                <th>Last verdict</th>
+              </tr>
+            </thead>
             <tbody>
-              {progress.reviewers.length === 0 && <tr><td colSpan={3}>No verdict yet.</td></tr>}
-              {progress.reviewers.map((r) => <tr><td>{r.name}</td><td class="num">{count(r.verdicts)}</td><td>{when(r.lastAt)}</td></tr>)}
+              {progress.reviewers.length === 0 && (
+                <tr>
+                  <td colSpan={3}>No verdict yet.</td>
+                </tr>
+              )}
+              {progress.reviewers.map((r) => (
+                <tr>
+                  <td>{r.name}</td>
+                  <td class="num">{count(r.verdicts)}</td>
+                  <td>{when(r.lastAt)}</td>
+                </tr>
+              ))}
             </tbody>
           </table>
         </section>
@@ -87,8 +157,26 @@ export function DeskOverview({ params }: PageProps) {
         <h2>Export</h2>
         <p>Downloads stream from the server; large desks take a moment.</p>
         <ul class="export-links">
-          <li>Verdicts (the decision trail): <a href={`/api/desks/${deskId}/trail.csv`} download>CSV</a> · <a href={`/api/desks/${deskId}/trail.ndjson`} download>NDJSON</a></li>
-          <li>Predictions of the current version for every open item: <a href={`/api/desks/${deskId}/predictions.csv`} download>CSV</a> · <a href={`/api/desks/${deskId}/predictions.ndjson`} download>NDJSON</a></li>
+          <li>
+            Verdicts (the decision trail):{' '}
+            <a href={`/api/desks/${deskId}/trail.csv`} download>
+              CSV
+            </a>{' '}
+            ·{' '}
+            <a href={`/api/desks/${deskId}/trail.ndjson`} download>
+              NDJSON
+            </a>
+          </li>
+          <li>
+            Predictions of the current version for every open item:{' '}
+            <a href={`/api/desks/${deskId}/predictions.csv`} download>
+              CSV
+            </a>{' '}
+            ·{' '}
+            <a href={`/api/desks/${deskId}/predictions.ndjson`} download>
+              NDJSON
+            </a>
+          </li>
         </ul>
       </section>
     </section>
@@ -101,7 +189,12 @@ function SimulatedReviewer({ deskId }: { deskId: string }) {
   useInterval(reload, sim?.state === 'running' ? 2000 : null);
   const act = async (fn: () => Promise<unknown>) => {
     setActionError(null);
-    try { await fn(); reload(); } catch (e) { setActionError((e as Error).message); }
+    try {
+      await fn();
+      reload();
+    } catch (e) {
+      setActionError((e as Error).message);
+    }
   };
   return (
     <section class="simulation">
@@ -110,13 +203,41 @@ function SimulatedReviewer({ deskId }: { deskId: string }) {
       {sim && !sim.available && <p class="muted">{sim.reason ?? 'Not available on this desk.'}</p>}
       {sim?.available && (
         <>
-          <p>A simulated reviewer works the queue like a person, answering from the generated posts' hidden labels, so you can watch model versions appear and sets tighten. Its verdicts are marked as simulated in the decision trail.</p>
-          {sim.state === 'running'
-            ? <p role="status">Working until {when(sim.until)}: {count(sim.verdicts)} verdicts so far. <button type="button" onClick={() => void act(() => api('DELETE', `/desks/${deskId}/simulation`))}>Stop it</button></p>
-            : <p>{sim.state !== 'idle' && <span class="muted">Last run: {count(sim.verdicts)} verdicts ({sim.state}). </span>}<button type="button" class="primary" onClick={() => void act(() => post(`/desks/${deskId}/simulation`, { minutes: 2 }))}>Let a simulated reviewer work for 2 minutes</button></p>}
+          <p>
+            A simulated reviewer works the queue like a person, answering from the generated posts' hidden labels, so
+            you can watch model versions appear and sets tighten. Its verdicts are marked as simulated in the decision
+            trail.
+          </p>
+          {sim.state === 'running' ? (
+            <p role="status">
+              Working until {when(sim.until)}: {count(sim.verdicts)} verdicts so far.{' '}
+              <button type="button" onClick={() => void act(() => api('DELETE', `/desks/${deskId}/simulation`))}>
+                Stop it
+              </button>
+            </p>
+          ) : (
+            <p>
+              {sim.state !== 'idle' && (
+                <span class="muted">
+                  Last run: {count(sim.verdicts)} verdicts ({sim.state}).{' '}
+                </span>
+              )}
+              <button
+                type="button"
+                class="primary"
+                onClick={() => void act(() => post(`/desks/${deskId}/simulation`, { minutes: 2 }))}
+              >
+                Let a simulated reviewer work for 2 minutes
+              </button>
+            </p>
+          )}
         </>
       )}
-      {actionError && <p class="error" role="alert">{actionError}</p>}
+      {actionError && (
+        <p class="error" role="alert">
+          {actionError}
+        </p>
+      )}
     </section>
   );
 }

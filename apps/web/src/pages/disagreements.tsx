@@ -13,8 +13,20 @@ interface Settlement {
 
 interface Disagreement {
   item: { id: number; externalId: string | null; text: string };
-  verdicts: Array<{ id: number; reviewer: string; category: string | null; abstain: boolean; createdAt: string; undoneAt: string | null; modelVersion: number | null; shownCall: string | null }>;
-  reasons: Array<{ kind: 'reviewers-differ'; categories: string[] } | { kind: 'against-sure-call'; modelVersion: number; shownSet: string[]; category: string }>;
+  verdicts: Array<{
+    id: number;
+    reviewer: string;
+    category: string | null;
+    abstain: boolean;
+    createdAt: string;
+    undoneAt: string | null;
+    modelVersion: number | null;
+    shownCall: string | null;
+  }>;
+  reasons: Array<
+    | { kind: 'reviewers-differ'; categories: string[] }
+    | { kind: 'against-sure-call'; modelVersion: number; shownSet: string[]; category: string }
+  >;
   settled: Settlement | null;
   settlements: Settlement[];
 }
@@ -25,7 +37,12 @@ interface Agreement {
   reviewers: number;
   cohen: Array<{ reviewers: [string, string]; items: number; kappa: number | null }>;
   fleiss: { kappa: number | null; items: number; itemsLeftOut: number; unequalVerdicts: string };
-  krippendorff: { alpha: number | null; interval: { lower: number | null; upper: number | null; resamples: number }; items: number; pairableValues: number };
+  krippendorff: {
+    alpha: number | null;
+    interval: { lower: number | null; upper: number | null; resamples: number };
+    items: number;
+    pairableValues: number;
+  };
   perCategory: Array<{ category: string; verdicts: number; items: number; fleissKappa: number | null }>;
 }
 
@@ -37,10 +54,12 @@ function why(r: Disagreement['reasons'][number]): string {
 
 /** Agreement between reviewers, and the items they disagree on; supervisors settle them, auditors read. */
 export function DisagreementsPage({ me, params }: PageProps) {
-  const deskId = params.deskId!;
+  const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const [agreement, agreementError] = useData<Agreement>(`/desks/${deskId}/agreement`);
-  const [page, error, reload] = useData<{ disagreements: Disagreement[]; next: number | null }>(`/desks/${deskId}/disagreements?limit=50`);
+  const [page, error, reload] = useData<{ disagreements: Disagreement[]; next: number | null }>(
+    `/desks/${deskId}/disagreements?limit=50`,
+  );
   const [more, setMore] = useState<Disagreement[]>([]);
   const rows = [...(page?.disagreements ?? []), ...more];
   const canSettle = me.role === 'supervisor';
@@ -48,30 +67,81 @@ export function DisagreementsPage({ me, params }: PageProps) {
   return (
     <section class="page">
       <h1>Agreement and disagreements</h1>
-      {(error || agreementError) && <p class="error" role="alert">{error ?? agreementError}</p>}
+      {(error || agreementError) && (
+        <p class="error" role="alert">
+          {error ?? agreementError}
+        </p>
+      )}
       {agreement && (
         <section class="agreement">
           <h2>Agreement between reviewers</h2>
-          {agreement.items === 0 && <p class="muted">No item has two verdicts yet. A share of decided items goes to a second reviewer (the desk's second-opinion share); agreement figures appear once those come back.</p>}
+          {agreement.items === 0 && (
+            <p class="muted">
+              No item has two verdicts yet. A share of decided items goes to a second reviewer (the desk's
+              second-opinion share); agreement figures appear once those come back.
+            </p>
+          )}
           {agreement.items > 0 && (
             <>
               <dl class="figures">
-                <div><dt>Krippendorff's alpha (nominal)</dt><dd>{num(agreement.krippendorff.alpha, 3)}</dd></div>
-                <div><dt>95 % bootstrap interval</dt><dd>{num(agreement.krippendorff.interval.lower, 2)} to {num(agreement.krippendorff.interval.upper, 2)}</dd></div>
-                <div><dt>Fleiss' kappa</dt><dd>{num(agreement.fleiss.kappa, 3)}</dd></div>
-                <div><dt>Items with two or more verdicts</dt><dd>{agreement.items}</dd></div>
+                <div>
+                  <dt>Krippendorff's alpha (nominal)</dt>
+                  <dd>{num(agreement.krippendorff.alpha, 3)}</dd>
+                </div>
+                <div>
+                  <dt>95 % bootstrap interval</dt>
+                  <dd>
+                    {num(agreement.krippendorff.interval.lower, 2)} to {num(agreement.krippendorff.interval.upper, 2)}
+                  </dd>
+                </div>
+                <div>
+                  <dt>Fleiss' kappa</dt>
+                  <dd>{num(agreement.fleiss.kappa, 3)}</dd>
+                </div>
+                <div>
+                  <dt>Items with two or more verdicts</dt>
+                  <dd>{agreement.items}</dd>
+                </div>
               </dl>
               <p class="muted">Abstentions count as missing values. {agreement.fleiss.unequalVerdicts}</p>
               <div class="chart-pair">
                 <table class="data">
                   <caption>Per category (Fleiss' kappa)</caption>
-                  <thead><tr><th>Category</th><th class="num">Verdicts</th><th class="num">Kappa</th></tr></thead>
-                  <tbody>{agreement.perCategory.map((c) => <tr><td>{c.category}</td><td class="num">{c.verdicts}</td><td class="num">{num(c.fleissKappa, 3)}</td></tr>)}</tbody>
+                  <thead>
+                    <tr>
+                      <th>Category</th>
+                      <th class="num">Verdicts</th>
+                      <th class="num">Kappa</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {agreement.perCategory.map((c) => (
+                      <tr>
+                        <td>{c.category}</td>
+                        <td class="num">{c.verdicts}</td>
+                        <td class="num">{num(c.fleissKappa, 3)}</td>
+                      </tr>
+                    ))}
+                  </tbody>
                 </table>
                 <table class="data">
                   <caption>Per pair of reviewers (Cohen's kappa)</caption>
-                  <thead><tr><th>Reviewers</th><th class="num">Shared items</th><th class="num">Kappa</th></tr></thead>
-                  <tbody>{agreement.cohen.map((c) => <tr><td>{c.reviewers.join(' and ')}</td><td class="num">{c.items}</td><td class="num">{num(c.kappa, 3)}</td></tr>)}</tbody>
+                  <thead>
+                    <tr>
+                      <th>Reviewers</th>
+                      <th class="num">Shared items</th>
+                      <th class="num">Kappa</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {agreement.cohen.map((c) => (
+                      <tr>
+                        <td>{c.reviewers.join(' and ')}</td>
+                        <td class="num">{c.items}</td>
+                        <td class="num">{num(c.kappa, 3)}</td>
+                      </tr>
+                    ))}
+                  </tbody>
                 </table>
               </div>
             </>
@@ -79,19 +149,52 @@ export function DisagreementsPage({ me, params }: PageProps) {
         </section>
       )}
       <h2>Items to settle</h2>
-      <p class="lead">{canSettle ? 'Settle an item with the category it belongs to and your reason. The settled label trains and calibrates from then on; every verdict stays in the trail.' : 'Read-only: supervisors settle these items.'}</p>
+      <p class="lead">
+        {canSettle
+          ? 'Settle an item with the category it belongs to and your reason. The settled label trains and calibrates from then on; every verdict stays in the trail.'
+          : 'Read-only: supervisors settle these items.'}
+      </p>
       {page && rows.length === 0 && <p class="empty">No disagreement on this desk.</p>}
       <ol class="disagreements">
-        {rows.map((d) => <DisagreementCard d={d} categories={desk?.categories.map((c) => c.name) ?? []} canSettle={canSettle} onSettled={() => { setMore([]); reload(); }} />)}
+        {rows.map((d) => (
+          <DisagreementCard
+            d={d}
+            categories={desk?.categories.map((c) => c.name) ?? []}
+            canSettle={canSettle}
+            onSettled={() => {
+              setMore([]);
+              reload();
+            }}
+          />
+        ))}
       </ol>
       {page?.next && rows.length >= 50 && more.length === 0 && (
-        <button type="button" onClick={async () => setMore((await get<{ disagreements: Disagreement[] }>(`/desks/${deskId}/disagreements?limit=200&after=${page.next}`)).disagreements)}>More</button>
+        <button
+          type="button"
+          onClick={() =>
+            void get<{ disagreements: Disagreement[] }>(
+              `/desks/${deskId}/disagreements?limit=200&after=${page.next}`,
+            ).then((p) => setMore(p.disagreements))
+          }
+        >
+          More
+        </button>
       )}
     </section>
   );
 }
 
-function DisagreementCard({ d, categories, canSettle, onSettled }: { d: Disagreement; categories: string[]; canSettle: boolean; onSettled: () => void }) {
+function DisagreementCard({
+  d,
+  categories,
+  canSettle,
+  onSettled,
+}: {
+  d: Disagreement;
+  categories: string[];
+  canSettle: boolean;
+  onSettled: () => void;
+}) {
   const [category, setCategory] = useState(d.settled?.category ?? '');
   const [reason, setReason] = useState('');
   const [error, setError] = useState<string | null>(null);
@@ -108,25 +211,67 @@ function DisagreementCard({ d, categories, canSettle, onSettled }: { d: Disagree
   };
   return (
     <li class="disagreement" data-item-id={d.item.id}>
-      <p class="item-meta">Item {d.item.id}{d.item.externalId ? ` · ref ${d.item.externalId}` : ''}</p>
+      <p class="item-meta">
+        Item {d.item.id}
+        {d.item.externalId ? ` · ref ${d.item.externalId}` : ''}
+      </p>
       <p class="item-text small">{d.item.text}</p>
-      <ul>{d.reasons.map((r) => <li>{why(r)}</li>)}</ul>
+      <ul>
+        {d.reasons.map((r) => (
+          <li>{why(r)}</li>
+        ))}
+      </ul>
       <table class="data">
-        <thead><tr><th>Reviewer</th><th>Verdict</th><th>When</th><th>Model showed</th></tr></thead>
-        <tbody>{d.verdicts.map((v) => <tr class={v.undoneAt ? 'undone' : ''}><td>{v.reviewer}</td><td>{v.abstain ? 'abstain' : v.category}</td><td>{when(v.createdAt)}</td><td>{v.modelVersion ? `v${v.modelVersion}: ${v.shownCall}` : 'no model'}</td></tr>)}</tbody>
+        <thead>
+          <tr>
+            <th>Reviewer</th>
+            <th>Verdict</th>
+            <th>When</th>
+            <th>Model showed</th>
+          </tr>
+        </thead>
+        <tbody>
+          {d.verdicts.map((v) => (
+            <tr class={v.undoneAt ? 'undone' : ''}>
+              <td>{v.reviewer}</td>
+              <td>{v.abstain ? 'abstain' : v.category}</td>
+              <td>{when(v.createdAt)}</td>
+              <td>{v.modelVersion ? `v${v.modelVersion}: ${v.shownCall}` : 'no model'}</td>
+            </tr>
+          ))}
+        </tbody>
       </table>
-      {d.settled && <p class="notice">Settled as <strong>{d.settled.category}</strong> by {d.settled.settledBy}, {when(d.settled.settledAt)}: “{d.settled.reason}”</p>}
+      {d.settled && (
+        <p class="notice">
+          Settled as <strong>{d.settled.category}</strong> by {d.settled.settledBy}, {when(d.settled.settledAt)}: “
+          {d.settled.reason}”
+        </p>
+      )}
       {canSettle && (
-        <form class="settle" onSubmit={settle}>
-          <label>Category
+        <form class="settle" onSubmit={(e) => void settle(e)}>
+          <label>
+            Category
             <select required value={category} onChange={(e) => setCategory(e.currentTarget.value)}>
-              <option value="" disabled>choose</option>
-              {categories.map((c) => <option value={c}>{c}</option>)}
+              <option value="" disabled>
+                choose
+              </option>
+              {categories.map((c) => (
+                <option value={c}>{c}</option>
+              ))}
             </select>
           </label>
-          <label class="grow">Reason<input required maxLength={2000} value={reason} onInput={(e) => setReason(e.currentTarget.value)} /></label>
-          <button type="submit" class="primary">{d.settled ? 'Settle again' : 'Settle'}</button>
-          {error && <p class="error" role="alert">{error}</p>}
+          <label class="grow">
+            Reason
+            <input required maxLength={2000} value={reason} onInput={(e) => setReason(e.currentTarget.value)} />
+          </label>
+          <button type="submit" class="primary">
+            {d.settled ? 'Settle again' : 'Settle'}
+          </button>
+          {error && (
+            <p class="error" role="alert">
+              {error}
+            </p>
+          )}
         </form>
       )}
     </li>

@@ -7,14 +7,14 @@ const FINISHED = new Set(['done', 'failed']);
 
 /** Import a file: upload with a progress bar, then the rows as the worker reads them, then every rejected row with its reason. */
 export function ImportPage({ params }: PageProps) {
-  const deskId = params.deskId!;
+  const deskId = params.deskId;
   const [file, setFile] = useState<File | null>(null);
   const [sent, setSent] = useState<{ sent: number; total: number } | null>(null);
   const [current, setCurrent] = useState<ImportView | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [history, , reloadHistory] = useData<{ imports: ImportView[] }>(`/desks/${deskId}/imports`);
 
-  useInterval(async () => {
+  const poll = async () => {
     if (!current || FINISHED.has(current.state)) return;
     try {
       const v = await get<ImportView>(`/imports/${current.id}`);
@@ -23,7 +23,8 @@ export function ImportPage({ params }: PageProps) {
     } catch (e) {
       setError((e as Error).message);
     }
-  }, current && !FINISHED.has(current.state) ? 500 : null);
+  };
+  useInterval(() => void poll(), current && !FINISHED.has(current.state) ? 500 : null);
 
   const start = async (e: Event) => {
     e.preventDefault();
@@ -43,27 +44,76 @@ export function ImportPage({ params }: PageProps) {
   return (
     <section class="page">
       <h1>Import texts</h1>
-      <p class="lead">NDJSON (one JSON object per line), CSV with a header row, or a JSON array. Each row needs a <code>text</code>; <code>externalId</code>, <code>source</code> and <code>createdAt</code> (when the text was posted) are optional, and any other field is kept as the item's details. Rows with the same external id or the same text as an item already on the desk are counted as duplicates, not imported twice.</p>
-      <form class="import-form" onSubmit={start}>
-        <label class="file-drop"
+      <p class="lead">
+        NDJSON (one JSON object per line), CSV with a header row, or a JSON array. Each row needs a <code>text</code>;{' '}
+        <code>externalId</code>, <code>source</code> and <code>createdAt</code> (when the text was posted) are optional,
+        and any other field is kept as the item's details. Rows with the same external id or the same text as an item
+        already on the desk are counted as duplicates, not imported twice.
+      </p>
+      <form class="import-form" onSubmit={(e) => void start(e)}>
+        <label
+          class="file-drop"
           onDragOver={(e) => e.preventDefault()}
-          onDrop={(e) => { e.preventDefault(); const f = e.dataTransfer?.files[0]; if (f) setFile(f); }}>
+          onDrop={(e) => {
+            e.preventDefault();
+            const f = e.dataTransfer?.files[0];
+            if (f) setFile(f);
+          }}
+        >
           <span>{file ? `${file.name} (${count(file.size)} bytes)` : 'Choose a file or drop it here'}</span>
-          <input type="file" name="file" accept=".ndjson,.jsonl,.csv,.json,application/json,text/csv,application/x-ndjson" onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)} />
+          <input
+            type="file"
+            name="file"
+            accept=".ndjson,.jsonl,.csv,.json,application/json,text/csv,application/x-ndjson"
+            onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)}
+          />
         </label>
-        <button type="submit" class="primary" disabled={!file || (sent !== null && !current) || (current !== null && !FINISHED.has(current.state))}>Import</button>
+        <button
+          type="submit"
+          class="primary"
+          disabled={!file || (sent !== null && !current) || (current !== null && !FINISHED.has(current.state))}
+        >
+          Import
+        </button>
       </form>
-      {error && <p class="error" role="alert">{error}</p>}
-      {sent && !current && <Bar label="Uploading" value={sent.sent} max={sent.total} text={`${count(sent.sent)} of ${count(sent.total)} bytes sent`} />}
+      {error && (
+        <p class="error" role="alert">
+          {error}
+        </p>
+      )}
+      {sent && !current && (
+        <Bar
+          label="Uploading"
+          value={sent.sent}
+          max={sent.total}
+          text={`${count(sent.sent)} of ${count(sent.total)} bytes sent`}
+        />
+      )}
       {current && <ImportProgress v={current} />}
       <h2>Earlier imports</h2>
       {history && history.imports.length === 0 && <p class="muted">None yet.</p>}
       {history && history.imports.length > 0 && (
         <table class="data">
-          <thead><tr><th>File</th><th>Started</th><th>State</th><th class="num">Imported</th><th class="num">Duplicates</th><th class="num">Rejected</th></tr></thead>
+          <thead>
+            <tr>
+              <th>File</th>
+              <th>Started</th>
+              <th>State</th>
+              <th class="num">Imported</th>
+              <th class="num">Duplicates</th>
+              <th class="num">Rejected</th>
+            </tr>
+          </thead>
           <tbody>
             {history.imports.map((i) => (
-              <tr><td>{i.fileName ?? '(request body)'}</td><td>{when(i.createdAt)}</td><td>{i.state}</td><td class="num">{count(i.imported)}</td><td class="num">{count(i.duplicates)}</td><td class="num">{count(i.rejected)}</td></tr>
+              <tr>
+                <td>{i.fileName ?? '(request body)'}</td>
+                <td>{when(i.createdAt)}</td>
+                <td>{i.state}</td>
+                <td class="num">{count(i.imported)}</td>
+                <td class="num">{count(i.duplicates)}</td>
+                <td class="num">{count(i.rejected)}</td>
+              </tr>
             ))}
           </tbody>
         </table>
@@ -75,7 +125,12 @@ export function ImportPage({ params }: PageProps) {
 function Bar({ label, value, max, text }: { label: string; value: number; max: number; text: string }) {
   return (
     <div class="progress-block">
-      <label>{label}<progress value={value} max={max || 1}>{text}</progress></label>
+      <label>
+        {label}
+        <progress value={value} max={max || 1}>
+          {text}
+        </progress>
+      </label>
       <p class="muted">{text}</p>
     </div>
   );
@@ -85,21 +140,60 @@ function ImportProgress({ v }: { v: ImportView }) {
   const done = v.state === 'done';
   return (
     <section class="import-progress" aria-live="polite" data-state={v.state}>
-      <h2>{v.fileName ?? 'Import'}: {done ? 'finished' : v.state === 'failed' ? 'failed' : v.state === 'queued' ? 'waiting for a worker' : 'reading rows'}</h2>
+      <h2>
+        {v.fileName ?? 'Import'}:{' '}
+        {done
+          ? 'finished'
+          : v.state === 'failed'
+            ? 'failed'
+            : v.state === 'queued'
+              ? 'waiting for a worker'
+              : 'reading rows'}
+      </h2>
       {!done && v.state !== 'failed' && <progress aria-label="Rows read" />}
       {done && <progress aria-label="Rows read" value={1} max={1} />}
       <dl class="figures">
-        <div><dt>Rows read</dt><dd>{count(v.rowsRead)}</dd></div>
-        <div><dt>Imported</dt><dd>{count(v.imported)}</dd></div>
-        <div><dt>Duplicates</dt><dd>{count(v.duplicates)}</dd></div>
-        <div><dt>Rejected</dt><dd class={v.rejected ? 'bad' : ''}>{count(v.rejected)}</dd></div>
+        <div>
+          <dt>Rows read</dt>
+          <dd>{count(v.rowsRead)}</dd>
+        </div>
+        <div>
+          <dt>Imported</dt>
+          <dd>{count(v.imported)}</dd>
+        </div>
+        <div>
+          <dt>Duplicates</dt>
+          <dd>{count(v.duplicates)}</dd>
+        </div>
+        <div>
+          <dt>Rejected</dt>
+          <dd class={v.rejected ? 'bad' : ''}>{count(v.rejected)}</dd>
+        </div>
       </dl>
-      {v.failure && <p class="error" role="alert">The import stopped: {v.failure}</p>}
+      {v.failure && (
+        <p class="error" role="alert">
+          The import stopped: {v.failure}
+        </p>
+      )}
       {v.errors.length > 0 && (
         <table class="data row-errors">
-          <caption>Rejected rows{v.errors.length < v.rejected ? ` (the first ${v.errors.length} of ${v.rejected})` : ''}</caption>
-          <thead><tr><th class="num">Row</th><th>Reason</th></tr></thead>
-          <tbody>{v.errors.map((e) => <tr><td class="num">{e.row}</td><td>{e.reason}</td></tr>)}</tbody>
+          <caption>
+            Rejected rows{v.errors.length < v.rejected ? ` (the first ${v.errors.length} of ${v.rejected})` : ''}
+          </caption>
+          <thead>
+            <tr>
+              <th class="num">Row</th>
+              <th>Reason</th>
+            </tr>
+          </thead>
+          <tbody>
+            {v.errors.map((e) => (
+              <tr>
+                <td class="num">{e.row}</td>
+                <td>{e.reason}</td>
+              </tr>
+            ))}
+          </tbody>
         </table>
       )}
     </section>

@@ -6,25 +6,55 @@ const sum = (r: Record<string, number>) => Object.values(r).reduce((a, b) => a +
 
 /** Every model version of the desk with its figures; read-only. */
 export function ModelsPage({ params }: PageProps) {
-  const deskId = params.deskId!;
-  const [data, error] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(`/desks/${deskId}/models`);
-  const [reports] = useData<{ reports: Array<{ version: number; status: 'writing' | 'ready' | 'failed' | 'pending'; failure: string | null }> }>(`/desks/${deskId}/reports`);
+  const deskId = params.deskId;
+  const [data, error] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(
+    `/desks/${deskId}/models`,
+  );
+  const [reports] = useData<{
+    reports: Array<{ version: number; status: 'writing' | 'ready' | 'failed' | 'pending'; failure: string | null }>;
+  }>(`/desks/${deskId}/reports`);
   const report = (v: number) => reports?.reports.find((r) => r.version === v);
   return (
     <section class="page">
       <h1>Model versions</h1>
-      <p class="lead">Each version is trained on verdicts of non-random draws and calibrated on verdicts of random draws only; it never changes once published. Quality figures are measured on its calibration set.</p>
-      {error && <p class="error" role="alert">{error}</p>}
-      {data && data.models.length === 0 && <p class="empty">No model version yet. The first one is trained once every category has two training verdicts.</p>}
+      <p class="lead">
+        Each version is trained on verdicts of non-random draws and calibrated on verdicts of random draws only; it
+        never changes once published. Quality figures are measured on its calibration set.
+      </p>
+      {error && (
+        <p class="error" role="alert">
+          {error}
+        </p>
+      )}
+      {data && data.models.length === 0 && (
+        <p class="empty">
+          No model version yet. The first one is trained once every category has two training verdicts.
+        </p>
+      )}
       {data && data.models.length > 0 && (
         <table class="data models-table">
           <thead>
-            <tr><th>Version</th><th>State</th><th>Published</th><th class="num">Trained on</th><th class="num">Calibrated on</th><th class="num">Accuracy</th><th class="num">Macro-F1</th><th class="num">Log loss</th><th class="num">Brier</th><th class="num">ECE</th><th>Oversight report</th></tr>
+            <tr>
+              <th>Version</th>
+              <th>State</th>
+              <th>Published</th>
+              <th class="num">Trained on</th>
+              <th class="num">Calibrated on</th>
+              <th class="num">Accuracy</th>
+              <th class="num">Macro-F1</th>
+              <th class="num">Log loss</th>
+              <th class="num">Brier</th>
+              <th class="num">ECE</th>
+              <th>Oversight report</th>
+            </tr>
           </thead>
           <tbody>
             {data.models.map((m) => (
               <tr>
-                <td><a href={`/desks/${deskId}/models/${m.version}`}>v{m.version}</a>{m.version === data.currentModelVersion && <span class="tag">current</span>}</td>
+                <td>
+                  <a href={`/desks/${deskId}/models/${m.version}`}>v{m.version}</a>
+                  {m.version === data.currentModelVersion && <span class="tag">current</span>}
+                </td>
                 <td>{m.state}</td>
                 <td>{when(m.publishedAt)}</td>
                 <td class="num">{count(sum(m.trainingCounts))}</td>
@@ -34,7 +64,9 @@ export function ModelsPage({ params }: PageProps) {
                 <td class="num">{num(m.metrics?.logLoss, 3)}</td>
                 <td class="num">{num(m.metrics?.brier, 3)}</td>
                 <td class="num">{num(m.metrics?.ece, 3)}</td>
-                <td><ReportLinks deskId={deskId} version={m.version} status={report(m.version)?.status} /></td>
+                <td>
+                  <ReportLinks deskId={deskId} version={m.version} status={report(m.version)?.status} />
+                </td>
               </tr>
             ))}
           </tbody>
@@ -46,7 +78,17 @@ export function ModelsPage({ params }: PageProps) {
 
 function ReportLinks({ deskId, version, status }: { deskId: string; version: number; status?: string }) {
   if (status === 'ready') {
-    return <><a href={`/api/desks/${deskId}/models/${version}/report.html`} target="_blank" rel="noopener">HTML</a> · <a href={`/api/desks/${deskId}/models/${version}/report.json`} download>JSON</a></>;
+    return (
+      <>
+        <a href={`/api/desks/${deskId}/models/${version}/report.html`} target="_blank" rel="noopener">
+          HTML
+        </a>{' '}
+        ·{' '}
+        <a href={`/api/desks/${deskId}/models/${version}/report.json`} download>
+          JSON
+        </a>
+      </>
+    );
   }
   if (status === 'failed') return <span class="bad">could not be written</span>;
   if (status === 'writing' || status === 'pending') return <span class="muted">being written</span>;

@@ -31,7 +31,7 @@ const label = (c: Choice) => ('abstain' in c ? 'abstain' : c.category);
  * both answers are back.
  */
 export function QueuePage({ params }: PageProps) {
-  const deskId = params.deskId!;
+  const deskId = params.deskId;
   const [desk, setDesk] = useState<Desk | null>(null);
   const [grant, setGrant] = useState<LeaseGrant | null>(null);
   const [empty, setEmpty] = useState<string | null>(null);
@@ -50,7 +50,12 @@ export function QueuePage({ params }: PageProps) {
   const noteRef = useRef<HTMLTextAreaElement>(null);
 
   useInterval(() => setNow(Date.now()), 1000);
-  useInterval(() => { if (empty !== null && !busy) void next(); }, empty !== null ? 15_000 : null);
+  useInterval(
+    () => {
+      if (empty !== null && !busy) void next();
+    },
+    empty !== null ? 15_000 : null,
+  );
 
   const show = (g: LeaseGrant | null, why?: Progress) => {
     setGrant(g);
@@ -90,7 +95,14 @@ export function QueuePage({ params }: PageProps) {
     sending.current = true;
     setBusy(true);
     setFailed(null);
-    const body = { leaseId: p.grant.lease.id, itemId: p.grant.item.id, clientId: p.clientId, elapsedMs: p.elapsedMs, ...(p.note.trim() ? { note: p.note.trim() } : {}), ...p.choice };
+    const body = {
+      leaseId: p.grant.lease.id,
+      itemId: p.grant.item.id,
+      clientId: p.clientId,
+      elapsedMs: p.elapsedMs,
+      ...(p.note.trim() ? { note: p.note.trim() } : {}),
+      ...p.choice,
+    };
     const submit = async (): Promise<Verdict> => {
       for (let attempt = 0; ; attempt++) {
         try {
@@ -101,16 +113,24 @@ export function QueuePage({ params }: PageProps) {
         }
       }
     };
-    const [verdict, nextGrant] = await Promise.allSettled([submit(), post<LeaseGrant | null>(`/desks/${deskId}/leases`)]);
+    const [verdict, nextGrant] = await Promise.allSettled([
+      submit(),
+      post<LeaseGrant | null>(`/desks/${deskId}/leases`),
+    ]);
     if (verdict.status === 'fulfilled') {
       setLast({ verdict: verdict.value, label: label(p.choice), at: Date.now() });
       setNotice(null);
     } else {
       setFailed(p);
-      setError(`Your verdict “${label(p.choice)}” on item ${p.grant.item.id} was not recorded: ${(verdict.reason as Error).message}`);
+      setError(
+        `Your verdict “${label(p.choice)}” on item ${p.grant.item.id} was not recorded: ${(verdict.reason as Error).message}`,
+      );
     }
     if (nextGrant.status === 'fulfilled') {
-      show(nextGrant.value, nextGrant.value ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined));
+      show(
+        nextGrant.value,
+        nextGrant.value ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined),
+      );
       if (verdict.status === 'fulfilled') setError(null);
     } else if (verdict.status === 'fulfilled') {
       setError((nextGrant.reason as Error).message);
@@ -125,14 +145,22 @@ export function QueuePage({ params }: PageProps) {
       setSelected(choice);
       return;
     }
-    void send({ choice, clientId: clientId(), grant, elapsedMs: Math.round(performance.now() - shownAt.current), note });
+    void send({
+      choice,
+      clientId: clientId(),
+      grant,
+      elapsedMs: Math.round(performance.now() - shownAt.current),
+      note,
+    });
   }
 
   async function undo(): Promise<void> {
     if (!last || sending.current) return;
     try {
       await post(`/verdicts/${last.verdict.id}/undo`);
-      setNotice(`Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`);
+      setNotice(
+        `Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`,
+      );
       setLast(null);
       if (!grant) await next();
     } catch (e) {
@@ -141,7 +169,10 @@ export function QueuePage({ params }: PageProps) {
   }
 
   const categories = desk?.categories.map((c) => c.name) ?? [];
-  const keyed = [...categories.slice(0, 9).map((c, i) => ({ key: String(i + 1), choice: { category: c } as Choice, text: c })), { key: '0', choice: { abstain: true } as Choice, text: 'abstain' }];
+  const keyed = [
+    ...categories.slice(0, 9).map((c, i) => ({ key: String(i + 1), choice: { category: c }, text: c })),
+    { key: '0', choice: { abstain: true } as Choice, text: 'abstain' },
+  ];
 
   // The key handler is replaced on every render and read when a key arrives, so a key pressed the moment the next
   // item is drawn acts on that item (an effect would install the new handler only after the browser has painted).
@@ -154,11 +185,29 @@ export function QueuePage({ params }: PageProps) {
     }
     if (e.ctrlKey || e.metaKey || e.altKey) return;
     const k = keyed.find((x) => x.key === e.key);
-    if (k) { e.preventDefault(); decide(k.choice); return; }
-    if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') { e.preventDefault(); decide(selected); return; }
-    if (e.key === 'Escape' && selected) { setSelected(null); return; }
-    if (e.key === 'u') { e.preventDefault(); void undo(); return; }
-    if (e.key === 'n') { e.preventDefault(); noteRef.current?.focus(); }
+    if (k) {
+      e.preventDefault();
+      decide(k.choice);
+      return;
+    }
+    if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') {
+      e.preventDefault();
+      decide(selected);
+      return;
+    }
+    if (e.key === 'Escape' && selected) {
+      setSelected(null);
+      return;
+    }
+    if (e.key === 'u') {
+      e.preventDefault();
+      void undo();
+      return;
+    }
+    if (e.key === 'n') {
+      e.preventDefault();
+      noteRef.current?.focus();
+    }
   };
   useEffect(() => {
     const listener = (e: KeyboardEvent) => onKey.current(e);
@@ -173,12 +222,28 @@ export function QueuePage({ params }: PageProps) {
   return (
     <section class="queue" aria-busy={busy}>
       <div class="queue-main">
-        {error && <p class="error" role="alert">{error} {failed && <button type="button" onClick={() => void send(failed)}>Send it again</button>}</p>}
-        {notice && <p class="notice" role="status">{notice}</p>}
+        {error && (
+          <p class="error" role="alert">
+            {error}{' '}
+            {failed && (
+              <button type="button" onClick={() => void send(failed)}>
+                Send it again
+              </button>
+            )}
+          </p>
+        )}
+        {notice && (
+          <p class="notice" role="status">
+            {notice}
+          </p>
+        )}
         {grant && leaseLeft <= 0 && (
           <p class="warning" role="alert">
-            Your hold on this item ended at {new Date(grant.lease.expiresAt).toLocaleTimeString('en-GB')}. Another reviewer may have it now. A verdict is still
-            accepted if nobody else has taken the item. <button type="button" onClick={() => void next()}>Take the next item instead</button>
+            Your hold on this item ended at {new Date(grant.lease.expiresAt).toLocaleTimeString('en-GB')}. Another
+            reviewer may have it now. A verdict is still accepted if nobody else has taken the item.{' '}
+            <button type="button" onClick={() => void next()}>
+              Take the next item instead
+            </button>
           </p>
         )}
         {grant && (
@@ -191,23 +256,44 @@ export function QueuePage({ params }: PageProps) {
             </header>
             <HighlightedText text={grant.item.text} highlights={grant.highlights} categories={categories} />
             {grant.highlights.length > 0 && (
-              <p class="seed-legend muted">Marked: seed terms, numbered by the category they belong to ({categories.map((c, i) => `${i + 1} ${c}`).join(', ')}).</p>
+              <p class="seed-legend muted">
+                Marked: seed terms, numbered by the category they belong to (
+                {categories.map((c, i) => `${i + 1} ${c}`).join(', ')}).
+              </p>
             )}
           </article>
         )}
         {grant && (
           <p class="keys muted" aria-label="Keys">
-            Keys: {keyed.map((k) => <span><kbd>{k.key}</kbd> {k.text} </span>)}· <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note{confirm ? <> · <kbd>Enter</kbd> confirm</> : null}
+            Keys:{' '}
+            {keyed.map((k) => (
+              <span>
+                <kbd>{k.key}</kbd> {k.text}{' '}
+              </span>
+            ))}
+            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note
+            {confirm ? (
+              <>
+                {' '}
+                · <kbd>Enter</kbd> confirm
+              </>
+            ) : null}
           </p>
         )}
         {!grant && empty && (
           <div class="empty-queue" role="status">
             <h1>Nothing to decide right now</h1>
             <p>{empty}</p>
-            <button type="button" onClick={() => void next()}>Look again</button>
+            <button type="button" onClick={() => void next()}>
+              Look again
+            </button>
           </div>
         )}
-        {!grant && !empty && !error && <p class="loading" role="status">Fetching the next item…</p>}
+        {!grant && !empty && !error && (
+          <p class="loading" role="status">
+            Fetching the next item…
+          </p>
+        )}
       </div>
       <aside class="queue-side" aria-label="Decision">
         {grant && <CallStatement prediction={grant.prediction} target={desk?.coverageTarget ?? 0.9} />}
@@ -229,19 +315,57 @@ export function QueuePage({ params }: PageProps) {
                 </button>
               ))}
             </div>
-            {confirm && selected && <p class="confirm-hint" role="status">Press <kbd>Enter</kbd> to confirm “{label(selected)}”, or another key to change.</p>}
-            <label class="note">Note (optional, <kbd>n</kbd>; <kbd>Esc</kbd> leaves)
-              <textarea ref={noteRef} rows={2} maxLength={2000} value={note} onInput={(e) => setNote(e.currentTarget.value)} />
+            {confirm && selected && (
+              <p class="confirm-hint" role="status">
+                Press <kbd>Enter</kbd> to confirm “{label(selected)}”, or another key to change.
+              </p>
+            )}
+            <label class="note">
+              Note (optional, <kbd>n</kbd>; <kbd>Esc</kbd> leaves)
+              <textarea
+                ref={noteRef}
+                rows={2}
+                maxLength={2000}
+                value={note}
+                onInput={(e) => setNote(e.currentTarget.value)}
+              />
             </label>
-            <label class="check"><input type="checkbox" checked={confirm} onChange={(e) => { setConfirm(e.currentTarget.checked); localStorage.setItem(CONFIRM_KEY, e.currentTarget.checked ? 'on' : 'off'); setSelected(null); }} /> Confirm each verdict with Enter</label>
+            <label class="check">
+              <input
+                type="checkbox"
+                checked={confirm}
+                onChange={(e) => {
+                  setConfirm(e.currentTarget.checked);
+                  localStorage.setItem(CONFIRM_KEY, e.currentTarget.checked ? 'on' : 'off');
+                  setSelected(null);
+                }}
+              />{' '}
+              Confirm each verdict with Enter
+            </label>
           </div>
         )}
         <dl class="timers">
-          {grant && <><dt>On this item</dt><dd>{clock(onItem)}</dd></>}
-          {grant && <><dt>Hold ends in</dt><dd class={leaseLeft < 60_000 ? 'soon' : ''}>{leaseLeft > 0 ? clock(leaseLeft) : 'ended'}</dd></>}
+          {grant && (
+            <>
+              <dt>On this item</dt>
+              <dd>{clock(onItem)}</dd>
+            </>
+          )}
+          {grant && (
+            <>
+              <dt>Hold ends in</dt>
+              <dd class={leaseLeft < 60_000 ? 'soon' : ''}>{leaseLeft > 0 ? clock(leaseLeft) : 'ended'}</dd>
+            </>
+          )}
         </dl>
         {last && undoLeft > 0 && (
-          <p class="undo">Last: “{last.label}” on item {last.verdict.itemId}. <button type="button" class="quiet" onClick={() => void undo()}><kbd>u</kbd> Undo</button> <span class="muted">({clock(undoLeft)} left)</span></p>
+          <p class="undo">
+            Last: “{last.label}” on item {last.verdict.itemId}.{' '}
+            <button type="button" class="quiet" onClick={() => void undo()}>
+              <kbd>u</kbd> Undo
+            </button>{' '}
+            <span class="muted">({clock(undoLeft)} left)</span>
+          </p>
         )}
       </aside>
     </section>
@@ -251,7 +375,9 @@ export function QueuePage({ params }: PageProps) {
 function emptyReason(p: Progress | null): string {
   if (!p) return 'The queue gave no item.';
   if (p.items.total === 0) return 'This desk has no items yet: it is waiting for a supervisor to import texts.';
-  if (p.items.open === 0 && p.items.leased === 0) return `Every one of the ${p.items.total} items on this desk has a verdict. New items appear here once a supervisor imports more.`;
-  if (p.items.open === 0) return `The remaining ${p.items.leased} items are with other reviewers right now. This screen looks again every 15 seconds.`;
+  if (p.items.open === 0 && p.items.leased === 0)
+    return `Every one of the ${p.items.total} items on this desk has a verdict. New items appear here once a supervisor imports more.`;
+  if (p.items.open === 0)
+    return `The remaining ${p.items.leased} items are with other reviewers right now. This screen looks again every 15 seconds.`;
   return 'No item could be handed to you just now. This screen looks again every 15 seconds.';
 }

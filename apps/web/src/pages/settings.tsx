@@ -9,14 +9,26 @@ export function SettingsPage({ params }: PageProps) {
   return (
     <section class="page narrow">
       <h1>Settings</h1>
-      {error && <p class="error" role="alert">{error}</p>}
-      {saved && <p class="notice" role="status">{saved}</p>}
+      {error && (
+        <p class="error" role="alert">
+          {error}
+        </p>
+      )}
+      {saved && (
+        <p class="notice" role="status">
+          {saved}
+        </p>
+      )}
       {desk && (
         <DeskForm
           key={String(desk.updatedAt)}
           initial={desk}
           submitLabel="Save the settings"
-          onSubmit={async (v) => { await patch(`/desks/${desk.id}`, v); setSaved(`Saved at ${new Date().toLocaleTimeString('en-GB')}. Every change is kept in the audit trail.`); reload(); }}
+          onSubmit={async (v) => {
+            await patch(`/desks/${desk.id}`, v);
+            setSaved(`Saved at ${new Date().toLocaleTimeString('en-GB')}. Every change is kept in the audit trail.`);
+            reload();
+          }}
         />
       )}
     </section>

@@ -19,7 +19,9 @@ export class AuditEventEntity {
 export const auditEventSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<AuditEventEntity>({
-    name: 'AuditEventEntity', target: AuditEventEntity, tableName: 'audit_events',
+    name: 'AuditEventEntity',
+    target: AuditEventEntity,
+    tableName: 'audit_events',
     columns: {
       id: c.id(),
       at: c.time('at'),

@@ -14,7 +14,9 @@ export class CategoryEntity {
 export const categorySchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<CategoryEntity>({
-    name: 'CategoryEntity', target: CategoryEntity, tableName: 'categories',
+    name: 'CategoryEntity',
+    target: CategoryEntity,
+    tableName: 'categories',
     columns: {
       id: c.id(),
       deskId: c.int('desk_id'),

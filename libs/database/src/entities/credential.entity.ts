@@ -22,7 +22,9 @@ export class CredentialEntity {
 export const credentialSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<CredentialEntity>({
-    name: 'CredentialEntity', target: CredentialEntity, tableName: 'credentials',
+    name: 'CredentialEntity',
+    target: CredentialEntity,
+    tableName: 'credentials',
     columns: {
       id: c.id(),
       userId: c.int('user_id'),

@@ -38,7 +38,9 @@ export class DeskEntity {
 export const deskSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<DeskEntity>({
-    name: 'DeskEntity', target: DeskEntity, tableName: 'desks',
+    name: 'DeskEntity',
+    target: DeskEntity,
+    tableName: 'desks',
     columns: {
       id: c.id(),
       name: c.varchar('name', 200),

@@ -36,14 +36,20 @@ export class ImportEntity {
 export const importSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<ImportEntity>({
-    name: 'ImportEntity', target: ImportEntity, tableName: 'imports',
+    name: 'ImportEntity',
+    target: ImportEntity,
+    tableName: 'imports',
     columns: {
       id: c.uuid(),
       deskId: c.int('desk_id'),
       format: c.varchar('format', 10),
       fileName: c.varchar('file_name', 255, true),
       state: c.varchar('state', 12),
-      bytesReceived: { type: 'bigint', name: 'bytes_received', transformer: { to: (v: number) => v, from: (v: string | number) => Number(v) } },
+      bytesReceived: {
+        type: 'bigint',
+        name: 'bytes_received',
+        transformer: { to: (v: number) => v, from: (v: string | number) => Number(v) },
+      },
       rowsRead: c.int('rows_read'),
       imported: c.int('imported'),
       duplicates: c.int('duplicates'),

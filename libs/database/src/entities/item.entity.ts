@@ -37,7 +37,9 @@ export class ItemEntity {
 export const itemSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<ItemEntity>({
-    name: 'ItemEntity', target: ItemEntity, tableName: 'items',
+    name: 'ItemEntity',
+    target: ItemEntity,
+    tableName: 'items',
     columns: {
       id: c.id(),
       deskId: c.int('desk_id'),

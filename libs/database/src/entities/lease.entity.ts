@@ -34,7 +34,9 @@ export class LeaseEntity {
 export const leaseSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<LeaseEntity>({
-    name: 'LeaseEntity', target: LeaseEntity, tableName: 'leases',
+    name: 'LeaseEntity',
+    target: LeaseEntity,
+    tableName: 'leases',
     columns: {
       id: c.uuid(),
       deskId: c.int('desk_id'),

@@ -24,7 +24,9 @@ export class ModelReportEntity {
 export const modelReportSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<ModelReportEntity>({
-    name: 'ModelReportEntity', target: ModelReportEntity, tableName: 'model_reports',
+    name: 'ModelReportEntity',
+    target: ModelReportEntity,
+    tableName: 'model_reports',
     columns: {
       id: c.id(),
       deskId: c.int('desk_id'),

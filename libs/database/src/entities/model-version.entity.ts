@@ -47,7 +47,9 @@ export class ModelVersionEntity {
 export const modelVersionSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<ModelVersionEntity>({
-    name: 'ModelVersionEntity', target: ModelVersionEntity, tableName: 'model_versions',
+    name: 'ModelVersionEntity',
+    target: ModelVersionEntity,
+    tableName: 'model_versions',
     columns: {
       id: c.id(),
       deskId: c.int('desk_id'),

@@ -18,7 +18,9 @@ export class UserEntity {
 export const userSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<UserEntity>({
-    name: 'UserEntity', target: UserEntity, tableName: 'users',
+    name: 'UserEntity',
+    target: UserEntity,
+    tableName: 'users',
     columns: {
       id: c.id(),
       name: c.varchar('name', 100),

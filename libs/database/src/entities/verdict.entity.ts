@@ -29,7 +29,9 @@ export class VerdictEntity {
 export const verdictSchema = (d: Dialect) => {
   const c = columns(d);
   return new EntitySchema<VerdictEntity>({
-    name: 'VerdictEntity', target: VerdictEntity, tableName: 'verdicts',
+    name: 'VerdictEntity',
+    target: VerdictEntity,
+    tableName: 'verdicts',
     columns: {
       id: c.id(),
       deskId: c.int('desk_id'),

@@ -17,20 +17,29 @@ export class TermCounts1765100000000 implements MigrationInterface {
   name = 'TermCounts1765100000000';
 
   async up(qr: QueryRunner): Promise<void> {
-    const pg = qr.connection.options.type === 'postgres';
-    await qr.createTable(new Table({
-      name: 'item_term_counts',
-      columns: [
-        { name: 'item_id', type: 'integer', isPrimary: true },
-        { name: 'featurizer', type: 'varchar', length: '40' },
-        { name: 'counts', type: pg ? 'bytea' : 'blob' },
-      ],
-      // Format byte and term count at least (see libs/models term-counts.ts).
-      checks: [{ name: 'ck_item_term_counts_bytes', expression: 'length(counts) >= 2' }],
-      // To the primary key: PostgreSQL checks it with an index probe whatever the statistics say. Checked
-      // against (id, desk_id), the check's plan, made while a first import had few rows, stayed a sequential scan.
-      foreignKeys: [new TableForeignKey({ columnNames: ['item_id'], referencedTableName: 'items', referencedColumnNames: ['id'], onDelete: 'CASCADE' })],
-    }));
+    const pg = qr.dataSource.options.type === 'postgres';
+    await qr.createTable(
+      new Table({
+        name: 'item_term_counts',
+        columns: [
+          { name: 'item_id', type: 'integer', isPrimary: true },
+          { name: 'featurizer', type: 'varchar', length: '40' },
+          { name: 'counts', type: pg ? 'bytea' : 'blob' },
+        ],
+        // Format byte and term count at least (see libs/models term-counts.ts).
+        checks: [{ name: 'ck_item_term_counts_bytes', expression: 'length(counts) >= 2' }],
+        // To the primary key: PostgreSQL checks it with an index probe whatever the statistics say. Checked
+        // against (id, desk_id), the check's plan, made while a first import had few rows, stayed a sequential scan.
+        foreignKeys: [
+          new TableForeignKey({
+            columnNames: ['item_id'],
+            referencedTableName: 'items',
+            referencedColumnNames: ['id'],
+            onDelete: 'CASCADE',
+          }),
+        ],
+      }),
+    );
     // The lease query asks for state = 'leased' AND leased_until < now, oldest first: the predicate matches.
     await qr.query('DROP INDEX ix_items_expiry');
     await qr.query("CREATE INDEX ix_items_expiry ON items (desk_id, leased_until) WHERE state = 'leased'");

@@ -1,6 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import { compileSeedTerms, createRng, normalizedTextHash } from '#learning';
-import { DEMO_POOL_SIZE, generateMossbankPool, HARD_CASES, MOSSBANK_CATEGORIES, MOSSBANK_SEED_TERMS, mossbankNdjson, readingPauseMs, simulatedAnswer } from './index.js';
+import {
+  DEMO_POOL_SIZE,
+  generateMossbankPool,
+  HARD_CASES,
+  MOSSBANK_CATEGORIES,
+  MOSSBANK_SEED_TERMS,
+  mossbankNdjson,
+  readingPauseMs,
+  simulatedAnswer,
+} from './index.js';
 
 describe('generateMossbankPool', () => {
   const pool = generateMossbankPool();
@@ -9,21 +18,23 @@ describe('generateMossbankPool', () => {
     expect(generateMossbankPool()).toEqual(pool);
     const other = generateMossbankPool({ seed: 11 });
     expect(other).toHaveLength(pool.length);
-    expect(other.filter((p, i) => p.text === pool[i]!.text).length).toBeLessThan(10);
+    expect(other.filter((p, i) => p.text === pool[i].text).length).toBeLessThan(10);
   });
 
   it('holds the default 3 200 posts with ids mossbank-00001… in posting order', () => {
     expect(DEMO_POOL_SIZE).toBeGreaterThanOrEqual(3000);
     expect(pool).toHaveLength(3200);
-    expect(pool[0]!.externalId).toBe('mossbank-00001');
-    expect(pool[3199]!.externalId).toBe('mossbank-03200');
+    expect(pool[0].externalId).toBe('mossbank-00001');
+    expect(pool[3199].externalId).toBe('mossbank-03200');
     const times = pool.map((p) => Date.parse(p.postedAt));
-    expect(times.every((t, i) => i === 0 || t >= times[i - 1]!)).toBe(true);
+    expect(times.every((t, i) => i === 0 || t >= times[i - 1])).toBe(true);
     // Spread over the eight invented weeks from 2 March 2026.
     expect(Math.min(...times)).toBeGreaterThanOrEqual(Date.UTC(2026, 2, 2));
     expect(Math.max(...times)).toBeLessThan(Date.UTC(2026, 2, 2 + 56));
     expect(new Set(pool.map((p) => p.postedAt.slice(0, 10))).size).toBeGreaterThan(50);
-    expect(pool.every((p) => /^board\/[a-z-]+$/.test(p.source) && p.meta.thread.length > 0 && p.meta.author.length > 0)).toBe(true);
+    expect(
+      pool.every((p) => /^board\/[a-z-]+$/.test(p.source) && p.meta.thread.length > 0 && p.meta.author.length > 0),
+    ).toBe(true);
   });
 
   it('keeps the shares of a reported-posts queue: threats about 8 %, harassment about 20 %', () => {
@@ -43,8 +54,16 @@ describe('generateMossbankPool', () => {
     for (const h of HARD_CASES) expect(pool.filter((p) => p.hardCase === h).length, h).toBeGreaterThan(50);
     // Violent words used harmlessly are ok; threats come without violent words.
     const violent = /\b(kill|killed|killer|murder|murdered|die|destroyed|slayed|dead|smashed|blew)\b/i;
-    expect(pool.filter((p) => p.hardCase === 'harmless-violent-words').every((p) => p.category === 'ok' && violent.test(p.text))).toBe(true);
-    expect(pool.filter((p) => p.hardCase === 'veiled-threat').every((p) => p.category === 'threat' && !/\b(hurt|kill|hammer|break|ambulance)\b/i.test(p.text))).toBe(true);
+    expect(
+      pool
+        .filter((p) => p.hardCase === 'harmless-violent-words')
+        .every((p) => p.category === 'ok' && violent.test(p.text)),
+    ).toBe(true);
+    expect(
+      pool
+        .filter((p) => p.hardCase === 'veiled-threat')
+        .every((p) => p.category === 'threat' && !/\b(hurt|kill|hammer|break|ambulance)\b/i.test(p.text)),
+    ).toBe(true);
     expect(pool.some((p) => /killed it/i.test(p.text) && p.category === 'ok')).toBe(true);
   });
 
@@ -53,6 +72,7 @@ describe('generateMossbankPool', () => {
   });
 
   it('varies length, casing, emoji and language', () => {
+    // eslint-disable-next-line @typescript-eslint/no-misused-spread -- the length meant is in code points
     const lengths = pool.map((p) => [...p.text].length);
     expect(Math.min(...lengths)).toBeLessThan(40);
     expect(Math.max(...lengths)).toBeGreaterThan(180);
@@ -65,8 +85,10 @@ describe('generateMossbankPool', () => {
 
   it('has seed terms that help but are imperfect', () => {
     // The desk's own matcher, as the cold start and the highlighting use it.
-    const matchers = Object.fromEntries(Object.entries(MOSSBANK_SEED_TERMS).map(([c, terms]) => [c, compileSeedTerms({ [c]: [...terms] })]));
-    const fires = (c: keyof typeof MOSSBANK_SEED_TERMS, text: string) => matchers[c]!.count(text) > 0;
+    const matchers = Object.fromEntries(
+      Object.entries(MOSSBANK_SEED_TERMS).map(([c, terms]) => [c, compileSeedTerms({ [c]: [...terms] })]),
+    );
+    const fires = (c: keyof typeof MOSSBANK_SEED_TERMS, text: string) => matchers[c].count(text) > 0;
     const threats = pool.filter((p) => p.category === 'threat');
     const hits = threats.filter((p) => fires('threat', p.text)).length;
     // Helpful: a good share of threats match; imperfect: not all, and harmless posts match too.
@@ -80,9 +102,12 @@ describe('generateMossbankPool', () => {
   });
 
   it('never writes the hidden category into the import rows', () => {
-    const rows = mossbankNdjson(pool.slice(0, 50)).trim().split('\n').map((l) => JSON.parse(l) as Record<string, unknown>);
+    const rows = mossbankNdjson(pool.slice(0, 50))
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l) as Record<string, unknown>);
     expect(rows).toHaveLength(50);
-    expect(Object.keys(rows[0]!).sort()).toEqual(['author', 'created_at', 'external_id', 'source', 'text', 'thread']);
+    expect(Object.keys(rows[0]).sort()).toEqual(['author', 'created_at', 'external_id', 'source', 'text', 'thread']);
     expect(JSON.stringify(rows)).not.toMatch(/"(category|hardCase|label)"/);
   });
 
@@ -115,10 +140,15 @@ describe('simulatedAnswer', () => {
   });
 
   it('is reproducible and checks its arguments', () => {
-    const run = () => { const r = createRng(9); return Array.from({ length: 50 }, () => simulatedAnswer('ok', categories, r)); };
+    const run = () => {
+      const r = createRng(9);
+      return Array.from({ length: 50 }, () => simulatedAnswer('ok', categories, r));
+    };
     expect(run()).toEqual(run());
     expect(() => simulatedAnswer('spam', categories, createRng(1))).toThrow(/truth "spam"/);
-    expect(() => simulatedAnswer('ok', categories, createRng(1), { errorRate: 0.9, abstainRate: 0.2 })).toThrow(/sum to at most 1/);
+    expect(() => simulatedAnswer('ok', categories, createRng(1), { errorRate: 0.9, abstainRate: 0.2 })).toThrow(
+      /sum to at most 1/,
+    );
   });
 
   it('pauses between 200 and 600 ms', () => {

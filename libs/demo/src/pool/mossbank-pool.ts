@@ -1,5 +1,14 @@
 import { createRng, normalizeForDuplicates, randomInt, shuffleInPlace, type Rng } from '#learning';
-import { EMOJI, NEUTRAL_SENTENCES, PREFIXES, SLOTS, TEMPLATE_GROUPS, type HardCase, type MossbankCategory, type TemplateGroup } from './mossbank-vocabulary.js';
+import {
+  EMOJI,
+  NEUTRAL_SENTENCES,
+  PREFIXES,
+  SLOTS,
+  TEMPLATE_GROUPS,
+  type HardCase,
+  type MossbankCategory,
+  type TemplateGroup,
+} from './mossbank-vocabulary.js';
 
 /** One generated post, with its hidden category (never imported: see {@link mossbankNdjson}). */
 export interface MossbankPost {
@@ -49,7 +58,8 @@ export function generateMossbankPool(options: MossbankPoolOptions = {}): Mossban
   const seed = options.seed ?? DEMO_POOL_SEED;
   const count = options.count ?? DEMO_POOL_SIZE;
   const shares = options.shares ?? DEMO_SHARES;
-  if (!Number.isInteger(count) || count < 100 || count > 20_000) throw new RangeError(`count must be an integer from 100 to 20000, got ${count}`);
+  if (!Number.isInteger(count) || count < 100 || count > 20_000)
+    throw new RangeError(`count must be an integer from 100 to 20000, got ${count}`);
   if (!(shares.threat >= 0 && shares.harassment >= 0 && shares.threat + shares.harassment <= 1)) {
     throw new RangeError(`shares must be non-negative and sum to at most 1, got ${JSON.stringify(shares)}`);
   }
@@ -67,24 +77,34 @@ export function generateMossbankPool(options: MossbankPoolOptions = {}): Mossban
   const drafts = categories.map((category) => {
     for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
       const group = pickGroup(category, rng);
-      const template = group.templates[randomInt(rng, group.templates.length)]!;
+      const template = group.templates[randomInt(rng, group.templates.length)];
       const text = decorate(fill(template.text, rng), category, rng);
       const key = normalizeForDuplicates(text);
       if (seen.has(key)) continue;
       seen.add(key);
       const board = template.board;
       return {
-        text, category, hardCase: group.hardCase, source: `board/${board}`,
+        text,
+        category,
+        hardCase: group.hardCase,
+        source: `board/${board}`,
         postedAtMs: postingTime(rng),
-        meta: { thread: `${board}-${1 + randomInt(rng, 60)}`, author: pick(SLOTS.user!, rng) },
+        meta: { thread: `${board}-${1 + randomInt(rng, 60)}`, author: pick(SLOTS.user, rng) },
       };
     }
-    throw new Error(`could not write a new ${category} post after ${MAX_ATTEMPTS} attempts: the templates are too few for ${count} posts`);
+    throw new Error(
+      `could not write a new ${category} post after ${MAX_ATTEMPTS} attempts: the templates are too few for ${count} posts`,
+    );
   });
   drafts.sort((a, b) => a.postedAtMs - b.postedAtMs);
   return drafts.map((d, i) => ({
-    externalId: mossbankId(i + 1), text: d.text, source: d.source, postedAt: new Date(d.postedAtMs).toISOString(),
-    meta: d.meta, category: d.category, hardCase: d.hardCase,
+    externalId: mossbankId(i + 1),
+    text: d.text,
+    source: d.source,
+    postedAt: new Date(d.postedAtMs).toISOString(),
+    meta: d.meta,
+    category: d.category,
+    hardCase: d.hardCase,
   }));
 }
 
@@ -99,11 +119,24 @@ export function mossbankId(n: number): string {
  * hard-case mark are left out: reviewers can read metadata.
  */
 export function mossbankNdjson(posts: readonly MossbankPost[]): string {
-  return posts.map((p) => JSON.stringify({ external_id: p.externalId, text: p.text, source: p.source, created_at: p.postedAt, thread: p.meta.thread, author: p.meta.author })).join('\n') + '\n';
+  return (
+    posts
+      .map((p) =>
+        JSON.stringify({
+          external_id: p.externalId,
+          text: p.text,
+          source: p.source,
+          created_at: p.postedAt,
+          thread: p.meta.thread,
+          author: p.meta.author,
+        }),
+      )
+      .join('\n') + '\n'
+  );
 }
 
 function pick<T>(xs: readonly T[], rng: Rng): T {
-  return xs[randomInt(rng, xs.length)]!;
+  return xs[randomInt(rng, xs.length)];
 }
 
 function pickGroup(category: MossbankCategory, rng: Rng): TemplateGroup {
@@ -114,13 +147,13 @@ function pickGroup(category: MossbankCategory, rng: Rng): TemplateGroup {
     u -= g.weight;
     if (u < 0) return g;
   }
-  return groups[groups.length - 1]!;
+  return groups[groups.length - 1];
 }
 
 /** Replaces each `{slot}` with a value of that slot. */
 function fill(text: string, rng: Rng): string {
   return text.replace(/\{([a-z]+)\}/g, (_, slot: string) => {
-    const values = SLOTS[slot];
+    const values = SLOTS[slot] as readonly string[] | undefined;
     if (!values) throw new Error(`template slot {${slot}} has no values`);
     return pick(values, rng);
   });

@@ -18,15 +18,24 @@ export const DEFAULT_SIMULATED_ANSWER: SimulatedAnswerOptions = { errorRate: 0.0
  * with probability `abstainRate` it abstains, with probability `errorRate`
  * it picks one of the other categories uniformly, otherwise it answers the truth.
  */
-export function simulatedAnswer(truth: string, categories: readonly string[], rng: Rng, options: SimulatedAnswerOptions = DEFAULT_SIMULATED_ANSWER): SimulatedAnswer {
-  if (!categories.includes(truth)) throw new RangeError(`truth ${JSON.stringify(truth)} is not one of the categories ${JSON.stringify(categories)}`);
+export function simulatedAnswer(
+  truth: string,
+  categories: readonly string[],
+  rng: Rng,
+  options: SimulatedAnswerOptions = DEFAULT_SIMULATED_ANSWER,
+): SimulatedAnswer {
+  if (!categories.includes(truth))
+    throw new RangeError(`truth ${JSON.stringify(truth)} is not one of the categories ${JSON.stringify(categories)}`);
   const { errorRate, abstainRate } = options;
-  if (!(errorRate >= 0 && abstainRate >= 0 && errorRate + abstainRate <= 1)) throw new RangeError(`errorRate and abstainRate must be non-negative and sum to at most 1, got ${errorRate} and ${abstainRate}`);
+  if (!(errorRate >= 0 && abstainRate >= 0 && errorRate + abstainRate <= 1))
+    throw new RangeError(
+      `errorRate and abstainRate must be non-negative and sum to at most 1, got ${errorRate} and ${abstainRate}`,
+    );
   const u = rng.next();
   if (u < abstainRate) return { abstain: true };
   if (u < abstainRate + errorRate && categories.length > 1) {
     const others = categories.filter((c) => c !== truth);
-    return { category: others[randomInt(rng, others.length)]! };
+    return { category: others[randomInt(rng, others.length)] };
   }
   return { category: truth };
 }

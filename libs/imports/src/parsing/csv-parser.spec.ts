@@ -5,11 +5,6 @@ import { concatBytes, outline, parseAll, parseUntilError as untilError } from '.
 const parse = (input: string | Uint8Array, options?: ParseOptions) => parseAll(input, 'csv', options);
 const parseUntilError = (input: string | Uint8Array) => untilError(input, 'csv');
 
-
-
-
-
-
 function fileError(message: string, row: number): ImportFileError {
   return new ImportFileError(message, row);
 }
@@ -33,7 +28,10 @@ const SAMPLE_OUTLINE: [number, string][] = [
   [2, 'hello'],
   [3, 'multi\nline "quoted", text'],
   [5, '! malformed CSV: the row has 2 fields, the header has 5'],
-  [7, "! malformed CSV: in column 'text', the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)"],
+  [
+    7,
+    "! malformed CSV: in column 'text', the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)",
+  ],
   [8, '! empty text'],
   [9, '! empty text'],
   [10, "! 'created_at' is not an ISO 8601 date or date-time: 'not-a-date'"],
@@ -48,7 +46,9 @@ describe('parseImport — CSV', () => {
 
   it('fills the recognised fields and keeps other columns as string metadata', async () => {
     const rows = await parse(SAMPLE);
-    const fields = rows.flatMap((r) => (r.ok ? [[r.record.externalId, r.record.source, r.record.createdAt?.toISOString() ?? null, r.record.meta]] : []));
+    const fields = rows.flatMap((r) =>
+      r.ok ? [[r.record.externalId, r.record.source, r.record.createdAt?.toISOString() ?? null, r.record.meta]] : [],
+    );
     expect(fields).toEqual([
       ['e1', 'forum', '2024-05-06T00:00:00.000Z', { lang: 'en' }],
       ['e2', null, null, { lang: 'fr' }],
@@ -89,7 +89,13 @@ describe('parseImport — CSV', () => {
   });
 
   it('rejects exactly the rows with invalid UTF-8, naming the column, and accepts a genuine U+FFFD', async () => {
-    const input = concatBytes(['text,note\nok,1\ncaf', [0xc3], ',2\n"\uFFFD kept",3\nfine,"multi\nline ', [0xff], '"\nend,4\n']);
+    const input = concatBytes([
+      'text,note\nok,1\ncaf',
+      [0xc3],
+      ',2\n"\uFFFD kept",3\nfine,"multi\nline ',
+      [0xff],
+      '"\nend,4\n',
+    ]);
     expect(outline(await parse(input))).toEqual([
       [2, 'ok'],
       [3, "! invalid UTF-8 in column 'text' (byte 0xc3 at offset 3 of the field)"],
@@ -123,15 +129,45 @@ describe('parseImport — CSV', () => {
       ['an empty file', '', "the file is empty: a CSV import needs a header row with a 'text' column", 1],
       ['only blank lines', '\n\r\n', "the file is empty: a CSV import needs a header row with a 'text' column", 1],
       ['no text column', 'body,source\nhello,x\n', "the header has no 'text' column (columns: 'body', 'source')", 1],
-      ['a reserved column', 'text,priority\nhello,1\n', "header: column 'priority' is reserved (the service sets 'priority' itself); rename it", 1],
-      ['a reserved column in another spelling', 'text,Desk-ID\n', "header: column 'Desk-ID' is reserved (the service sets 'desk_id' itself); rename it", 1],
-      ['a case variant of a recognised column', 'text,Text\n', "header: column 'Text' differs from the recognised column 'text' only in case or punctuation; rename it to 'text'", 1],
-      ['a case variant alone', 'Text\nhello\n', "header: column 'Text' differs from the recognised column 'text' only in case or punctuation; rename it to 'text'", 1],
+      [
+        'a reserved column',
+        'text,priority\nhello,1\n',
+        "header: column 'priority' is reserved (the service sets 'priority' itself); rename it",
+        1,
+      ],
+      [
+        'a reserved column in another spelling',
+        'text,Desk-ID\n',
+        "header: column 'Desk-ID' is reserved (the service sets 'desk_id' itself); rename it",
+        1,
+      ],
+      [
+        'a case variant of a recognised column',
+        'text,Text\n',
+        "header: column 'Text' differs from the recognised column 'text' only in case or punctuation; rename it to 'text'",
+        1,
+      ],
+      [
+        'a case variant alone',
+        'Text\nhello\n',
+        "header: column 'Text' differs from the recognised column 'text' only in case or punctuation; rename it to 'text'",
+        1,
+      ],
       ['a duplicated column', 'text,lang,lang\n', "header: column 'lang' appears twice (columns 2 and 3)", 1],
-      ['two spellings of one field', 'text,external_id,externalId\n', "header: both 'external_id' and 'externalId' are given; keep one", 1],
+      [
+        'two spellings of one field',
+        'text,external_id,externalId\n',
+        "header: both 'external_id' and 'externalId' are given; keep one",
+        1,
+      ],
       ['an empty column name', 'text,,lang\n', 'header column 2 has an empty name', 1],
       ['a header after blank lines', '\n\nbody\n', "the header has no 'text' column (columns: 'body')", 3],
-      ['a malformed header', '"text"x\n', 'header row: malformed CSV: in column 1, the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)', 1],
+      [
+        'a malformed header',
+        '"text"x\n',
+        'header row: malformed CSV: in column 1, the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)',
+        1,
+      ],
     ])('fails on %s', async (_name, input, message, row) => {
       const { rows, error } = await parseUntilError(input);
       expect(rows).toEqual([]);
@@ -141,14 +177,21 @@ describe('parseImport — CSV', () => {
 
     it('fails on invalid UTF-8 in the header', async () => {
       const { error } = await parseUntilError(concatBytes(['text,la', [0xff], '\n']));
-      expect(error).toEqual(fileError('invalid UTF-8 in header column 2 (byte 0xff at offset 2 of the column name)', 1));
+      expect(error).toEqual(
+        fileError('invalid UTF-8 in header column 2 (byte 0xff at offset 2 of the column name)', 1),
+      );
     });
 
     it('fails on a quote that is never closed, after yielding the rows before it', async () => {
       const { rows, error } = await parseUntilError('text,n\nok,1\n"a\nb","open\nmore,2\n');
       expect(outline(rows)).toEqual([[2, 'ok']]);
       expect(error).toBeInstanceOf(ImportFileError);
-      expect(error).toEqual(fileError('malformed CSV: the quoted field opened on line 4 is never closed, so the end of the row cannot be found', 3));
+      expect(error).toEqual(
+        fileError(
+          'malformed CSV: the quoted field opened on line 4 is never closed, so the end of the row cannot be found',
+          3,
+        ),
+      );
       expect((error as ImportFileError).row).toBe(3);
     });
   });

@@ -200,7 +200,13 @@ class CsvSplitter {
     let record: RawRecord | null = null;
     if (this.hasContent) {
       if (!this.oversized) this.fields.push(this.field.copy());
-      record = { line: this.recordLine, fields: this.fields, malformedField: this.malformedField, size: this.size, oversized: this.oversized };
+      record = {
+        line: this.recordLine,
+        fields: this.fields,
+        malformedField: this.malformedField,
+        size: this.size,
+        oversized: this.oversized,
+      };
     }
     this.field.clear();
     this.fields = [];
@@ -225,14 +231,18 @@ function headerName(bytes: Uint8Array): string {
 /** Reads and checks the header; every problem with it is a file-level error. */
 function readHeader(record: RawRecord, maxBytes: number): string[] {
   const line = record.line;
-  if (record.oversized) throw new ImportFileError(`the header row is ${record.size} bytes, over the limit of ${maxBytes} bytes`, line);
+  if (record.oversized)
+    throw new ImportFileError(`the header row is ${record.size} bytes, over the limit of ${maxBytes} bytes`, line);
   if (record.malformedField !== null) {
     throw new ImportFileError(`header row: ${closingQuoteProblem(`column ${record.malformedField + 1}`)}`, line);
   }
   const names = record.fields.map((bytes, index) => {
     const invalid = findInvalidUtf8(bytes);
     if (invalid >= 0) {
-      throw new ImportFileError(`invalid UTF-8 in header column ${index + 1} (${describeInvalidByte(bytes, invalid)} of the column name)`, line);
+      throw new ImportFileError(
+        `invalid UTF-8 in header column ${index + 1} (${describeInvalidByte(bytes, invalid)} of the column name)`,
+        line,
+      );
     }
     return headerName(bytes);
   });
@@ -241,7 +251,10 @@ function readHeader(record: RawRecord, maxBytes: number): string[] {
   names.forEach((name, index) => {
     const role = classifyName(name, 'csv');
     if (role.kind === 'invalid') {
-      throw new ImportFileError(name.trim() === '' ? `header column ${index + 1} has an empty name` : `header: ${role.reason}`, line);
+      throw new ImportFileError(
+        name.trim() === '' ? `header column ${index + 1} has an empty name` : `header: ${role.reason}`,
+        line,
+      );
     }
     const first = seen.get(name);
     if (first !== undefined) {
@@ -250,30 +263,45 @@ function readHeader(record: RawRecord, maxBytes: number): string[] {
     seen.set(name, index);
     if (role.kind === 'field') {
       const other = fieldColumns.get(role.field);
-      if (other !== undefined) throw new ImportFileError(`header: both '${other}' and '${name}' are given; keep one`, line);
+      if (other !== undefined)
+        throw new ImportFileError(`header: both '${other}' and '${name}' are given; keep one`, line);
       fieldColumns.set(role.field, name);
     }
   });
   if (!fieldColumns.has('text')) {
-    const listed = names.slice(0, 10).map((n) => `'${n}'`).join(', ');
-    throw new ImportFileError(`the header has no 'text' column (columns: ${listed}${names.length > 10 ? ', …' : ''})`, line);
+    const listed = names
+      .slice(0, 10)
+      .map((n) => `'${n}'`)
+      .join(', ');
+    throw new ImportFileError(
+      `the header has no 'text' column (columns: ${listed}${names.length > 10 ? ', …' : ''})`,
+      line,
+    );
   }
   return names;
 }
 
 function toRow(record: RawRecord, header: readonly string[], options: ResolvedParseOptions): ParsedRow {
   const { line } = record;
-  if (record.oversized) return rejectedRow(line, `row is ${record.size} bytes, over the limit of ${options.maxRowBytes} bytes`);
+  if (record.oversized)
+    return rejectedRow(line, `row is ${record.size} bytes, over the limit of ${options.maxRowBytes} bytes`);
   if (record.fields.length !== header.length) {
-    return rejectedRow(line, `malformed CSV: the row has ${record.fields.length} fields, the header has ${header.length}`);
+    return rejectedRow(
+      line,
+      `malformed CSV: the row has ${record.fields.length} fields, the header has ${header.length}`,
+    );
   }
-  if (record.malformedField !== null) return rejectedRow(line, closingQuoteProblem(`column '${header[record.malformedField]}'`));
+  if (record.malformedField !== null)
+    return rejectedRow(line, closingQuoteProblem(`column '${header[record.malformedField]}'`));
   const entries: (readonly [string, string])[] = [];
   for (let i = 0; i < header.length; i += 1) {
     const bytes = record.fields[i];
     const invalid = findInvalidUtf8(bytes);
     if (invalid >= 0) {
-      return rejectedRow(line, `invalid UTF-8 in column '${header[i]}' (${describeInvalidByte(bytes, invalid)} of the field)`);
+      return rejectedRow(
+        line,
+        `invalid UTF-8 in column '${header[i]}' (${describeInvalidByte(bytes, invalid)} of the field)`,
+      );
     }
     entries.push([header[i], decodeUtf8(bytes)]);
   }
@@ -297,25 +325,22 @@ function toRow(record: RawRecord, header: readonly string[], options: ResolvedPa
  * is over `maxRowBytes`, malformed, has a different number of fields from
  * the header, or holds invalid UTF-8 (the reason names the column).
  */
-export async function* parseCsv(chunks: AsyncIterable<Uint8Array>, options: ResolvedParseOptions): AsyncGenerator<ParsedRow> {
+export async function* parseCsv(
+  chunks: AsyncIterable<Uint8Array>,
+  options: ResolvedParseOptions,
+): AsyncGenerator<ParsedRow> {
   const splitter = new CsvSplitter(options.maxRowBytes);
   let header: string[] | null = null;
-  const handle = (record: RawRecord): ParsedRow | null => {
-    if (header === null) {
-      header = readHeader(record, options.maxRowBytes);
-      return null;
-    }
-    return toRow(record, header, options);
-  };
   for await (const chunk of chunks) {
     for (const record of splitter.push(chunk)) {
-      const row = handle(record);
-      if (row !== null) yield row;
+      if (header === null) header = readHeader(record, options.maxRowBytes);
+      else yield toRow(record, header, options);
     }
   }
   for (const record of splitter.end()) {
-    const row = handle(record);
-    if (row !== null) yield row;
+    if (header === null) header = readHeader(record, options.maxRowBytes);
+    else yield toRow(record, header, options);
   }
-  if (header === null) throw new ImportFileError("the file is empty: a CSV import needs a header row with a 'text' column", 1);
+  if (header === null)
+    throw new ImportFileError("the file is empty: a CSV import needs a header row with a 'text' column", 1);
 }

@@ -33,7 +33,11 @@ function parseMediaType(contentType: string): MediaType {
     const eq = parameter.indexOf('=');
     if (eq < 0) continue;
     if (parameter.slice(0, eq).trim().toLowerCase() === 'charset') {
-      charset = parameter.slice(eq + 1).trim().replace(/^"(.*)"$/u, '$1').toLowerCase();
+      charset = parameter
+        .slice(eq + 1)
+        .trim()
+        .replace(/^"(.*)"$/u, '$1')
+        .toLowerCase();
     }
   }
   return { type: essence.trim().toLowerCase(), charset };

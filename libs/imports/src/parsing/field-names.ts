@@ -80,7 +80,10 @@ export function classifyName(name: string, format: ImportFormat): NameRole {
   }
   const reserved = RESERVED_BY_SIGNATURE.get(sig);
   if (reserved !== undefined) {
-    return { kind: 'invalid', reason: `${noun} '${name}' is reserved (the service sets '${reserved}' itself); rename it` };
+    return {
+      kind: 'invalid',
+      reason: `${noun} '${name}' is reserved (the service sets '${reserved}' itself); rename it`,
+    };
   }
   return { kind: 'meta' };
 }

@@ -33,7 +33,9 @@ function offsetMinutes(zone: string | undefined): number | null {
 export function parseIsoDateTime(value: string): Date | null {
   const match = ISO_DATE_TIME.exec(value);
   if (match === null) return null;
-  const [, y, mo, d, h, mi, s, fraction, zone] = match;
+  // Groups that did not take part in the match are undefined.
+  const groups: Array<string | undefined> = match;
+  const [, y, mo, d, h, mi, s, fraction, zone] = groups;
   const year = Number(y);
   const month = Number(mo);
   const day = Number(d);

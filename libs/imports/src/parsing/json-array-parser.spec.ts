@@ -4,17 +4,15 @@ import { concatBytes, jsonErrorOf, outline, parseUntilError as untilError } from
 
 const parseUntilError = (input: string | Uint8Array, options?: ParseOptions) => untilError(input, 'json', options);
 
-
-
-
-
-
 describe('parseImport — JSON array', () => {
   it('splits elements correctly around brackets, commas and escapes inside strings', async () => {
-    const body = ' [\n {"text":"a","externalId":7,"meta":{"k":[1,{"x":"]"}]}},\r\n\t{"text":"b\\"],{\\\\","source":"s"} ]\n';
+    const body =
+      ' [\n {"text":"a","externalId":7,"meta":{"k":[1,{"x":"]"}]}},\r\n\t{"text":"b\\"],{\\\\","source":"s"} ]\n';
     const { rows, error } = await parseUntilError(body);
     expect(error).toBeNull();
-    expect(rows.map((r) => r.ok && [r.record.row, r.record.text, r.record.externalId, r.record.source, r.record.meta])).toEqual([
+    expect(
+      rows.map((r) => r.ok && [r.record.row, r.record.text, r.record.externalId, r.record.source, r.record.meta]),
+    ).toEqual([
       [1, 'a', '7', null, { k: [1, { x: ']' }] }],
       [2, 'b"],{\\', null, 's', {}],
     ]);
@@ -96,7 +94,12 @@ describe('parseImport — JSON array', () => {
       ['a whitespace-only body', ' \r\n\t', 'the body is empty: expected a JSON array', 0],
       ['a single object', '{"text":"a"}', "the body is not a JSON array: it starts with '{', not '['", 0],
       ['NDJSON sent as JSON', '\n"text"\n', "the body is not a JSON array: it starts with '\"', not '['", 0],
-      ['a body starting with a non-ASCII byte', '\u00E9', "the body is not a JSON array: it starts with byte 0xc3, not '['", 0],
+      [
+        'a body starting with a non-ASCII byte',
+        '\u00E9',
+        "the body is not a JSON array: it starts with byte 0xc3, not '['",
+        0,
+      ],
     ])('fails on %s', async (_name, body, message, row) => {
       const { rows, error } = await parseUntilError(body);
       expect(rows).toEqual([]);
@@ -107,12 +110,16 @@ describe('parseImport — JSON array', () => {
     it('fails on an array that is never closed, after the elements before it', async () => {
       const inside = await parseUntilError('[{"text":"a"},{"text":"b"');
       expect(outline(inside.rows)).toEqual([[1, 'a']]);
-      expect(inside.error).toEqual(new ImportFileError('the JSON array is not closed: the body ends inside element 2', 2));
+      expect(inside.error).toEqual(
+        new ImportFileError('the JSON array is not closed: the body ends inside element 2', 2),
+      );
       expect((inside.error as ImportFileError).row).toBe(2);
 
       const after = await parseUntilError('[{"text":"a"},  ');
       expect(outline(after.rows)).toEqual([[1, 'a']]);
-      expect(after.error).toEqual(new ImportFileError('the JSON array is not closed: the body ends before element 2', 2));
+      expect(after.error).toEqual(
+        new ImportFileError('the JSON array is not closed: the body ends before element 2', 2),
+      );
     });
 
     it('fails on data after the array, after its elements', async () => {

@@ -77,7 +77,8 @@ class JsonArraySplitter {
           i += 1;
           continue;
         case State.Done:
-          if (!isJsonWhitespace(b)) throw new ImportFileError(`unexpected ${describeByte(b)} after the closing ']' of the JSON array`, 0);
+          if (!isJsonWhitespace(b))
+            throw new ImportFileError(`unexpected ${describeByte(b)} after the closing ']' of the JSON array`, 0);
           i += 1;
           continue;
         case State.First:
@@ -136,9 +137,15 @@ class JsonArraySplitter {
         throw new ImportFileError('the body is empty: expected a JSON array', 0);
       case State.First:
       case State.Next:
-        throw new ImportFileError(`the JSON array is not closed: the body ends before element ${this.index + 1}`, this.index + 1);
+        throw new ImportFileError(
+          `the JSON array is not closed: the body ends before element ${this.index + 1}`,
+          this.index + 1,
+        );
       case State.Element:
-        throw new ImportFileError(`the JSON array is not closed: the body ends inside element ${this.index}`, this.index);
+        throw new ImportFileError(
+          `the JSON array is not closed: the body ends inside element ${this.index}`,
+          this.index,
+        );
       case State.Done:
         return;
     }
@@ -154,7 +161,11 @@ class JsonArraySplitter {
   }
 
   private finish(): RawElement {
-    const element: RawElement = { index: this.index, bytes: this.size <= this.maxBytes ? this.element.view() : null, size: this.size };
+    const element: RawElement = {
+      index: this.index,
+      bytes: this.size <= this.maxBytes ? this.element.view() : null,
+      size: this.size,
+    };
     this.element.clear();
     this.size = 0;
     this.depth = 0;
@@ -175,12 +186,18 @@ function isEmpty(bytes: Uint8Array): boolean {
  * whitespace after it fails with {@link ImportFileError}; elements before
  * the failure have already been yielded.
  */
-export async function* parseJsonArray(chunks: AsyncIterable<Uint8Array>, options: ResolvedParseOptions): AsyncGenerator<ParsedRow> {
+export async function* parseJsonArray(
+  chunks: AsyncIterable<Uint8Array>,
+  options: ResolvedParseOptions,
+): AsyncGenerator<ParsedRow> {
   const splitter = new JsonArraySplitter(options.maxRowBytes);
   for await (const chunk of chunks) {
     for (const element of splitter.push(chunk)) {
       if (element.bytes === null) {
-        yield rejectedRow(element.index, `element is ${element.size} bytes, over the limit of ${options.maxRowBytes} bytes`);
+        yield rejectedRow(
+          element.index,
+          `element is ${element.size} bytes, over the limit of ${options.maxRowBytes} bytes`,
+        );
       } else if (isEmpty(element.bytes)) {
         yield rejectedRow(element.index, 'missing array element (an extra comma)');
       } else {

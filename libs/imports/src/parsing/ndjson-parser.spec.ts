@@ -4,11 +4,6 @@ import { concatBytes, jsonErrorOf, outline, parseAll } from './parsing.test-supp
 
 const parse = (input: string | Uint8Array, options?: ParseOptions) => parseAll(input, 'ndjson', options);
 
-
-
-
-
-
 describe('parseImport — NDJSON', () => {
   it('reads a full record with every recognised field, keeping other keys as metadata', async () => {
     const rows = await parse(
@@ -33,8 +28,12 @@ describe('parseImport — NDJSON', () => {
   });
 
   it('accepts externalId and createdAt spellings, integer ids and null for optional fields', async () => {
-    const rows = await parse('{"text":"a","externalId":12345,"createdAt":null,"source":null}\n{"text":"b","external_id":"","source":""}');
-    expect(rows.map((r) => (r.ok ? [r.record.externalId, r.record.source, r.record.createdAt] : r.rejected.reason))).toEqual([
+    const rows = await parse(
+      '{"text":"a","externalId":12345,"createdAt":null,"source":null}\n{"text":"b","external_id":"","source":""}',
+    );
+    expect(
+      rows.map((r) => (r.ok ? [r.record.externalId, r.record.source, r.record.createdAt] : r.rejected.reason)),
+    ).toEqual([
       ['12345', null, null],
       [null, null, null],
     ]);
@@ -137,9 +136,12 @@ describe('parseImport — NDJSON', () => {
 
   it('rejects metadata over the size limit and nested too deeply', async () => {
     const deep = `${'{"a":'.repeat(40)}1${'}'.repeat(40)}`;
-    const rows = await parse(`{"text":"x","blob":"${'b'.repeat(100)}"}\n{"text":"y","blob":"${'b'.repeat(80)}"}\n{"text":"z","deep":${deep}}\n`, {
-      maxMetaBytes: 100,
-    });
+    const rows = await parse(
+      `{"text":"x","blob":"${'b'.repeat(100)}"}\n{"text":"y","blob":"${'b'.repeat(80)}"}\n{"text":"z","deep":${deep}}\n`,
+      {
+        maxMetaBytes: 100,
+      },
+    );
     expect(outline(rows)).toEqual([
       [1, '! metadata is 111 bytes as JSON, over the limit of 100'],
       [2, 'y'],
@@ -173,7 +175,13 @@ describe('parseImport — NDJSON', () => {
 
   it('rejects exactly the line with invalid UTF-8 and accepts a genuine U+FFFD', async () => {
     const rows = await parse(
-      concatBytes(['{"text":"ok"}\n{"text":"caf', [0xc3], '"}\n{"text":"\uFFFD replacement"}\n{"text":"', [0xed, 0xa0, 0x80], '"}\n{"text":"\\ufffd escaped"}\n']),
+      concatBytes([
+        '{"text":"ok"}\n{"text":"caf',
+        [0xc3],
+        '"}\n{"text":"\uFFFD replacement"}\n{"text":"',
+        [0xed, 0xa0, 0x80],
+        '"}\n{"text":"\\ufffd escaped"}\n',
+      ]),
     );
     expect(outline(rows)).toEqual([
       [1, 'ok'],

@@ -82,7 +82,10 @@ function isBlank(bytes: Uint8Array): boolean {
  * so a bad line (invalid UTF-8, malformed JSON, not an object, over
  * `maxRowBytes`) rejects that line only.
  */
-export async function* parseNdjson(chunks: AsyncIterable<Uint8Array>, options: ResolvedParseOptions): AsyncGenerator<ParsedRow> {
+export async function* parseNdjson(
+  chunks: AsyncIterable<Uint8Array>,
+  options: ResolvedParseOptions,
+): AsyncGenerator<ParsedRow> {
   const splitter = new LineSplitter(options.maxRowBytes);
   const toRow = (line: RawLine): ParsedRow | null => {
     if (line.bytes === null) {

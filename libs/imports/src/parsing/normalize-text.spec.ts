@@ -65,6 +65,8 @@ describe('hashNormalizedText', () => {
   });
 
   it('hashes the UTF-8 bytes of the text (sha256sum of "hello world")', () => {
-    expect(hashNormalizedText(normalizeText('  Hello   WORLD '))).toBe('b94d27b9934d3e08a52e52d7da7dabfac484efe37a5380ee9088f7ace2efcde9');
+    expect(hashNormalizedText(normalizeText('  Hello   WORLD '))).toBe(
+      'b94d27b9934d3e08a52e52d7da7dabfac484efe37a5380ee9088f7ace2efcde9',
+    );
   });
 });

@@ -7,9 +7,10 @@ import { createHash } from 'node:crypto';
 // lower-casing yields exactly the full folding ("ß" → "SS" → "ss",
 // "ᾳ" → "ΑΙ" → "αι"). Applying that round trip to every character would be
 // wrong for a few letters, notably Turkish dotless "ı", which does not fold
-// to "i"; hence the explicit list.
+// to "i"; hence the explicit list. The combining iota comes first, where it
+// cannot read as combined with the character before it.
 const FULL_FOLD_BY_ROUND_TRIP =
-  /[\u00DF\u0345\u1E9E\u1F80-\u1FAF\u1FB2-\u1FB4\u1FB7\u1FBC\u1FC2-\u1FC4\u1FC7\u1FCC\u1FF2-\u1FF4\u1FF7\u1FFC]/gu;
+  /[\u0345\u00DF\u1E9E\u1F80-\u1FAF\u1FB2-\u1FB4\u1FB7\u1FBC\u1FC2-\u1FC4\u1FC7\u1FCC\u1FF2-\u1FF4\u1FF7\u1FFC]/gu;
 
 // Final sigma lower-cases to "ς" by context but folds to "σ".
 const FINAL_SIGMA = /\u03C2/gu;

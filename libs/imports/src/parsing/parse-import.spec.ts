@@ -8,10 +8,12 @@ import type { ImportFormat, ParsedRow, ParseOptions } from './import-record.js';
 import { parseImport } from './parse-import.js';
 import { concatBytes, encoder, jsonErrorOf as jsonError } from './parsing.test-support.js';
 
-
-
 /** Everything a parse produced: its rows, then the error it ended with, if any. */
-async function outcome(chunks: Iterable<Uint8Array>, format: ImportFormat, options?: ParseOptions): Promise<{ rows: ParsedRow[]; error: unknown }> {
+async function outcome(
+  chunks: Iterable<Uint8Array>,
+  format: ImportFormat,
+  options?: ParseOptions,
+): Promise<{ rows: ParsedRow[]; error: unknown }> {
   async function* source(): AsyncGenerator<Uint8Array> {
     yield* chunks;
   }
@@ -26,7 +28,7 @@ async function outcome(chunks: Iterable<Uint8Array>, format: ImportFormat, optio
 
 function splitAt(bytes: Uint8Array, sizes: () => number): Uint8Array[] {
   const chunks: Uint8Array[] = [];
-  for (let start = 0; start < bytes.length; ) {
+  for (let start = 0; start < bytes.length;) {
     const end = Math.min(bytes.length, start + sizes());
     chunks.push(bytes.slice(start, end));
     start = end;
@@ -102,10 +104,20 @@ describe('parseImport — chunk boundaries', () => {
       expect(whole.rows.filter((r) => r.ok).length).toBeGreaterThanOrEqual(3);
       expect(whole.rows.filter((r) => !r.ok).length).toBeGreaterThanOrEqual(2);
 
-      expect(await outcome(splitAt(bytes, () => 1), format)).toEqual(whole);
+      expect(
+        await outcome(
+          splitAt(bytes, () => 1),
+          format,
+        ),
+      ).toEqual(whole);
       for (let seed = 1; seed <= 20; seed += 1) {
         const next = seeded(seed);
-        expect(await outcome(splitAt(bytes, () => 1 + (next() % 13)), format)).toEqual(whole);
+        expect(
+          await outcome(
+            splitAt(bytes, () => 1 + (next() % 13)),
+            format,
+          ),
+        ).toEqual(whole);
       }
     });
 
@@ -119,7 +131,9 @@ describe('parseImport — chunk boundaries', () => {
 
   it('parses the fixtures to the expected rows', async () => {
     const ndjson = await outcome([FIXTURES.ndjson.bytes], 'ndjson');
-    expect(ndjson.rows.map((r) => (r.ok ? [r.record.row, r.record.text] : [r.rejected.row, r.rejected.reason]))).toEqual([
+    expect(
+      ndjson.rows.map((r) => (r.ok ? [r.record.row, r.record.text] : [r.rejected.row, r.rejected.reason])),
+    ).toEqual([
       [1, 'café 😀 東京'],
       [3, 'esc "q" \\ é 😀'],
       [4, 'invalid UTF-8 (byte 0xf0 at offset 13 of the line)'],
@@ -130,13 +144,18 @@ describe('parseImport — chunk boundaries', () => {
     expect(ndjson.rows[5]).toMatchObject({ ok: true, record: { normalizedText: 'wide fi' } });
 
     const csv = await outcome([FIXTURES.csv.bytes], 'csv');
-    expect(csv.rows.map((r) => (r.ok ? [r.record.row, r.record.text, r.record.meta] : [r.rejected.row, r.rejected.reason]))).toEqual([
+    expect(
+      csv.rows.map((r) => (r.ok ? [r.record.row, r.record.text, r.record.meta] : [r.rejected.row, r.rejected.reason])),
+    ).toEqual([
       [2, 'multi\r\nline, with "quotes" and é', { note: '😀' }],
       [4, 'plain 東京', { note: '' }],
       [5, "invalid UTF-8 in column 'text' (byte 0xc3 at offset 7 of the field)"],
       [6, '\uFFFD genuine', { note: 'y' }],
       [7, 'malformed CSV: the row has 4 fields, the header has 3'],
-      [8, "malformed CSV: in column 'text', the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)"],
+      [
+        8,
+        "malformed CSV: in column 'text', the closing quote is followed by a character other than a comma or a line break (RFC 4180 §2.7)",
+      ],
       [9, 'last', { note: 'end\r\n' }],
     ]);
     expect(csv.error).toBeNull();
@@ -151,22 +170,32 @@ describe('parseImport — chunk boundaries', () => {
       [6, 'missing array element (an extra comma)'],
       // Element 7 is never followed by ',' or ']', so it is not yielded.
     ]);
-    expect(json.error).toMatchObject({ name: 'ImportFileError', row: 7, message: 'the JSON array is not closed: the body ends inside element 7' });
+    expect(json.error).toMatchObject({
+      name: 'ImportFileError',
+      row: 7,
+      message: 'the JSON array is not closed: the body ends inside element 7',
+    });
   });
 });
 
-
 describe('parseImport — byte order mark', () => {
   it('strips a BOM split across chunks', async () => {
-    const { rows } = await outcome([Uint8Array.of(0xef), Uint8Array.of(0xbb), concatBytes([[0xbf], '{"text":"a"}\n'])], 'ndjson');
+    const { rows } = await outcome(
+      [Uint8Array.of(0xef), Uint8Array.of(0xbb), concatBytes([[0xbf], '{"text":"a"}\n'])],
+      'ndjson',
+    );
     expect(rows.map((r) => r.ok && r.record.text)).toEqual(['a']);
   });
 
   it('keeps bytes that only look like the start of a BOM', async () => {
     const short = await outcome([Uint8Array.of(0xef), Uint8Array.of(0xbb)], 'ndjson');
-    expect(short.rows).toEqual([{ ok: false, rejected: { row: 1, reason: 'invalid UTF-8 (byte 0xef at offset 0 of the line)' } }]);
+    expect(short.rows).toEqual([
+      { ok: false, rejected: { row: 1, reason: 'invalid UTF-8 (byte 0xef at offset 0 of the line)' } },
+    ]);
     const other = await outcome([Uint8Array.of(0xef), concatBytes(['{"text":"a"}'])], 'ndjson');
-    expect(other.rows).toEqual([{ ok: false, rejected: { row: 1, reason: 'invalid UTF-8 (byte 0xef at offset 0 of the line)' } }]);
+    expect(other.rows).toEqual([
+      { ok: false, rejected: { row: 1, reason: 'invalid UTF-8 (byte 0xef at offset 0 of the line)' } },
+    ]);
   });
 });
 
@@ -177,7 +206,8 @@ describe('parseImport — streaming', () => {
     async function* generate(): AsyncGenerator<Uint8Array> {
       for (let start = 1; start <= rowCount; start += 100) {
         let chunk = '';
-        for (let n = start; n < start + 100; n += 1) chunk += `{"text":"${n} ${filler}","external_id":"${n}","source":"gen"}\n`;
+        for (let n = start; n < start + 100; n += 1)
+          chunk += `{"text":"${n} ${filler}","external_id":"${n}","source":"gen"}\n`;
         yield encoder.encode(chunk);
       }
     }
@@ -261,7 +291,9 @@ describe('parseImport — streaming', () => {
 describe('parseImport — abort and arguments', () => {
   it('throws the abort reason at the next step once the signal is aborted', async () => {
     const controller = new AbortController();
-    const rows = parseImport([encoder.encode('{"text":"a"}\n{"text":"b"}\n{"text":"c"}\n')], 'ndjson', { signal: controller.signal });
+    const rows = parseImport([encoder.encode('{"text":"a"}\n{"text":"b"}\n{"text":"c"}\n')], 'ndjson', {
+      signal: controller.signal,
+    });
     const first = await rows.next();
     expect(!first.done && first.value.ok && first.value.record.text).toBe('a');
     const reason = new Error('import cancelled');
@@ -277,10 +309,20 @@ describe('parseImport — abort and arguments', () => {
 
   it('checks the format and the limits synchronously', () => {
     const input = [encoder.encode('')];
-    expect(() => parseImport(input, 'xml' as ImportFormat)).toThrow(new TypeError('format must be one of ndjson, csv, json, got "xml"'));
-    expect(() => parseImport(input, 'csv', { maxTextLength: 0 })).toThrow(new RangeError('maxTextLength must be a positive integer, got 0'));
-    expect(() => parseImport(input, 'csv', { maxTextLength: 1.5 })).toThrow(new RangeError('maxTextLength must be a positive integer, got 1.5'));
-    expect(() => parseImport(input, 'csv', { maxMetaBytes: Number.NaN })).toThrow(new RangeError('maxMetaBytes must be a positive integer, got NaN'));
-    expect(() => parseImport(input, 'json', { maxRowBytes: -1 })).toThrow(new RangeError('maxRowBytes must be a positive integer, got -1'));
+    expect(() => parseImport(input, 'xml' as ImportFormat)).toThrow(
+      new TypeError('format must be one of ndjson, csv, json, got "xml"'),
+    );
+    expect(() => parseImport(input, 'csv', { maxTextLength: 0 })).toThrow(
+      new RangeError('maxTextLength must be a positive integer, got 0'),
+    );
+    expect(() => parseImport(input, 'csv', { maxTextLength: 1.5 })).toThrow(
+      new RangeError('maxTextLength must be a positive integer, got 1.5'),
+    );
+    expect(() => parseImport(input, 'csv', { maxMetaBytes: Number.NaN })).toThrow(
+      new RangeError('maxMetaBytes must be a positive integer, got NaN'),
+    );
+    expect(() => parseImport(input, 'json', { maxRowBytes: -1 })).toThrow(
+      new RangeError('maxRowBytes must be a positive integer, got -1'),
+    );
   });
 });

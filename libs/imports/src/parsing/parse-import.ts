@@ -1,10 +1,18 @@
 import { readByteChunks, type ImportInput } from './byte-source.js';
 import { parseCsv } from './csv-parser.js';
-import { resolveParseOptions, type ImportFormat, type ParsedRow, type ParseOptions, type ResolvedParseOptions } from './import-record.js';
+import {
+  resolveParseOptions,
+  type ImportFormat,
+  type ParsedRow,
+  type ParseOptions,
+  type ResolvedParseOptions,
+} from './import-record.js';
 import { parseJsonArray } from './json-array-parser.js';
 import { parseNdjson } from './ndjson-parser.js';
 
-const PARSERS: Readonly<Record<ImportFormat, (chunks: AsyncIterable<Uint8Array>, options: ResolvedParseOptions) => AsyncGenerator<ParsedRow>>> = {
+const PARSERS: Readonly<
+  Record<ImportFormat, (chunks: AsyncIterable<Uint8Array>, options: ResolvedParseOptions) => AsyncGenerator<ParsedRow>>
+> = {
   ndjson: parseNdjson,
   csv: parseCsv,
   json: parseJsonArray,
@@ -44,7 +52,11 @@ async function* withAbort(rows: AsyncGenerator<ParsedRow>, signal: AbortSignal |
  * @throws TypeError (synchronously) for an unknown `format`.
  * @throws RangeError (synchronously) for a limit that is not a positive integer.
  */
-export function parseImport(input: ImportInput, format: ImportFormat, options: ParseOptions = {}): AsyncGenerator<ParsedRow> {
+export function parseImport(
+  input: ImportInput,
+  format: ImportFormat,
+  options: ParseOptions = {},
+): AsyncGenerator<ParsedRow> {
   if (!Object.hasOwn(PARSERS, format)) {
     throw new TypeError(`format must be one of ${Object.keys(PARSERS).join(', ')}, got ${JSON.stringify(format)}`);
   }

@@ -15,14 +15,22 @@ export function concatBytes(parts: (string | number[])[]): Uint8Array {
 const bytesOf = (input: string | Uint8Array) => (typeof input === 'string' ? encoder.encode(input) : input);
 
 /** Every row of one parse (a file-level error is thrown). */
-export async function parseAll(input: string | Uint8Array, format: ImportFormat, options?: ParseOptions): Promise<ParsedRow[]> {
+export async function parseAll(
+  input: string | Uint8Array,
+  format: ImportFormat,
+  options?: ParseOptions,
+): Promise<ParsedRow[]> {
   const rows: ParsedRow[] = [];
   for await (const row of parseImport([bytesOf(input)], format, options)) rows.push(row);
   return rows;
 }
 
 /** The rows yielded before a failure, and the failure. */
-export async function parseUntilError(input: string | Uint8Array, format: ImportFormat, options?: ParseOptions): Promise<{ rows: ParsedRow[]; error: unknown }> {
+export async function parseUntilError(
+  input: string | Uint8Array,
+  format: ImportFormat,
+  options?: ParseOptions,
+): Promise<{ rows: ParsedRow[]; error: unknown }> {
   const rows: ParsedRow[] = [];
   try {
     for await (const row of parseImport([bytesOf(input)], format, options)) rows.push(row);

@@ -77,7 +77,8 @@ function optionalShortString(value: unknown, name: string, allowNumber: boolean)
   if (typeof value === 'string') result = value;
   else if (allowNumber && typeof value === 'number') {
     // JSON numbers beyond 2^53 have already lost digits when parsed.
-    if (!Number.isSafeInteger(value)) reject(`'${name}' ${String(value)} is not an integer that can be read exactly; send it as a string`);
+    if (!Number.isSafeInteger(value))
+      reject(`'${name}' ${String(value)} is not an integer that can be read exactly; send it as a string`);
     result = String(value);
   } else {
     reject(`'${name}' must be a string${allowNumber ? ' or an integer' : ''}, got ${describeType(value)}`);
@@ -162,7 +163,8 @@ export function buildRecord(
 
     const nested = fields.get('meta')?.value;
     if (nested !== undefined && nested !== null) {
-      if (typeof nested !== 'object' || Array.isArray(nested)) reject(`'meta' must be an object, got ${describeType(nested)}`);
+      if (typeof nested !== 'object' || Array.isArray(nested))
+        reject(`'meta' must be an object, got ${describeType(nested)}`);
       for (const [key, value] of Object.entries(nested)) {
         if (Object.hasOwn(meta, key)) reject(`'${key}' is given both as a key and inside 'meta'`);
         setOwn(meta, key, value);
@@ -185,7 +187,16 @@ export function buildRecord(
 
     return {
       ok: true,
-      record: { row, text, externalId, source, createdAt, meta, normalizedText, textHash: hashNormalizedText(normalizedText) },
+      record: {
+        row,
+        text,
+        externalId,
+        source,
+        createdAt,
+        meta,
+        normalizedText,
+        textHash: hashNormalizedText(normalizedText),
+      },
     };
   } catch (error) {
     if (error instanceof RowRejected) return { ok: false, rejected: { row, reason: error.message } };

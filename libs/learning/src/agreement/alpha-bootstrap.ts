@@ -1,5 +1,12 @@
 import type { Rng } from '../random/rng.js';
-import { addCoincidences, alphaFromCoincidences, alphaOfCounts, countValues, type AlphaLevel, type ReliabilityTable } from './krippendorff-alpha.js';
+import {
+  addCoincidences,
+  alphaFromCoincidences,
+  alphaOfCounts,
+  countValues,
+  type AlphaLevel,
+  type ReliabilityTable,
+} from './krippendorff-alpha.js';
 
 /** A bootstrap percentile interval for alpha. */
 export interface AlphaInterval {
@@ -32,7 +39,7 @@ export function sortedQuantile(sorted: ArrayLike<number>, p: number): number {
   const h = (sorted.length - 1) * p;
   const lo = Math.floor(h);
   const hi = Math.min(sorted.length - 1, lo + 1);
-  return sorted[lo]! + (h - lo) * (sorted[hi]! - sorted[lo]!);
+  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
 }
 
 /**
@@ -45,9 +52,12 @@ export function sortedQuantile(sorted: ArrayLike<number>, p: number): number {
 export function alphaBootstrap(table: ReliabilityTable, options: AlphaBootstrapOptions): AlphaInterval {
   const resamples = options.resamples ?? 1000;
   const confidence = options.confidence ?? 0.95;
-  if (!Number.isInteger(resamples) || resamples < 1) throw new RangeError(`resamples must be a positive integer, got ${resamples}`);
+  if (!Number.isInteger(resamples) || resamples < 1)
+    throw new RangeError(`resamples must be a positive integer, got ${resamples}`);
   if (!(confidence > 0 && confidence < 1)) throw new RangeError(`confidence must be in (0, 1), got ${confidence}`);
-  if (!options.rng || typeof options.rng.next !== 'function') throw new TypeError('rng must be a random source with next()');
+  // JavaScript callers are not held to the type.
+  if (!(options.rng as Rng | undefined) || typeof options.rng.next !== 'function')
+    throw new TypeError('rng must be a random source with next()');
   const counts = countValues(table, options.level ?? 'nominal');
   const alpha = alphaOfCounts(counts).alpha;
   const units = counts.units.length;
@@ -71,7 +81,11 @@ export function alphaBootstrap(table: ReliabilityTable, options: AlphaBootstrapO
   }
   draws.sort((a, b) => a - b);
   return {
-    alpha, lower: sortedQuantile(draws, (1 - confidence) / 2), upper: sortedQuantile(draws, (1 + confidence) / 2),
-    confidence, resamples, undefinedResamples,
+    alpha,
+    lower: sortedQuantile(draws, (1 - confidence) / 2),
+    upper: sortedQuantile(draws, (1 + confidence) / 2),
+    confidence,
+    resamples,
+    undefinedResamples,
   };
 }

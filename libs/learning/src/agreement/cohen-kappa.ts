@@ -27,7 +27,7 @@ export function cohenKappaFromMatrix(matrix: readonly (readonly number[])[]): Co
   const cols = new Float64Array(k);
   for (let i = 0; i < k; i++) {
     for (let j = 0; j < k; j++) {
-      const v = matrix[i]![j]!;
+      const v = matrix[i][j];
       n += v;
       rows[i] += v;
       cols[j] += v;
@@ -36,7 +36,7 @@ export function cohenKappaFromMatrix(matrix: readonly (readonly number[])[]): Co
   }
   if (n === 0) throw new RangeError('matrix must hold at least one rated item, its counts sum to 0');
   let chance = 0;
-  for (let i = 0; i < k; i++) chance += rows[i]! * cols[i]!;
+  for (let i = 0; i < k; i++) chance += rows[i] * cols[i];
   const observed = diagonal / n;
   const expected = chance / (n * n);
   return { kappa: expected === 1 ? Number.NaN : (observed - expected) / (1 - expected), observed, expected, n };
@@ -61,8 +61,9 @@ export function cohenKappa<T extends string | number>(a: readonly T[], b: readon
     if (at === undefined) index.set(label, (at = index.size));
     return at;
   };
-  const pairs = a.map((x, i) => [check(x, 'a', i), check(b[i]!, 'b', i)] as const);
+  // Array.isArray above narrowed the readonly arrays to any[]: their elements are labels again here.
+  const pairs = a.map((x: T, i) => [check(x, 'a', i), check(b[i] as T, 'b', i)] as const);
   const matrix = Array.from({ length: index.size }, () => new Array<number>(index.size).fill(0));
-  for (const [i, j] of pairs) matrix[i]![j]! += 1;
+  for (const [i, j] of pairs) matrix[i][j] += 1;
   return cohenKappaFromMatrix(matrix);
 }

@@ -27,10 +27,13 @@ export interface FleissKappa {
  */
 export function fleissKappa(counts: readonly (readonly number[])[]): FleissKappa {
   const k = assertCountTable(counts, 'counts', 1, 2);
-  const raters = counts[0]!.reduce((s, v) => s + v, 0);
+  const raters = counts[0].reduce((s, v) => s + v, 0);
   counts.forEach((row, i) => {
     const total = row.reduce((s, v) => s + v, 0);
-    if (total !== raters) throw new RangeError(`counts[${i}] sums to ${total} ratings, but counts[0] to ${raters}: every subject needs the same number of raters`);
+    if (total !== raters)
+      throw new RangeError(
+        `counts[${i}] sums to ${total} ratings, but counts[0] to ${raters}: every subject needs the same number of raters`,
+      );
   });
   if (raters < 2) throw new RangeError(`each subject needs at least two raters, got ${raters}`);
   const subjects = counts.length;
@@ -40,7 +43,7 @@ export function fleissKappa(counts: readonly (readonly number[])[]): FleissKappa
   for (const row of counts) {
     let squares = 0;
     for (let j = 0; j < k; j++) {
-      const v = row[j]!;
+      const v = row[j];
       totals[j] += v;
       squares += v * v;
       disagreement[j] += v * (raters - v);
@@ -52,7 +55,15 @@ export function fleissKappa(counts: readonly (readonly number[])[]): FleissKappa
   const expected = proportions.reduce((s, p) => s + p * p, 0);
   const perCategory = proportions.map((p, j) => {
     const pq = p * (1 - p);
-    return pq === 0 ? Number.NaN : 1 - disagreement[j]! / (subjects * raters * (raters - 1) * pq);
+    return pq === 0 ? Number.NaN : 1 - disagreement[j] / (subjects * raters * (raters - 1) * pq);
   });
-  return { kappa: expected === 1 ? Number.NaN : (observed - expected) / (1 - expected), observed, expected, perCategory, proportions, subjects, raters };
+  return {
+    kappa: expected === 1 ? Number.NaN : (observed - expected) / (1 - expected),
+    observed,
+    expected,
+    perCategory,
+    proportions,
+    subjects,
+    raters,
+  };
 }

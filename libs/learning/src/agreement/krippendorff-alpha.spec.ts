@@ -14,7 +14,7 @@ const SECTION_C_BY_OBSERVER = [
   [null, 3, 3, 3, 2, 3, 4, 2, 2, 5, 1, null],
   [1, 2, 3, 3, 2, 4, 4, 1, 2, 5, 1, null],
 ];
-const transpose = <T>(rows: T[][]): T[][] => rows[0]!.map((_, u) => rows.map((r) => r[u]!));
+const transpose = <T>(rows: T[][]): T[][] => rows[0].map((_, u) => rows.map((r) => r[u]));
 const SECTION_C = transpose(SECTION_C_BY_OBSERVER);
 
 describe("Krippendorff's alpha", () => {
@@ -41,15 +41,31 @@ describe("Krippendorff's alpha", () => {
   it('sections A and B', () => {
     // Same paper, sections A and B [memory for the data; recomputed]; the paper prints three decimals,
     // so the tolerance is half a unit in the third place.
-    const a = transpose([[0, 1, 0, 0, 0, 0, 0, 0, 1, 0], [1, 1, 1, 0, 0, 1, 0, 0, 0, 0]]);
+    const a = transpose([
+      [0, 1, 0, 0, 0, 0, 0, 0, 1, 0],
+      [1, 1, 1, 0, 0, 1, 0, 0, 0, 0],
+    ]);
     expect(Math.abs(krippendorffAlpha(a).alpha - 0.095)).toBeLessThan(5e-4);
-    const b = transpose([['a', 'a', 'b', 'b', 'd', 'c', 'c', 'c', 'e', 'd', 'd', 'a'], ['b', 'a', 'b', 'b', 'b', 'c', 'c', 'c', 'e', 'd', 'd', 'd']]);
+    const b = transpose([
+      ['a', 'a', 'b', 'b', 'd', 'c', 'c', 'c', 'e', 'd', 'd', 'a'],
+      ['b', 'a', 'b', 'b', 'b', 'c', 'c', 'c', 'e', 'd', 'd', 'd'],
+    ]);
     expect(Math.abs(krippendorffAlpha(b).alpha - 0.692)).toBeLessThan(5e-4);
   });
 
   it('is NaN when there is nothing to compare', () => {
-    expect(krippendorffAlpha([['x', null], [null, 'y']]).alpha).toBeNaN();
-    expect(krippendorffAlpha([['x', 'x'], ['x', 'x']]).alpha).toBeNaN();
+    expect(
+      krippendorffAlpha([
+        ['x', null],
+        [null, 'y'],
+      ]).alpha,
+    ).toBeNaN();
+    expect(
+      krippendorffAlpha([
+        ['x', 'x'],
+        ['x', 'x'],
+      ]).alpha,
+    ).toBeNaN();
   });
 
   it('rejects bad input naming the argument', () => {

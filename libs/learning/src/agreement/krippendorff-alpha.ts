@@ -2,7 +2,9 @@
 export type AlphaLevel = 'nominal' | 'ordinal' | 'interval';
 
 /** A units × observers table: `table[u][o]` is observer o's value for unit u, null or undefined when missing. */
-export type ReliabilityTable<V extends string | number = string | number> = readonly (readonly (V | null | undefined)[])[];
+export type ReliabilityTable<V extends string | number = string | number> = readonly (readonly (
+  V | null | undefined
+)[])[];
 
 /** Krippendorff's alpha with the figures behind it. */
 export interface KrippendorffAlpha {
@@ -31,21 +33,26 @@ export interface ValueCounts {
 
 /** Checks the table and counts values per unit; units with fewer than two values are dropped (not pairable). */
 export function countValues(table: ReliabilityTable, level: AlphaLevel = 'nominal'): ValueCounts {
-  if (level !== 'nominal' && level !== 'ordinal' && level !== 'interval') throw new RangeError(`level must be nominal, ordinal or interval, got ${String(level)}`);
-  if (!Array.isArray(table)) throw new TypeError('table must be an array of units, each an array of observers\' values');
+  if (!['nominal', 'ordinal', 'interval'].includes(level))
+    throw new RangeError(`level must be nominal, ordinal or interval, got ${level}`);
+  if (!Array.isArray(table)) throw new TypeError("table must be an array of units, each an array of observers' values");
   let observers = -1;
   const perUnit: Array<Array<string | number>> = [];
   const distinct = new Set<string | number>();
   table.forEach((unit, u) => {
     if (!Array.isArray(unit)) throw new TypeError(`table[${u}] must be an array of observers' values`);
     if (observers === -1) observers = unit.length;
-    else if (unit.length !== observers) throw new RangeError(`table is ragged: unit 0 has ${observers} observers, unit ${u} has ${unit.length}`);
+    else if (unit.length !== observers)
+      throw new RangeError(`table is ragged: unit 0 has ${observers} observers, unit ${u} has ${unit.length}`);
     const present: Array<string | number> = [];
-    unit.forEach((v, o) => {
+    // Array.isArray above narrowed the readonly rows to any[]: their cells are values again here.
+    unit.forEach((v: string | number | null | undefined, o) => {
       if (v === null || v === undefined) return;
       const numeric = typeof v === 'number' && Number.isFinite(v);
       if (level === 'nominal' ? !(numeric || typeof v === 'string') : !numeric) {
-        throw new TypeError(`table[${u}][${o}] must be ${level === 'nominal' ? 'a string or finite number' : 'a finite number'} or null, got ${String(v)}`);
+        throw new TypeError(
+          `table[${u}][${o}] must be ${level === 'nominal' ? 'a string or finite number' : 'a finite number'} or null, got ${String(v)}`,
+        );
       }
       present.push(v);
     });
@@ -80,15 +87,15 @@ export function countValues(table: ReliabilityTable, level: AlphaLevel = 'nomina
 export function addCoincidences(counts: ValueCounts, weights: ArrayLike<number> | null, into: Float64Array): void {
   const v = counts.values.length;
   counts.units.forEach((unit, u) => {
-    const w = weights ? weights[u]! : 1;
+    const w = weights ? weights[u] : 1;
     if (w === 0) return;
     const scale = w / (unit.m - 1);
     for (let a = 0; a < unit.index.length; a++) {
-      const c = unit.index[a]!;
-      const nc = unit.count[a]!;
+      const c = unit.index[a];
+      const nc = unit.count[a];
       for (let b = 0; b < unit.index.length; b++) {
-        const k = unit.index[b]!;
-        into[c * v + k] += scale * nc * (a === b ? nc - 1 : unit.count[b]!);
+        const k = unit.index[b];
+        into[c * v + k] += scale * nc * (a === b ? nc - 1 : unit.count[b]);
       }
     }
   });
@@ -101,21 +108,25 @@ export function addCoincidences(counts: ValueCounts, weights: ArrayLike<number> 
  * (c − k)² for interval data, and for ordinal data
  * (Σ_{g=c..k} n_g − (n_c + n_k)/2)² over the values in rank order.
  */
-export function alphaFromCoincidences(o: Float64Array, values: ReadonlyArray<string | number>, level: AlphaLevel): { alpha: number; observed: number; expected: number; n: number } {
+export function alphaFromCoincidences(
+  o: Float64Array,
+  values: ReadonlyArray<string | number>,
+  level: AlphaLevel,
+): { alpha: number; observed: number; expected: number; n: number } {
   const v = values.length;
   const margins = new Float64Array(v);
   let n = 0;
-  for (let c = 0; c < v; c++) for (let k = 0; k < v; k++) margins[c] += o[c * v + k]!;
-  for (let c = 0; c < v; c++) n += margins[c]!;
+  for (let c = 0; c < v; c++) for (let k = 0; k < v; k++) margins[c] += o[c * v + k];
+  for (let c = 0; c < v; c++) n += margins[c];
   const cumulative = new Float64Array(v + 1);
-  for (let c = 0; c < v; c++) cumulative[c + 1] = cumulative[c]! + margins[c]!;
+  for (let c = 0; c < v; c++) cumulative[c + 1] = cumulative[c] + margins[c];
   const delta = (c: number, k: number): number => {
     if (c === k) return 0;
     if (level === 'nominal') return 1;
     if (level === 'interval') return ((values[c] as number) - (values[k] as number)) ** 2;
     const lo = Math.min(c, k);
     const hi = Math.max(c, k);
-    return (cumulative[hi + 1]! - cumulative[lo]! - (margins[c]! + margins[k]!) / 2) ** 2;
+    return (cumulative[hi + 1] - cumulative[lo] - (margins[c] + margins[k]) / 2) ** 2;
   };
   let observedSum = 0;
   let expectedSum = 0;
@@ -123,8 +134,8 @@ export function alphaFromCoincidences(o: Float64Array, values: ReadonlyArray<str
     for (let k = 0; k < v; k++) {
       if (c === k) continue;
       const d = delta(c, k);
-      observedSum += o[c * v + k]! * d;
-      expectedSum += margins[c]! * margins[k]! * d;
+      observedSum += o[c * v + k] * d;
+      expectedSum += margins[c] * margins[k] * d;
     }
   }
   const observed = n > 0 ? observedSum / n : Number.NaN;
@@ -149,7 +160,11 @@ export function alphaOfCounts(counts: ValueCounts): KrippendorffAlpha {
   addCoincidences(counts, null, o);
   const r = alphaFromCoincidences(o, counts.values, counts.level);
   return {
-    alpha: r.alpha, observedDisagreement: r.observed, expectedDisagreement: r.expected,
-    pairableValues: counts.units.reduce((s, u) => s + u.m, 0), pairableUnits: counts.units.length, values: [...counts.values],
+    alpha: r.alpha,
+    observedDisagreement: r.observed,
+    expectedDisagreement: r.expected,
+    pairableValues: counts.units.reduce((s, u) => s + u.m, 0),
+    pairableUnits: counts.units.length,
+    values: [...counts.values],
   };
 }

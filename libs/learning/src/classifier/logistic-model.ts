@@ -1,3 +1,4 @@
+import type { StoredJson } from '../stored-json.js';
 import { assertSparseVector, type SparseVector } from '../features/sparse-vector.js';
 
 /** How a model was trained (for reports; not needed to score). */
@@ -167,20 +168,22 @@ export class LogisticModel {
   }
 
   /** Restores a model written by {@link LogisticModel.toJSON}. */
-  static fromJSON(json: LogisticModelJson): LogisticModel {
+  static fromJSON(json: StoredJson<LogisticModelJson>): LogisticModel {
     if (json?.type !== 'cribra.logistic-model') throw new TypeError(`not a logistic model: type ${String(json?.type)}`);
     if (json.version !== 1) throw new RangeError(`unsupported logistic model version ${String(json.version)}`);
     const k = json.trained.length;
     const m = json.features.length;
     if (json.weights.length !== k) throw new RangeError(`weights has ${json.weights.length} classes, expected ${k}`);
     for (const t of json.trained) {
-      if (!Number.isInteger(t) || t < 0 || t >= json.categories.length) throw new RangeError(`bad trained category position ${t}`);
+      if (!Number.isInteger(t) || t < 0 || t >= json.categories.length)
+        throw new RangeError(`bad trained category position ${t}`);
     }
     const features = Int32Array.from(json.features);
     assertSparseVector({ indices: features, values: new Float64Array(m) }, 'features', 2 ** json.hashBits);
     const weights = new Float64Array(m * k);
     for (let c = 0; c < k; c++) {
-      if (json.weights[c].length !== m) throw new RangeError(`weights[${c}] has ${json.weights[c].length} entries, expected ${m}`);
+      if (json.weights[c].length !== m)
+        throw new RangeError(`weights[${c}] has ${json.weights[c].length} entries, expected ${m}`);
       for (let j = 0; j < m; j++) weights[j * k + c] = json.weights[c][j];
     }
     return new LogisticModel(

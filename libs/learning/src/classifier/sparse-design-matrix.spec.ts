@@ -4,7 +4,12 @@ import { DenseColumn, SparseDesignMatrix } from './sparse-design-matrix.js';
 
 // [[1, 0, 2], [0, 3, 0], [4, 0, 5]] in CSR.
 function example(): SparseDesignMatrix {
-  return new SparseDesignMatrix(Int32Array.of(0, 2, 3, 5), Int32Array.of(0, 2, 1, 0, 2), Float64Array.of(1, 2, 3, 4, 5), 3);
+  return new SparseDesignMatrix(
+    Int32Array.of(0, 2, 3, 5),
+    Int32Array.of(0, 2, 1, 0, 2),
+    Float64Array.of(1, 2, 3, 4, 5),
+    3,
+  );
 }
 const DENSE = new Matrix([
   [1, 0, 2],
@@ -36,7 +41,10 @@ describe('SparseDesignMatrix', () => {
     got.forEach((g, i) => expect(Math.abs(g - want[i])).toBeLessThan(1e-12));
     const r = Float64Array.of(1, -2, 0.5);
     const gotT = Array.from(x.transposeTimes(r));
-    const wantT = centred.transpose().mmul(Matrix.columnVector(Array.from(r))).to1DArray();
+    const wantT = centred
+      .transpose()
+      .mmul(Matrix.columnVector(Array.from(r)))
+      .to1DArray();
     gotT.forEach((g, i) => expect(Math.abs(g - wantT[i])).toBeLessThan(1e-12));
   });
 
@@ -64,6 +72,8 @@ describe('SparseDesignMatrix', () => {
   it('is read-only and checks shapes', () => {
     expect(() => example().set(0, 0, 1)).toThrow(TypeError);
     expect(() => example().mmul(Matrix.columnVector([1, 2]))).toThrow(/3 × 1/);
-    expect(() => new SparseDesignMatrix(Int32Array.of(0, 1), Int32Array.of(5), Float64Array.of(1), 3)).toThrow(RangeError);
+    expect(() => new SparseDesignMatrix(Int32Array.of(0, 1), Int32Array.of(5), Float64Array.of(1), 3)).toThrow(
+      RangeError,
+    );
   });
 });

@@ -52,7 +52,11 @@ function readColumn(m: MatrixLike, expectedRows: number, name: string): Float64A
   // Float64Array a row); reading it directly avoids a megamorphic `get` call
   // per entry, which dominated the products for wide weight columns.
   const data = (m as { data?: unknown }).data;
-  if (Array.isArray(data) && data.length === expectedRows && (expectedRows === 0 || (data[0] instanceof Float64Array && data[0].length === 1))) {
+  if (
+    Array.isArray(data) &&
+    data.length === expectedRows &&
+    (expectedRows === 0 || (data[0] instanceof Float64Array && data[0].length === 1))
+  ) {
     for (let i = 0; i < expectedRows; i++) out[i] = (data[i] as Float64Array)[0];
     return out;
   }
@@ -102,7 +106,9 @@ export class SparseDesignMatrix extends AbstractMatrix {
     if (rows < 0) throw new RangeError('rowPtr must have at least one entry');
     const values = nzValues;
     if (colIdx.length !== values.length || rowPtr[rows] !== values.length) {
-      throw new RangeError(`non-zero arrays disagree: rowPtr ends at ${rowPtr[rows]}, ${colIdx.length} columns, ${values.length} values`);
+      throw new RangeError(
+        `non-zero arrays disagree: rowPtr ends at ${rowPtr[rows]}, ${colIdx.length} columns, ${values.length} values`,
+      );
     }
     (this as { rows: number }).rows = rows;
     (this as { columns: number }).columns = columns;
@@ -202,8 +208,8 @@ export class SparseDesignMatrix extends AbstractMatrix {
     const w = readColumn(asMatrixLike(other), this.columns, 'mmul argument');
     const out = this.times(w);
     if (this.bases !== null && this.stepsPerClass > 0) {
-      const base = this.bases[Math.floor(this.calls / this.stepsPerClass)];
-      if (base !== undefined) for (let i = 0; i < out.length; i++) out[i] += base[i];
+      const c = Math.floor(this.calls / this.stepsPerClass);
+      if (c < this.bases.length) for (let i = 0; i < out.length; i++) out[i] += this.bases[c][i];
     }
     this.calls++;
     return new DenseColumn(out) as unknown as Matrix;
@@ -247,8 +253,9 @@ export class SparseDesignMatrix extends AbstractMatrix {
   currentTransposeTimes(r: Float64Array): Float64Array {
     if (this.rowWeights === null || this.stepsPerClass === 0) return this.transposeTimes(r);
     // The library calls X·w then Xᵀ·r in each step: the class is that of the last X·w.
-    const weights = this.rowWeights[Math.floor((this.calls - 1) / this.stepsPerClass)];
-    if (weights === undefined) return this.transposeTimes(r);
+    const c = Math.floor((this.calls - 1) / this.stepsPerClass);
+    if (c < 0 || c >= this.rowWeights.length) return this.transposeTimes(r);
+    const weights = this.rowWeights[c];
     const weighted = new Float64Array(r.length);
     for (let i = 0; i < r.length; i++) weighted[i] = r[i] * weights[i];
     return this.transposeTimes(weighted);

@@ -155,7 +155,11 @@ function largestEigenvalue(x: SparseDesignMatrix, skipColumn: number, iterations
  * @param labels   the category of each row
  * @throws RangeError / TypeError on bad shapes, unknown labels or options.
  */
-export function trainLogisticModel(vectors: readonly SparseVector[], labels: readonly string[], options: TrainOptions): LogisticModel {
+export function trainLogisticModel(
+  vectors: readonly SparseVector[],
+  labels: readonly string[],
+  options: TrainOptions,
+): LogisticModel {
   const { categories, hashBits } = options;
   const maxSteps = options.maxSteps ?? defaultMaxSteps(vectors.length);
   const stepsPerRound = options.stepsPerRound ?? 10;
@@ -167,12 +171,16 @@ export function trainLogisticModel(vectors: readonly SparseVector[], labels: rea
   if (!Array.isArray(categories) || categories.length < 2 || new Set(categories).size !== categories.length) {
     throw new RangeError(`categories must list at least 2 distinct names, got ${JSON.stringify(categories)}`);
   }
-  if (!Number.isInteger(hashBits) || hashBits < 1 || hashBits > 26) throw new RangeError(`hashBits must be an integer in 1…26, got ${hashBits}`);
-  if (!Number.isInteger(maxSteps) || maxSteps < 1) throw new RangeError(`maxSteps must be a positive integer, got ${maxSteps}`);
-  if (!Number.isInteger(stepsPerRound) || stepsPerRound < 1) throw new RangeError(`stepsPerRound must be a positive integer, got ${stepsPerRound}`);
+  if (!Number.isInteger(hashBits) || hashBits < 1 || hashBits > 26)
+    throw new RangeError(`hashBits must be an integer in 1…26, got ${hashBits}`);
+  if (!Number.isInteger(maxSteps) || maxSteps < 1)
+    throw new RangeError(`maxSteps must be a positive integer, got ${maxSteps}`);
+  if (!Number.isInteger(stepsPerRound) || stepsPerRound < 1)
+    throw new RangeError(`stepsPerRound must be a positive integer, got ${stepsPerRound}`);
   if (!(tolerance >= 0)) throw new RangeError(`tolerance must be ≥ 0, got ${tolerance}`);
   if (!(stepScale > 0)) throw new RangeError(`stepScale must be > 0, got ${stepScale}`);
-  if (!Number.isInteger(maxFeatures) || maxFeatures < 1) throw new RangeError(`maxFeatures must be a positive integer, got ${maxFeatures}`);
+  if (!Number.isInteger(maxFeatures) || maxFeatures < 1)
+    throw new RangeError(`maxFeatures must be a positive integer, got ${maxFeatures}`);
   if (vectors.length !== labels.length) {
     throw new RangeError(`vectors (${vectors.length}) and labels (${labels.length}) differ in length`);
   }
@@ -226,13 +234,21 @@ export function trainLogisticModel(vectors: readonly SparseVector[], labels: rea
   const columns = m + 1;
 
   if (k === 1) {
-    return new LogisticModel(categories, trained, hashBits, new Int32Array(0), new Float64Array(0), new Float64Array(1), {
-      rows,
-      steps: 0,
-      loss: 0,
-      learningRate: 0,
-      converged: true,
-    });
+    return new LogisticModel(
+      categories,
+      trained,
+      hashBits,
+      new Int32Array(0),
+      new Float64Array(0),
+      new Float64Array(1),
+      {
+        rows,
+        steps: 0,
+        loss: 0,
+        learningRate: 0,
+        converged: true,
+      },
+    );
   }
 
   const x = new SparseDesignMatrix(rowPtr, colIdx, values, columns);

@@ -1,3 +1,4 @@
+import type { StoredJson } from '../stored-json.js';
 import { assertAlpha, assertLabel, assertProbabilities } from '../probability-checks.js';
 import type { Rng } from '../random/rng.js';
 import { calibrationSizeNeeded, conformalRank } from './conformal-quantile.js';
@@ -77,7 +78,8 @@ export class ConformalCalibration {
     labels: readonly number[],
     options: { rng?: Rng } = {},
   ): ConformalCalibration {
-    if (!Array.isArray(categories) || categories.length < 1) throw new RangeError('categories must list at least one category');
+    if (!Array.isArray(categories) || categories.length < 1)
+      throw new RangeError('categories must list at least one category');
     if (probabilities.length !== labels.length) {
       throw new RangeError(`probabilities (${probabilities.length}) and labels (${labels.length}) differ in length`);
     }
@@ -99,7 +101,8 @@ export class ConformalCalibration {
       apsBy[y].push(a);
     });
     return new ConformalCalibration(
-      [...categories],
+      // Array.isArray above narrowed the readonly list to any[].
+      [...(categories as readonly string[])],
       options.rng !== undefined,
       ascending(lac),
       ascending(aps),
@@ -121,7 +124,7 @@ export class ConformalCalibration {
   }
 
   private sorted(score: NonconformityScore, category?: number): Float64Array {
-    if (score !== 'lac' && score !== 'aps') throw new RangeError(`score must be lac or aps, got ${String(score)}`);
+    if (!['lac', 'aps'].includes(score)) throw new RangeError(`score must be lac or aps, got ${score}`);
     if (category === undefined) return score === 'lac' ? this.lac : this.aps;
     assertLabel(category, this.categories.length, 'category');
     return score === 'lac' ? this.lacByCategory[category] : this.apsByCategory[category];
@@ -144,12 +147,13 @@ export class ConformalCalibration {
    * marginal threshold repeated, or each category's own.
    */
   thresholds(score: NonconformityScore, alpha: number, mode: CalibrationMode): ConformalThreshold[] {
+    if (!['marginal', 'per-category'].includes(mode))
+      throw new RangeError(`mode must be marginal or per-category, got ${mode}`);
     if (mode === 'marginal') {
       const t = this.threshold(score, alpha);
       return this.categories.map(() => t);
     }
-    if (mode === 'per-category') return this.categories.map((_, c) => this.categoryThreshold(score, alpha, c));
-    throw new RangeError(`mode must be marginal or per-category, got ${String(mode)}`);
+    return this.categories.map((_, c) => this.categoryThreshold(score, alpha, c));
   }
 
   toJSON(): ConformalCalibrationJson {
@@ -160,20 +164,25 @@ export class ConformalCalibration {
       apsRandomized: this.apsRandomized,
       lac: Array.from(this.lac),
       aps: Array.from(this.aps),
-      perCategory: { lac: this.lacByCategory.map((s) => Array.from(s)), aps: this.apsByCategory.map((s) => Array.from(s)) },
+      perCategory: {
+        lac: this.lacByCategory.map((s) => Array.from(s)),
+        aps: this.apsByCategory.map((s) => Array.from(s)),
+      },
     };
   }
 
   /** Restores a calibration written by {@link ConformalCalibration.toJSON}. */
-  static fromJSON(json: ConformalCalibrationJson): ConformalCalibration {
-    if (json?.type !== 'cribra.conformal-calibration') throw new TypeError(`not a conformal calibration: type ${String(json?.type)}`);
+  static fromJSON(json: StoredJson<ConformalCalibrationJson>): ConformalCalibration {
+    if (json?.type !== 'cribra.conformal-calibration')
+      throw new TypeError(`not a conformal calibration: type ${String(json?.type)}`);
     if (json.version !== 1) throw new RangeError(`unsupported conformal calibration version ${String(json.version)}`);
     const k = json.categories.length;
     if (json.perCategory.lac.length !== k || json.perCategory.aps.length !== k) {
       throw new RangeError(`perCategory must hold ${k} score lists per score`);
     }
     const total = json.perCategory.lac.reduce((s, l) => s + l.length, 0);
-    if (json.lac.length !== total || json.aps.length !== total) throw new RangeError('overall and per-category score counts disagree');
+    if (json.lac.length !== total || json.aps.length !== total)
+      throw new RangeError('overall and per-category score counts disagree');
     return new ConformalCalibration(
       json.categories,
       json.apsRandomized,

@@ -149,11 +149,13 @@ describe('ConformalCalibration and prediction sets', () => {
 
   it('stores sorted scores overall and per category, and round-trips', () => {
     // LAC scores: 0.2, 0.7, 0.3, 0.6 → sorted 0.2, 0.3, 0.6, 0.7.
-    Array.from(calibration.scores('lac')).forEach((s, i) => expect(Math.abs(s - [0.2, 0.3, 0.6, 0.7][i])).toBeLessThan(1e-12));
+    Array.from(calibration.scores('lac')).forEach((s, i) =>
+      expect(Math.abs(s - [0.2, 0.3, 0.6, 0.7][i])).toBeLessThan(1e-12),
+    );
     expect(calibration.size(1)).toBe(2);
     const restored = ConformalCalibration.fromJSON(JSON.parse(JSON.stringify(calibration.toJSON())));
     expect(Array.from(restored.scores('aps', 1))).toEqual(Array.from(calibration.scores('aps', 1)));
-    expect(() => ConformalCalibration.fromJSON({ ...calibration.toJSON(), version: 2 as 1 })).toThrow(/version/);
+    expect(() => ConformalCalibration.fromJSON({ ...calibration.toJSON(), version: 2 })).toThrow(/version/);
   });
 
   it('gives the full set and the number of verdicts still needed when k > n', () => {
@@ -168,7 +170,11 @@ describe('ConformalCalibration and prediction sets', () => {
     // α = 0.5: k = ⌈5 · 0.5⌉ = 3 → q̂ = 0.6 (LAC): y in set iff p_y ≥ 0.4.
     const opts = { alpha: 0.5, score: 'lac' as const, mode: 'marginal' as const };
     expect(predictionSet([0.9, 0.05, 0.05], calibration, opts).call).toBe('sure');
-    expect(predictionSet([0.45, 0.45, 0.1], calibration, opts)).toEqual({ categories: [0, 1], call: 'ambiguous', needMore: 0 });
+    expect(predictionSet([0.45, 0.45, 0.1], calibration, opts)).toEqual({
+      categories: [0, 1],
+      call: 'ambiguous',
+      needMore: 0,
+    });
     expect(predictionSet([0.34, 0.33, 0.33], calibration, opts).call).toBe('unfamiliar');
     // A score equal to q̂ up to rounding is in the set (tolerance 1e-12).
     expect(predictionSet([0.4 - 1e-15, 0.3 + 1e-15, 0.3], calibration, opts).categories).toEqual([0]);
@@ -184,9 +190,18 @@ describe('ConformalCalibration and prediction sets', () => {
   it('requires randomisation to match the calibration', () => {
     const randomised = ConformalCalibration.fromScores(categories, probs, labels, { rng: createRng(1) });
     expect(randomised.apsRandomized).toBe(true);
-    expect(() => predictionSet([0.5, 0.3, 0.2], randomised, { alpha: 0.5, score: 'aps', mode: 'marginal' })).toThrow(/randomis/);
-    const set = predictionSet([0.5, 0.3, 0.2], randomised, { alpha: 0.5, score: 'aps', mode: 'marginal', rng: createRng(2) });
+    expect(() => predictionSet([0.5, 0.3, 0.2], randomised, { alpha: 0.5, score: 'aps', mode: 'marginal' })).toThrow(
+      /randomis/,
+    );
+    const set = predictionSet([0.5, 0.3, 0.2], randomised, {
+      alpha: 0.5,
+      score: 'aps',
+      mode: 'marginal',
+      rng: createRng(2),
+    });
     expect(['sure', 'ambiguous', 'unfamiliar']).toContain(set.call);
-    expect(() => predictionSet([0.5, 0.5], calibration, { alpha: 0.5, score: 'lac', mode: 'marginal' })).toThrow(/3 categories/);
+    expect(() => predictionSet([0.5, 0.5], calibration, { alpha: 0.5, score: 'lac', mode: 'marginal' })).toThrow(
+      /3 categories/,
+    );
   });
 });

@@ -1,4 +1,3 @@
-
 /**
  * LAC nonconformity score s(x, y) = 1 − p̂(y | x) ("least ambiguous set-valued
  * classifier", Sadinle, Lei & Wasserman 2019; the score of Angelopoulos &
@@ -34,4 +33,3 @@ export function apsScore(p: ArrayLike<number>, y: number, u?: number): number {
   }
   throw new RangeError(`y must be a category index in 0…${p.length - 1}, got ${y}`);
 }
-

@@ -48,7 +48,11 @@ export function triageCall(size: number): TriageCall {
  * (C(x) = {y : s(x, y) ≤ q̂_y}; Vovk et al. 2003), for the LAC or APS score
  * (Romano, Sesia & Candès 2020).
  */
-export function predictionSet(p: ArrayLike<number>, calibration: ConformalCalibration, options: PredictionSetOptions): PredictionSet {
+export function predictionSet(
+  p: ArrayLike<number>,
+  calibration: ConformalCalibration,
+  options: PredictionSetOptions,
+): PredictionSet {
   assertProbabilities(p, 'p');
   const k = calibration.categories.length;
   if (p.length !== k) throw new RangeError(`p has ${p.length} entries, the calibration ${k} categories`);

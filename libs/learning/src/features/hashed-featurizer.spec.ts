@@ -6,7 +6,14 @@ describe('createFeaturizer', () => {
   it('tokenises letters and digits of any script after NFKC and case folding', () => {
     const f = createFeaturizer();
     expect(f.tokens('Ｈｅｌｌｏ, WORLD! Straße 42 ﬁre — Привет мир; नमस्ते')).toEqual([
-      'hello', 'world', 'strasse', '42', 'fire', 'привет', 'мир', 'नमस्ते',
+      'hello',
+      'world',
+      'strasse',
+      '42',
+      'fire',
+      'привет',
+      'мир',
+      'नमस्ते',
     ]);
     // Han and Kana have no spaces between words: one token per character.
     expect(f.tokens('東京に行く')).toEqual(['東', '京', 'に', '行', 'く']);

@@ -91,7 +91,7 @@ export function createFeaturizer(options: FeaturizerOptions = {}): Featurizer {
     throw new RangeError(`hashBits must be an integer in 4…26, got ${hashBits}`);
   }
   const maxWordNgram = options.maxWordNgram ?? 2;
-  if (maxWordNgram !== 1 && maxWordNgram !== 2) throw new RangeError(`maxWordNgram must be 1 or 2, got ${maxWordNgram}`);
+  if (![1, 2].includes(maxWordNgram)) throw new RangeError(`maxWordNgram must be 1 or 2, got ${maxWordNgram}`);
   const charNgrams = options.charNgrams === undefined ? ([3, 5] as const) : options.charNgrams;
   if (charNgrams !== null) {
     const [lo, hi] = charNgrams;

@@ -1,3 +1,4 @@
+import type { StoredJson } from '../stored-json.js';
 import type { SparseVector } from './sparse-vector.js';
 
 /** Serialised form of an {@link IdfTable}. */
@@ -80,7 +81,7 @@ export class IdfTable {
   }
 
   /** Restores a table written by {@link IdfTable.toJSON}. */
-  static fromJSON(json: IdfTableJson): IdfTable {
+  static fromJSON(json: StoredJson<IdfTableJson>): IdfTable {
     if (json?.type !== 'cribra.idf-table') throw new TypeError(`not an idf table: type ${String(json?.type)}`);
     if (json.version !== 1) throw new RangeError(`unsupported idf table version ${String(json.version)}`);
     const table = IdfTable.create(json.hashBits);
@@ -91,8 +92,10 @@ export class IdfTable {
     for (let i = 0; i < json.indices.length; i++) {
       const index = json.indices[i];
       const d = json.df[i];
-      if (!Number.isInteger(index) || index < 0 || index >= table.df.length) throw new RangeError(`bad bucket index ${index}`);
-      if (!Number.isInteger(d) || d < 0 || d > json.documentCount) throw new RangeError(`bad document frequency ${d} at bucket ${index}`);
+      if (!Number.isInteger(index) || index < 0 || index >= table.df.length)
+        throw new RangeError(`bad bucket index ${index}`);
+      if (!Number.isInteger(d) || d < 0 || d > json.documentCount)
+        throw new RangeError(`bad document frequency ${d} at bucket ${index}`);
       table.df[index] = d;
     }
     table.n = json.documentCount;

@@ -48,7 +48,13 @@ export function cosineSimilarity(a: SparseVector, b: SparseVector): number {
  * @throws TypeError / RangeError naming `name`.
  */
 export function assertSparseVector(v: SparseVector, name: string, dimension?: number): void {
-  if (v === null || typeof v !== 'object' || !(v.indices instanceof Int32Array) || !(v.values instanceof Float64Array)) {
+  if (
+    // JavaScript callers are not held to the type.
+    (v as unknown) === null ||
+    typeof v !== 'object' ||
+    !(v.indices instanceof Int32Array) ||
+    !(v.values instanceof Float64Array)
+  ) {
     throw new TypeError(`${name} must be a sparse vector { indices: Int32Array, values: Float64Array }`);
   }
   if (v.indices.length !== v.values.length) {

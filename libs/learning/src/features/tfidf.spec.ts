@@ -83,15 +83,21 @@ describe('tfidf', () => {
   it('serialises the table and updates it incrementally', () => {
     const idf = table();
     const json = idf.toJSON();
-    expect(json).toMatchObject({ type: 'cribra.idf-table', version: 1, documentCount: 6, indices: [0, 1, 2], df: [6, 1, 2] });
+    expect(json).toMatchObject({
+      type: 'cribra.idf-table',
+      version: 1,
+      documentCount: 6,
+      indices: [0, 1, 2],
+      df: [6, 1, 2],
+    });
     const restored = IdfTable.fromJSON(JSON.parse(JSON.stringify(json)));
     restored.addDocument(sparse([0, 1, 0]));
     expect(restored.documentCount).toBe(7);
     expect(restored.documentFrequency(1)).toBe(2);
     // ln((1+7)/(1+2)) + 1, by hand.
     expect(Math.abs(restored.idf(1) - (Math.log(8 / 3) + 1))).toBeLessThan(1e-12);
-    expect(() => IdfTable.fromJSON({ ...json, version: 2 as 1 })).toThrow(/version/);
-    expect(() => IdfTable.fromJSON({ ...json, type: 'x' as 'cribra.idf-table' })).toThrow(TypeError);
+    expect(() => IdfTable.fromJSON({ ...json, version: 2 })).toThrow(/version/);
+    expect(() => IdfTable.fromJSON({ ...json, type: 'x' })).toThrow(TypeError);
   });
 
   it('rejects counts outside the table', () => {

@@ -1,5 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { clopperPearsonInterval, wilsonContinuityCorrectedInterval, wilsonInterval, Z_95 } from './binomial-intervals.js';
+import {
+  clopperPearsonInterval,
+  wilsonContinuityCorrectedInterval,
+  wilsonInterval,
+  Z_95,
+} from './binomial-intervals.js';
 import { inverseRegularizedIncompleteBeta, logGamma, regularizedIncompleteBeta } from './incomplete-beta.js';
 
 // Newcombe (1998), "Two-sided confidence intervals for the single proportion:

@@ -26,7 +26,8 @@ function checkInputs(confidences: readonly number[], correct: readonly (boolean 
   }
   if (confidences.length === 0) throw new RangeError('confidences must not be empty');
   confidences.forEach((c, i) => {
-    if (typeof c !== 'number' || !(c >= 0 && c <= 1)) throw new RangeError(`confidences[${i}] must be in [0, 1], got ${c}`);
+    if (typeof c !== 'number' || !(c >= 0 && c <= 1))
+      throw new RangeError(`confidences[${i}] must be in [0, 1], got ${c}`);
   });
 }
 
@@ -35,7 +36,11 @@ function checkInputs(confidences: readonly number[], correct: readonly (boolean 
  * Sun & Weinberger 2017, "On Calibration of Modern Neural Networks", §2):
  * per bin the count, mean confidence and accuracy.
  */
-export function reliabilityBins(confidences: readonly number[], correct: readonly (boolean | number)[], bins = 10): ReliabilityBin[] {
+export function reliabilityBins(
+  confidences: readonly number[],
+  correct: readonly (boolean | number)[],
+  bins = 10,
+): ReliabilityBin[] {
   checkInputs(confidences, correct, bins);
   const count = new Float64Array(bins);
   const conf = new Float64Array(bins);
@@ -60,7 +65,11 @@ export function reliabilityBins(confidences: readonly number[], correct: readonl
  * Expected calibration error, Guo et al. (2017), eq. 3:
  * ECE = Σ_m (|B_m| / n)·|acc(B_m) − conf(B_m)| over M equal-width bins.
  */
-export function expectedCalibrationError(confidences: readonly number[], correct: readonly (boolean | number)[], bins = 10): number {
+export function expectedCalibrationError(
+  confidences: readonly number[],
+  correct: readonly (boolean | number)[],
+  bins = 10,
+): number {
   const n = confidences.length;
   return reliabilityBins(confidences, correct, bins).reduce(
     (sum, b) => (b.count === 0 ? sum : sum + (b.count / n) * Math.abs(b.accuracy - b.meanConfidence)),
@@ -69,7 +78,10 @@ export function expectedCalibrationError(confidences: readonly number[], correct
 }
 
 /** Top-label confidences and correctness from probability rows (ties: first category). */
-export function topLabelConfidence(probabilities: readonly ArrayLike<number>[], labels: readonly number[]): { confidences: number[]; correct: boolean[] } {
+export function topLabelConfidence(
+  probabilities: readonly ArrayLike<number>[],
+  labels: readonly number[],
+): { confidences: number[]; correct: boolean[] } {
   assertProbabilityRows(probabilities, labels);
   const confidences: number[] = [];
   const correct: boolean[] = [];

@@ -3,7 +3,8 @@ import { assertLabel, assertProbabilities } from '../probability-checks.js';
 /** Checks parallel label arrays (integer category indices in 0…k−1). */
 export function assertLabelPairs(truth: readonly number[], predicted: readonly number[], k: number): void {
   if (!Number.isInteger(k) || k < 1) throw new RangeError(`k must be a positive integer, got ${k}`);
-  if (truth.length !== predicted.length) throw new RangeError(`truth (${truth.length}) and predicted (${predicted.length}) differ in length`);
+  if (truth.length !== predicted.length)
+    throw new RangeError(`truth (${truth.length}) and predicted (${predicted.length}) differ in length`);
   if (truth.length === 0) throw new RangeError('truth must not be empty');
   truth.forEach((y, i) => assertLabel(y, k, `truth[${i}]`));
   predicted.forEach((y, i) => assertLabel(y, k, `predicted[${i}]`));

@@ -59,7 +59,15 @@ describe('quality metrics', () => {
   });
 
   it('derives top-label confidence and rejects bad input', () => {
-    expect(topLabelConfidence([[0.2, 0.8], [0.6, 0.4]], [1, 1])).toEqual({ confidences: [0.8, 0.6], correct: [true, false] });
+    expect(
+      topLabelConfidence(
+        [
+          [0.2, 0.8],
+          [0.6, 0.4],
+        ],
+        [1, 1],
+      ),
+    ).toEqual({ confidences: [0.8, 0.6], correct: [true, false] });
     expect(() => accuracy([0], [3], 3)).toThrow(/predicted\[0\]/);
     expect(() => brierScore([[0.5, 0.6]], [0])).toThrow(/sum to 1/);
     expect(() => expectedCalibrationError([1.5], [1])).toThrow(/confidences\[0\]/);

@@ -4,7 +4,11 @@ import type { SparseVector } from '../features/sparse-vector.js';
 import { tfidf } from '../features/tfidf.js';
 import { trainLogisticModel, type TrainOptions } from '../classifier/train-logistic.js';
 import type { LogisticModel } from '../classifier/logistic-model.js';
-import { ConformalCalibration, type CalibrationMode, type NonconformityScore } from '../conformal/conformal-calibration.js';
+import {
+  ConformalCalibration,
+  type CalibrationMode,
+  type NonconformityScore,
+} from '../conformal/conformal-calibration.js';
 import { predictionSet } from '../conformal/prediction-set.js';
 import { accuracy } from '../metrics/accuracy.js';
 import { macroF1 } from '../metrics/macro-f1.js';
@@ -87,15 +91,17 @@ function checkOptions(o: RehearsalOptions): void {
     throw new RangeError(`${flag} ${rule}, got ${String(value)}`);
   };
   if (!(o.target > 0 && o.target < 1)) fail('target', o.target, 'must be in (0, 1)');
-  if (o.calibration !== 'marginal' && o.calibration !== 'per-category') fail('calibration', o.calibration, 'must be marginal or per-category');
-  if (o.score !== 'lac' && o.score !== 'aps') fail('score', o.score, 'must be lac or aps');
+  if (!['marginal', 'per-category'].includes(o.calibration))
+    fail('calibration', o.calibration, 'must be marginal or per-category');
+  if (!['lac', 'aps'].includes(o.score)) fail('score', o.score, 'must be lac or aps');
   if (!['entropy', 'margin', 'least-confidence', 'random'].includes(o.strategy)) {
     fail('strategy', o.strategy, 'must be entropy, margin, least-confidence or random');
   }
   if (!(o.randomShare >= 0 && o.randomShare <= 1)) fail('randomShare', o.randomShare, 'must be in [0, 1]');
   if (!Number.isInteger(o.start) || o.start < 1) fail('start', o.start, 'must be a positive integer');
   if (!Number.isInteger(o.batch) || o.batch < 1) fail('batch', o.batch, 'must be a positive integer');
-  if (!Number.isInteger(o.budget) || o.budget < o.start) fail('budget', o.budget, `must be an integer ≥ start (${o.start})`);
+  if (!Number.isInteger(o.budget) || o.budget < o.start)
+    fail('budget', o.budget, `must be an integer ≥ start (${o.start})`);
   if (!(o.testShare > 0 && o.testShare < 1)) fail('testShare', o.testShare, 'must be in (0, 1)');
   if (!Number.isInteger(o.seed)) fail('seed', o.seed, 'must be an integer');
 }
@@ -114,7 +120,8 @@ export function prepareRehearsal(
   },
 ): RehearsalData {
   const classes = [...new Set(items.map((i) => i.label))].sort();
-  if (classes.length < 2) throw new RangeError(`the labels hold ${classes.length} class(es); a rehearsal needs at least 2`);
+  if (classes.length < 2)
+    throw new RangeError(`the labels hold ${classes.length} class(es); a rehearsal needs at least 2`);
   const index = new Map(classes.map((c, i) => [c, i]));
   const labels = Int32Array.from(items, (i) => index.get(i.label)!);
   const order = shuffleInPlace(
@@ -122,7 +129,8 @@ export function prepareRehearsal(
     createRng(options.seed),
   );
   const nTest = Math.round(items.length * options.testShare);
-  if (nTest < 1 || nTest >= items.length) throw new RangeError(`testShare ${options.testShare} leaves no test or no pool items of ${items.length}`);
+  if (nTest < 1 || nTest >= items.length)
+    throw new RangeError(`testShare ${options.testShare} leaves no test or no pool items of ${items.length}`);
   const test = order.slice(0, nTest);
   const pool = order.slice(nTest);
   const started = performance.now();
@@ -134,7 +142,15 @@ export function prepareRehearsal(
   const idf = IdfTable.create(featurizer.hashBits);
   for (const i of pool) idf.addDocument(counts[i]);
   const vectors = counts.map((c) => tfidf(c, idf));
-  return { classes, labels, vectors, pool, test, hashBits: featurizer.hashBits, featurizeMs: performance.now() - started };
+  return {
+    classes,
+    labels,
+    vectors,
+    pool,
+    test,
+    hashBits: featurizer.hashBits,
+    featurizeMs: performance.now() - started,
+  };
 }
 
 interface Timing {
@@ -235,7 +251,8 @@ function runCurve(
     // the calibration items (the current model never trained on them), and here
     // the test set.
     // (The random baseline draws without looking at scores.)
-    if (strategy !== 'random') for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
+    if (strategy !== 'random')
+      for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of calibrationRows) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of data.test) probabilities.set(i, model.predictProba(data.vectors[i]));
     timing.scoreMs.push(performance.now() - started);
@@ -254,7 +271,11 @@ function runCurve(
       drawn.forEach((i, j) => (j < nCal ? calibrationRows : trainRows).push(i));
       drawn.forEach((i) => labelled.add(i));
     } else {
-      const candidates: BatchCandidate[] = unlabelled.map((i) => ({ id: i, probabilities: probabilities.get(i)!, vector: data.vectors[i] }));
+      const candidates: BatchCandidate[] = unlabelled.map((i) => ({
+        id: i,
+        probabilities: probabilities.get(i)!,
+        vector: data.vectors[i],
+      }));
       for (const pick of pickBatch(candidates, { size, randomShare: options.randomShare, strategy, rng })) {
         (pick.draw === 'random' ? calibrationRows : trainRows).push(pick.id);
         labelled.add(pick.id);
@@ -309,7 +330,8 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
   const mainTiming = { trainMs: [...timing.trainMs], scoreMs: [...timing.scoreMs] };
   let random: RehearsalCurve | undefined;
   let randomCurve: CurvePoint[] | undefined;
-  if (options.compareRandom) randomCurve = runCurve(data, options, 'random', createRng(options.seed * 31 + 8), timing, progress);
+  if (options.compareRandom)
+    randomCurve = runCurve(data, options, 'random', createRng(options.seed * 31 + 8), timing, progress);
   const fullModel = train(data, data.pool, options, { trainMs: [], scoreMs: [] });
   const truth = data.test.map((i) => data.labels[i]);
   const predicted = data.test.map((i) => {
@@ -332,6 +354,10 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
     full,
     labelsToReach: labelsToReach(curve, full.macroF1),
     ...(random ? { random } : {}),
-    timings: { featurizeMs: data.featurizeMs, trainMsMean: mean(mainTiming.trainMs), scoreMsMean: mean(mainTiming.scoreMs) },
+    timings: {
+      featurizeMs: data.featurizeMs,
+      trainMsMean: mean(mainTiming.trainMs),
+      scoreMsMean: mean(mainTiming.scoreMs),
+    },
   };
 }

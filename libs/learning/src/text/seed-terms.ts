@@ -81,8 +81,10 @@ interface Entry {
  * @throws TypeError if `seedTerms` is not an object of string arrays.
  */
 export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermMatcher {
-  if (seedTerms === null || typeof seedTerms !== 'object' || Array.isArray(seedTerms)) {
-    throw new TypeError(`seedTerms must be an object mapping categories to term lists, got ${String(seedTerms)}`);
+  // Seed terms come from JSON (the API, the database): checked as received.
+  const given: unknown = seedTerms;
+  if (given === null || typeof given !== 'object' || Array.isArray(given)) {
+    throw new TypeError(`seedTerms must be an object mapping categories to term lists, got ${String(given)}`);
   }
   const table = new Map<string, Entry>();
   let maxWords = 0;

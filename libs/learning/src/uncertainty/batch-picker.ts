@@ -51,10 +51,12 @@ export function pickBatch(candidates: readonly BatchCandidate[], options: BatchO
   const { size, randomShare, strategy, rng } = options;
   const duplicateCosine = options.duplicateCosine ?? 0.95;
   if (!Number.isInteger(size) || size < 0) throw new RangeError(`size must be a non-negative integer, got ${size}`);
-  if (!(randomShare >= 0 && randomShare <= 1)) throw new RangeError(`randomShare must be in [0, 1], got ${randomShare}`);
-  if (!(duplicateCosine > 0 && duplicateCosine <= 1)) throw new RangeError(`duplicateCosine must be in (0, 1], got ${duplicateCosine}`);
-  if (strategy !== 'random' && strategy !== 'entropy' && strategy !== 'margin' && strategy !== 'least-confidence') {
-    throw new RangeError(`strategy must be entropy, margin, least-confidence or random, got ${String(strategy)}`);
+  if (!(randomShare >= 0 && randomShare <= 1))
+    throw new RangeError(`randomShare must be in [0, 1], got ${randomShare}`);
+  if (!(duplicateCosine > 0 && duplicateCosine <= 1))
+    throw new RangeError(`duplicateCosine must be in (0, 1], got ${duplicateCosine}`);
+  if (!['random', 'entropy', 'margin', 'least-confidence'].includes(strategy)) {
+    throw new RangeError(`strategy must be entropy, margin, least-confidence or random, got ${strategy}`);
   }
   const target = Math.min(size, candidates.length);
   let randomCount = target;
@@ -87,7 +89,9 @@ export function pickBatch(candidates: readonly BatchCandidate[], options: BatchO
     const h = candidates.find((c) => c.id === p.id)?.textHash;
     if (h !== undefined) hashes.add(h);
   }
-  const vectors: SparseVector[] = picks.map((p) => candidates.find((c) => c.id === p.id)?.vector).filter((v): v is SparseVector => v !== undefined);
+  const vectors: SparseVector[] = picks
+    .map((p) => candidates.find((c) => c.id === p.id)?.vector)
+    .filter((v): v is SparseVector => v !== undefined);
   for (const { i, u } of scored) {
     if (picks.length >= target) break;
     if (taken[i]) continue;

@@ -12,7 +12,7 @@ export function median(values: readonly number[]): number {
   if (values.length === 0) throw new RangeError('median: values must not be empty');
   const s = [...values].sort((a, b) => a - b);
   const mid = s.length >> 1;
-  return s.length % 2 ? s[mid]! : (s[mid - 1]! + s[mid]!) / 2;
+  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
 }
 
 /**
@@ -29,7 +29,12 @@ export function activityFigures(verdicts: readonly ActivityVerdict[]): ActivityS
     reviewers: names.map((name) => {
       const list = by.get(name)!;
       const times = list.map((v) => v.elapsedMs).filter((t): t is number => t !== null);
-      return { name, verdicts: list.length, abstained: list.filter((v) => v.abstained).length, medianSeconds: times.length ? median(times) / 1000 : null };
+      return {
+        name,
+        verdicts: list.length,
+        abstained: list.filter((v) => v.abstained).length,
+        medianSeconds: times.length ? median(times) / 1000 : null,
+      };
     }),
   };
 }

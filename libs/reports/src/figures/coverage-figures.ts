@@ -16,7 +16,13 @@ export function coverageFigure(checks: readonly RandomCheck[]): CoverageFigure {
   const n = checks.length;
   const x = checks.filter((c) => c.covered).length;
   if (n === 0) return { checks: 0, covered: 0, coverage: null, wilson: null, clopperPearson: null };
-  return { checks: n, covered: x, coverage: x / n, wilson: wilsonInterval(x, n), clopperPearson: clopperPearsonInterval(x, n) };
+  return {
+    checks: n,
+    covered: x,
+    coverage: x / n,
+    wilson: wilsonInterval(x, n),
+    clopperPearson: clopperPearsonInterval(x, n),
+  };
 }
 
 /**
@@ -28,24 +34,36 @@ export function coverageFigure(checks: readonly RandomCheck[]): CoverageFigure {
  * @param all every random check up to the period's end, oldest first
  * @param from checks after this time belong to the period
  */
-export function alertEpisodes(all: readonly RandomCheck[], from: Date, targetAt: (t: Date) => number, window = ALERT_WINDOW): AlertSection {
+export function alertEpisodes(
+  all: readonly RandomCheck[],
+  from: Date,
+  targetAt: (t: Date) => number,
+  window = ALERT_WINDOW,
+): AlertSection {
   if (!Number.isInteger(window) || window < 1) throw new RangeError(`window must be a positive integer, got ${window}`);
   const episodes: AlertEpisode[] = [];
   let open: AlertEpisode | null = null;
   let hits = 0;
   for (let i = 0; i < all.length; i++) {
-    if (all[i]!.covered) hits++;
-    if (i >= window && all[i - window]!.covered) hits--;
+    if (all[i].covered) hits++;
+    if (i >= window && all[i - window].covered) hits--;
     const n = Math.min(window, i + 1);
-    const target = targetAt(all[i]!.at);
+    const target = targetAt(all[i].at);
     const raised = wilsonInterval(hits, n).upper < target;
-    const inPeriod = all[i]!.at.getTime() > from.getTime();
+    const inPeriod = all[i].at.getTime() > from.getTime();
     if (raised && !open) {
-      open = { raisedAt: all[i]!.at.toISOString(), clearedAt: null, checks: n, coverage: hits / n, upper: wilsonInterval(hits, n).upper, target };
+      open = {
+        raisedAt: all[i].at.toISOString(),
+        clearedAt: null,
+        checks: n,
+        coverage: hits / n,
+        upper: wilsonInterval(hits, n).upper,
+        target,
+      };
       // An alert raised before the period and still on when it starts is part of it too.
       episodes.push(open);
     } else if (!raised && open) {
-      open.clearedAt = all[i]!.at.toISOString();
+      open.clearedAt = all[i].at.toISOString();
       open = null;
     }
     if (!inPeriod && !open) episodes.length = 0;

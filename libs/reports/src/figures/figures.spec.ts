@@ -7,7 +7,11 @@ const t = (s: number) => new Date(Date.UTC(2026, 0, 1, 0, 0, s));
 
 describe('coverageFigure', () => {
   it('gives the share and both intervals (Newcombe 1998, Table I: 81/263)', () => {
-    const checks: RandomCheck[] = Array.from({ length: 263 }, (_, i) => ({ at: t(i), category: 'ok', covered: i < 81 }));
+    const checks: RandomCheck[] = Array.from({ length: 263 }, (_, i) => ({
+      at: t(i),
+      category: 'ok',
+      covered: i < 81,
+    }));
     const f = coverageFigure(checks);
     expect(f.checks).toBe(263);
     expect(f.covered).toBe(81);
@@ -30,7 +34,7 @@ describe('alertEpisodes', () => {
     const all: RandomCheck[] = pattern.map((covered, i) => ({ at: t(i), category: 'ok', covered }));
     const whole = alertEpisodes(all, t(-1), () => 0.9, 20);
     expect(whole.episodes).toHaveLength(1);
-    const e = whole.episodes[0]!;
+    const e = whole.episodes[0];
     // Wilson upper bound (Newcombe's method 3, recomputed by hand): 16/20 → 0.9193, 15/20 → 0.8881; so the fifth miss (check 34) raises it.
     expect(e.raisedAt).toBe(t(34).toISOString());
     expect(e.coverage).toBeCloseTo(15 / 20, 12);
@@ -46,17 +50,35 @@ describe('alertEpisodes', () => {
   });
 
   it('uses the target in force at each check', () => {
-    const all: RandomCheck[] = Array.from({ length: 40 }, (_, i) => ({ at: t(i), category: 'ok', covered: i % 4 !== 0 }));
+    const all: RandomCheck[] = Array.from({ length: 40 }, (_, i) => ({
+      at: t(i),
+      category: 'ok',
+      covered: i % 4 !== 0,
+    }));
     expect(alertEpisodes(all, t(-1), () => 0.5, 20).episodes).toEqual([]);
-    expect(alertEpisodes(all, t(-1), (at) => (at.getTime() >= t(30).getTime() ? 0.99 : 0.5), 20).episodes[0]!.raisedAt).toBe(t(30).toISOString());
+    expect(
+      alertEpisodes(all, t(-1), (at) => (at.getTime() >= t(30).getTime() ? 0.99 : 0.5), 20).episodes[0].raisedAt,
+    ).toBe(t(30).toISOString());
   });
 });
 
 describe('SettingsHistory', () => {
   it('rebuilds the settings at any moment from the current ones and the recorded changes', () => {
     const h = new SettingsHistory({ coverageTarget: 0.95, calibration: 'marginal' }, [
-      { at: t(10), actor: 'rowan', action: 'desk.update', before: { coverageTarget: 0.9 }, after: { coverageTarget: 0.8 } },
-      { at: t(20), actor: 'rowan', action: 'desk.update', before: { coverageTarget: 0.8, calibration: 'per-category' }, after: { coverageTarget: 0.95, calibration: 'marginal' } },
+      {
+        at: t(10),
+        actor: 'rowan',
+        action: 'desk.update',
+        before: { coverageTarget: 0.9 },
+        after: { coverageTarget: 0.8 },
+      },
+      {
+        at: t(20),
+        actor: 'rowan',
+        action: 'desk.update',
+        before: { coverageTarget: 0.8, calibration: 'per-category' },
+        after: { coverageTarget: 0.95, calibration: 'marginal' },
+      },
     ]);
     expect(h.at(t(5))).toEqual({ coverageTarget: 0.9, calibration: 'per-category' });
     expect(h.at(t(10))).toEqual({ coverageTarget: 0.8, calibration: 'per-category' });
@@ -73,7 +95,14 @@ describe('activityFigures', () => {
       { reviewer: 'rowan', abstained: false, elapsedMs: 1000 },
       { reviewer: 'ash', abstained: false, elapsedMs: 8000 },
     ]);
-    expect(a).toEqual({ order: 'name', verdicts: 4, reviewers: [{ name: 'ash', verdicts: 2, abstained: 1, medianSeconds: 8 }, { name: 'rowan', verdicts: 2, abstained: 0, medianSeconds: 2 }] });
+    expect(a).toEqual({
+      order: 'name',
+      verdicts: 4,
+      reviewers: [
+        { name: 'ash', verdicts: 2, abstained: 1, medianSeconds: 8 },
+        { name: 'rowan', verdicts: 2, abstained: 0, medianSeconds: 2 },
+      ],
+    });
     expect(median([5, 1, 3])).toBe(3);
     expect(() => median([])).toThrow(RangeError);
   });

@@ -1,13 +1,19 @@
 /** Text for HTML element content and quoted attribute values: every character that could open markup is escaped. */
 export function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (ch) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[ch]!);
+  return text.replace(
+    /[&<>"']/g,
+    (ch) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[ch]!,
+  );
 }
 
+/** What {@link html} interpolates: text and numbers (escaped), markup, lists of them; null, undefined and false give nothing. */
+export type HtmlValue = Html | string | number | boolean | null | undefined | readonly HtmlValue[];
+
 /** Tagged template that escapes every interpolated value unless it is already {@link Html}. */
-export function html(strings: TemplateStringsArray, ...values: unknown[]): Html {
-  let out = strings[0]!;
+export function html(strings: TemplateStringsArray, ...values: HtmlValue[]): Html {
+  let out = strings[0];
   values.forEach((v, i) => {
-    out += toHtml(v) + strings[i + 1]!;
+    out += toHtml(v) + strings[i + 1];
   });
   return new Html(out);
 }
@@ -25,9 +31,9 @@ export class Html {
   }
 }
 
-function toHtml(v: unknown): string {
+function toHtml(v: HtmlValue): string {
   if (v instanceof Html) return v.text;
-  if (Array.isArray(v)) return v.map(toHtml).join('');
+  if (Array.isArray(v)) return (v as readonly HtmlValue[]).map(toHtml).join('');
   if (v === null || v === undefined || v === false) return '';
   return escapeHtml(String(v));
 }

@@ -10,24 +10,29 @@ describe('renderReport', () => {
     const f = sampleFigures();
     f.desk.name = HOSTILE;
     f.desk.categories = [HOSTILE, 'ok'];
-    f.coverage.perCategory[0]!.category = HOSTILE;
-    f.activity.reviewers[0]!.name = HOSTILE;
-    f.agreement.cohen[0]!.reviewers = [HOSTILE, 'rowan'];
-    f.agreement.perCategory[0]!.category = HOSTILE;
-    f.settingsChanges[0]!.actor = HOSTILE;
-    f.settingsChanges[0]!.after = { seedTerms: { threat: [HOSTILE] } };
+    f.coverage.perCategory[0].category = HOSTILE;
+    f.activity.reviewers[0].name = HOSTILE;
+    f.agreement.cohen[0].reviewers = [HOSTILE, 'rowan'];
+    f.agreement.perCategory[0].category = HOSTILE;
+    f.settingsChanges[0].actor = HOSTILE;
+    f.settingsChanges[0].after = { seedTerms: { threat: [HOSTILE] } };
     const page = renderReport(f, 'a'.repeat(64));
     expect(page).not.toContain('<script');
     expect(page).not.toContain('<img');
     expect(page).not.toMatch(/<[^>]* onerror=/);
-    expect(page).toContain('&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;&lt;img src=x onerror=alert(1)&gt; &amp; &#39;quotes&#39;');
+    expect(page).toContain(
+      '&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;&lt;img src=x onerror=alert(1)&gt; &amp; &#39;quotes&#39;',
+    );
   });
 
   it('is self-contained: no script, no external reference, a policy that forbids loading anything', () => {
     const page = renderReport(sampleFigures(), 'b'.repeat(64));
     expect(page).not.toMatch(/<script|<link|<iframe|<img|@import|url\(/i);
     // Only the SVG namespace URI, which is an identifier, not a request.
-    expect(page.match(/https?:\/\/[^\s"']+/g) ?? []).toEqual(['http://www.w3.org/2000/svg', 'http://www.w3.org/2000/svg']);
+    expect(page.match(/https?:\/\/[^\s"']+/g) ?? []).toEqual([
+      'http://www.w3.org/2000/svg',
+      'http://www.w3.org/2000/svg',
+    ]);
     expect(page).toContain(`content="default-src 'none'; style-src 'unsafe-inline'; img-src data:"`);
     expect(page).toMatch(/@page \{ size: A4;/);
   });

@@ -1,7 +1,18 @@
 import type { ReportFigures } from '../report-figures.js';
 import { html, trusted } from './escape-html.js';
 import {
-  activitySection, agreementSection, alertsSection, assumptionsSection, cautionsSection, countsSection, coverageSection, headerSection, learningCurveSection, poolSection, qualitySection, settingsChangesSection,
+  activitySection,
+  agreementSection,
+  alertsSection,
+  assumptionsSection,
+  cautionsSection,
+  countsSection,
+  coverageSection,
+  headerSection,
+  learningCurveSection,
+  poolSection,
+  qualitySection,
+  settingsChangesSection,
 } from './report-sections.js';
 import { REPORT_CSS } from './report-style.js';
 

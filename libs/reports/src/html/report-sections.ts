@@ -5,8 +5,14 @@ import { chartFrame, ticks } from './svg-chart.js';
 
 type F = ReportFigures;
 
-const MODE_TEXT = { 'per-category': 'per category (a threshold for each category)', marginal: 'marginal (one threshold over the whole pool)' } as const;
-const SCORE_TEXT = { lac: 'LAC (1 − p̂ of the category)', aps: 'APS (cumulative probability up to the category)' } as const;
+const MODE_TEXT = {
+  'per-category': 'per category (a threshold for each category)',
+  marginal: 'marginal (one threshold over the whole pool)',
+} as const;
+const SCORE_TEXT = {
+  lac: 'LAC (1 − p̂ of the category)',
+  aps: 'APS (cumulative probability up to the category)',
+} as const;
 
 export function headerSection(f: F): Html {
   return html`<header>
@@ -59,7 +65,8 @@ function drawList(d: Record<string, number>): string {
 
 export function poolSection(f: F): Html {
   const p = f.pool;
-  if (!p) return html`<section id="pool"><h2>Calls over the pool</h2><p class="note">The predictions of this version were no longer stored when the report was written, so its calls over the pool cannot be stated.</p></section>`;
+  if (!p)
+    return html`<section id="pool"><h2>Calls over the pool</h2><p class="note">The predictions of this version were no longer stored when the report was written, so its calls over the pool cannot be stated.</p></section>`;
   return html`<section class="keep" id="pool">
 <h2>Calls over the pool</h2>
 <p>The ${p.items} items scored under this version (the open pool when it was scored), with their prediction sets at the target in force at publication. Mean set size ${fixed(p.meanSetSize, 2)}.</p>
@@ -76,7 +83,8 @@ export function poolSection(f: F): Html {
 
 export function qualitySection(f: F): Html {
   const q = f.quality;
-  if (!q) return html`<section id="quality"><h2>Quality on the calibration set</h2><p class="note">This version had no calibration items, so no quality figures.</p></section>`;
+  if (!q)
+    return html`<section id="quality"><h2>Quality on the calibration set</h2><p class="note">This version had no calibration items, so no quality figures.</p></section>`;
   return html`<section id="quality">
 <h2>Quality on the calibration set</h2>
 <p>On the ${q.calibrationItems} calibration items (uniform random draws the version did not train on).</p>
@@ -94,22 +102,30 @@ export function qualitySection(f: F): Html {
 function reliabilityChart(q: NonNullable<F['quality']>): Html {
   const axis = { min: 0, max: 1, ticks: ticks(0, 1, 0.2), format: (v: number) => v.toFixed(1) };
   const c = chartFrame({
-    title: 'Reliability on the calibration set', className: 'reliability', description: `Share correct per confidence bin for ${q.calibrationItems} calibration items, with the diagonal of perfect calibration.`,
-    x: { ...axis, label: 'confidence: top-category probability (0–1)' }, y: { ...axis, label: 'share correct (0–1)' },
+    title: 'Reliability on the calibration set',
+    className: 'reliability',
+    description: `Share correct per confidence bin for ${q.calibrationItems} calibration items, with the diagonal of perfect calibration.`,
+    x: { ...axis, label: 'confidence: top-category probability (0–1)' },
+    y: { ...axis, label: 'share correct (0–1)' },
   });
   const filled = q.reliability.filter((b) => b.count > 0 && b.accuracy !== null && b.meanConfidence !== null);
-  return c.svg(html`<line class="diagonal" x1="${c.x(0)}" y1="${c.y(0)}" x2="${c.x(1)}" y2="${c.y(1)}"/>${filled.map((b) => html`<rect class="bar" x="${c.x(b.lower) + 1}" y="${c.y(b.accuracy!)}" width="${Math.max(1, c.x(b.upper) - c.x(b.lower) - 2)}" height="${Math.max(0.5, c.y(0) - c.y(b.accuracy!))}"><title>${`${b.lower.toFixed(1)}–${b.upper.toFixed(1)}: ${b.count} items, ${percent(b.accuracy)} correct`}</title></rect><circle class="point" cx="${c.x(b.meanConfidence!)}" cy="${c.y(b.accuracy!)}" r="3"/><text class="value" x="${(c.x(b.lower) + c.x(b.upper)) / 2}" y="${c.y(b.accuracy!) - 5}" text-anchor="middle">${b.count}</text>`)}`);
+  return c.svg(
+    html`<line class="diagonal" x1="${c.x(0)}" y1="${c.y(0)}" x2="${c.x(1)}" y2="${c.y(1)}"/>${filled.map((b) => html`<rect class="bar" x="${c.x(b.lower) + 1}" y="${c.y(b.accuracy!)}" width="${Math.max(1, c.x(b.upper) - c.x(b.lower) - 2)}" height="${Math.max(0.5, c.y(0) - c.y(b.accuracy!))}"><title>${`${b.lower.toFixed(1)}–${b.upper.toFixed(1)}: ${b.count} items, ${percent(b.accuracy)} correct`}</title></rect><circle class="point" cx="${c.x(b.meanConfidence!)}" cy="${c.y(b.accuracy!)}" r="3"/><text class="value" x="${(c.x(b.lower) + c.x(b.upper)) / 2}" y="${c.y(b.accuracy!) - 5}" text-anchor="middle">${b.count}</text>`)}`,
+  );
 }
 
 export function learningCurveSection(f: F): Html {
   const points = f.learningCurve.filter((p) => p.macroF1 !== null);
-  if (points.length === 0) return html`<section id="learning-curve"><h2>Learning curve</h2><p class="note">No published version has quality figures yet.</p></section>`;
-  const first = points[0]!.version;
-  const last = points[points.length - 1]!.version;
+  if (points.length === 0)
+    return html`<section id="learning-curve"><h2>Learning curve</h2><p class="note">No published version has quality figures yet.</p></section>`;
+  const first = points[0].version;
+  const last = points[points.length - 1].version;
   const [lo, hi] = first === last ? [first - 1, last + 1] : [first, last];
   const step = Math.max(1, Math.ceil((hi - lo) / 10));
   const c = chartFrame({
-    title: 'Macro-F1 by model version', className: 'learning-curve', description: `Macro-F1 on each published version's own calibration set, versions ${first} to ${last}.`,
+    title: 'Macro-F1 by model version',
+    className: 'learning-curve',
+    description: `Macro-F1 on each published version's own calibration set, versions ${first} to ${last}.`,
     x: { min: lo, max: hi, ticks: ticks(lo, hi, step), label: 'model version (number)', format: (v) => String(v) },
     y: { min: 0, max: 1, ticks: ticks(0, 1, 0.2), label: 'macro-F1 (0–1)', format: (v) => v.toFixed(1) },
   });
@@ -127,7 +143,8 @@ export function agreementSection(f: F): Html {
   const a = f.agreement;
   const k = a.krippendorff;
   const intro = html`<p>Over the desk's items that two or more reviewers decided (second opinions), as the verdicts stood when this version was published: ${a.items} items, ${a.verdicts} category verdicts by ${a.reviewers} reviewers; ${a.abstentions} abstentions on those items count as missing values.</p>`;
-  if (a.items === 0) return html`<section class="keep" id="agreement"><h2>Agreement between reviewers</h2>${intro}<p class="note">No item had two category verdicts yet, so agreement cannot be stated.</p></section>`;
+  if (a.items === 0)
+    return html`<section class="keep" id="agreement"><h2>Agreement between reviewers</h2>${intro}<p class="note">No item had two category verdicts yet, so agreement cannot be stated.</p></section>`;
   return html`<section id="agreement">
 <h2>Agreement between reviewers</h2>
 ${intro}
@@ -136,10 +153,14 @@ ${intro}
 <tr><td>Fleiss' kappa</td><td class="num">${fixed(a.fleiss.kappa)}</td><td>${a.fleiss.items} items with ${a.fleiss.verdictsPerItem ?? '–'} verdicts each; ${a.fleiss.itemsLeftOut} left out</td></tr>
 </tbody></table>
 <p class="note">${a.fleiss.unequalVerdicts} A coefficient is shown as a dash where there is nothing to measure (for instance a single category used).</p>
-${a.cohen.length ? html`<h3>Cohen's kappa per pair of reviewers</h3>
+${
+  a.cohen.length
+    ? html`<h3>Cohen's kappa per pair of reviewers</h3>
 <table class="keep"><thead><tr><th>reviewers</th><th class="num">items</th><th class="num">observed agreement</th><th class="num">expected by chance</th><th class="num">kappa</th></tr></thead>
 <tbody>${a.cohen.map((c) => html`<tr><td>${c.reviewers[0]} and ${c.reviewers[1]}</td><td class="num">${c.items}</td><td class="num">${percent(c.observed)}</td><td class="num">${percent(c.expected)}</td><td class="num">${fixed(c.kappa)}</td></tr>`)}</tbody></table>
-<p class="note">Pairs in order of the reviewers' names; the figures describe agreement, not who is right.</p>` : ''}
+<p class="note">Pairs in order of the reviewers' names; the figures describe agreement, not who is right.</p>`
+    : ''
+}
 <h3>Per category</h3>
 <table class="keep"><thead><tr><th>category</th><th class="num">verdicts</th><th class="num">items</th><th class="num">Fleiss' kappa</th></tr></thead>
 <tbody>${a.perCategory.map((c) => html`<tr><td>${c.category}</td><td class="num">${c.verdicts}</td><td class="num">${c.items}</td><td class="num">${fixed(c.fleissKappa)}</td></tr>`)}</tbody></table>
@@ -151,8 +172,12 @@ export function activitySection(f: F): Html {
   return html`<section class="keep" id="activity">
 <h2>Reviewer activity in the period</h2>
 <p>${a.verdicts} verdicts. Reviewers are listed by name; the table describes the work done and does not rank people.</p>
-${a.reviewers.length ? html`<table><thead><tr><th>Reviewer</th><th class="num">verdicts</th><th class="num">abstained</th><th class="num">median time per verdict</th></tr></thead>
-<tbody>${a.reviewers.map((r) => html`<tr><td>${r.name}</td><td class="num">${r.verdicts}</td><td class="num">${r.abstained}</td><td class="num">${r.medianSeconds === null ? '–' : `${r.medianSeconds.toFixed(1)} s`}</td></tr>`)}</tbody></table>` : html`<p class="note">No verdicts in this period.</p>`}
+${
+  a.reviewers.length
+    ? html`<table><thead><tr><th>Reviewer</th><th class="num">verdicts</th><th class="num">abstained</th><th class="num">median time per verdict</th></tr></thead>
+<tbody>${a.reviewers.map((r) => html`<tr><td>${r.name}</td><td class="num">${r.verdicts}</td><td class="num">${r.abstained}</td><td class="num">${r.medianSeconds === null ? '–' : `${r.medianSeconds.toFixed(1)} s`}</td></tr>`)}</tbody></table>`
+    : html`<p class="note">No verdicts in this period.</p>`
+}
 </section>`;
 }
 
@@ -161,17 +186,28 @@ export function alertsSection(f: F): Html {
   return html`<section class="keep" id="alerts">
 <h2>Coverage alerts in the period</h2>
 <p>The alert is raised when, over the last ${a.window} random checks, even the top of the Wilson 95 % interval of realized coverage is below the target then in force: the texts arriving probably differ from those the model was calibrated on.</p>
-${a.episodes.length ? html`<table><thead><tr><th>raised</th><th>cleared</th><th class="num">checks</th><th class="num">realized</th><th class="num">upper bound</th><th class="num">target</th></tr></thead>
-<tbody>${a.episodes.map((e) => html`<tr><td>${utc(e.raisedAt)}</td><td>${e.clearedAt ? utc(e.clearedAt) : 'still raised at the end of the period'}</td><td class="num">${e.checks}</td><td class="num">${percent(e.coverage)}</td><td class="num">${percent(e.upper)}</td><td class="num">${percent(e.target)}</td></tr>`)}</tbody></table>` : html`<p>No alert was raised in this period.</p>`}
+${
+  a.episodes.length
+    ? html`<table><thead><tr><th>raised</th><th>cleared</th><th class="num">checks</th><th class="num">realized</th><th class="num">upper bound</th><th class="num">target</th></tr></thead>
+<tbody>${a.episodes.map((e) => html`<tr><td>${utc(e.raisedAt)}</td><td>${e.clearedAt ? utc(e.clearedAt) : 'still raised at the end of the period'}</td><td class="num">${e.checks}</td><td class="num">${percent(e.coverage)}</td><td class="num">${percent(e.upper)}</td><td class="num">${percent(e.target)}</td></tr>`)}</tbody></table>`
+    : html`<p>No alert was raised in this period.</p>`
+}
 </section>`;
 }
 
 export function settingsChangesSection(f: F): Html {
-  const show = (o: Record<string, unknown>) => Object.entries(o).map(([k, v]) => html`<div><code>${k}</code>: <span class="json">${JSON.stringify(v)}</span></div>`);
+  const show = (o: Record<string, unknown>) =>
+    Object.entries(o).map(
+      ([k, v]) => html`<div><code>${k}</code>: <span class="json">${JSON.stringify(v)}</span></div>`,
+    );
   return html`<section id="settings">
 <h2>Changes of settings in the period</h2>
-${f.settingsChanges.length ? html`<table><thead><tr><th>when</th><th>who</th><th>before</th><th>after</th></tr></thead>
-<tbody>${f.settingsChanges.map((c) => html`<tr><td>${utc(c.at)}</td><td>${c.actor}</td><td>${show(c.before)}</td><td>${show(c.after)}</td></tr>`)}</tbody></table>` : html`<p>No setting of the desk was changed in this period.</p>`}
+${
+  f.settingsChanges.length
+    ? html`<table><thead><tr><th>when</th><th>who</th><th>before</th><th>after</th></tr></thead>
+<tbody>${f.settingsChanges.map((c) => html`<tr><td>${utc(c.at)}</td><td>${c.actor}</td><td>${show(c.before)}</td><td>${show(c.after)}</td></tr>`)}</tbody></table>`
+    : html`<p>No setting of the desk was changed in this period.</p>`
+}
 <p class="note">From the append-only audit trail.</p>
 </section>`;
 }

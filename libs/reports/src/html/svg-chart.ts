@@ -27,7 +27,13 @@ const MARGIN = { left: 58, right: 16, top: 30, bottom: 48 };
  * scales to the page and never clips in print), both axes with ticks and
  * tick labels, axis titles, a chart title, and an accessible description.
  */
-export function chartFrame(options: { title: string; description: string; x: Axis; y: Axis; className: string }): ChartFrame {
+export function chartFrame(options: {
+  title: string;
+  description: string;
+  x: Axis;
+  y: Axis;
+  className: string;
+}): ChartFrame {
   const { x, y } = options;
   const plotW = WIDTH - MARGIN.left - MARGIN.right;
   const plotH = HEIGHT - MARGIN.top - MARGIN.bottom;
@@ -39,7 +45,8 @@ export function chartFrame(options: { title: string; description: string; x: Axi
   return {
     x: sx,
     y: sy,
-    svg: (content) => html`<svg class="chart ${options.className}" viewBox="0 0 ${WIDTH} ${HEIGHT}" width="${WIDTH}" height="${HEIGHT}" role="img" aria-labelledby="${options.className}-title ${options.className}-desc" xmlns="http://www.w3.org/2000/svg"><title id="${options.className}-title">${options.title}</title><desc id="${options.className}-desc">${options.description}</desc><text class="chart-title" x="${MARGIN.left}" y="18">${options.title}</text>${xAxis}${yAxis}<g class="data">${content}</g></svg>`,
+    svg: (content) =>
+      html`<svg class="chart ${options.className}" viewBox="0 0 ${WIDTH} ${HEIGHT}" width="${WIDTH}" height="${HEIGHT}" role="img" aria-labelledby="${options.className}-title ${options.className}-desc" xmlns="http://www.w3.org/2000/svg"><title id="${options.className}-title">${options.title}</title><desc id="${options.className}-desc">${options.description}</desc><text class="chart-title" x="${MARGIN.left}" y="18">${options.title}</text>${xAxis}${yAxis}<g class="data">${content}</g></svg>`,
   };
 }
 
@@ -54,4 +61,3 @@ export function ticks(min: number, max: number, step: number): number[] {
 function round(v: number): number {
   return Math.round(v * 100) / 100;
 }
-

@@ -1,5 +1,5 @@
 import { Inject, Injectable, NotFoundException } from '@nestjs/common';
-import { Database, DeskDirectory } from '#database';
+import { Database, DeskDirectory, type DbInt } from '#database';
 import { alphaBootstrap, cohenKappa, createRng, fleissKappa, krippendorffAlpha } from '#learning';
 
 /** The bootstrap's seed and size are fixed so the same verdicts always give the same figures. */
@@ -9,7 +9,7 @@ export const AGREEMENT_BOOTSTRAP_RESAMPLES = 1000;
 /** How Fleiss' kappa treats items with an unusual number of verdicts (stated in every answer). */
 export const FLEISS_UNEQUAL_HANDLING =
   "Fleiss' kappa needs the same number of verdicts on every item: it is computed over the items with the most common number " +
-  '(the larger one on a tie) and leaves the others out (itemsLeftOut); Krippendorff\'s alpha and Cohen\'s kappa use every item.';
+  "(the larger one on a tie) and leaves the others out (itemsLeftOut); Krippendorff's alpha and Cohen's kappa use every item.";
 
 /** Agreement between reviewers on a desk. Undefined coefficients (no variation to measure) are null. */
 export interface DeskAgreement {
@@ -21,15 +21,38 @@ export interface DeskAgreement {
   /** Live abstentions on items that also carry two or more category verdicts (left out as missing values). */
   abstentions: number;
   reviewers: number;
-  cohen: Array<{ reviewers: [string, string]; items: number; kappa: number | null; observed: number; expected: number }>;
+  cohen: Array<{
+    reviewers: [string, string];
+    items: number;
+    kappa: number | null;
+    observed: number;
+    expected: number;
+  }>;
   fleiss: {
-    kappa: number | null; observed: number | null; expected: number | null;
-    items: number; itemsLeftOut: number; verdictsPerItem: number | null; verdicts: number; unequalVerdicts: string;
+    kappa: number | null;
+    observed: number | null;
+    expected: number | null;
+    items: number;
+    itemsLeftOut: number;
+    verdictsPerItem: number | null;
+    verdicts: number;
+    unequalVerdicts: string;
   };
   krippendorff: {
-    level: 'nominal'; alpha: number | null; observedDisagreement: number | null; expectedDisagreement: number | null;
-    interval: { lower: number | null; upper: number | null; confidence: number; resamples: number; seed: number; undefinedResamples: number };
-    items: number; pairableValues: number;
+    level: 'nominal';
+    alpha: number | null;
+    observedDisagreement: number | null;
+    expectedDisagreement: number | null;
+    interval: {
+      lower: number | null;
+      upper: number | null;
+      confidence: number;
+      resamples: number;
+      seed: number;
+      undefinedResamples: number;
+    };
+    items: number;
+    pairableValues: number;
   };
   perCategory: Array<{ category: string; verdicts: number; items: number; fleissKappa: number | null }>;
 }
@@ -46,7 +69,10 @@ const finite = (x: number): number | null => (Number.isFinite(x) ? x : null);
  */
 @Injectable()
 export class AgreementService {
-  constructor(@Inject(Database) private readonly db: Database, @Inject(DeskDirectory) private readonly directory: DeskDirectory) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(DeskDirectory) private readonly directory: DeskDirectory,
+  ) {}
 
   /**
    * @param asOf count the verdicts as they stood at that moment (given by
@@ -57,8 +83,10 @@ export class AgreementService {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const categories = entry.categories.map((c) => c.name);
-    const live = (v: string) => (asOf ? `${v}created_at <= $3 AND (${v}undone_at IS NULL OR ${v}undone_at > $3)` : `${v}undone_at IS NULL`);
-    const rows = await this.db.query<{ item_id: number; reviewer: string; category: string | null }>(null,
+    const live = (v: string) =>
+      asOf ? `${v}created_at <= $3 AND (${v}undone_at IS NULL OR ${v}undone_at > $3)` : `${v}undone_at IS NULL`;
+    const rows = await this.db.query<{ item_id: DbInt; reviewer: string; category: string | null }>(
+      null,
       `SELECT v.item_id, u.name AS reviewer, c.name AS category
        FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id
        WHERE v.desk_id = $1 AND ${live('v.')}
@@ -69,10 +97,13 @@ export class AgreementService {
     const byItem = new Map<number, Map<string, string>>();
     let abstentions = 0;
     for (const r of rows) {
-      if (r.category === null) { abstentions++; continue; }
+      if (r.category === null) {
+        abstentions++;
+        continue;
+      }
       const id = Number(r.item_id);
       let item = byItem.get(id);
-      if (!item) byItem.set(id, (item = new Map()));
+      if (!item) byItem.set(id, (item = new Map<string, string>()));
       item.set(r.reviewer, r.category);
     }
     const items = [...byItem.keys()].sort((a, b) => a - b).map((id) => byItem.get(id)!);
@@ -80,7 +111,11 @@ export class AgreementService {
     const verdicts = items.reduce((s, i) => s + i.size, 0);
     const fleiss = this.fleiss(items, categories);
     return {
-      deskId, items: items.length, verdicts, abstentions, reviewers: reviewers.length,
+      deskId,
+      items: items.length,
+      verdicts,
+      abstentions,
+      reviewers: reviewers.length,
       cohen: this.pairs(items, reviewers),
       fleiss: fleiss.overall,
       krippendorff: this.krippendorff(items, reviewers),
@@ -100,32 +135,61 @@ export class AgreementService {
         const a: string[] = [];
         const b: string[] = [];
         for (const item of items) {
-          const x = item.get(reviewers[i]!);
-          const y = item.get(reviewers[j]!);
-          if (x !== undefined && y !== undefined) { a.push(x); b.push(y); }
+          const x = item.get(reviewers[i]);
+          const y = item.get(reviewers[j]);
+          if (x !== undefined && y !== undefined) {
+            a.push(x);
+            b.push(y);
+          }
         }
         if (a.length === 0) continue;
         const k = cohenKappa(a, b);
-        out.push({ reviewers: [reviewers[i]!, reviewers[j]!], items: k.n, kappa: finite(k.kappa), observed: k.observed, expected: k.expected });
+        out.push({
+          reviewers: [reviewers[i], reviewers[j]],
+          items: k.n,
+          kappa: finite(k.kappa),
+          observed: k.observed,
+          expected: k.expected,
+        });
       }
     }
     return out;
   }
 
-  private fleiss(items: Array<Map<string, string>>, categories: string[]): { overall: DeskAgreement['fleiss']; perCategory: Array<number | null> } {
+  private fleiss(
+    items: Array<Map<string, string>>,
+    categories: string[],
+  ): { overall: DeskAgreement['fleiss']; perCategory: Array<number | null> } {
     const frequency = new Map<number, number>();
     for (const i of items) frequency.set(i.size, (frequency.get(i.size) ?? 0) + 1);
     let raters: number | null = null;
-    for (const [size, n] of frequency) if (raters === null || n > frequency.get(raters)! || (n === frequency.get(raters)! && size > raters)) raters = size;
+    for (const [size, n] of frequency)
+      if (raters === null || n > frequency.get(raters)! || (n === frequency.get(raters)! && size > raters))
+        raters = size;
     const used = items.filter((i) => i.size === raters);
-    const empty = { kappa: null, observed: null, expected: null, items: 0, itemsLeftOut: items.length, verdictsPerItem: raters, verdicts: 0, unequalVerdicts: FLEISS_UNEQUAL_HANDLING };
+    const empty = {
+      kappa: null,
+      observed: null,
+      expected: null,
+      items: 0,
+      itemsLeftOut: items.length,
+      verdictsPerItem: raters,
+      verdicts: 0,
+      unequalVerdicts: FLEISS_UNEQUAL_HANDLING,
+    };
     if (used.length === 0 || categories.length < 2) return { overall: empty, perCategory: categories.map(() => null) };
     const counts = used.map((i) => categories.map((c) => [...i.values()].filter((x) => x === c).length));
     const f = fleissKappa(counts);
     return {
       overall: {
-        kappa: finite(f.kappa), observed: f.observed, expected: f.expected, items: used.length, itemsLeftOut: items.length - used.length,
-        verdictsPerItem: raters, verdicts: used.length * raters!, unequalVerdicts: FLEISS_UNEQUAL_HANDLING,
+        kappa: finite(f.kappa),
+        observed: f.observed,
+        expected: f.expected,
+        items: used.length,
+        itemsLeftOut: items.length - used.length,
+        verdictsPerItem: raters,
+        verdicts: used.length * raters!,
+        unequalVerdicts: FLEISS_UNEQUAL_HANDLING,
       },
       perCategory: f.perCategory.map(finite),
     };
@@ -135,14 +199,36 @@ export class AgreementService {
     const table = items.map((i) => reviewers.map((r) => i.get(r) ?? null));
     const interval = { confidence: 0.95, resamples: AGREEMENT_BOOTSTRAP_RESAMPLES, seed: AGREEMENT_BOOTSTRAP_SEED };
     if (reviewers.length < 2) {
-      return { level: 'nominal', alpha: null, observedDisagreement: null, expectedDisagreement: null, interval: { lower: null, upper: null, ...interval, undefinedResamples: 0 }, items: 0, pairableValues: 0 };
+      return {
+        level: 'nominal',
+        alpha: null,
+        observedDisagreement: null,
+        expectedDisagreement: null,
+        interval: { lower: null, upper: null, ...interval, undefinedResamples: 0 },
+        items: 0,
+        pairableValues: 0,
+      };
     }
     const a = krippendorffAlpha(table, 'nominal');
-    const boot = alphaBootstrap(table, { level: 'nominal', resamples: AGREEMENT_BOOTSTRAP_RESAMPLES, confidence: 0.95, rng: createRng(AGREEMENT_BOOTSTRAP_SEED) });
+    const boot = alphaBootstrap(table, {
+      level: 'nominal',
+      resamples: AGREEMENT_BOOTSTRAP_RESAMPLES,
+      confidence: 0.95,
+      rng: createRng(AGREEMENT_BOOTSTRAP_SEED),
+    });
     return {
-      level: 'nominal', alpha: finite(a.alpha), observedDisagreement: finite(a.observedDisagreement), expectedDisagreement: finite(a.expectedDisagreement),
-      interval: { lower: finite(boot.lower), upper: finite(boot.upper), ...interval, undefinedResamples: boot.undefinedResamples },
-      items: a.pairableUnits, pairableValues: a.pairableValues,
+      level: 'nominal',
+      alpha: finite(a.alpha),
+      observedDisagreement: finite(a.observedDisagreement),
+      expectedDisagreement: finite(a.expectedDisagreement),
+      interval: {
+        lower: finite(boot.lower),
+        upper: finite(boot.upper),
+        ...interval,
+        undefinedResamples: boot.undefinedResamples,
+      },
+      items: a.pairableUnits,
+      pairableValues: a.pairableValues,
     };
   }
 }

@@ -1,5 +1,5 @@
 import { Inject, Injectable, NotFoundException } from '@nestjs/common';
-import { Database, DeskDirectory, type DrawKind } from '#database';
+import { Database, DeskDirectory, type DbInt, type DrawKind } from '#database';
 import { PredictionsService } from '#models';
 import { SettlementsService, type SettlementView } from './settlements.service.js';
 
@@ -10,7 +10,17 @@ export type DisagreementReason =
 
 export interface Disagreement {
   item: { id: number; externalId: string | null; text: string };
-  verdicts: Array<{ id: number; reviewer: string; category: string | null; abstain: boolean; draw: DrawKind; createdAt: Date; undoneAt: Date | null; modelVersion: number | null; shownCall: string | null }>;
+  verdicts: Array<{
+    id: number;
+    reviewer: string;
+    category: string | null;
+    abstain: boolean;
+    draw: DrawKind;
+    createdAt: Date;
+    undoneAt: Date | null;
+    modelVersion: number | null;
+    shownCall: string | null;
+  }>;
   reasons: DisagreementReason[];
   /** The latest settlement, or null while unsettled. */
   settled: SettlementView | null;
@@ -19,8 +29,19 @@ export interface Disagreement {
 }
 
 interface VerdictRow {
-  id: number; item_id: number; reviewer: string; category: string | null; abstain: unknown; draw: DrawKind; created_at: unknown; undone_at: unknown;
-  model_version: number | null; shown_set: string | null; shown_call: string | null; external_id: string | null; text: string;
+  id: DbInt;
+  item_id: DbInt;
+  reviewer: string;
+  category: string | null;
+  abstain: unknown;
+  draw: DrawKind;
+  created_at: unknown;
+  undone_at: unknown;
+  model_version: DbInt | null;
+  shown_set: string | null;
+  shown_call: string | null;
+  external_id: string | null;
+  text: string;
 }
 
 const CANDIDATE_BATCH = 500;
@@ -43,30 +64,43 @@ export class DisagreementsService {
   ) {}
 
   /** One page, by item id ascending, starting after `after`; `next` is the cursor of the following page (null at the end). */
-  async list(deskId: number, opts: { after?: number; limit: number }): Promise<{ disagreements: Disagreement[]; next: number | null }> {
+  async list(
+    deskId: number,
+    opts: { after?: number; limit: number },
+  ): Promise<{ disagreements: Disagreement[]; next: number | null }> {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const coverage = await this.predictions.coverage(entry.desk);
-    const unhealthy = new Set(coverage.byVersion.filter((v) => v.interval !== null && v.interval.upper < entry.desk.coverageTarget).map((v) => v.modelVersion));
+    const unhealthy = new Set(
+      coverage.byVersion
+        .filter((v) => v.interval !== null && v.interval.upper < entry.desk.coverageTarget)
+        .map((v) => v.modelVersion),
+    );
     const found: Array<{ rows: VerdictRow[]; reasons: DisagreementReason[] }> = [];
     let after = opts.after ?? 0;
     let exhausted = false;
     while (found.length < opts.limit && !exhausted) {
       // A sure set holds one category, stored as its JSON array: a verdict with the same text as that array agrees with
       // the call. Names that JSON escapes never compare equal here and are left to the exact check below.
-      const ids = await this.db.query<{ item_id: number }>(null,
+      const ids = await this.db.query<{ item_id: DbInt }>(
+        null,
         `SELECT v.item_id FROM verdicts v JOIN categories c ON c.id = v.category_id
          WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.item_id > $2
          GROUP BY v.item_id
          HAVING COUNT(DISTINCT v.category_id) >= 2 OR MAX(CASE WHEN v.shown_call = 'sure' AND v.shown_set <> ('["' || c.name || '"]') THEN 1 ELSE 0 END) = 1
-         ORDER BY v.item_id LIMIT ${CANDIDATE_BATCH}`, [deskId, after]);
+         ORDER BY v.item_id LIMIT ${CANDIDATE_BATCH}`,
+        [deskId, after],
+      );
       exhausted = ids.length < CANDIDATE_BATCH;
       if (ids.length === 0) break;
       const list = ids.map((r) => Number(r.item_id));
-      const rows = await this.db.query<VerdictRow>(null,
+      const rows = await this.db.query<VerdictRow>(
+        null,
         `SELECT v.id, v.item_id, u.name AS reviewer, c.name AS category, v.abstain, v.draw, v.created_at, v.undone_at, v.model_version, v.shown_set, v.shown_call, i.external_id, i.text
          FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
-         WHERE v.item_id IN (${list.map((_, i) => `$${i + 1}`).join(', ')}) ORDER BY v.item_id, v.id`, list);
+         WHERE v.item_id IN (${list.map((_, i) => `$${i + 1}`).join(', ')}) ORDER BY v.item_id, v.id`,
+        list,
+      );
       const byItem = new Map<number, VerdictRow[]>();
       for (const r of rows) byItem.set(Number(r.item_id), [...(byItem.get(Number(r.item_id)) ?? []), r]);
       for (const id of list) {
@@ -77,16 +111,23 @@ export class DisagreementsService {
         if (found.length === opts.limit) break;
       }
     }
-    const settled = await this.settlements.forItems(found.map((f) => Number(f.rows[0]!.item_id)));
+    const settled = await this.settlements.forItems(found.map((f) => Number(f.rows[0].item_id)));
     return {
       disagreements: found.map(({ rows, reasons }) => {
-        const first = rows[0]!;
+        const first = rows[0];
         const history = settled.get(Number(first.item_id)) ?? [];
         return {
           item: { id: Number(first.item_id), externalId: first.external_id, text: first.text },
           verdicts: rows.map((r) => ({
-            id: Number(r.id), reviewer: r.reviewer, category: r.category, abstain: r.abstain === true || r.abstain === 1, draw: r.draw,
-            createdAt: this.db.parseTime(r.created_at)!, undoneAt: this.db.parseTime(r.undone_at), modelVersion: r.model_version === null ? null : Number(r.model_version), shownCall: r.shown_call,
+            id: Number(r.id),
+            reviewer: r.reviewer,
+            category: r.category,
+            abstain: r.abstain === true || r.abstain === 1,
+            draw: r.draw,
+            createdAt: this.db.parseTime(r.created_at)!,
+            undoneAt: this.db.parseTime(r.undone_at),
+            modelVersion: r.model_version === null ? null : Number(r.model_version),
+            shownCall: r.shown_call,
           })),
           reasons,
           settled: history[history.length - 1] ?? null,
@@ -105,9 +146,22 @@ function reasonsFor(rows: VerdictRow[], unhealthyVersions: Set<number>): Disagre
   const categories = [...new Set(live.map((r) => r.category!))].sort();
   if (categories.length >= 2) reasons.push({ kind: 'reviewers-differ', categories });
   for (const r of live) {
-    if (r.shown_call !== 'sure' || r.model_version === null || r.shown_set === null || unhealthyVersions.has(Number(r.model_version))) continue;
+    if (
+      r.shown_call !== 'sure' ||
+      r.model_version === null ||
+      r.shown_set === null ||
+      unhealthyVersions.has(Number(r.model_version))
+    )
+      continue;
     const shownSet = JSON.parse(r.shown_set) as string[];
-    if (!shownSet.includes(r.category!)) reasons.push({ kind: 'against-sure-call', verdictId: Number(r.id), modelVersion: Number(r.model_version), shownSet, category: r.category! });
+    if (!shownSet.includes(r.category!))
+      reasons.push({
+        kind: 'against-sure-call',
+        verdictId: Number(r.id),
+        modelVersion: Number(r.model_version),
+        shownSet,
+        category: r.category!,
+      });
   }
   return reasons;
 }

@@ -24,14 +24,47 @@ export interface TrailRow {
 }
 
 export const TRAIL_COLUMNS = [
-  'verdict_id', 'item_id', 'external_id', 'reviewer', 'created_at', 'category', 'abstain', 'undone', 'undone_at', 'draw', 'model_version',
-  'shown_set', 'shown_call', 'elapsed_ms', 'note', 'simulated', 'settled_category', 'settled_by', 'settled_at',
+  'verdict_id',
+  'item_id',
+  'external_id',
+  'reviewer',
+  'created_at',
+  'category',
+  'abstain',
+  'undone',
+  'undone_at',
+  'draw',
+  'model_version',
+  'shown_set',
+  'shown_call',
+  'elapsed_ms',
+  'note',
+  'simulated',
+  'settled_category',
+  'settled_by',
+  'settled_at',
 ] as const;
-
 
 export function trailCsvLine(r: TrailRow): string {
   return csvLine([
-    r.verdictId, r.itemId, r.externalId, r.reviewer, r.createdAt, r.category, r.abstain, r.undone, r.undoneAt, r.draw, r.modelVersion,
-    r.shownSet ? JSON.stringify(r.shownSet) : null, r.shownCall, r.elapsedMs, r.note, r.simulated, r.settledCategory, r.settledBy, r.settledAt,
+    r.verdictId,
+    r.itemId,
+    r.externalId,
+    r.reviewer,
+    r.createdAt,
+    r.category,
+    r.abstain,
+    r.undone,
+    r.undoneAt,
+    r.draw,
+    r.modelVersion,
+    r.shownSet ? JSON.stringify(r.shownSet) : null,
+    r.shownCall,
+    r.elapsedMs,
+    r.note,
+    r.simulated,
+    r.settledCategory,
+    r.settledBy,
+    r.settledAt,
   ]);
 }

@@ -17,28 +17,65 @@ export class TrailController {
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/trail.csv')
   @ApiProduces('text/csv')
-  async csv(@Param('deskId', ParseIntPipe) deskId: number, @Query('reviewer') reviewer: string | undefined, @Query('category') category: string | undefined, @Query('from') from: string | undefined, @Query('to') to: string | undefined, @Res() res: Response): Promise<void> {
+  async csv(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('reviewer') reviewer: string | undefined,
+    @Query('category') category: string | undefined,
+    @Query('from') from: string | undefined,
+    @Query('to') to: string | undefined,
+    @Res() res: Response,
+  ): Promise<void> {
     const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
-    await this.stream(res, filter, 'text/csv; charset=utf-8; header=present', `desk-${deskId}-trail.csv`, csvLine(TRAIL_COLUMNS), trailCsvLine);
+    await this.stream(
+      res,
+      filter,
+      'text/csv; charset=utf-8; header=present',
+      `desk-${deskId}-trail.csv`,
+      csvLine(TRAIL_COLUMNS),
+      trailCsvLine,
+    );
   }
 
   /** The same trail as newline-delimited JSON, one verdict per line, streamed. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/trail.ndjson')
   @ApiProduces('application/x-ndjson')
-  async ndjson(@Param('deskId', ParseIntPipe) deskId: number, @Query('reviewer') reviewer: string | undefined, @Query('category') category: string | undefined, @Query('from') from: string | undefined, @Query('to') to: string | undefined, @Res() res: Response): Promise<void> {
+  async ndjson(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('reviewer') reviewer: string | undefined,
+    @Query('category') category: string | undefined,
+    @Query('from') from: string | undefined,
+    @Query('to') to: string | undefined,
+    @Res() res: Response,
+  ): Promise<void> {
     const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
-    await this.stream(res, filter, 'application/x-ndjson; charset=utf-8', `desk-${deskId}-trail.ndjson`, '', (r) => `${JSON.stringify(r)}\n`);
+    await this.stream(
+      res,
+      filter,
+      'application/x-ndjson; charset=utf-8',
+      `desk-${deskId}-trail.ndjson`,
+      '',
+      (r) => `${JSON.stringify(r)}\n`,
+    );
   }
 
   /** Streams the filtered trail, page by page, as one download. */
-  private async stream(res: Response, filter: TrailFilter, type: string, filename: string, head: string, line: (r: TrailRow) => string): Promise<void> {
+  private async stream(
+    res: Response,
+    filter: TrailFilter,
+    type: string,
+    filename: string,
+    head: string,
+    line: (r: TrailRow) => string,
+  ): Promise<void> {
     const rows = this.trail.rows(filter);
     async function* text(): AsyncGenerator<string> {
       if (head) yield head;
       for await (const page of rows) yield page.map(line).join('');
     }
-    await streamText(res, type, filename, text(), (e) => this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${e.message}`));
+    await streamText(res, type, filename, text(), (e) =>
+      this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${e.message}`),
+    );
   }
 }
 

@@ -38,7 +38,10 @@ export const TRAIL_PAGE_SIZE = 250;
  */
 @Injectable()
 export class TrailService {
-  constructor(@Inject(Database) private readonly db: Database, @Inject(DeskDirectory) private readonly directory: DeskDirectory) {}
+  constructor(
+    @Inject(Database) private readonly db: Database,
+    @Inject(DeskDirectory) private readonly directory: DeskDirectory,
+  ) {}
 
   /** Checks the filters (400 on bad ones, 404 for an unknown desk) before anything is streamed. */
   async filter(deskId: number, q: TrailQuery): Promise<TrailFilter> {
@@ -50,7 +53,10 @@ export class TrailService {
       const v = q[key];
       if (v === undefined || v === '') continue;
       const d = parseIsoDateTime(v);
-      if (!d) problems.push(`${key}: expected an ISO 8601 date or date-time (e.g. 2026-01-31 or 2026-01-31T12:00:00Z), got ${JSON.stringify(v)}`);
+      if (!d)
+        problems.push(
+          `${key}: expected an ISO 8601 date or date-time (e.g. 2026-01-31 or 2026-01-31T12:00:00Z), got ${JSON.stringify(v)}`,
+        );
       else f[key] = d;
     }
     if (f.from && f.to && f.from.getTime() > f.to.getTime()) problems.push('from: must not be after to');
@@ -58,12 +64,16 @@ export class TrailService {
       if (q.category === 'abstain') f.abstain = true;
       else {
         const cat = entry.categories.find((c) => c.name === q.category);
-        if (!cat) problems.push(`category: unknown ${JSON.stringify(q.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')} (or abstain)`);
+        if (!cat)
+          problems.push(
+            `category: unknown ${JSON.stringify(q.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')} (or abstain)`,
+          );
         else f.categoryId = cat.id;
       }
     }
     if (problems.length) throw new BadRequestException(problems);
-    if (q.reviewer !== undefined && q.reviewer !== '') f.reviewerId = (await this.db.manager.findOneBy(UserEntity, { name: q.reviewer }))?.id ?? null;
+    if (q.reviewer !== undefined && q.reviewer !== '')
+      f.reviewerId = (await this.db.manager.findOneBy(UserEntity, { name: q.reviewer }))?.id ?? null;
     return f;
   }
 
@@ -72,7 +82,10 @@ export class TrailService {
     if (f.reviewerId === null) return;
     const params: unknown[] = [f.deskId, 0];
     let where = 'v.desk_id = $1 AND v.id > $2';
-    const add = (sql: string, value: unknown) => { params.push(value); where += ` AND ${sql.replace('?', `$${params.length}`)}`; };
+    const add = (sql: string, value: unknown) => {
+      params.push(value);
+      where += ` AND ${sql.replace('?', `$${params.length}`)}`;
+    };
     if (f.reviewerId !== undefined) add('v.reviewer_id = ?', f.reviewerId);
     if (f.categoryId !== undefined && f.categoryId !== null) add('v.category_id = ?', f.categoryId);
     if (f.abstain) add('v.abstain = ?', true);
@@ -81,7 +94,8 @@ export class TrailService {
     // The page is chosen in a subquery first and only its rows are joined: a planner without statistics (right after a
     // bulk load) would otherwise join every remaining verdict of the desk before sorting and cutting the page.
     for (;;) {
-      const page = await this.db.query<Record<string, unknown>>(null,
+      const page = await this.db.query(
+        null,
         `SELECT v.id, v.item_id, i.external_id, u.name AS reviewer, v.created_at, c.name AS category, v.abstain, v.undone_at, v.draw, v.model_version,
                 v.shown_set, v.shown_call, v.elapsed_ms, v.note, v.simulated, sc.name AS settled_category, su.name AS settled_by, s.created_at AS settled_at
          FROM (SELECT v.id, v.item_id, v.reviewer_id, v.category_id, v.created_at, v.abstain, v.undone_at, v.draw, v.model_version, v.shown_set, v.shown_call,
@@ -93,11 +107,13 @@ export class TrailService {
          LEFT JOIN settlements s ON s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = v.item_id)
          LEFT JOIN categories sc ON sc.id = s.category_id
          LEFT JOIN users su ON su.id = s.settled_by
-         ORDER BY v.id`, params);
+         ORDER BY v.id`,
+        params,
+      );
       if (page.length === 0) return;
       yield page.map((r) => this.toRow(r));
       if (page.length < pageSize) return;
-      params[1] = Number(page[page.length - 1]!.id);
+      params[1] = Number(page[page.length - 1].id);
     }
   }
 
@@ -105,11 +121,25 @@ export class TrailService {
     const iso = (v: unknown) => this.db.parseTime(v)?.toISOString() ?? null;
     const bool = (v: unknown) => v === true || v === 1;
     return {
-      verdictId: Number(r.id), itemId: Number(r.item_id), externalId: (r.external_id as string | null) ?? null, reviewer: String(r.reviewer), createdAt: iso(r.created_at)!,
-      category: (r.category as string | null) ?? null, abstain: bool(r.abstain), undone: r.undone_at !== null, undoneAt: iso(r.undone_at), draw: String(r.draw),
-      modelVersion: r.model_version === null ? null : Number(r.model_version), shownSet: r.shown_set ? (JSON.parse(String(r.shown_set)) as string[]) : null,
-      shownCall: (r.shown_call as string | null) ?? null, elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms), note: (r.note as string | null) ?? null,
-      simulated: bool(r.simulated), settledCategory: (r.settled_category as string | null) ?? null, settledBy: (r.settled_by as string | null) ?? null, settledAt: iso(r.settled_at),
+      verdictId: Number(r.id),
+      itemId: Number(r.item_id),
+      externalId: (r.external_id as string | null) ?? null,
+      reviewer: String(r.reviewer),
+      createdAt: iso(r.created_at)!,
+      category: (r.category as string | null) ?? null,
+      abstain: bool(r.abstain),
+      undone: r.undone_at !== null,
+      undoneAt: iso(r.undone_at),
+      draw: String(r.draw),
+      modelVersion: r.model_version === null ? null : Number(r.model_version),
+      shownSet: r.shown_set ? (JSON.parse(r.shown_set as string) as string[]) : null,
+      shownCall: (r.shown_call as string | null) ?? null,
+      elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms),
+      note: (r.note as string | null) ?? null,
+      simulated: bool(r.simulated),
+      settledCategory: (r.settled_category as string | null) ?? null,
+      settledBy: (r.settled_by as string | null) ?? null,
+      settledAt: iso(r.settled_at),
     };
   }
 }
