@@ -1,2 +1,3 @@
-export { csvField, csvLine, type CsvValue } from './csv.js';
+export { csvField, csvLine, RAW, SPREADSHEET_SAFE, UTF8_BOM, type CsvOptions, type CsvValue } from './csv.js';
+export { csvRequest, type CsvRequest } from './csv-query.js';
 export { streamText } from './stream-text.js';

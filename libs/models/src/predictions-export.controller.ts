@@ -1,9 +1,9 @@
-import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe, Res } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
 import { Database, DeskEntity, type DbInt } from '#database';
-import { csvLine, streamText } from '#exports';
+import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { PredictionsService } from './predictions.service.js';
 
 const PAGE = 2000;
@@ -30,32 +30,48 @@ export class PredictionsExportController {
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
   ) {}
 
+  /** Text that a spreadsheet would run as a formula starts with an apostrophe unless `raw=1`; `bom=1` adds a UTF-8 byte order mark. */
   @Roles('supervisor', 'auditor')
   @Get('predictions.csv')
-  async csv(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
+  @ApiQuery({ name: 'raw', required: false, enum: ['1', '0'], description: 'values exactly as stored (for programs)' })
+  @ApiQuery({ name: 'bom', required: false, enum: ['1', '0'], description: 'start with a UTF-8 byte order mark' })
+  async csv(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('raw') raw: string | undefined,
+    @Query('bom') bom: string | undefined,
+    @Res() res: Response,
+  ): Promise<void> {
+    const how = csvRequest({ raw, bom });
     const { desk, categories, rows } = await this.rows(deskId);
     async function* lines() {
-      yield csvLine([
-        'item_id',
-        'external_id',
-        'source',
-        'model_version',
-        'call',
-        'set',
-        ...categories.map((c) => `p_${c}`),
-        'text',
-      ]);
+      if (how.bom) yield UTF8_BOM;
+      yield csvLine(
+        [
+          'item_id',
+          'external_id',
+          'source',
+          'model_version',
+          'call',
+          'set',
+          ...categories.map((c) => `p_${c}`),
+          'text',
+        ],
+        how.options,
+      );
       for await (const r of rows)
-        yield csvLine([
-          r.itemId,
-          r.externalId,
-          r.source,
-          r.modelVersion,
-          r.call,
-          r.set.join('|'),
-          ...categories.map((c) => r.probabilities[c]),
-          r.text,
-        ]);
+        yield csvLine(
+          [
+            r.itemId,
+            r.externalId,
+            r.source,
+            r.modelVersion,
+            r.call,
+            r.set.join('|'),
+            ...categories.map((c) => r.probabilities[c]),
+            r.text,
+          ],
+          how.options,
+        );
     }
     await streamText(res, 'text/csv; charset=utf-8; header=present', `desk-${desk.id}-predictions.csv`, lines(), (e) =>
       this.stopped(deskId, e),

@@ -155,11 +155,15 @@ export function DeskOverview({ params }: PageProps) {
       <SimulatedReviewer deskId={deskId} />
       <section class="exports">
         <h2>Export</h2>
-        <p>Downloads stream from the server; large desks take a moment.</p>
+        <p>
+          Downloads stream from the server; large desks take a moment. The CSV files are made for spreadsheets: text
+          that a spreadsheet would run as a formula starts with an apostrophe (add <code>?raw=1</code> to the address
+          for the values exactly as stored).
+        </p>
         <ul class="export-links">
           <li>
             Verdicts (the decision trail):{' '}
-            <a href={`/api/desks/${deskId}/trail.csv`} download>
+            <a href={`/api/desks/${deskId}/trail.csv?bom=1`} download>
               CSV
             </a>{' '}
             ·{' '}
@@ -169,7 +173,7 @@ export function DeskOverview({ params }: PageProps) {
           </li>
           <li>
             Predictions of the current version for every open item:{' '}
-            <a href={`/api/desks/${deskId}/predictions.csv`} download>
+            <a href={`/api/desks/${deskId}/predictions.csv?bom=1`} download>
               CSV
             </a>{' '}
             ·{' '}

@@ -1,4 +1,4 @@
-import { csvLine } from '#exports';
+import { csvLine, SPREADSHEET_SAFE, type CsvOptions } from '#exports';
 /** One line of the decision trail: a verdict (undone ones included) with its item's settled label. */
 export interface TrailRow {
   verdictId: number;
@@ -45,26 +45,30 @@ export const TRAIL_COLUMNS = [
   'settled_at',
 ] as const;
 
-export function trailCsvLine(r: TrailRow): string {
-  return csvLine([
-    r.verdictId,
-    r.itemId,
-    r.externalId,
-    r.reviewer,
-    r.createdAt,
-    r.category,
-    r.abstain,
-    r.undone,
-    r.undoneAt,
-    r.draw,
-    r.modelVersion,
-    r.shownSet ? JSON.stringify(r.shownSet) : null,
-    r.shownCall,
-    r.elapsedMs,
-    r.note,
-    r.simulated,
-    r.settledCategory,
-    r.settledBy,
-    r.settledAt,
-  ]);
+/** One verdict as a CSV record; text fields neutralised for spreadsheets unless `options` says raw. */
+export function trailCsvLine(r: TrailRow, options: CsvOptions = SPREADSHEET_SAFE): string {
+  return csvLine(
+    [
+      r.verdictId,
+      r.itemId,
+      r.externalId,
+      r.reviewer,
+      r.createdAt,
+      r.category,
+      r.abstain,
+      r.undone,
+      r.undoneAt,
+      r.draw,
+      r.modelVersion,
+      r.shownSet ? JSON.stringify(r.shownSet) : null,
+      r.shownCall,
+      r.elapsedMs,
+      r.note,
+      r.simulated,
+      r.settledCategory,
+      r.settledBy,
+      r.settledAt,
+    ],
+    options,
+  );
 }

@@ -1,8 +1,8 @@
 import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
-import { ApiProduces, ApiTags } from '@nestjs/swagger';
+import { ApiProduces, ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { Roles } from '#auth';
-import { csvLine, streamText } from '#exports';
+import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { TRAIL_COLUMNS, trailCsvLine, type TrailRow } from './trail-format.js';
 import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
 
@@ -13,26 +13,35 @@ export class TrailController {
 
   constructor(@Inject(TrailService) private readonly trail: TrailService) {}
 
-  /** Every verdict of the desk (undone ones marked) as CSV (RFC 4180), streamed. Filters: reviewer, category (or abstain), from, to (ISO 8601; to exclusive). */
+  /**
+   * Every verdict of the desk (undone ones marked) as CSV (RFC 4180), streamed. Filters: reviewer, category (or
+   * abstain), from, to (ISO 8601; to exclusive). Text that a spreadsheet would run as a formula starts with an
+   * apostrophe unless `raw=1`; `bom=1` starts the file with a UTF-8 byte order mark.
+   */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/trail.csv')
   @ApiProduces('text/csv')
+  @ApiQuery({ name: 'raw', required: false, enum: ['1', '0'], description: 'values exactly as stored (for programs)' })
+  @ApiQuery({ name: 'bom', required: false, enum: ['1', '0'], description: 'start with a UTF-8 byte order mark' })
   async csv(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('reviewer') reviewer: string | undefined,
     @Query('category') category: string | undefined,
     @Query('from') from: string | undefined,
     @Query('to') to: string | undefined,
+    @Query('raw') raw: string | undefined,
+    @Query('bom') bom: string | undefined,
     @Res() res: Response,
   ): Promise<void> {
+    const how = csvRequest({ raw, bom });
     const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
     await this.stream(
       res,
       filter,
       'text/csv; charset=utf-8; header=present',
       `desk-${deskId}-trail.csv`,
-      csvLine(TRAIL_COLUMNS),
-      trailCsvLine,
+      (how.bom ? UTF8_BOM : '') + csvLine(TRAIL_COLUMNS, how.options),
+      (r) => trailCsvLine(r, how.options),
     );
   }
 
