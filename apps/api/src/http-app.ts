@@ -1,15 +1,14 @@
-import { ValidationPipe, type INestApplication } from '@nestjs/common';
-import { NestFactory } from '@nestjs/core';
+import { type INestApplication } from '@nestjs/common';
+import { NestFactory, Reflector } from '@nestjs/core';
 import { DocumentBuilder, SwaggerModule } from '@nestjs/swagger';
 import type { NestExpressApplication } from '@nestjs/platform-express';
 import express from 'express';
 import { nestLogLevels, type AppConfig } from '#config';
-import { AuthService, readCookie, SESSION_COOKIE } from '#auth';
+import { AuthService, bearerOf, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
+import { JsonBodyInterceptor } from './json-body.js';
+import { StrictValidationPipe } from './strict-validation.pipe.js';
 import { webScreens } from './web-screens.js';
-
-/** Paths whose bodies are streamed by their handler, never parsed into memory. */
-const STREAMED_BODY = /^\/api\/desks\/[^/]+\/imports\/?$/;
 
 /** Builds the HTTP application (not listening yet). Used by `main.ts` and by the tests. */
 export async function createHttpApp(config: AppConfig): Promise<INestApplication> {
@@ -17,10 +16,6 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
     bodyParser: false,
     logger: nestLogLevels(config.logLevel),
   });
-  const json = express.json({ limit: '1mb' });
-  app.use((req: express.Request, res: express.Response, next: express.NextFunction) =>
-    STREAMED_BODY.test(req.path) ? next() : json(req, res, next),
-  );
   app.disable('x-powered-by');
   app.use((_req: express.Request, res: express.Response, next: express.NextFunction) => {
     res.setHeader('X-Content-Type-Options', 'nosniff');
@@ -28,9 +23,9 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
     res.setHeader('Cache-Control', 'no-store');
     next();
   });
-  app.useGlobalPipes(
-    new ValidationPipe({ whitelist: true, forbidNonWhitelisted: true, transform: true, stopAtFirstError: false }),
-  );
+  // Bodies are read after the guard (see JsonBodyInterceptor) and checked for unknown properties before validation walks them.
+  app.useGlobalInterceptors(new JsonBodyInterceptor(app.get(Reflector)));
+  app.useGlobalPipes(new StrictValidationPipe());
   app.enableShutdownHooks();
   const doc = SwaggerModule.createDocument(
     app,
@@ -44,24 +39,25 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
       .addCookieAuth('cribra_session')
       .build(),
   );
-  // The document is for signed-in users only; Nest's guard does not cover these routes, so check here.
+  // The document is for signed-in users only; Nest's guard does not cover these routes, so check here. Mounted on
+  // the document's own paths, so Express matches them exactly as it matches the document's routes (case-insensitive,
+  // trailing slash or not): a path that reaches the document has passed this check first.
   const auth = app.get(AuthService);
-  app.use(async (req: express.Request, res: express.Response, next: express.NextFunction) => {
-    if (!req.path.startsWith('/api/docs')) {
-      next();
-      return;
-    }
-    const authz = req.headers.authorization;
-    const secret =
-      authz && /^Bearer\s+/i.test(authz)
-        ? authz.replace(/^Bearer\s+/i, '').trim()
-        : readCookie(req.headers.cookie, SESSION_COOKIE);
-    if (secret && (await auth.authenticate(secret))) {
-      next();
-      return;
-    }
-    res.status(401).json({ statusCode: 401, message: 'sign in first (session cookie or Authorization: Bearer token)' });
-  });
+  app.use(
+    ['/api/docs', '/api/docs-json'],
+    (req: express.Request, res: express.Response, next: express.NextFunction) => {
+      const secret = bearerOf(req.headers.authorization) ?? readCookie(req.headers.cookie, SESSION_COOKIE);
+      void (secret ? auth.authenticate(secret) : Promise.resolve(null)).then(
+        (principal) =>
+          principal
+            ? next()
+            : res
+                .status(401)
+                .json({ statusCode: 401, message: 'sign in first (session cookie or Authorization: Bearer token)' }),
+        next,
+      );
+    },
+  );
   SwaggerModule.setup('api/docs', app, doc, { jsonDocumentUrl: 'api/docs-json', raw: ['json'] });
   app.use(webScreens());
   return app;

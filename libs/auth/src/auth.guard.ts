@@ -11,6 +11,7 @@ import type { Role } from '#database';
 import { AuthService } from './auth.service.js';
 import { SESSION_COOKIE, type Principal } from './principal.js';
 import { PUBLIC_KEY, ROLES_KEY } from './roles.decorator.js';
+import { crossSiteRefusal } from './same-origin.js';
 
 interface RequestLike {
   headers: Record<string, string | string[] | undefined>;
@@ -29,9 +30,15 @@ export function readCookie(header: string | string[] | undefined, name: string):
   return null;
 }
 
+/** The secret of an `Authorization: Bearer …` header, or null. */
+export function bearerOf(header: string | string[] | undefined): string | null {
+  return typeof header === 'string' && /^Bearer\s+/i.test(header) ? header.replace(/^Bearer\s+/i, '').trim() : null;
+}
+
 /**
- * The one gate of the HTTP API: authenticates by session cookie or bearer
- * token, then checks the route's roles. A route without a roles decision is
+ * The one gate of the HTTP API: refuses a cross-site change made with the
+ * browser's cookie, authenticates by session cookie or bearer token, then
+ * checks the route's roles. A route without a roles decision is
  * refused, so nothing is open by omission.
  */
 @Injectable()
@@ -43,11 +50,12 @@ export class AuthGuard implements CanActivate {
 
   async canActivate(ctx: ExecutionContext): Promise<boolean> {
     const targets = [ctx.getHandler(), ctx.getClass()];
-    if (this.reflector.getAllAndOverride<boolean>(PUBLIC_KEY, targets)) return true;
     const req = ctx.switchToHttp().getRequest<RequestLike>();
-    const authz = req.headers.authorization;
-    const bearer =
-      typeof authz === 'string' && /^Bearer\s+/i.test(authz) ? authz.replace(/^Bearer\s+/i, '').trim() : null;
+    const bearer = bearerOf(req.headers.authorization);
+    // A page on another site can make a browser send the cookie (or sign in), never a bearer token.
+    const refusal = bearer === null ? crossSiteRefusal(req) : null;
+    if (refusal) throw new ForbiddenException(refusal);
+    if (this.reflector.getAllAndOverride<boolean>(PUBLIC_KEY, targets)) return true;
     const secret = bearer ?? readCookie(req.headers.cookie, SESSION_COOKIE);
     const principal = secret ? await this.auth.authenticate(secret) : null;
     if (!principal) throw new UnauthorizedException('sign in first (session cookie or Authorization: Bearer token)');

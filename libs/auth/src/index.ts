@@ -1,6 +1,7 @@
 export { AuthService, AuthError } from './auth.service.js';
 export { AuthModule, AuthCoreModule } from './auth.module.js';
-export { AuthGuard, readCookie } from './auth.guard.js';
-export { Roles, Public, CurrentUser } from './roles.decorator.js';
+export { AuthGuard, bearerOf, readCookie } from './auth.guard.js';
+export { crossSiteRefusal } from './same-origin.js';
+export { Roles, Public, CurrentUser, PUBLIC_KEY } from './roles.decorator.js';
 export { SESSION_COOKIE, type Principal } from './principal.js';
 export { hashPassword, verifyPassword, newSecret, secretHash } from './secrets.js';
