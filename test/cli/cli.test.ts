@@ -69,12 +69,35 @@ describe('boot checks', () => {
     expect(badRole.stderr).toMatch(/--role "owner": expected one of reviewer, supervisor, auditor, admin/);
     const missing = cli(['user', 'add', '--name', 'x'], env);
     expect(missing.status).toBe(2);
-    expect(missing.stderr).toMatch(/--name and --role are required/);
+    expect(missing.stderr).toMatch(/--role is required/);
+    expect(missing.stderr).toMatch(/usage: cribra user add --name NAME --role ROLE \[--password-stdin\]/);
     const unknown = cli(['user', 'add', '--name', 'x', '--role', 'reviewer', '--colour', 'red'], env);
     expect(unknown.stderr).toMatch(/unknown option --colour/);
     const shortPw = cli(['user', 'add', '--name', 'x', '--role', 'reviewer', '--password-stdin'], env, 'short');
     expect(shortPw.stderr).toMatch(/at least 8 characters/);
   });
+  it('answers --help for every command from the build, and refuses an unknown command', () => {
+    const env = { DATA_DIR: mkdtempSync(join(tmpdir(), 'cribra-cli-')) };
+    const top = cli(['--help'], env);
+    expect(top.status).toBe(0);
+    for (const name of ['start', 'user', 'migrate', 'rehearse'])
+      expect(top.stdout).toMatch(new RegExp(`^  ${name} `, 'm'));
+    const start = cli(['start', '--help'], env);
+    expect(start.status).toBe(0);
+    expect(start.stdout).toMatch(/--workers N +worker processes/);
+    const add = cli(['help', 'user', 'add'], env);
+    expect(add.status).toBe(0);
+    expect(add.stdout).toMatch(
+      /--role ROLE +the global role \(required; one of reviewer, supervisor, auditor, admin\)/,
+    );
+    const unknown = cli(['frobnicate'], env);
+    expect(unknown.status).toBe(2);
+    expect(unknown.stderr).toMatch(/unknown command "frobnicate"/);
+    const bad = cli(['start', '--workers', '40'], env);
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/--workers "40": expected a whole number from 0 to 16/);
+  });
+
   it('lists every bad variable in one error and exits 2', () => {
     const r = spawnSync(process.execPath, [built('apps/api/src/main.js')], {
       env: { PATH: process.env.PATH ?? '', PORT: 'x', DATABASE_URL: 'mysql://db', REDIS_URL: 'nope' },

@@ -1,21 +1,27 @@
 import { loadConfigOrExit } from '#config';
 import { openDatabase } from '#database';
+import { defineCommand } from './cli-command.js';
 
 /** `migrate [--revert]`: brings the schema up to date, or reverts the last migration. */
-export async function migrateCommand(argv: string[]): Promise<number> {
-  const revert = argv.includes('--revert');
-  const unknown = argv.filter((a) => a !== '--revert');
-  if (unknown.length) {
-    process.stderr.write(`unknown argument ${unknown[0]}\nusage: cribra migrate [--revert]\n`);
-    return 2;
-  }
-  const ds = await openDatabase(loadConfigOrExit().database, { migrate: !revert });
-  try {
-    if (revert) await ds.undoLastMigration({ transaction: 'each' });
-    const pending = await ds.showMigrations();
-    process.stdout.write(`${JSON.stringify({ database: ds.options.type, pending })}\n`);
-    return 0;
-  } finally {
-    await ds.destroy();
-  }
-}
+export const migrateCommand = defineCommand({
+  name: 'migrate',
+  summary: 'bring the database schema up to date (or revert the last migration)',
+  description:
+    'Runs the pending migrations and prints {"database","pending"} on one line (pending: false when up to date). ' +
+    '`start` runs them too; this command is for upgrades done by hand.',
+  options: {
+    revert: { type: 'boolean', description: 'undo the most recent migration instead (its down step)' },
+  },
+  async run({ values }, io) {
+    const revert = values.revert === true;
+    const ds = await openDatabase(loadConfigOrExit().database, { migrate: !revert });
+    try {
+      if (revert) await ds.undoLastMigration({ transaction: 'each' });
+      const pending = await ds.showMigrations();
+      io.stdout.write(`${JSON.stringify({ database: ds.options.type, pending })}\n`);
+      return 0;
+    } finally {
+      await ds.destroy();
+    }
+  },
+});

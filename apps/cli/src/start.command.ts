@@ -1,11 +1,8 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { configToEnv, loadConfig, nodeArgsFor, type AppConfig } from '#config';
-import { openDatabase } from '#database';
-import { formatDemoBlock, type DemoSeedResult } from '#demo';
-import { parseFlags } from './args.js';
-import { seedDemo } from './demo-seed.js';
-import { RedisMissingError, startPrivateRedis } from './redis-launcher.js';
+import type { DemoSeedResult } from '#demo';
+import { defineCommand, numberOption } from './cli-command.js';
 
 const apiMain = fileURLToPath(new URL('../../api/src/main.js', import.meta.url));
 const workerMain = fileURLToPath(new URL('../../worker/src/main.js', import.meta.url));
@@ -16,21 +13,38 @@ const workerMain = fileURLToPath(new URL('../../worker/src/main.js', import.meta
  * DEMO=off), then the API and `--workers N` worker processes. Stops them all
  * on SIGINT/SIGTERM or when one dies.
  */
-export async function startCommand(argv: string[]): Promise<number> {
-  let flags;
+export const startCommand = defineCommand({
+  name: 'start',
+  summary: 'run the service: the API and its workers (and a private Redis when REDIS_URL is unset)',
+  description:
+    'Runs the whole service on this machine: a private redis-server under DATA_DIR when REDIS_URL is unset, the ' +
+    'migrations, the demo desk on an empty database (unless DEMO=off), then the API and the worker processes. ' +
+    'Ctrl+C (or SIGTERM) stops them all; so does the death of any one. Settings come from the environment (see ' +
+    'config/cribra.env.example).',
+  options: {
+    workers: {
+      type: 'string',
+      value: 'N',
+      defaultText: '1',
+      description: 'worker processes to run beside the API (0 to 16; 0 when workers run elsewhere)',
+    },
+  },
+  run: ({ values }) => start(numberOption('workers', values.workers, 1, { integer: true, min: 0, max: 16 })),
+});
+
+async function start(workers: number): Promise<number> {
   let config: AppConfig;
   try {
-    flags = parseFlags(argv, { workers: 'string' });
     config = loadConfig();
   } catch (e) {
     process.stderr.write(`${(e as Error).message}\n`);
     return 2;
   }
-  const workers = flags.workers === undefined ? 1 : Number(flags.workers);
-  if (!Number.isInteger(workers) || workers < 0 || workers > 16) {
-    process.stderr.write(`--workers ${JSON.stringify(flags.workers)}: expected a whole number from 0 to 16\n`);
-    return 2;
-  }
+  // Loaded here, not at the top, so that `cribra --help` does not load Nest and the database drivers.
+  const { openDatabase } = await import('#database');
+  const { formatDemoBlock } = await import('#demo');
+  const { seedDemo } = await import('./demo-seed.js');
+  const { RedisMissingError, startPrivateRedis } = await import('./redis-launcher.js');
   let redis: Awaited<ReturnType<typeof startPrivateRedis>> | null = null;
   if (!config.redisUrl) {
     try {

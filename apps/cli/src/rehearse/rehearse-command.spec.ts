@@ -24,7 +24,7 @@ function generate(path: string, n: number, seed: number): void {
     // A rare third class: food is 10 % of the rows.
     const label = rng.next() < 0.1 ? 'food' : labels[i % 2];
     const words = Array.from({ length: 8 }, () => (rng.next() < 0.5 ? pick(WORDS[label]) : pick(SHARED)));
-    lines.push(JSON.stringify({ body: words.join(' '), topic: label, id: i }));
+    lines.push(JSON.stringify({ text: words.join(' '), topic: label, external_id: i }));
   }
   writeFileSync(path, lines.join('\n') + '\n');
 }
@@ -49,8 +49,6 @@ describe('rehearse command', () => {
   const base = [
     '--input',
     file,
-    '--text-field',
-    'body',
     '--label-field',
     'topic',
     '--start',
@@ -113,38 +111,89 @@ describe('rehearse command', () => {
     expect(c.err()).toMatch(/\[#+-*\] \d+\/\d+/);
   });
 
-  it('stops at a bad line with its number and reason', async () => {
-    const bad = join(dir, 'bad.jsonl');
-    writeFileSync(bad, '{"body":"a","topic":"x"}\n\n{"body":"b","topic":"y"}\n{"body": oops}\n');
+  it('reads rows with the import rules: rejected rows listed with their numbers, duplicates counted', async () => {
+    const mixed = join(dir, 'mixed.jsonl');
+    writeFileSync(
+      mixed,
+      [
+        ...Array.from({ length: 6 }, (_, i) => JSON.stringify({ text: `rain and wind ${i}`, topic: 'weather' })),
+        ...Array.from({ length: 6 }, (_, i) => JSON.stringify({ text: `goal and match ${i}`, topic: 'sport' })),
+        '{"text": oops}',
+        '{"text":"   ","topic":"sport"}',
+        '{"text":"no label here"}',
+        '{"text":"RAIN and  wind 0","topic":"weather"}',
+      ].join('\n') + '\n',
+    );
     const c = capture();
-    expect(await rehearseCommand(['--input', bad, '--text-field', 'body', '--label-field', 'topic'], c.io)).toBe(1);
-    expect(c.err()).toMatch(/line 4: not valid JSON/);
+    const code = await rehearseCommand(
+      ['--input', mixed, '--label-field', 'topic', '--start', '4', '--batch', '2', '--budget', '8', '--json'],
+      c.io,
+    );
+    expect(code).toBe(0);
+    expect(c.err()).toMatch(/row 13: /);
+    expect(c.err()).toMatch(/row 14: empty text/);
+    expect(c.err()).toMatch(/row 15: missing label 'topic'/);
+    expect(c.err()).toMatch(/12 of 16 rows used \(3 rejected, 1 duplicates\)/);
+    expect(JSON.parse(c.out()).input).toEqual({ format: 'ndjson', rows: 16, used: 12, rejected: 3, duplicates: 1 });
   });
 
-  it('says so when the label field is missing or has one class', async () => {
+  it('reads CSV and JSON arrays as an import does', async () => {
+    const rows = Array.from({ length: 40 }, (_, i) => ({
+      text: i % 2 ? `storm and snow forecast ${i}` : `league match and coach ${i}`,
+      topic: i % 2 ? 'weather' : 'sport',
+    }));
+    const csv = join(dir, 'posts.csv');
+    writeFileSync(csv, 'text,topic\r\n' + rows.map((r) => `"${r.text}",${r.topic}`).join('\r\n') + '\r\n');
+    const json = join(dir, 'posts.json');
+    writeFileSync(json, JSON.stringify(rows));
+    const args = ['--label-field', 'topic', '--start', '4', '--batch', '4', '--budget', '12', '--json'];
+    for (const [file, format] of [
+      [csv, 'csv'],
+      [json, 'json'],
+    ]) {
+      const c = capture();
+      expect(await rehearseCommand(['--input', file, ...args], c.io), c.err()).toBe(0);
+      expect(JSON.parse(c.out()).input).toEqual({ format, rows: 40, used: 40, rejected: 0, duplicates: 0 });
+    }
+    const unknown = join(dir, 'posts.txt');
+    writeFileSync(unknown, 'text\n');
+    const c = capture();
+    expect(await rehearseCommand(['--input', unknown], c.io)).toBe(2);
+    expect(c.err()).toMatch(/add --format ndjson, csv or json/);
+    const broken = join(dir, 'broken.json');
+    writeFileSync(broken, '{"text": "not an array"}');
+    const b = capture();
+    expect(await rehearseCommand(['--input', broken], b.io)).toBe(1);
+    expect(b.err()).toMatch(/broken\.json: .*array/);
+  });
+
+  it('says so when no row has a label or all have one class', async () => {
     const missing = join(dir, 'missing.jsonl');
-    writeFileSync(missing, '{"body":"a","topic":"x"}\n{"body":"b"}\n');
+    writeFileSync(missing, '{"text":"a"}\n{"text":"b"}\n');
     const c1 = capture();
-    expect(await rehearseCommand(['--input', missing, '--text-field', 'body', '--label-field', 'topic'], c1.io)).toBe(
-      1,
-    );
-    expect(c1.err()).toMatch(/line 2: label field "topic" is missing/);
+    expect(await rehearseCommand(['--input', missing, '--label-field', 'topic'], c1.io)).toBe(1);
+    expect(c1.err()).toMatch(/row 2: missing label 'topic'/);
+    expect(c1.err()).toMatch(/holds no usable rows \(2 read, 2 rejected\)/);
     const one = join(dir, 'one.jsonl');
-    writeFileSync(one, '{"body":"a","topic":"x"}\n{"body":"b","topic":"x"}\n');
+    writeFileSync(one, '{"text":"a","topic":"x"}\n{"text":"b","topic":"x"}\n');
     const c2 = capture();
-    expect(await rehearseCommand(['--input', one, '--text-field', 'body', '--label-field', 'topic'], c2.io)).toBe(1);
+    expect(await rehearseCommand(['--input', one, '--label-field', 'topic'], c2.io)).toBe(1);
     expect(c2.err()).toMatch(/only one class \("x"\)/);
+    const field = capture();
+    expect(await rehearseCommand(['--input', one, '--label-field', 'text'], field.io)).toBe(2);
+    expect(field.err()).toMatch(/names an item field/);
   });
 
   it('names the flag in errors about bad values', async () => {
     const cases: [string[], RegExp][] = [
-      [['--target', '1.5'], /--target must be a number strictly between 0 and 1, got "1.5"/],
-      [['--calibration', 'both'], /--calibration must be one of marginal, per-category/],
-      [['--strategy', 'greedy'], /--strategy must be one of/],
-      [['--batch', '0'], /--batch must be an integer ≥ 1/],
-      [['--random-share', 'abc'], /--random-share must be a number from 0 to 1/],
+      [['--target', '1.5'], /--target "1.5": expected a number strictly between 0 and 1/],
+      [['--calibration', 'both'], /--calibration "both": expected one of marginal, per-category/],
+      [['--strategy', 'greedy'], /--strategy "greedy": expected one of/],
+      [['--batch', '0'], /--batch "0": expected a whole number from 1/],
+      [['--random-share', 'abc'], /--random-share "abc": expected a number from 0 to 1/],
       [['--budget', '5'], /--budget \(5\) must be at least --start \(10\)/],
-      [['--colour', 'red'], /unknown flag --colour/],
+      [['--colour', 'red'], /unknown option --colour/],
+      [['--text-field', 'body'], /unknown option --text-field/],
     ];
     const minimal = ['--input', file, '--start', '10'];
     for (const [extra, message] of cases) {
@@ -154,10 +203,10 @@ describe('rehearse command', () => {
     }
     const twice = capture();
     expect(await rehearseCommand([...base, '--seed', '4'], twice.io)).toBe(2);
-    expect(twice.err()).toMatch(/--seed given twice/);
+    expect(twice.err()).toMatch(/--seed is given 2 times/);
     const c = capture();
     expect(await rehearseCommand(['--json'], c.io)).toBe(2);
-    expect(c.err()).toMatch(/--input FILE.jsonl is required/);
+    expect(c.err()).toMatch(/--input is required/);
     const n = capture();
     expect(await rehearseCommand(['--input', join(dir, 'nope.jsonl')], n.io)).toBe(1);
     expect(n.err()).toMatch(/cannot read/);

@@ -1,13 +1,84 @@
-/** Parsing and validation of the `rehearse` command's flags. */
+/** The `rehearse` command's options and their validation. */
+import { numberOption, UsageError, type CliValues } from '../cli-command.js';
+
+const CALIBRATIONS = ['marginal', 'per-category'] as const;
+const SCORES = ['lac', 'aps'] as const;
+const STRATEGIES = ['entropy', 'margin', 'least-confidence', 'random'] as const;
+const FORMATS = ['ndjson', 'csv', 'json'] as const;
+
+/** The options table of `cribra rehearse`. */
+export const REHEARSE_OPTIONS = {
+  input: {
+    type: 'string',
+    value: 'FILE',
+    required: true,
+    description: 'labelled texts: NDJSON, CSV or a JSON array, read with the import rules (a `text` field per row)',
+  },
+  format: {
+    type: 'string',
+    value: 'FORMAT',
+    choices: FORMATS,
+    defaultText: "from the file's extension (.ndjson/.jsonl, .csv, .json)",
+    description: 'the file format',
+  },
+  'label-field': {
+    type: 'string',
+    value: 'NAME',
+    defaultText: 'label',
+    description: 'the column or key holding each row’s category',
+  },
+  target: { type: 'string', value: 'P', defaultText: '0.9', description: 'coverage target, between 0 and 1' },
+  calibration: {
+    type: 'string',
+    value: 'MODE',
+    choices: CALIBRATIONS,
+    defaultText: 'marginal',
+    description: 'one threshold over the pool, or one per category',
+  },
+  score: { type: 'string', value: 'SCORE', choices: SCORES, defaultText: 'lac', description: 'nonconformity score' },
+  strategy: {
+    type: 'string',
+    value: 'STRATEGY',
+    choices: STRATEGIES,
+    defaultText: 'entropy',
+    description: 'how the simulated queue picks the items it asks about',
+  },
+  'random-share': {
+    type: 'string',
+    value: 'P',
+    defaultText: '0.2',
+    description: 'share of each batch drawn at random (these calibrate, never train), 0 to 1',
+  },
+  start: { type: 'string', value: 'N', defaultText: '20', description: 'verdicts before the first model' },
+  batch: { type: 'string', value: 'N', defaultText: '20', description: 'verdicts between two retrains' },
+  budget: { type: 'string', value: 'N', defaultText: '600', description: 'verdicts in all (at least --start)' },
+  'test-share': {
+    type: 'string',
+    value: 'P',
+    defaultText: '0.2',
+    description: 'share of the rows held out to measure the model, between 0 and 1',
+  },
+  seed: {
+    type: 'string',
+    value: 'N',
+    defaultText: '1',
+    description: 'seed of every random draw (same seed, same run)',
+  },
+  'compare-random': {
+    type: 'boolean',
+    description: 'also run a queue that draws every item at random, for comparison',
+  },
+  json: { type: 'boolean', description: 'print the figures as one JSON object instead of a table' },
+} as const;
 
 export interface RehearseFlags {
   input: string;
-  textField: string;
+  format: (typeof FORMATS)[number] | undefined;
   labelField: string;
   target: number;
-  calibration: 'marginal' | 'per-category';
-  score: 'lac' | 'aps';
-  strategy: 'entropy' | 'margin' | 'least-confidence' | 'random';
+  calibration: (typeof CALIBRATIONS)[number];
+  score: (typeof SCORES)[number];
+  strategy: (typeof STRATEGIES)[number];
   randomShare: number;
   start: number;
   batch: number;
@@ -18,102 +89,28 @@ export interface RehearseFlags {
   json: boolean;
 }
 
-export class UsageError extends Error {}
-
-export const REHEARSE_USAGE = `usage: cribra rehearse --input FILE.jsonl [--text-field text] [--label-field label]
-  [--target 0.9] [--calibration marginal|per-category] [--score lac|aps]
-  [--strategy entropy|margin|least-confidence|random] [--random-share 0.2]
-  [--start 20] [--batch 20] [--budget 600] [--test-share 0.2] [--seed 1]
-  [--compare-random] [--json]`;
-
-const VALUE_FLAGS = new Set([
-  'input',
-  'text-field',
-  'label-field',
-  'target',
-  'calibration',
-  'score',
-  'strategy',
-  'random-share',
-  'start',
-  'batch',
-  'budget',
-  'test-share',
-  'seed',
-]);
-const BOOLEAN_FLAGS = new Set(['compare-random', 'json']);
-
-function number(flag: string, raw: string, check: (n: number) => boolean, rule: string): number {
-  const n = Number(raw);
-  if (raw.trim() === '' || !Number.isFinite(n) || !check(n))
-    throw new UsageError(`--${flag} must be ${rule}, got ${JSON.stringify(raw)}`);
-  return n;
-}
-
-function choice<T extends string>(flag: string, raw: string, options: readonly T[]): T {
-  if (!(options as readonly string[]).includes(raw))
-    throw new UsageError(`--${flag} must be one of ${options.join(', ')}, got ${JSON.stringify(raw)}`);
-  return raw as T;
-}
-
-/** Parses `--flag value`, `--flag=value` and boolean `--flag`; throws UsageError naming the flag. */
-export function parseRehearseFlags(argv: readonly string[]): RehearseFlags {
-  const values = new Map<string, string>();
-  const booleans = new Set<string>();
-  for (let i = 0; i < argv.length; i++) {
-    const arg = argv[i];
-    if (!arg.startsWith('--')) throw new UsageError(`unexpected argument ${JSON.stringify(arg)}`);
-    const eq = arg.indexOf('=');
-    const name = eq < 0 ? arg.slice(2) : arg.slice(2, eq);
-    if (BOOLEAN_FLAGS.has(name)) {
-      if (eq >= 0) throw new UsageError(`--${name} takes no value`);
-      booleans.add(name);
-      continue;
-    }
-    if (!VALUE_FLAGS.has(name)) throw new UsageError(`unknown flag --${name}`);
-    let value: string | undefined;
-    if (eq >= 0) value = arg.slice(eq + 1);
-    else {
-      value = argv.at(i + 1);
-      if (value === undefined || value.startsWith('--')) throw new UsageError(`--${name} needs a value`);
-      i++;
-    }
-    if (values.has(name)) throw new UsageError(`--${name} given twice`);
-    values.set(name, value);
-  }
-  const input = values.get('input');
-  if (input === undefined || input === '') throw new UsageError('--input FILE.jsonl is required');
-  const get = (name: string, fallback: string): string => values.get(name) ?? fallback;
-  const integer = (flag: string, fallback: string, min: number): number =>
-    number(flag, get(flag, fallback), (n) => Number.isInteger(n) && n >= min, `an integer ≥ ${min}`);
+/** Checks the parsed options and applies the defaults; throws UsageError naming the option. */
+export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): RehearseFlags {
+  const fraction = { min: 0, max: 1, exclusiveMin: true, exclusiveMax: true };
+  const count = { integer: true, min: 1 };
   const flags: RehearseFlags = {
-    input,
-    textField: get('text-field', 'text'),
-    labelField: get('label-field', 'label'),
-    target: number('target', get('target', '0.9'), (n) => n > 0 && n < 1, 'a number strictly between 0 and 1'),
-    calibration: choice('calibration', get('calibration', 'marginal'), ['marginal', 'per-category'] as const),
-    score: choice('score', get('score', 'lac'), ['lac', 'aps'] as const),
-    strategy: choice('strategy', get('strategy', 'entropy'), [
-      'entropy',
-      'margin',
-      'least-confidence',
-      'random',
-    ] as const),
-    randomShare: number('random-share', get('random-share', '0.2'), (n) => n >= 0 && n <= 1, 'a number from 0 to 1'),
-    start: integer('start', '20', 1),
-    batch: integer('batch', '20', 1),
-    budget: integer('budget', '600', 1),
-    testShare: number(
-      'test-share',
-      get('test-share', '0.2'),
-      (n) => n > 0 && n < 1,
-      'a number strictly between 0 and 1',
-    ),
-    seed: number('seed', get('seed', '1'), (n) => Number.isSafeInteger(n), 'an integer'),
-    compareRandom: booleans.has('compare-random'),
-    json: booleans.has('json'),
+    input: values.input ?? '',
+    format: values.format as RehearseFlags['format'],
+    labelField: values['label-field'] ?? 'label',
+    target: numberOption('target', values.target, 0.9, fraction),
+    calibration: (values.calibration ?? 'marginal') as RehearseFlags['calibration'],
+    score: (values.score ?? 'lac') as RehearseFlags['score'],
+    strategy: (values.strategy ?? 'entropy') as RehearseFlags['strategy'],
+    randomShare: numberOption('random-share', values['random-share'], 0.2, { min: 0, max: 1 }),
+    start: numberOption('start', values.start, 20, count),
+    batch: numberOption('batch', values.batch, 20, count),
+    budget: numberOption('budget', values.budget, 600, count),
+    testShare: numberOption('test-share', values['test-share'], 0.2, fraction),
+    seed: numberOption('seed', values.seed, 1, { integer: true }),
+    compareRandom: values['compare-random'] === true,
+    json: values.json === true,
   };
-  if (flags.textField === '') throw new UsageError('--text-field must not be empty');
+  if (flags.input === '') throw new UsageError('--input must name a file');
   if (flags.labelField === '') throw new UsageError('--label-field must not be empty');
   if (flags.budget < flags.start)
     throw new UsageError(`--budget (${flags.budget}) must be at least --start (${flags.start})`);
