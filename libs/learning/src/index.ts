@@ -40,8 +40,15 @@ export type {
   ConformalCalibrationJson,
   ConformalThreshold,
   NonconformityScore,
+  ThresholdOptions,
 } from './conformal/conformal-calibration.js';
-export { predictionSet, SCORE_TIE_TOLERANCE, triageCall } from './conformal/prediction-set.js';
+export {
+  assertConfidence,
+  coverageShortfallProbability,
+  trainingConditionalRank,
+  trainingConditionalSizeNeeded,
+} from './conformal/training-conditional.js';
+export { predictionSet, predictionSetRule, SCORE_TIE_TOLERANCE, triageCall } from './conformal/prediction-set.js';
 export type { PredictionSet, PredictionSetOptions, TriageCall } from './conformal/prediction-set.js';
 
 export {
@@ -52,6 +59,8 @@ export {
 } from './intervals/binomial-intervals.js';
 export type { ProportionInterval } from './intervals/binomial-intervals.js';
 export { inverseRegularizedIncompleteBeta, logGamma, regularizedIncompleteBeta } from './intervals/incomplete-beta.js';
+export { binomialCdf, binomialQuantile } from './intervals/binomial-quantile.js';
+export { normalQuantile, twoSidedZ } from './intervals/normal-quantile.js';
 export { accuracy } from './metrics/accuracy.js';
 export { macroF1 } from './metrics/macro-f1.js';
 export { LOG_LOSS_EPSILON, logLoss } from './metrics/log-loss.js';
@@ -86,3 +95,18 @@ export {
 export type { AlphaLevel, KrippendorffAlpha, ReliabilityTable, ValueCounts } from './agreement/krippendorff-alpha.js';
 export { alphaBootstrap, sortedQuantile } from './agreement/alpha-bootstrap.js';
 export type { AlphaBootstrapOptions, AlphaInterval } from './agreement/alpha-bootstrap.js';
+
+export {
+  addScore,
+  emptyScoreSummary,
+  ppiMean,
+  ppiTotal,
+  ppiTunedLambda,
+  summarizeScores,
+} from './screening/prediction-powered.js';
+export type { PpiEstimate, PpiOptions, ScoreSummary, UnlabelledPopulation } from './screening/prediction-powered.js';
+export { estimatePopulationCount, PPI_MIN_EVENTS, PPI_MIN_LABELLED } from './screening/population-count.js';
+export type { CountEstimate, CountMethod, CountOptions } from './screening/population-count.js';
+export { estimatePrevalence } from './screening/prevalence.js';
+export type { PeriodSample, PrevalenceEstimate } from './screening/prevalence.js';
+export { ESTIMATION_SHARE, inEstimationFold } from './screening/estimation-fold.js';

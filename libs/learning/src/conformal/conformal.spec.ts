@@ -155,7 +155,10 @@ describe('ConformalCalibration and prediction sets', () => {
     expect(calibration.size(1)).toBe(2);
     const restored = ConformalCalibration.fromJSON(JSON.parse(JSON.stringify(calibration.toJSON())));
     expect(Array.from(restored.scores('aps', 1))).toEqual(Array.from(calibration.scores('aps', 1)));
-    expect(() => ConformalCalibration.fromJSON({ ...calibration.toJSON(), version: 2 })).toThrow(/version/);
+    expect(() => ConformalCalibration.fromJSON({ ...calibration.toJSON(), version: 3 })).toThrow(/version/);
+    // Format 1 (before held-out scores) still loads, with none held out.
+    const { heldOut: _heldOut, ...v1 } = calibration.toJSON();
+    expect(ConformalCalibration.fromJSON({ ...v1, version: 1 }).heldOutSize()).toBe(0);
   });
 
   it('gives the full set and the number of verdicts still needed when k > n', () => {
@@ -203,5 +206,52 @@ describe('ConformalCalibration and prediction sets', () => {
     expect(() => predictionSet([0.5, 0.5], calibration, { alpha: 0.5, score: 'lac', mode: 'marginal' })).toThrow(
       /3 categories/,
     );
+  });
+
+  it('gives each category its own miscoverage under Mondrian calibration', () => {
+    // Category 1 scores 0.3, 0.7: α = 0.5 → k = 2 → 0.7; α = 0.7 → k = ⌈3 · 0.3⌉ = 1 → 0.3.
+    const t = calibration.thresholds('lac', [0.5, 0.7, 0.5], 'per-category');
+    expect(t.map((x) => x.threshold)).toEqual([0.19999999999999996, 0.30000000000000004, 0.6]);
+    expect(t[1].rank).toBe(1);
+    expect(
+      predictionSet([0.5, 0.3, 0.2], calibration, { alpha: [0.5, 0.7, 0.5], score: 'lac', mode: 'per-category' })
+        .categories,
+    ).toEqual([]);
+    expect(() => calibration.thresholds('lac', [0.5, 0.7, 0.5], 'marginal')).toThrow(/per-category calibration/);
+    expect(() => calibration.thresholds('lac', [0.5, 0.7], 'per-category')).toThrow(/3 miscoverages/);
+    expect(() => calibration.thresholds('lac', [0.5, 0, 0.5], 'per-category')).toThrow(/alpha\[1\]/);
+  });
+
+  it('reads training-conditional thresholds when a confidence is asked', () => {
+    // Category 1 has 2 scores: at α = 0.5, 90 % confidence needs (0.5)^n ≤ 0.1, n ≥ 4 (ln 0.1 / ln 0.5 = 3.3).
+    const t = calibration.categoryThreshold('lac', 0.5, 1, { confidence: 0.9 });
+    expect(t.threshold).toBe(Number.POSITIVE_INFINITY);
+    expect(t.needMore).toBe(2);
+    expect(t.confidence).toBe(0.9);
+    // Marginal, n = 4 at α = 0.5: P[Beta(4, 1) < 0.5] = 0.0625 ≤ 0.1 but P[Beta(3, 2) < 0.5] = 0.3125: k = 4.
+    expect(calibration.threshold('lac', 0.5, { confidence: 0.9 }).rank).toBe(4);
+    expect(calibration.threshold('lac', 0.5).rank).toBe(3);
+    expect(() => calibration.threshold('lac', 0.5, { confidence: 1 })).toThrow(/confidence/);
+  });
+
+  it('leaves held-out items out of the thresholds of the categories asked, and keeps them on a round trip', () => {
+    // Items 1 and 2 (category 1, LAC 0.7 and 0.3): item 2 held out.
+    const held = ConformalCalibration.fromScores(categories, probs, labels, { heldOut: [false, false, true, false] });
+    expect(held.heldOutSize()).toBe(1);
+    expect(held.heldOutSize(1)).toBe(1);
+    // Category 1 without item 2 has one score, 0.7: α = 0.5 → k = 1 → 0.7.
+    const kept = held.categoryThreshold('lac', 0.5, 1, { holdOut: [1] });
+    expect(kept.n).toBe(1);
+    expect(kept.heldOut).toBe(1);
+    expect(Math.abs(kept.threshold - 0.7)).toBeLessThan(1e-12);
+    expect(held.categoryThreshold('lac', 0.5, 1).n).toBe(2);
+    // Held-out items of other categories stay in.
+    expect(held.categoryThreshold('lac', 0.5, 0, { holdOut: [1] }).n).toBe(1);
+    const restored = ConformalCalibration.fromJSON(JSON.parse(JSON.stringify(held.toJSON())));
+    expect(restored.categoryThreshold('lac', 0.5, 1, { holdOut: [1] })).toEqual(kept);
+    expect(() => held.threshold('lac', 0.5, { holdOut: [1] })).toThrow(/per-category/);
+    expect(() => held.thresholds('lac', 0.5, 'per-category', { holdOut: [3] })).toThrow(/holdOut\[0\]/);
+    const broken = { ...held.toJSON(), heldOut: { lac: [[], [0.5], []], aps: [[], [], []] } };
+    expect(() => ConformalCalibration.fromJSON(broken)).toThrow(/not part of/);
   });
 });
