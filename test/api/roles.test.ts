@@ -12,6 +12,8 @@ interface Route {
   allowed: Who[];
   body?: () => unknown;
   headers?: Record<string, string>;
+  /** Call with a token made for this call alone (sign-out revokes the token it comes with). */
+  ownToken?: boolean;
 }
 
 describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
@@ -57,8 +59,10 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
   // auditors read but cannot decide; admins manage accounts.
   const routes = (): Route[] => [
     { method: 'GET', path: '/api/auth/me', allowed: ALL },
-    { method: 'POST', path: '/api/auth/tokens', allowed: ALL, body: () => ({ label: 'matrix' }) },
-    { method: 'POST', path: '/api/auth/logout', allowed: ALL },
+    { method: 'POST', path: '/api/auth/tokens', allowed: ALL, body: () => ({ name: 'matrix' }) },
+    { method: 'POST', path: '/api/auth/logout', allowed: ALL, ownToken: true },
+    { method: 'GET', path: '/api/auth/tokens', allowed: ALL },
+    { method: 'DELETE', path: '/api/auth/tokens/999999', allowed: ALL },
     { method: 'GET', path: '/api/users', allowed: ['admin'] },
     { method: 'POST', path: '/api/users', allowed: ['admin'], body: () => ({ name: `made-${n++}`, role: 'reviewer' }) },
     { method: 'PATCH', path: '/api/users/1', allowed: ['admin'], body: () => ({ role: 'reviewer' }) },
@@ -125,8 +129,12 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     const failures: string[] = [];
     for (const r of routes()) {
       for (const who of ['anonymous', ...ROLES] as Who[]) {
-        // A fresh token per call: logout revokes nothing for bearer tokens, but keep calls independent.
-        const t = who === 'anonymous' ? null : token[who]!;
+        const t =
+          who === 'anonymous'
+            ? null
+            : r.ownToken
+              ? (await s.call(token[who]!, 'POST', '/api/auth/tokens', { name: 'for one call' })).body.token
+              : token[who]!;
         const res = await s.call(t, r.method, r.path, r.body?.(), r.headers);
         const expected = who === 'anonymous' ? [401] : r.allowed.includes(who) ? null : [403];
         const ok = expected

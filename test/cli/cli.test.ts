@@ -45,8 +45,8 @@ describe.each(DATABASE_KINDS)('cli user add on %s', (kind) => {
     try {
       const auth = new AuthService(new Database(ds), { record: async () => undefined } as never, parseConfig(env));
       expect(await auth.authenticate(out.token)).toMatchObject({ name: 'rowan', role: 'supervisor', via: 'token' });
-      await expect(auth.login('rowan', 'a-good-long-password')).resolves.toMatchObject({
-        principal: { name: 'rowan' },
+      await expect(auth.checkPassword('rowan', 'a-good-long-password')).resolves.toMatchObject({
+        user: { name: 'rowan' },
       });
       const [{ secret_hash }] = await ds.query(`SELECT secret_hash FROM credentials WHERE kind = 'token'`);
       expect(secret_hash).not.toContain(out.token.slice(4));

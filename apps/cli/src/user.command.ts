@@ -22,22 +22,23 @@ export const userAddCommand = defineCommand({
     role: { type: 'string', value: 'ROLE', required: true, choices: ROLES, description: 'the global role' },
     'password-stdin': {
       type: 'boolean',
-      description: 'read a password (8 characters or more) from standard input, for signing in to the screens',
+      description:
+        'read a password from standard input, for signing in to the screens (8 characters or more, not a common one)',
     },
   },
   async run({ values }, io) {
     const name = values.name as string;
     const role = values.role as Role;
     const password = values['password-stdin'] ? await readStdin() : undefined;
-    if (password !== undefined && password.length < 8)
-      throw new UsageError('the password read from stdin must have at least 8 characters');
-    const config = loadConfigOrExit();
     // Loaded here so that `--help` does not start Nest.
+    const { AuthCoreModule, AuthError, AuthService, passwordProblem } = await import('#auth');
+    const problem = password !== undefined ? passwordProblem(password, { userName: name }) : null;
+    if (problem) throw new UsageError(`the password read from stdin is refused: ${problem}`);
+    const config = loadConfigOrExit();
     await import('reflect-metadata');
     const { Module } = await import('@nestjs/common');
     const { NestFactory } = await import('@nestjs/core');
     const { AuditModule } = await import('#audit');
-    const { AuthCoreModule, AuthError, AuthService } = await import('#auth');
     const { ConfigModule } = await import('#config');
     const { DatabaseModule } = await import('#database');
     @Module({ imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), AuditModule, AuthCoreModule] })

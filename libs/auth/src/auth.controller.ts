@@ -3,8 +3,11 @@ import {
   Body,
   ConflictException,
   Controller,
+  Delete,
+  ForbiddenException,
   Get,
   HttpCode,
+  HttpException,
   Inject,
   NotFoundException,
   Param,
@@ -13,15 +16,18 @@ import {
   Post,
   Req,
   Res,
+  ServiceUnavailableException,
   UnauthorizedException,
 } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Request, Response } from 'express';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { ROLES, type UserEntity } from '#database';
-import { AuthError, AuthService } from './auth.service.js';
+import { AuthConflict, AuthError, AuthForbidden, AuthNotFound, AuthService } from './auth.service.js';
 import { CreateTokenDto, CreateUserDto, LoginDto, UpdateUserDto } from './auth.dto.js';
-import { readCookie } from './auth.guard.js';
+import { bearerOf, readCookie } from './auth.guard.js';
+import { SignInLimited, SignInUncounted } from './sign-in-limiter.js';
+import { SignInService } from './sign-in.service.js';
 import { SESSION_COOKIE, type Principal } from './principal.js';
 import { CurrentUser, Public, Roles } from './roles.decorator.js';
 
@@ -33,12 +39,12 @@ const publicUser = (u: UserEntity) => ({
   createdAt: u.createdAt,
 });
 
+/** The accounts' errors as HTTP answers. */
 function toHttp(e: unknown): never {
-  if (e instanceof AuthError) {
-    if (/exists already/.test(e.message)) throw new ConflictException(e.message);
-    if (/^no user/.test(e.message)) throw new NotFoundException(e.message);
-    throw new BadRequestException(e.message);
-  }
+  if (e instanceof AuthConflict) throw new ConflictException(e.message);
+  if (e instanceof AuthNotFound) throw new NotFoundException(e.message);
+  if (e instanceof AuthForbidden) throw new ForbiddenException(e.message);
+  if (e instanceof AuthError) throw new BadRequestException(e.message);
   throw e;
 }
 
@@ -47,16 +53,20 @@ function toHttp(e: unknown): never {
 export class AuthController {
   constructor(
     @Inject(AuthService) private readonly auth: AuthService,
+    @Inject(SignInService) private readonly signIn: SignInService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
   ) {}
 
-  /** Signs in with name and password; sets an HttpOnly, SameSite=Strict session cookie. */
+  /**
+   * Signs in with name and password; sets an HttpOnly, SameSite=Strict session cookie. 429 with Retry-After when
+   * this address has tried too often; 503 when the attempt cannot be counted.
+   */
   @Public()
   @Post('login')
   @HttpCode(200)
-  async login(@Body() body: LoginDto, @Res({ passthrough: true }) res: Response) {
+  async login(@Body() body: LoginDto, @Req() req: Request, @Res({ passthrough: true }) res: Response) {
     try {
-      const { secret, principal, expiresAt } = await this.auth.login(body.name, body.password);
+      const { secret, principal, expiresAt } = await this.signIn.signIn(body.name, body.password, req.ip ?? 'unknown');
       res.cookie(SESSION_COOKIE, secret, {
         httpOnly: true,
         sameSite: 'strict',
@@ -66,16 +76,22 @@ export class AuthController {
       });
       return { user: { id: principal.id, name: principal.name, role: principal.role }, expiresAt };
     } catch (e) {
+      if (e instanceof SignInLimited) {
+        res.setHeader('Retry-After', String(e.retryAfterSeconds));
+        throw new HttpException({ statusCode: 429, message: e.message, retryAfter: e.retryAfterSeconds }, 429);
+      }
+      if (e instanceof SignInUncounted) throw new ServiceUnavailableException(e.message);
       if (e instanceof AuthError) throw new UnauthorizedException(e.message);
       throw e;
     }
   }
 
+  /** Ends the session, or revokes the bearer token the request came with. */
   @Roles(...ROLES)
   @Post('logout')
   @HttpCode(204)
   async logout(@Req() req: Request, @Res({ passthrough: true }) res: Response): Promise<void> {
-    const secret = readCookie(req.headers.cookie, SESSION_COOKIE);
+    const secret = bearerOf(req.headers.authorization) ?? readCookie(req.headers.cookie, SESSION_COOKIE);
     if (secret) await this.auth.logout(secret);
     res.clearCookie(SESSION_COOKIE, {
       httpOnly: true,
@@ -91,11 +107,37 @@ export class AuthController {
     return { id: user.id, name: user.name, role: user.role, via: user.via };
   }
 
-  /** Creates a personal API token for the signed-in user; the token is shown once. */
+  /**
+   * Creates a personal API token for the signed-in user; the token is shown once. It expires after `days`
+   * (TOKEN_DAYS by default); `never: true` is for admins only.
+   */
   @Roles(...ROLES)
   @Post('tokens')
   async token(@CurrentUser() user: Principal, @Body() body: CreateTokenDto) {
-    return this.auth.createToken(user, body.label);
+    try {
+      return await this.auth.createToken(user, { name: body.name, days: body.days, never: body.never });
+    } catch (e) {
+      toHttp(e);
+    }
+  }
+
+  /** The signed-in user's tokens that are not revoked: name, creation, expiry, last use. */
+  @Roles(...ROLES)
+  @Get('tokens')
+  async tokens(@CurrentUser() user: Principal) {
+    return { tokens: await this.auth.listTokens(user) };
+  }
+
+  /** Revokes one of the signed-in user's tokens. */
+  @Roles(...ROLES)
+  @Delete('tokens/:tokenId')
+  @HttpCode(204)
+  async revoke(@CurrentUser() user: Principal, @Param('tokenId', ParseIntPipe) id: number): Promise<void> {
+    try {
+      await this.auth.revokeToken(user, id);
+    } catch (e) {
+      toHttp(e);
+    }
   }
 }
 

@@ -1,5 +1,5 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
-import { IsBoolean, IsIn, IsOptional, IsString, Length, Matches } from 'class-validator';
+import { Equals, IsBoolean, IsIn, IsInt, IsOptional, IsString, Length, Matches, Max, Min } from 'class-validator';
 import { ROLES, type Role } from '#database';
 
 export class LoginDto {
@@ -8,7 +8,17 @@ export class LoginDto {
 }
 
 export class CreateTokenDto {
-  @ApiPropertyOptional({ example: 'laptop script' }) @IsOptional() @IsString() @Length(1, 100) label?: string;
+  @ApiPropertyOptional({ example: 'laptop script' }) @IsOptional() @IsString() @Length(1, 100) name?: string;
+  @ApiPropertyOptional({ minimum: 1, maximum: 3650, description: 'lifetime in days (default TOKEN_DAYS, 90)' })
+  @IsOptional()
+  @IsInt()
+  @Min(1)
+  @Max(3650)
+  days?: number;
+  @ApiPropertyOptional({ description: 'true: the token never expires (admins only)' })
+  @IsOptional()
+  @Equals(true, { message: 'never: when given, must be true' })
+  never?: true;
 }
 
 export class CreateUserDto {
@@ -17,11 +27,25 @@ export class CreateUserDto {
   @Matches(/^[\p{L}\p{N}_.@-]{1,100}$/u, { message: 'name: 1–100 letters, digits, or _ . @ -' })
   name!: string;
   @ApiProperty({ enum: ROLES }) @IsIn(ROLES) role!: Role;
-  @ApiPropertyOptional({ minLength: 8 }) @IsOptional() @IsString() @Length(8, 500) password?: string;
+  @ApiPropertyOptional({
+    minLength: 8,
+    description: 'NIST SP 800-63B rules: 8 or more characters, not a common password',
+  })
+  @IsOptional()
+  @IsString()
+  @Length(8, 500)
+  password?: string;
 }
 
 export class UpdateUserDto {
   @ApiPropertyOptional({ enum: ROLES }) @IsOptional() @IsIn(ROLES) role?: Role;
   @ApiPropertyOptional() @IsOptional() @IsBoolean() disabled?: boolean;
-  @ApiPropertyOptional({ minLength: 8 }) @IsOptional() @IsString() @Length(8, 500) password?: string;
+  @ApiPropertyOptional({
+    minLength: 8,
+    description: 'NIST SP 800-63B rules: 8 or more characters, not a common password',
+  })
+  @IsOptional()
+  @IsString()
+  @Length(8, 500)
+  password?: string;
 }

@@ -3,11 +3,13 @@ import { APP_GUARD } from '@nestjs/core';
 import { AuthController, UsersController } from './auth.controller.js';
 import { AuthGuard } from './auth.guard.js';
 import { AuthService } from './auth.service.js';
+import { SignInLimiter } from './sign-in-limiter.js';
+import { SignInService } from './sign-in.service.js';
 
-/** Accounts and the global guard; the HTTP app imports it. */
+/** Accounts, sign-in and the global guard; the HTTP app imports it. */
 @Module({
   controllers: [AuthController, UsersController],
-  providers: [AuthService, { provide: APP_GUARD, useClass: AuthGuard }],
+  providers: [AuthService, SignInLimiter, SignInService, { provide: APP_GUARD, useClass: AuthGuard }],
   exports: [AuthService],
 })
 export class AuthModule {}

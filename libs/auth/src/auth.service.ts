@@ -4,18 +4,35 @@ import { APP_CONFIG, type AppConfig } from '#config';
 import { CredentialEntity, Database, ROLES, UserEntity, type DbInt, type Role } from '#database';
 import { AuditService, type AuditActor } from '#audit';
 import type { Principal } from './principal.js';
+import { passwordProblem } from './passwords/password-policy.js';
 import { hashPassword, newSecret, secretHash, verifyPassword } from './secrets.js';
 
+/** A request the accounts cannot carry out: bad input (400), or a refused sign-in (401). */
 export class AuthError extends Error {}
+/** No such account or credential of the caller's (404). */
+export class AuthNotFound extends AuthError {}
+/** The change would break a rule of the accounts, e.g. leave no admin (409). */
+export class AuthConflict extends AuthError {}
+/** The caller's role may not ask for this (403). */
+export class AuthForbidden extends AuthError {}
+
+const DAY_MS = 86_400_000;
 
 /** How long an authentication answer is reused within one process. */
 export const AUTH_CACHE_MS = 3000;
+/** How often a credential's last-used time is written (it is read to the minute). */
+const LAST_USED_EVERY_MS = 60_000;
+
+let dummy: Promise<string> | undefined;
+/** A hash to check unknown names against, so that they cost one scrypt like known ones. */
+function dummyHash(): Promise<string> {
+  dummy ??= hashPassword('no account has this password; it only spends the time a check takes');
+  return dummy;
+}
 
 /** Users, passwords, sessions and personal API tokens. */
 @Injectable()
 export class AuthService {
-  /** Failed sign-ins per user name in the current minute, to slow down guessing. */
-  private readonly failures = new Map<string, { minute: number; count: number }>();
   private readonly cache = new Map<string, { principal: Principal | null; until: number; userId: number | null }>();
 
   constructor(
@@ -31,10 +48,12 @@ export class AuthService {
     const name = input.name.trim();
     if (!/^[\p{L}\p{N}_.@-]{1,100}$/u.test(name)) throw new AuthError('name: 1–100 letters, digits, or _ . @ -');
     if (!ROLES.includes(input.role)) throw new AuthError(`role: expected one of ${ROLES.join(', ')}`);
+    const problem = input.password !== undefined ? passwordProblem(input.password, { userName: name }) : null;
+    if (problem) throw new AuthError(problem);
     const passwordHash = input.password !== undefined ? await hashPassword(input.password) : null;
     return this.db.write(async (m) => {
       if (await m.findOneBy(UserEntity, { name }))
-        throw new AuthError(`a user named ${JSON.stringify(name)} exists already`);
+        throw new AuthConflict(`a user named ${JSON.stringify(name)} exists already`);
       const user = await m.save(
         UserEntity,
         m.create(UserEntity, { name, role: input.role, passwordHash, disabled: false, createdAt: new Date() }),
@@ -46,7 +65,7 @@ export class AuthService {
         secretHash: secretHash(token),
         label: 'first token',
         createdAt: new Date(),
-        expiresAt: null,
+        expiresAt: new Date(Date.now() + this.config.tokenDays * DAY_MS),
         revokedAt: null,
         lastUsedAt: null,
       });
@@ -64,52 +83,112 @@ export class AuthService {
     return this.db.manager.find(UserEntity, { order: { id: 'ASC' } });
   }
 
+  /**
+   * Changes an account's role, disabled flag or password. A new password or a disabled account revokes every session
+   * and token of the account at once. The last enabled admin can be neither demoted nor disabled.
+   */
   async updateUser(
     actor: AuditActor,
     id: number,
     change: { role?: Role; disabled?: boolean; password?: string },
   ): Promise<UserEntity> {
-    const passwordHash = change.password !== undefined ? await hashPassword(change.password) : undefined;
+    const passwordHash = change.password !== undefined ? await this.newPasswordHash(id, change.password) : undefined;
     return this.db.write(async (m) => {
       const user = await m.findOneBy(UserEntity, { id });
-      if (!user) throw new AuthError(`no user ${id}`);
+      if (!user) throw new AuthNotFound(`no user ${id}`);
       const before = { role: user.role, disabled: user.disabled };
       if (change.role !== undefined) user.role = change.role;
       if (change.disabled !== undefined) user.disabled = change.disabled;
       if (passwordHash !== undefined) user.passwordHash = passwordHash;
+      const stillAdmin = user.role === 'admin' && !user.disabled;
+      if (before.role === 'admin' && !before.disabled && !stillAdmin) {
+        const others = await m.countBy(UserEntity, { role: 'admin', disabled: false });
+        // `others` still counts this user: the update is not written yet.
+        if (others <= 1)
+          throw new AuthConflict(
+            `${user.name} is the last enabled admin: make another account admin before demoting or disabling this one`,
+          );
+      }
       await m.update(
         UserEntity,
         { id },
         { role: user.role, disabled: user.disabled, ...(passwordHash ? { passwordHash } : {}) },
       );
-      if (change.disabled)
-        await m.update(CredentialEntity, { userId: id, revokedAt: IsNull() }, { revokedAt: new Date() });
+      const revoke = change.disabled === true || passwordHash !== undefined;
+      const revoked = revoke
+        ? ((await m.update(CredentialEntity, { userId: id, revokedAt: IsNull() }, { revokedAt: new Date() }))
+            .affected ?? 0)
+        : 0;
       this.forgetUser(id);
       await this.audit.record(m, actor, {
         action: 'user.update',
         entityType: 'user',
         entityId: id,
         before,
-        after: { role: user.role, disabled: user.disabled, passwordChanged: passwordHash !== undefined },
+        after: {
+          role: user.role,
+          disabled: user.disabled,
+          passwordChanged: passwordHash !== undefined,
+          ...(revoke ? { credentialsRevoked: revoked } : {}),
+        },
       });
       return user;
     });
   }
 
-  /** Checks a name and password; returns a new session secret for the cookie. */
-  async login(name: string, password: string): Promise<{ secret: string; principal: Principal; expiresAt: Date }> {
-    const minute = Math.floor(Date.now() / 60_000);
-    const f = this.failures.get(name);
-    if (f && f.minute === minute && f.count >= 10)
-      throw new AuthError('too many failed sign-ins for this name; wait a minute');
+  private async newPasswordHash(userId: number, password: string): Promise<string> {
+    const user = await this.db.manager.findOneBy(UserEntity, { id: userId });
+    const problem = passwordProblem(password, { userName: user?.name });
+    if (problem) throw new AuthError(problem);
+    return hashPassword(password);
+  }
+
+  /**
+   * Checks a name and password. An unknown name, a disabled account or one without a password costs one scrypt
+   * against a fixed hash all the same, so that the time of the answer does not tell which names exist.
+   */
+  async checkPassword(
+    name: string,
+    password: string,
+  ): Promise<
+    | { user: UserEntity; userId: number; reason: null }
+    | { user: null; userId: number | null; reason: 'unknown name' | 'disabled' | 'no password' | 'wrong password' }
+  > {
     const user = await this.db.manager.findOneBy(UserEntity, { name });
-    const ok =
-      user && !user.disabled && user.passwordHash !== null && (await verifyPassword(password, user.passwordHash));
-    if (!ok) {
-      this.failures.set(name, { minute, count: f && f.minute === minute ? f.count + 1 : 1 });
-      throw new AuthError('wrong name or password');
-    }
-    this.failures.delete(name);
+    const usable = user && !user.disabled && user.passwordHash !== null ? user : null;
+    const ok = await verifyPassword(password, usable ? usable.passwordHash! : await dummyHash());
+    if (usable && ok) return { user: usable, userId: usable.id, reason: null };
+    const reason = !user
+      ? 'unknown name'
+      : user.disabled
+        ? 'disabled'
+        : user.passwordHash === null
+          ? 'no password'
+          : 'wrong password';
+    return { user: null, userId: user?.id ?? null, reason };
+  }
+
+  /** Writes a refused sign-in into the audit trail: the name tried, the client address and why. */
+  async recordRefusal(name: string, userId: number | null, address: string, reason: string): Promise<void> {
+    await this.db.write((m) =>
+      this.audit.record(
+        m,
+        { id: userId, name: name.slice(0, 100) },
+        {
+          action: 'session.refused',
+          entityType: 'user',
+          entityId: userId ?? name.slice(0, 100),
+          after: { name: name.slice(0, 100), address, outcome: reason },
+        },
+      ),
+    );
+  }
+
+  /** A new browser session for a user whose password was checked; audited with the client address. */
+  async startSession(
+    user: UserEntity,
+    address: string,
+  ): Promise<{ secret: string; principal: Principal; expiresAt: Date }> {
     const secret = newSecret('session');
     const expiresAt = new Date(Date.now() + this.config.sessionHours * 3600_000);
     await this.db.write(async (m) => {
@@ -126,15 +205,21 @@ export class AuthService {
       await this.audit.record(
         m,
         { id: user.id, name: user.name },
-        { action: 'session.start', entityType: 'user', entityId: user.id },
+        {
+          action: 'session.start',
+          entityType: 'user',
+          entityId: user.id,
+          after: { address, outcome: 'signed in' },
+        },
       );
     });
     return { secret, principal: { id: user.id, name: user.name, role: user.role, via: 'session' }, expiresAt };
   }
 
+  /** Ends the session or revokes the token that authenticated the request; audited. */
   async logout(secret: string): Promise<void> {
     await this.db.write(async (m) => {
-      const cred = await m.findOneBy(CredentialEntity, { secretHash: secretHash(secret), kind: 'session' });
+      const cred = await m.findOneBy(CredentialEntity, { secretHash: secretHash(secret) });
       if (!cred || cred.revokedAt) return;
       await m.update(CredentialEntity, { id: cred.id }, { revokedAt: new Date() });
       this.cache.delete(cred.secretHash);
@@ -142,7 +227,9 @@ export class AuthService {
       await this.audit.record(
         m,
         { id: cred.userId, name: user?.name ?? '?' },
-        { action: 'session.end', entityType: 'user', entityId: cred.userId },
+        cred.kind === 'session'
+          ? { action: 'session.end', entityType: 'user', entityId: cred.userId }
+          : { action: 'token.revoke', entityType: 'credential', entityId: cred.id, after: { by: 'sign-out' } },
       );
     });
   }
@@ -165,12 +252,14 @@ export class AuthService {
       name: string;
       role: Role;
       disabled: boolean | number;
+      credential_id: DbInt;
       kind: 'token' | 'session';
       expires_at: unknown;
       revoked_at: unknown;
+      last_used_at: unknown;
     }>(
       null,
-      'SELECT u.id, u.name, u.role, u.disabled, c.kind, c.expires_at, c.revoked_at FROM credentials c JOIN users u ON u.id = c.user_id WHERE c.secret_hash = $1',
+      'SELECT u.id, u.name, u.role, u.disabled, c.id AS credential_id, c.kind, c.expires_at, c.revoked_at, c.last_used_at FROM credentials c JOIN users u ON u.id = c.user_id WHERE c.secret_hash = $1',
       [hash],
     );
     const expires = row ? this.db.parseTime(row.expires_at) : null;
@@ -184,24 +273,45 @@ export class AuthService {
       : null;
     if (this.cache.size > 10_000) this.cache.clear();
     this.cache.set(hash, { principal, until: now + AUTH_CACHE_MS, userId: principal?.id ?? null });
+    if (principal) {
+      const last = this.db.parseTime(row!.last_used_at);
+      if (!last || now - last.getTime() > LAST_USED_EVERY_MS) this.touch(Number(row!.credential_id), new Date(now));
+    }
     return principal;
+  }
+
+  /** Records when a credential was last used, at most every {@link LAST_USED_EVERY_MS}; off the request's path. */
+  private touch(credentialId: number, at: Date): void {
+    void this.db
+      .write((m) => m.update(CredentialEntity, { id: credentialId }, { lastUsedAt: at }))
+      .catch(() => undefined);
   }
 
   private forgetUser(userId: number): void {
     for (const [k, v] of this.cache) if (v.userId === userId) this.cache.delete(k);
   }
 
-  /** A new personal API token for the user; the secret is returned once and stored hashed. */
-  async createToken(principal: Principal, label: string | undefined): Promise<{ id: number; token: string }> {
+  /**
+   * A new personal API token for the user; the secret is returned once and stored hashed. It expires after
+   * `days` (the configured default when not given); only an admin's may never expire.
+   */
+  async createToken(
+    principal: Principal,
+    options: { name?: string; days?: number; never?: boolean },
+  ): Promise<{ id: number; token: string; name: string | null; expiresAt: Date | null }> {
+    if (options.never && principal.role !== 'admin')
+      throw new AuthForbidden('only an admin may make a token that never expires; give days instead');
     const token = newSecret('token');
+    const expiresAt = options.never ? null : new Date(Date.now() + (options.days ?? this.config.tokenDays) * DAY_MS);
+    const name = options.name ?? null;
     return this.db.write(async (m) => {
       const r = await m.insert(CredentialEntity, {
         userId: principal.id,
         kind: 'token',
         secretHash: secretHash(token),
-        label: label ?? null,
+        label: name,
         createdAt: new Date(),
-        expiresAt: null,
+        expiresAt,
         revokedAt: null,
         lastUsedAt: null,
       });
@@ -210,9 +320,56 @@ export class AuthService {
         action: 'token.create',
         entityType: 'credential',
         entityId: id,
-        after: { label: label ?? null },
+        after: { name, expiresAt: expiresAt?.toISOString() ?? 'never' },
       });
-      return { id, token };
+      return { id, token, name, expiresAt };
+    });
+  }
+
+  /** The user's own tokens that are not revoked, newest first (expired ones say so). */
+  async listTokens(principal: Principal): Promise<
+    Array<{
+      id: number;
+      name: string | null;
+      createdAt: Date;
+      expiresAt: Date | null;
+      lastUsedAt: Date | null;
+      expired: boolean;
+    }>
+  > {
+    const rows = await this.db.manager.find(CredentialEntity, {
+      where: { userId: principal.id, kind: 'token', revokedAt: IsNull() },
+      order: { id: 'DESC' },
+    });
+    const now = Date.now();
+    return rows.map((r) => ({
+      id: r.id,
+      name: r.label,
+      createdAt: r.createdAt,
+      expiresAt: r.expiresAt,
+      lastUsedAt: r.lastUsedAt,
+      expired: r.expiresAt !== null && r.expiresAt.getTime() <= now,
+    }));
+  }
+
+  /** Revokes one of the user's own tokens; {@link AuthNotFound} for another's, an unknown or a revoked one. */
+  async revokeToken(principal: Principal, id: number): Promise<void> {
+    await this.db.write(async (m) => {
+      const cred = await m.findOneBy(CredentialEntity, {
+        id,
+        userId: principal.id,
+        kind: 'token',
+        revokedAt: IsNull(),
+      });
+      if (!cred) throw new AuthNotFound(`you have no live token ${id}`);
+      await m.update(CredentialEntity, { id }, { revokedAt: new Date() });
+      this.cache.delete(cred.secretHash);
+      await this.audit.record(m, principal, {
+        action: 'token.revoke',
+        entityType: 'credential',
+        entityId: id,
+        after: { name: cred.label },
+      });
     });
   }
 }

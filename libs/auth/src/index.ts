@@ -1,4 +1,5 @@
-export { AuthService, AuthError } from './auth.service.js';
+export { AuthService, AuthError, AuthConflict, AuthForbidden, AuthNotFound } from './auth.service.js';
+export { passwordProblem, PASSWORD_MIN } from './passwords/password-policy.js';
 export { AuthModule, AuthCoreModule } from './auth.module.js';
 export { AuthGuard, bearerOf, readCookie } from './auth.guard.js';
 export { crossSiteRefusal } from './same-origin.js';

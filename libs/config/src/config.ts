@@ -32,6 +32,18 @@ export interface AppConfig {
   readonly apiHeapMb: number;
   /** On an empty database, `start` creates the Mossbank Commons demo desk, its accounts and its generated posts (DEMO=off: start clean). */
   readonly demo: boolean;
+  /** Default lifetime of a new API token, in days (`never` is for admins only, asked per token). */
+  readonly tokenDays: number;
+  /** Sign-in limits, counted in Redis over {@link signInWindowMinutes}: see libs/auth `SignInLimiter`. */
+  readonly signIn: {
+    /** Attempts per account name from one client address; then 429 for that address. */
+    readonly perNameAndAddress: number;
+    /** Attempts from one client address, whatever the names; then 429. */
+    readonly perAddress: number;
+    /** Attempts on one account name from everywhere; beyond, each attempt is slowed down, never refused. */
+    readonly perName: number;
+    readonly windowMinutes: number;
+  };
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -65,6 +77,11 @@ export const CONFIG_VARIABLES = [
   'SWEEP_SECONDS',
   'API_HEAP_MB',
   'DEMO',
+  'TOKEN_DAYS',
+  'SIGNIN_ATTEMPTS_PER_NAME_AND_ADDRESS',
+  'SIGNIN_ATTEMPTS_PER_ADDRESS',
+  'SIGNIN_ATTEMPTS_PER_NAME',
+  'SIGNIN_WINDOW_MINUTES',
   'CRIBRA_TEST_PAUSE',
 ] as const;
 
@@ -171,6 +188,13 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
     apiHeapMb: int('API_HEAP_MB', 512, 128, 65_536),
     demo: bool('DEMO', true),
+    tokenDays: int('TOKEN_DAYS', 90, 1, 3650),
+    signIn: {
+      perNameAndAddress: int('SIGNIN_ATTEMPTS_PER_NAME_AND_ADDRESS', 5, 1, 100_000),
+      perAddress: int('SIGNIN_ATTEMPTS_PER_ADDRESS', 30, 1, 100_000),
+      perName: int('SIGNIN_ATTEMPTS_PER_NAME', 10, 1, 100_000),
+      windowMinutes: int('SIGNIN_WINDOW_MINUTES', 15, 1, 1440),
+    },
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -208,6 +232,11 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SWEEP_SECONDS: String(config.sweepSeconds),
     API_HEAP_MB: String(config.apiHeapMb),
     DEMO: config.demo ? 'on' : 'off',
+    TOKEN_DAYS: String(config.tokenDays),
+    SIGNIN_ATTEMPTS_PER_NAME_AND_ADDRESS: String(config.signIn.perNameAndAddress),
+    SIGNIN_ATTEMPTS_PER_ADDRESS: String(config.signIn.perAddress),
+    SIGNIN_ATTEMPTS_PER_NAME: String(config.signIn.perName),
+    SIGNIN_WINDOW_MINUTES: String(config.signIn.windowMinutes),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

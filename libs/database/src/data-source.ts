@@ -18,6 +18,7 @@ import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js'
 import { ModelReports1764900000000 } from './migrations/1764900000000-model-reports.js';
 import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.js';
 import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
+import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expiry.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -44,6 +45,7 @@ export const MIGRATIONS = [
   ModelReports1764900000000,
   TrailIndex1765000000000,
   TermCounts1765100000000,
+  TokenExpiry1766200000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
