@@ -4,7 +4,17 @@ import js from '@eslint/js';
 import tseslint from 'typescript-eslint';
 
 export default tseslint.config(
-  { ignores: ['dist/**', 'data/**', 'coverage/**', '.tmp/**', 'node_modules/**', 'docs/**'] },
+  {
+    ignores: [
+      'dist/**',
+      'data/**',
+      'coverage/**',
+      '.tmp/**',
+      'node_modules/**',
+      'docs/**',
+      'apps/web/src/generated/**',
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.strictTypeChecked,
   {

@@ -1,7 +1,9 @@
 import { BadRequestException, Controller, Get, Inject, Query } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, type Answer } from '#api-docs';
 import { Roles } from '#auth';
 import { Database, type DbInt } from '#database';
+import { AuditListAnswer } from './api.responses.js';
 
 /** A row of `audit_events` as the list query reads it. */
 interface AuditRow {
@@ -25,7 +27,15 @@ export class AuditController {
 
   @Roles('auditor', 'admin', 'supervisor')
   @Get()
-  async list(@Query('deskId') deskId?: string, @Query('before') before?: string, @Query('limit') limit?: string) {
+  @ApiAnswer(AuditListAnswer)
+  @ApiQuery({ name: 'deskId', required: false, type: Number, description: 'only this desk’s events' })
+  @ApiQuery({ name: 'before', required: false, type: Number, description: 'an event id: the page before it' })
+  @ApiQuery({ name: 'limit', required: false, type: Number, description: 'events per page, 1–1000 (default 200)' })
+  async list(
+    @Query('deskId') deskId?: string,
+    @Query('before') before?: string,
+    @Query('limit') limit?: string,
+  ): Promise<Answer<typeof AuditListAnswer>> {
     const params: unknown[] = [];
     const where: string[] = [];
     for (const [name, v] of [

@@ -1,8 +1,10 @@
 import { Controller, Get, HttpCode, Inject, ServiceUnavailableException } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { Public } from '#auth';
 import { Database } from '#database';
 import { JobQueueService } from '#queues';
+import { HealthAnswer, ReadyAnswer } from './api.responses.js';
 
 @ApiTags('health')
 @Controller()
@@ -16,14 +18,17 @@ export class HealthController {
   @Public()
   @Get('healthz')
   @HttpCode(200)
-  health() {
+  @ApiAnswer(HealthAnswer)
+  health(): Answer<typeof HealthAnswer> {
     return { status: 'ok' };
   }
 
   /** The process can serve: the database and Redis answer. */
   @Public()
   @Get('readyz')
-  async ready() {
+  @ApiAnswer(ReadyAnswer)
+  @ApiErrors({ 503: 'the database or Redis does not answer; the body says which' })
+  async ready(): Promise<Answer<typeof ReadyAnswer>> {
     const [database, redis] = await Promise.all([
       this.db.query(null, 'SELECT 1').then(
         () => true,
@@ -32,6 +37,6 @@ export class HealthController {
       this.jobs.ping(),
     ]);
     if (!database || !redis) throw new ServiceUnavailableException({ status: 'not ready', database, redis });
-    return { status: 'ready', database, redis, dialect: this.db.dialect };
+    return { status: 'ready', database: true, redis: true, dialect: this.db.dialect };
   }
 }

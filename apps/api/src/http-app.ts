@@ -1,6 +1,7 @@
 import { type INestApplication } from '@nestjs/common';
 import { NestFactory, Reflector } from '@nestjs/core';
-import { DocumentBuilder, SwaggerModule } from '@nestjs/swagger';
+import { SwaggerModule } from '@nestjs/swagger';
+import { buildOpenApiDocument } from '#api-docs';
 import type { NestExpressApplication } from '@nestjs/platform-express';
 import express from 'express';
 import { nestLogLevels, type AppConfig } from '#config';
@@ -9,6 +10,9 @@ import { ApiModule } from './app.module.js';
 import { JsonBodyInterceptor } from './json-body.js';
 import { StrictValidationPipe } from './strict-validation.pipe.js';
 import { webScreens } from './web-screens.js';
+
+/** The API's version in its document. */
+export const API_VERSION = '0.1.0';
 
 /** Builds the HTTP application (not listening yet). Used by `main.ts` and by the tests. */
 export async function createHttpApp(config: AppConfig): Promise<INestApplication> {
@@ -27,18 +31,7 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
   app.useGlobalInterceptors(new JsonBodyInterceptor(app.get(Reflector)));
   app.useGlobalPipes(new StrictValidationPipe());
   app.enableShutdownHooks();
-  const doc = SwaggerModule.createDocument(
-    app,
-    new DocumentBuilder()
-      .setTitle('Cribra API')
-      .setDescription(
-        'Triage queue with active learning and split-conformal prediction sets. Authenticate with the session cookie or `Authorization: Bearer <token>`.',
-      )
-      .setVersion('0.1.0')
-      .addBearerAuth()
-      .addCookieAuth('cribra_session')
-      .build(),
-  );
+  const doc = buildOpenApiDocument(app, API_VERSION);
   // The document is for signed-in users only; Nest's guard does not cover these routes, so check here. Mounted on
   // the document's own paths, so Express matches them exactly as it matches the document's routes (case-insensitive,
   // trailing slash or not): a path that reaches the document has passed this check first.

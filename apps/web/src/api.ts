@@ -3,155 +3,51 @@
  * the session cookie. Errors carry the server's own message, which the
  * screens show as it is.
  */
-export type Role = 'reviewer' | 'supervisor' | 'auditor' | 'admin';
-export type TriageCall = 'sure' | 'ambiguous' | 'unfamiliar';
+import type { components } from './generated/api-schema';
 
-export interface Me {
-  id: number;
-  name: string;
-  role: Role;
-}
+/*
+ * The answers' types come from the API document (`npm run build` writes it and generates
+ * `generated/api-schema.ts` with openapi-typescript), so a screen cannot read a field the server does not send.
+ * Times are ISO 8601 strings here.
+ */
+type Schemas = components['schemas'];
 
-export interface Desk {
-  id: number;
-  name: string;
-  categories: Array<{ id: number; name: string; position: number }>;
-  seedTerms: Record<string, string[]>;
-  coverageTarget: number;
-  calibration: 'marginal' | 'per-category';
-  randomShare: number;
-  leaseSeconds: number;
-  strategy: string;
-  score: string;
-  retrainEvery: number;
-  retrainAfterSeconds: number;
-  currentModelVersion: number | null;
-  [setting: string]: unknown;
-}
-
-export interface Prediction {
-  modelVersion: number;
-  probabilities: Record<string, number>;
-  set: string[];
-  call: TriageCall;
-}
-
-export interface Highlight {
-  start: number;
-  end: number;
-  category: string;
-  term?: string;
-}
-
-export interface LeaseGrant {
-  lease: { id: string; expiresAt: string };
-  item: {
-    id: number;
-    text: string;
-    meta: Record<string, unknown>;
-    externalId: string | null;
-    source: string | null;
-    postedAt: string | null;
-  };
-  highlights: Highlight[];
-  prediction: Prediction | null;
-}
-
-export interface Verdict {
-  id: number;
-  itemId: number;
-  category: string | null;
-  abstain: boolean;
-  createdAt: string;
-  [field: string]: unknown;
-}
-
-export interface Progress {
-  deskId: number;
-  items: { total: number; open: number; leased: number; decided: number };
-  verdicts: { total: number; byCategory: Record<string, number>; abstain: number; undone: number };
-  reviewers?: Array<{ name: string; verdicts: number; lastAt: string | null }>;
-  currentModelVersion: number | null;
-}
-
-export interface CalibrationStatus {
-  modelVersion: number;
-  target: number;
-  mode: string;
-  thresholds: Array<{ category: string | null; threshold: number | null; n: number; needMore: number }>;
-  needMore: number;
-}
-
-export interface PreviewPoint {
-  target: number;
-  sureShare: number;
-  ambiguousShare: number;
-  unfamiliarShare: number;
-  meanSetSize: number;
-  calibrationCount: number;
-  needMore: number;
-  /** Open items by set size (index = number of categories in the set). */
-  setSizes?: number[];
-}
-
-export interface CoverageSummary {
-  n: number;
-  covered: number;
-  coverage: number | null;
-  interval: { lower: number; upper: number } | null;
-}
-
-export interface Coverage {
-  target: number;
-  mode: string;
-  byVersion: Array<CoverageSummary & { modelVersion: number; perCategory: Record<string, CoverageSummary> }>;
-  window: CoverageSummary & { size: number; perCategory: Record<string, CoverageSummary> };
-  alert: { raised: boolean; message: string | null };
-}
-
-export interface ModelMetrics {
-  n: number;
-  accuracy: number;
-  macroF1: number;
-  logLoss: number;
-  brier: number;
-  ece: number;
-  reliability?: Array<{
-    lower: number;
-    upper: number;
-    count: number;
-    meanConfidence: number | null;
-    accuracy: number | null;
-  }>;
-}
-
-export interface ModelSummary {
-  version: number;
-  parentVersion: number | null;
-  state: string;
-  createdAt: string;
-  publishedAt: string | null;
-  trainingCounts: Record<string, number>;
-  calibrationCounts: Record<string, number>;
-  metrics: ModelMetrics | null;
-  timings: Record<string, number>;
-  failure: string | null;
-}
-
-export interface ImportView {
-  id: string;
-  state: 'receiving' | 'queued' | 'running' | 'done' | 'failed';
-  fileName: string | null;
-  bytesReceived: number;
-  rowsRead: number;
-  imported: number;
-  duplicates: number;
-  rejected: number;
-  errors: Array<{ row: number; reason: string }>;
-  failure: string | null;
-  createdAt: string;
-  finishedAt: string | null;
-}
+/** The signed-in account as the screens know it: the sign-in answer's user (GET /auth/me says more). */
+export type Me = Schemas['SignedIn']['user'];
+export type Role = Me['role'];
+export type Desk = Schemas['Desk'];
+export type DeskList = Schemas['DeskList'];
+export type UpdatedDesk = Schemas['UpdatedDesk'];
+export type Prediction = Schemas['Prediction'];
+export type TriageCall = Prediction['call'];
+export type LeaseGrant = Schemas['LeaseGrant'];
+export type Highlight = LeaseGrant['highlights'][number];
+export type MyLeases = Schemas['MyLeases'];
+export type Verdict = Schemas['Verdict'];
+export type OneVerdict = Schemas['OneVerdict'];
+export type VerdictList = Schemas['VerdictList'];
+export type Progress = Schemas['Progress'];
+export type CalibrationStatus = Schemas['CalibrationStatus'];
+export type CoveragePreview = Schemas['CoveragePreview'];
+export type PreviewPoint = CoveragePreview['points'][number];
+export type Coverage = Schemas['Coverage'];
+export type CoverageSummary = Coverage['window']['perCategory'][string];
+export type ModelSummary = Schemas['ModelSummary'];
+export type ModelMetrics = NonNullable<ModelSummary['metrics']>;
+export type ModelList = Schemas['ModelList'];
+export type ModelVersion = Schemas['ModelVersion'];
+export type ImportView = Schemas['Import'];
+export type ImportList = Schemas['ImportList'];
+export type ImportStarted = Schemas['ImportStarted'];
+export type SignedIn = Schemas['SignedIn'];
+export type SimulationStatus = Schemas['SimulationStatus'];
+export type SimulationRun = Schemas['SimulationRun'];
+export type Agreement = Schemas['Agreement'];
+export type DisagreementList = Schemas['DisagreementList'];
+export type Disagreement = DisagreementList['disagreements'][number];
+export type Settlement = Schemas['Settlement'];
+export type ReportList = Schemas['ReportList'];
+export type PredictedItems = Schemas['PredictedItems'];
 
 export class ApiError extends Error {
   constructor(
@@ -207,7 +103,7 @@ export function uploadFile(
   path: string,
   file: File,
   onProgress: (sent: number, total: number) => void,
-): Promise<{ importId: string }> {
+): Promise<ImportStarted> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', `/api${path}`);
@@ -215,7 +111,7 @@ export function uploadFile(
     xhr.onerror = () => reject(new ApiError(0, 'the upload was interrupted; nothing was imported from it'));
     xhr.onload = () => {
       const parsed: unknown = xhr.responseText ? JSON.parse(xhr.responseText) : null;
-      if (xhr.status >= 200 && xhr.status < 300) resolve(parsed as { importId: string });
+      if (xhr.status >= 200 && xhr.status < 300) resolve(parsed as ImportStarted);
       else reject(new ApiError(xhr.status, messageOf(parsed, xhr.status)));
     };
     const form = new FormData();

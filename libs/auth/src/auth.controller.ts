@@ -20,9 +20,19 @@ import {
   UnauthorizedException,
 } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, ApiErrors, ApiNoContent, type Answer } from '#api-docs';
 import type { Request, Response } from 'express';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { ROLES, type UserEntity } from '#database';
+import {
+  MeAnswer,
+  NewTokenAnswer,
+  NewUserAnswer,
+  SignedInAnswer,
+  TokenListAnswer,
+  UserAnswer,
+  UserListAnswer,
+} from './auth.responses.js';
 import { AuthConflict, AuthError, AuthForbidden, AuthNotFound, AuthService } from './auth.service.js';
 import { CreateTokenDto, CreateUserDto, LoginDto, UpdateUserDto } from './auth.dto.js';
 import { bearerOf, readCookie } from './auth.guard.js';
@@ -64,7 +74,19 @@ export class AuthController {
   @Public()
   @Post('login')
   @HttpCode(200)
-  async login(@Body() body: LoginDto, @Req() req: Request, @Res({ passthrough: true }) res: Response) {
+  @ApiAnswer(SignedInAnswer, { description: 'signed in; the session cookie is set' })
+  @ApiErrors({
+    401: 'wrong name or password, or the account is disabled',
+    403: 'a sign-in from another origin',
+    413: 'the body is over 8 kB',
+    429: 'too many attempts; Retry-After says when to try again',
+    503: 'the attempt cannot be counted (Redis does not answer)',
+  })
+  async login(
+    @Body() body: LoginDto,
+    @Req() req: Request,
+    @Res({ passthrough: true }) res: Response,
+  ): Promise<Answer<typeof SignedInAnswer>> {
     try {
       const { secret, principal, expiresAt } = await this.signIn.signIn(body.name, body.password, req.ip ?? 'unknown');
       res.cookie(SESSION_COOKIE, secret, {
@@ -90,6 +112,7 @@ export class AuthController {
   @Roles(...ROLES)
   @Post('logout')
   @HttpCode(204)
+  @ApiNoContent('signed out: the session ends, or the bearer token is revoked')
   async logout(@Req() req: Request, @Res({ passthrough: true }) res: Response): Promise<void> {
     const secret = bearerOf(req.headers.authorization) ?? readCookie(req.headers.cookie, SESSION_COOKIE);
     if (secret) await this.auth.logout(secret);
@@ -103,7 +126,8 @@ export class AuthController {
 
   @Roles(...ROLES)
   @Get('me')
-  me(@CurrentUser() user: Principal) {
+  @ApiAnswer(MeAnswer)
+  me(@CurrentUser() user: Principal): Answer<typeof MeAnswer> {
     return { id: user.id, name: user.name, role: user.role, via: user.via };
   }
 
@@ -113,7 +137,8 @@ export class AuthController {
    */
   @Roles(...ROLES)
   @Post('tokens')
-  async token(@CurrentUser() user: Principal, @Body() body: CreateTokenDto) {
+  @ApiAnswer(NewTokenAnswer, { status: 201, description: 'the new token, shown only this once' })
+  async token(@CurrentUser() user: Principal, @Body() body: CreateTokenDto): Promise<Answer<typeof NewTokenAnswer>> {
     try {
       return await this.auth.createToken(user, { name: body.name, days: body.days, never: body.never });
     } catch (e) {
@@ -124,7 +149,8 @@ export class AuthController {
   /** The signed-in user's tokens that are not revoked: name, creation, expiry, last use. */
   @Roles(...ROLES)
   @Get('tokens')
-  async tokens(@CurrentUser() user: Principal) {
+  @ApiAnswer(TokenListAnswer)
+  async tokens(@CurrentUser() user: Principal): Promise<Answer<typeof TokenListAnswer>> {
     return { tokens: await this.auth.listTokens(user) };
   }
 
@@ -132,6 +158,7 @@ export class AuthController {
   @Roles(...ROLES)
   @Delete('tokens/:tokenId')
   @HttpCode(204)
+  @ApiNoContent('the token is revoked')
   async revoke(@CurrentUser() user: Principal, @Param('tokenId', ParseIntPipe) id: number): Promise<void> {
     try {
       await this.auth.revokeToken(user, id);
@@ -148,14 +175,17 @@ export class UsersController {
 
   @Roles('admin')
   @Get()
-  async list() {
+  @ApiAnswer(UserListAnswer)
+  async list(): Promise<Answer<typeof UserListAnswer>> {
     return { users: (await this.auth.listUsers()).map(publicUser) };
   }
 
   /** Creates a user; the response holds a first API token, shown once. */
   @Roles('admin')
   @Post()
-  async create(@CurrentUser() admin: Principal, @Body() body: CreateUserDto) {
+  @ApiAnswer(NewUserAnswer, { status: 201, description: 'the new account and its first token' })
+  @ApiErrors({ 409: 'an account of that name exists already' })
+  async create(@CurrentUser() admin: Principal, @Body() body: CreateUserDto): Promise<Answer<typeof NewUserAnswer>> {
     try {
       const { user, token } = await this.auth.createUser(admin, body);
       return { ...publicUser(user), token };
@@ -166,11 +196,12 @@ export class UsersController {
 
   @Roles('admin')
   @Patch(':userId')
+  @ApiAnswer(UserAnswer)
   async update(
     @CurrentUser() admin: Principal,
     @Param('userId', ParseIntPipe) id: number,
     @Body() body: UpdateUserDto,
-  ) {
+  ): Promise<Answer<typeof UserAnswer>> {
     try {
       return publicUser(await this.auth.updateUser(admin, id, body));
     } catch (e) {

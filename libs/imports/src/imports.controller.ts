@@ -1,7 +1,9 @@
 import { Controller, Get, HttpCode, Inject, Param, ParseIntPipe, ParseUUIDPipe, Post, Req } from '@nestjs/common';
 import { ApiConsumes, ApiTags } from '@nestjs/swagger';
 import type { Request } from 'express';
+import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { CurrentUser, Roles, type Principal } from '#auth';
+import { ImportAnswer, ImportListAnswer, ImportStartedAnswer } from './import.responses.js';
 import { ImportsService } from './imports.service.js';
 
 @ApiTags('imports')
@@ -17,19 +19,27 @@ export class ImportsController {
   @Post('desks/:deskId/imports')
   @HttpCode(202)
   @ApiConsumes('application/x-ndjson', 'text/csv', 'application/json', 'multipart/form-data')
-  start(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number, @Req() req: Request) {
+  @ApiAnswer(ImportStartedAnswer, { status: 202, description: 'the file is stored and queued' })
+  @ApiErrors({ 415: 'not NDJSON, CSV or JSON (by media type or file extension), or not UTF-8' })
+  start(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Req() req: Request,
+  ): Promise<Answer<typeof ImportStartedAnswer>> {
     return this.imports.start(user, deskId, req);
   }
 
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/imports')
-  async list(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(ImportListAnswer)
+  async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ImportListAnswer>> {
     return { imports: await this.imports.listForDesk(deskId) };
   }
 
   @Roles('supervisor', 'auditor')
   @Get('imports/:importId')
-  get(@Param('importId', new ParseUUIDPipe()) importId: string) {
+  @ApiAnswer(ImportAnswer)
+  get(@Param('importId', new ParseUUIDPipe()) importId: string): Promise<Answer<typeof ImportAnswer>> {
     return this.imports.get(importId);
   }
 }

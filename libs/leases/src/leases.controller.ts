@@ -12,7 +12,9 @@ import {
 } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
+import { ApiAnswer, ApiNoContent, type Answer } from '#api-docs';
 import { CurrentUser, Roles, type Principal } from '#auth';
+import { LeaseGrantAnswer, MyLeasesAnswer } from './lease.responses.js';
 import { LeasesService } from './leases.service.js';
 
 @ApiTags('queue')
@@ -23,11 +25,13 @@ export class LeasesController {
   /** The next item for the reviewer: 201 with the lease, or 204 when nothing is left. */
   @Roles('reviewer')
   @Post('desks/:deskId/leases')
+  @ApiAnswer(LeaseGrantAnswer, { status: 201, description: 'an item, held for this reviewer until the lease expires' })
+  @ApiNoContent('nothing is left for this reviewer on the desk')
   async lease(
     @CurrentUser() user: Principal,
     @Param('deskId', ParseIntPipe) deskId: number,
     @Res({ passthrough: true }) res: Response,
-  ) {
+  ): Promise<Answer<typeof LeaseGrantAnswer> | undefined> {
     const grant = await this.leases.lease(user, deskId);
     if (!grant) {
       res.status(204);
@@ -39,13 +43,18 @@ export class LeasesController {
 
   @Roles('reviewer')
   @Get('desks/:deskId/leases/mine')
-  async mine(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(MyLeasesAnswer)
+  async mine(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+  ): Promise<Answer<typeof MyLeasesAnswer>> {
     return { leases: await this.leases.mine(user, deskId) };
   }
 
   @Roles('reviewer')
   @Delete('leases/:leaseId')
   @HttpCode(204)
+  @ApiNoContent('the item is back in the pool')
   async giveBack(
     @CurrentUser() user: Principal,
     @Param('leaseId', new ParseUUIDPipe()) leaseId: string,

@@ -7,3 +7,4 @@ export { TrainingService, PAUSE_HOOK, DEFAULT_CHUNK_SIZE, qualityFigures, type P
 export { ScoringService } from './scoring.service.js';
 export { PublishService } from './publish.service.js';
 export { priorityOf } from './priority.js';
+export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';

@@ -8,9 +8,18 @@ import {
   ParseIntPipe,
   Query,
 } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, type Answer } from '#api-docs';
 import { Roles } from '#auth';
 import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS, type DbInt } from '#database';
+import {
+  CoverageAnswer,
+  CoveragePreviewAnswer,
+  ModelListAnswer,
+  ModelVersionAnswer,
+  PredictedItemsAnswer,
+  type QualityFigures,
+} from './model.responses.js';
 import { ModelStore } from './model-store.service.js';
 import { PredictionsService } from './predictions.service.js';
 
@@ -36,7 +45,8 @@ export class ModelsController {
   /** Model versions, newest first: counts, quality figures, timings, parent. */
   @Roles(...READERS)
   @Get('models')
-  async list(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(ModelListAnswer)
+  async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ModelListAnswer>> {
     const desk = await this.desk(deskId);
     const rows = await this.db.manager.find(ModelVersionEntity, {
       where: { deskId },
@@ -65,7 +75,11 @@ export class ModelsController {
 
   @Roles(...READERS)
   @Get('models/:version')
-  async one(@Param('deskId', ParseIntPipe) deskId: number, @Param('version', ParseIntPipe) version: number) {
+  @ApiAnswer(ModelVersionAnswer)
+  async one(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Param('version', ParseIntPipe) version: number,
+  ): Promise<Answer<typeof ModelVersionAnswer>> {
     const desk = await this.desk(deskId);
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     if (!row) throw new NotFoundException(`desk ${deskId} has no model version ${version}`);
@@ -88,7 +102,8 @@ export class ModelsController {
       verdictWatermark: r.verdictWatermark,
       trainingCounts: r.training.counts,
       calibrationCounts: r.calibration.counts,
-      metrics: r.metrics,
+      // Stored as the training service wrote it (qualityFigures); the API tests parse it with the schema.
+      metrics: r.metrics as QualityFigures | null,
       timings: r.timings,
       failure: r.failure,
     };
@@ -97,27 +112,34 @@ export class ModelsController {
   /** Realized coverage of random draws against the sets shown, per version, per category and over the last 200; the coverage alert. */
   @Roles(...READERS)
   @Get('coverage')
-  async coverage(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(CoverageAnswer)
+  async coverage(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof CoverageAnswer>> {
     return this.predictions.coverage(await this.desk(deskId));
   }
 
   /** Expected share of sure, ambiguous and unfamiliar calls and mean set size over the pool, for targets 0.50–0.99. */
   @Roles(...READERS)
   @Get('coverage-preview')
-  async preview(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(CoveragePreviewAnswer)
+  async preview(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof CoveragePreviewAnswer>> {
     return this.predictions.coveragePreview(await this.desk(deskId));
   }
 
   /** Open items with their current predictions, by item id; filter by call and by a category in the set. */
   @Roles(...READERS)
   @Get('items')
+  @ApiAnswer(PredictedItemsAnswer)
+  @ApiQuery({ name: 'call', required: false, enum: TRIAGE_CALLS, description: 'only items with this call' })
+  @ApiQuery({ name: 'category', required: false, type: String, description: 'only items whose set holds it' })
+  @ApiQuery({ name: 'cursor', required: false, type: String, description: 'the nextCursor of the previous page' })
+  @ApiQuery({ name: 'limit', required: false, type: Number, description: 'items per page, 1–500 (default 50)' })
   async items(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('call') call?: string,
     @Query('category') category?: string,
     @Query('cursor') cursor?: string,
     @Query('limit') limit?: string,
-  ) {
+  ): Promise<Answer<typeof PredictedItemsAnswer>> {
     if (call !== undefined && !(TRIAGE_CALLS as readonly string[]).includes(call))
       throw new BadRequestException(`call: expected one of ${TRIAGE_CALLS.join(', ')}`);
     if (cursor !== undefined && !/^\d+$/.test(cursor))

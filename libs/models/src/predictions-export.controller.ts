@@ -1,5 +1,6 @@
 import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
 import { Roles } from '#auth';
 import { Database, DeskEntity, type DbInt } from '#database';
@@ -33,6 +34,7 @@ export class PredictionsExportController {
   /** Text that a spreadsheet would run as a formula starts with an apostrophe unless `raw=1`; `bom=1` adds a UTF-8 byte order mark. */
   @Roles('supervisor', 'auditor')
   @Get('predictions.csv')
+  @ApiTextAnswer('text/csv', 'the current version’s prediction for every open item, CSV (RFC 4180), streamed')
   @ApiQuery({ name: 'raw', required: false, enum: ['1', '0'], description: 'values exactly as stored (for programs)' })
   @ApiQuery({ name: 'bom', required: false, enum: ['1', '0'], description: 'start with a UTF-8 byte order mark' })
   async csv(
@@ -80,6 +82,7 @@ export class PredictionsExportController {
 
   @Roles('supervisor', 'auditor')
   @Get('predictions.ndjson')
+  @ApiTextAnswer('application/x-ndjson', 'the same rows as NDJSON, one item per line, streamed')
   async ndjson(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {
     const { desk, rows } = await this.rows(deskId);
     async function* lines() {

@@ -11,9 +11,11 @@ import {
 } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
+import { ApiAnswer, ApiErrors, ApiTextAnswer, type Answer } from '#api-docs';
 import { Roles } from '#auth';
 import { Database, DeskEntity, ModelReportEntity, ModelVersionEntity } from '#database';
 import { JOBS, JobQueueService, jobOptions } from '#queues';
+import { ReportAnswer, ReportListAnswer } from './report.responses.js';
 
 const READERS = ['supervisor', 'auditor'] as const;
 
@@ -38,7 +40,8 @@ export class ReportsController {
   /** Every published version with the state of its report. */
   @Roles(...READERS)
   @Get('reports')
-  async list(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(ReportListAnswer)
+  async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ReportListAnswer>> {
     await this.desk(deskId);
     const versions = await this.db.manager.find(ModelVersionEntity, {
       where: { deskId, state: 'published' },
@@ -68,6 +71,8 @@ export class ReportsController {
   @Roles(...READERS)
   @Get('models/:version/report.json')
   @Header('Content-Type', 'application/json; charset=utf-8')
+  @ApiAnswer(ReportAnswer, { description: 'the report’s figures, as stored (canonical JSON)' })
+  @ApiErrors({ 404: 'no such version, not published, the report is still being written, or it failed' })
   async json(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Param('version', versionPipe) version: number,
@@ -80,6 +85,8 @@ export class ReportsController {
 
   @Roles(...READERS)
   @Get('models/:version/report.html')
+  @ApiTextAnswer('text/html', 'the report as one self-contained page (no script, loads nothing)')
+  @ApiErrors({ 404: 'no such version, not published, the report is still being written, or it failed' })
   @Header('Content-Type', 'text/html; charset=utf-8')
   @Header(
     'Content-Security-Policy',

@@ -14,3 +14,4 @@ export { DisagreementsService, type Disagreement, type DisagreementReason } from
 export { SettleItemDto } from './settling/settle.dto.js';
 export { TrailService, TRAIL_PAGE_SIZE } from './trail/trail.service.js';
 export { TRAIL_COLUMNS, type TrailRow } from './trail/trail-format.js';
+export { AgreementAnswer } from './verdict.responses.js';

@@ -10,12 +10,14 @@ import {
   Query,
   Res,
 } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
+import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { CurrentUser, Roles, type Principal } from '#auth';
 import { parseIsoDateTime } from '#imports';
 import { CreateVerdictDto } from './verdict.dto.js';
 import { ProgressService } from './progress.service.js';
+import { ApiVerdictFilters, OneVerdictAnswer, ProgressAnswer, VerdictListAnswer } from './verdict.responses.js';
 import { VerdictsService } from './verdicts.service.js';
 
 const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SAFE_INTEGER): number | undefined => {
@@ -47,12 +49,15 @@ export class VerdictsController {
   /** 201 with the new verdict; 200 with the stored one when the clientId was seen before. */
   @Roles('reviewer')
   @Post('desks/:deskId/verdicts')
+  @ApiAnswer(OneVerdictAnswer, { status: 201, description: 'the verdict is stored' })
+  @ApiAnswer(OneVerdictAnswer, { status: 200, description: 'this clientId was stored before: the stored verdict' })
+  @ApiErrors({ 409: 'the lease was closed or taken over, or this reviewer already decided the item' })
   async create(
     @CurrentUser() user: Principal,
     @Param('deskId', ParseIntPipe) deskId: number,
     @Body() body: CreateVerdictDto,
     @Res({ passthrough: true }) res: Response,
-  ) {
+  ): Promise<Answer<typeof OneVerdictAnswer>> {
     const { verdict, replayed } = await this.verdicts.submit(user, deskId, body);
     res.status(replayed ? 200 : 201);
     return { verdict };
@@ -60,13 +65,22 @@ export class VerdictsController {
 
   @Roles('reviewer')
   @Post('verdicts/:verdictId/undo')
-  async undo(@CurrentUser() user: Principal, @Param('verdictId', ParseIntPipe) verdictId: number) {
+  @ApiAnswer(OneVerdictAnswer, { status: 201, description: 'the verdict, marked undone' })
+  @ApiErrors({ 409: 'already undone, past the undo window, or not this reviewer’s last verdict' })
+  async undo(
+    @CurrentUser() user: Principal,
+    @Param('verdictId', ParseIntPipe) verdictId: number,
+  ): Promise<Answer<typeof OneVerdictAnswer>> {
     return { verdict: await this.verdicts.undo(user, verdictId) };
   }
 
   /** Every reviewer's verdicts on a desk: for supervisors and auditors only. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/verdicts')
+  @ApiAnswer(VerdictListAnswer)
+  @ApiVerdictFilters()
+  @ApiQuery({ name: 'before', required: false, type: Number, description: 'a verdict id: the page before it' })
+  @ApiQuery({ name: 'limit', required: false, type: Number, description: 'verdicts per page, 1–1000 (default 100)' })
   async list(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('before') before?: string,
@@ -75,7 +89,7 @@ export class VerdictsController {
     @Query('category') category?: string,
     @Query('from') from?: string,
     @Query('to') to?: string,
-  ) {
+  ): Promise<Answer<typeof VerdictListAnswer>> {
     // `from` inclusive, `to` exclusive, as in the trail export.
     const since = timeOrUndefined('from', from);
     const until = timeOrUndefined('to', to);
@@ -97,11 +111,13 @@ export class VerdictsController {
   /** The signed-in reviewer's own verdicts on a desk, newest first. */
   @Roles('reviewer')
   @Get('desks/:deskId/verdicts/mine')
+  @ApiAnswer(VerdictListAnswer)
+  @ApiQuery({ name: 'limit', required: false, type: Number, description: 'verdicts, 1–1000 (default 20)' })
   async mine(
     @CurrentUser() user: Principal,
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('limit') limit?: string,
-  ) {
+  ): Promise<Answer<typeof VerdictListAnswer>> {
     return {
       verdicts: await this.verdicts.listForDesk(deskId, {
         limit: intOrUndefined('limit', limit, 1000) ?? 20,
@@ -112,7 +128,11 @@ export class VerdictsController {
 
   @Roles('reviewer', 'supervisor', 'auditor', 'admin')
   @Get('desks/:deskId/progress')
-  progress(@CurrentUser() user: Principal, @Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(ProgressAnswer)
+  progress(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+  ): Promise<Answer<typeof ProgressAnswer>> {
     return this.progressService.progress(deskId, user.role === 'supervisor' || user.role === 'auditor');
   }
 }

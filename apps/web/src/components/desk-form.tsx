@@ -175,7 +175,7 @@ export function DeskForm({
         </label>
         <label>
           Uncertainty measure for the queue order
-          <select value={strategy} onChange={(e) => setStrategy(e.currentTarget.value)}>
+          <select value={strategy} onChange={(e) => setStrategy(e.currentTarget.value as Desk['strategy'])}>
             <option value="entropy">entropy</option>
             <option value="margin">margin</option>
             <option value="least-confidence">least confidence</option>

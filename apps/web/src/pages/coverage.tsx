@@ -1,5 +1,12 @@
 import { useEffect, useState } from 'preact/hooks';
-import { patch, type CalibrationStatus, type Desk, type PreviewPoint } from '../api';
+import {
+  patch,
+  type CalibrationStatus,
+  type CoveragePreview,
+  type Desk,
+  type PreviewPoint,
+  type UpdatedDesk,
+} from '../api';
 import { useData, type PageProps } from '../app';
 import { LineChart } from '../components/charts';
 import { CALIBRATION_TRADE_OFF } from '../components/desk-form';
@@ -17,9 +24,7 @@ const pctTick = (v: number) => `${Math.round(v * 100)}`;
 export function CoveragePage({ params }: PageProps) {
   const deskId = params.deskId;
   const [desk, deskError, reloadDesk] = useData<Desk>(`/desks/${deskId}`);
-  const [preview, previewError, reloadPreview] = useData<{ modelVersion: number | null; points: PreviewPoint[] }>(
-    `/desks/${deskId}/coverage-preview`,
-  );
+  const [preview, previewError, reloadPreview] = useData<CoveragePreview>(`/desks/${deskId}/coverage-preview`);
   const [target, setTarget] = useState<number | null>(null);
   const [status, setStatus] = useState<CalibrationStatus | null>(null);
   const [message, setMessage] = useState<string | null>(null);
@@ -36,7 +41,7 @@ export function CoveragePage({ params }: PageProps) {
   const apply = async (body: Record<string, unknown>) => {
     setError(null);
     try {
-      const res = await patch<Desk & { calibrationStatus?: CalibrationStatus | null }>(`/desks/${deskId}`, body);
+      const res = await patch<UpdatedDesk>(`/desks/${deskId}`, body);
       setStatus(res.calibrationStatus ?? null);
       setMessage(
         `Applied at ${new Date().toLocaleTimeString('en-GB')}: every item's prediction set now follows the new setting.`,

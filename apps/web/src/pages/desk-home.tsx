@@ -1,5 +1,5 @@
 import { deskTabs, useData, type PageProps } from '../app';
-import type { Desk } from '../api';
+import type { DeskList } from '../api';
 
 const ROLE_HINT: Record<string, string> = {
   reviewer: "Open a desk's queue to start deciding items.",
@@ -9,7 +9,7 @@ const ROLE_HINT: Record<string, string> = {
 };
 
 export function DeskHome({ me }: PageProps) {
-  const [data, error] = useData<{ desks: Desk[] }>(me.role === 'admin' ? null : '/desks');
+  const [data, error] = useData<DeskList>(me.role === 'admin' ? null : '/desks');
   return (
     <section class="page">
       <div class="page-head">

@@ -1,27 +1,16 @@
 import { useState } from 'preact/hooks';
-import { api, post, type Coverage, type Desk, type ModelSummary, type Progress } from '../api';
+import { api, post, type Coverage, type Desk, type ModelList, type Progress, type SimulationStatus } from '../api';
 import { useData, useInterval, type PageProps } from '../app';
 import { BarChart, LineChart, niceTicks } from '../components/charts';
 import { CoverageAlert } from '../components/coverage-alert';
 import { count, num, when } from '../format';
-
-interface Simulation {
-  available: boolean;
-  reason?: string;
-  state: 'idle' | 'running' | 'finished' | 'stopped';
-  startedAt?: string;
-  until?: string;
-  verdicts: number;
-}
 
 /** The supervisor's desk: progress, the learning curve, the coverage alert, exports, and the simulated reviewer. */
 export function DeskOverview({ params }: PageProps) {
   const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const [progress, progressError, reloadProgress] = useData<Progress>(`/desks/${deskId}/progress`);
-  const [models, , reloadModels] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(
-    `/desks/${deskId}/models`,
-  );
+  const [models, , reloadModels] = useData<ModelList>(`/desks/${deskId}/models`);
   const [coverage, , reloadCoverage] = useData<Coverage>(`/desks/${deskId}/coverage`);
   useInterval(() => {
     reloadProgress();
@@ -188,7 +177,7 @@ export function DeskOverview({ params }: PageProps) {
 }
 
 function SimulatedReviewer({ deskId }: { deskId: string }) {
-  const [sim, error, reload] = useData<Simulation>(`/desks/${deskId}/simulation`);
+  const [sim, error, reload] = useData<SimulationStatus>(`/desks/${deskId}/simulation`);
   const [actionError, setActionError] = useState<string | null>(null);
   useInterval(reload, sim?.state === 'running' ? 2000 : null);
   const act = async (fn: () => Promise<unknown>) => {

@@ -1,50 +1,7 @@
 import { useState } from 'preact/hooks';
-import { get, post, type Desk } from '../api';
+import { get, post, type Agreement, type Desk, type Disagreement, type DisagreementList } from '../api';
 import { useData, type PageProps } from '../app';
 import { num, when } from '../format';
-
-interface Settlement {
-  id: number;
-  category: string;
-  reason: string;
-  settledBy: string;
-  settledAt: string;
-}
-
-interface Disagreement {
-  item: { id: number; externalId: string | null; text: string };
-  verdicts: Array<{
-    id: number;
-    reviewer: string;
-    category: string | null;
-    abstain: boolean;
-    createdAt: string;
-    undoneAt: string | null;
-    modelVersion: number | null;
-    shownCall: string | null;
-  }>;
-  reasons: Array<
-    | { kind: 'reviewers-differ'; categories: string[] }
-    | { kind: 'against-sure-call'; modelVersion: number; shownSet: string[]; category: string }
-  >;
-  settled: Settlement | null;
-  settlements: Settlement[];
-}
-
-interface Agreement {
-  items: number;
-  verdicts: number;
-  reviewers: number;
-  cohen: Array<{ reviewers: [string, string]; items: number; kappa: number | null }>;
-  fleiss: { kappa: number | null; items: number; itemsLeftOut: number; unequalVerdicts: string };
-  krippendorff: {
-    alpha: number | null;
-    interval: { lower: number | null; upper: number | null; resamples: number };
-    items: number;
-    pairableValues: number;
-  };
-  perCategory: Array<{ category: string; verdicts: number; items: number; fleissKappa: number | null }>;
-}
 
 function why(r: Disagreement['reasons'][number]): string {
   return r.kind === 'reviewers-differ'
@@ -57,9 +14,7 @@ export function DisagreementsPage({ me, params }: PageProps) {
   const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const [agreement, agreementError] = useData<Agreement>(`/desks/${deskId}/agreement`);
-  const [page, error, reload] = useData<{ disagreements: Disagreement[]; next: number | null }>(
-    `/desks/${deskId}/disagreements?limit=50`,
-  );
+  const [page, error, reload] = useData<DisagreementList>(`/desks/${deskId}/disagreements?limit=50`);
   const [more, setMore] = useState<Disagreement[]>([]);
   const rows = [...(page?.disagreements ?? []), ...more];
   const canSettle = me.role === 'supervisor';
@@ -172,9 +127,9 @@ export function DisagreementsPage({ me, params }: PageProps) {
         <button
           type="button"
           onClick={() =>
-            void get<{ disagreements: Disagreement[] }>(
-              `/desks/${deskId}/disagreements?limit=200&after=${page.next}`,
-            ).then((p) => setMore(p.disagreements))
+            void get<DisagreementList>(`/desks/${deskId}/disagreements?limit=200&after=${page.next}`).then((p) =>
+              setMore(p.disagreements),
+            )
           }
         >
           More

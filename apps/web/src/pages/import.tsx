@@ -1,5 +1,5 @@
 import { useState } from 'preact/hooks';
-import { get, uploadFile, type ImportView } from '../api';
+import { get, uploadFile, type ImportList, type ImportView } from '../api';
 import { useData, useInterval, type PageProps } from '../app';
 import { count, when } from '../format';
 
@@ -12,7 +12,7 @@ export function ImportPage({ params }: PageProps) {
   const [sent, setSent] = useState<{ sent: number; total: number } | null>(null);
   const [current, setCurrent] = useState<ImportView | null>(null);
   const [error, setError] = useState<string | null>(null);
-  const [history, , reloadHistory] = useData<{ imports: ImportView[] }>(`/desks/${deskId}/imports`);
+  const [history, , reloadHistory] = useData<ImportList>(`/desks/${deskId}/imports`);
 
   const poll = async () => {
     if (!current || FINISHED.has(current.state)) return;

@@ -1,23 +1,15 @@
-import type { CalibrationStatus, Coverage, Desk, ModelSummary, PreviewPoint } from '../api';
+import type { Coverage, CoveragePreview, Desk, ModelVersion } from '../api';
 import { useData, type PageProps } from '../app';
 import { BarChart, IntervalChart, LineChart } from '../components/charts';
 import { count, num, pct, when } from '../format';
-
-type VersionDetail = ModelSummary & {
-  training: { counts: Record<string, number> };
-  calibration: { counts: Record<string, number> };
-  thresholds: CalibrationStatus | null;
-};
 
 /** One model version for oversight: what it promised, what it achieved on random checks, its set sizes and its calibration quality. */
 export function ModelVersionPage({ params }: PageProps) {
   const { deskId, version } = params as { deskId: string; version: string };
   const [desk] = useData<Desk>(`/desks/${deskId}`);
-  const [m, error] = useData<VersionDetail>(`/desks/${deskId}/models/${version}`);
+  const [m, error] = useData<ModelVersion>(`/desks/${deskId}/models/${version}`);
   const [coverage] = useData<Coverage>(`/desks/${deskId}/coverage`);
-  const [preview] = useData<{ modelVersion: number | null; points: PreviewPoint[] }>(
-    `/desks/${deskId}/coverage-preview`,
-  );
+  const [preview] = useData<CoveragePreview>(`/desks/${deskId}/coverage-preview`);
   const categories = desk?.categories.map((c) => c.name) ?? [];
   const realized = coverage?.byVersion.find((v) => v.modelVersion === Number(version)) ?? null;
   const isCurrent = desk?.currentModelVersion === Number(version);

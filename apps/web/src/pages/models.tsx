@@ -1,4 +1,4 @@
-import type { ModelSummary } from '../api';
+import type { ModelList, ReportList } from '../api';
 import { useData, type PageProps } from '../app';
 import { count, num, when } from '../format';
 
@@ -7,12 +7,8 @@ const sum = (r: Record<string, number>) => Object.values(r).reduce((a, b) => a +
 /** Every model version of the desk with its figures; read-only. */
 export function ModelsPage({ params }: PageProps) {
   const deskId = params.deskId;
-  const [data, error] = useData<{ currentModelVersion: number | null; models: ModelSummary[] }>(
-    `/desks/${deskId}/models`,
-  );
-  const [reports] = useData<{
-    reports: Array<{ version: number; status: 'writing' | 'ready' | 'failed' | 'pending'; failure: string | null }>;
-  }>(`/desks/${deskId}/reports`);
+  const [data, error] = useData<ModelList>(`/desks/${deskId}/models`);
+  const [reports] = useData<ReportList>(`/desks/${deskId}/reports`);
   const report = (v: number) => reports?.reports.find((r) => r.version === v);
   return (
     <section class="page">

@@ -1,5 +1,17 @@
 import { useEffect, useRef, useState } from 'preact/hooks';
-import { ApiError, api, clientId, get, post, type Desk, type LeaseGrant, type Progress, type Verdict } from '../api';
+import {
+  ApiError,
+  api,
+  clientId,
+  get,
+  post,
+  type Desk,
+  type LeaseGrant,
+  type MyLeases,
+  type OneVerdict,
+  type Progress,
+  type Verdict,
+} from '../api';
 import { useInterval, type PageProps } from '../app';
 import { CallStatement, Probabilities } from '../components/call';
 import { HighlightedText } from '../components/highlighted-text';
@@ -80,7 +92,7 @@ export function QueuePage({ params }: PageProps) {
       try {
         setDesk(await get<Desk>(`/desks/${deskId}`));
         // Items this reviewer held before a reload go back to the queue at once rather than waiting for their leases to run out.
-        const { leases } = await get<{ leases: Array<{ id: string }> }>(`/desks/${deskId}/leases/mine`);
+        const { leases } = await get<MyLeases>(`/desks/${deskId}/leases/mine`);
         await Promise.all(leases.map((l) => api('DELETE', `/leases/${l.id}`).catch(() => undefined)));
         await next();
       } catch (e) {
@@ -106,7 +118,7 @@ export function QueuePage({ params }: PageProps) {
     const submit = async (): Promise<Verdict> => {
       for (let attempt = 0; ; attempt++) {
         try {
-          return (await post<{ verdict: Verdict }>(`/desks/${deskId}/verdicts`, body)).verdict;
+          return (await post<OneVerdict>(`/desks/${deskId}/verdicts`, body)).verdict;
         } catch (e) {
           if (!(e instanceof ApiError) || e.status !== 0 || attempt >= 3) throw e;
           await new Promise((r) => setTimeout(r, 400 * 2 ** attempt));

@@ -21,7 +21,7 @@ export function SettingsPage({ params }: PageProps) {
       )}
       {desk && (
         <DeskForm
-          key={String(desk.updatedAt)}
+          key={desk.updatedAt}
           initial={desk}
           submitLabel="Save the settings"
           onSubmit={async (v) => {

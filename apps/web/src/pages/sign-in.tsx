@@ -1,5 +1,5 @@
 import { useState } from 'preact/hooks';
-import { ApiError, post, type Me } from '../api';
+import { ApiError, post, type Me, type SignedIn } from '../api';
 import { Cautions } from '../components/cautions';
 
 export function SignIn({ onSignedIn, signedIn }: { onSignedIn: (me: Me) => void; signedIn: Me | null }) {
@@ -14,7 +14,7 @@ export function SignIn({ onSignedIn, signedIn }: { onSignedIn: (me: Me) => void;
     setBusy(true);
     setError(null);
     try {
-      const { user } = await post<{ user: Me }>('/auth/login', { name: name.trim(), password });
+      const { user } = await post<SignedIn>('/auth/login', { name: name.trim(), password });
       onSignedIn(user);
     } catch (err) {
       setError(

@@ -1,19 +1,8 @@
 import { useState } from 'preact/hooks';
-import { get, type Desk, type Verdict } from '../api';
+import { get, type Desk, type Verdict, type VerdictList } from '../api';
 import { useData, type PageProps } from '../app';
 import { navigate } from '../router';
 import { when } from '../format';
-
-interface TrailVerdict extends Verdict {
-  reviewer: string;
-  modelVersion: number | null;
-  shownSet: string[] | null;
-  shownCall: string | null;
-  elapsedMs: number | null;
-  note: string | null;
-  simulated: boolean;
-  undoneAt: string | null;
-}
 
 const PAGE = 100;
 
@@ -31,10 +20,10 @@ export function TrailPage({ params, query }: PageProps) {
   const qs = new URLSearchParams(
     Object.entries({ ...filters, to: filters.to ? nextDay(filters.to) : '' }).filter(([, v]) => v),
   );
-  const [first, error] = useData<{ verdicts: TrailVerdict[] }>(
+  const [first, error] = useData<VerdictList>(
     `/desks/${deskId}/verdicts?limit=${PAGE}${qs.toString() ? `&${qs}` : ''}`,
   );
-  const [more, setMore] = useState<TrailVerdict[]>([]);
+  const [more, setMore] = useState<Verdict[]>([]);
   const [moreError, setMoreError] = useState<string | null>(null);
   const [form, setForm] = useState(filters);
   const rows = [...(first?.verdicts ?? []), ...more];
@@ -49,7 +38,7 @@ export function TrailPage({ params, query }: PageProps) {
     const last = rows.at(-1);
     if (!last) return;
     try {
-      const page = await get<{ verdicts: TrailVerdict[] }>(
+      const page = await get<VerdictList>(
         `/desks/${deskId}/verdicts?limit=${PAGE}&before=${last.id}${qs.toString() ? `&${qs}` : ''}`,
       );
       setMore([...more, ...page.verdicts]);

@@ -1,6 +1,8 @@
 import { Controller, Get, Inject, Param, ParseIntPipe } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, type Answer } from '#api-docs';
 import { Roles } from '#auth';
+import { AgreementAnswer } from '../verdict.responses.js';
 import { AgreementService } from './agreement.service.js';
 
 @ApiTags('agreement')
@@ -11,7 +13,8 @@ export class AgreementController {
   /** Agreement between reviewers on items two or more of them decided: Cohen's kappa per pair, Fleiss' kappa, Krippendorff's alpha. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/agreement')
-  forDesk(@Param('deskId', ParseIntPipe) deskId: number) {
+  @ApiAnswer(AgreementAnswer)
+  forDesk(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof AgreementAnswer>> {
     return this.agreement.forDesk(deskId);
   }
 }

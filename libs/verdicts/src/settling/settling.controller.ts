@@ -10,8 +10,10 @@ import {
   Post,
   Query,
 } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { CurrentUser, Roles, type Principal } from '#auth';
+import { DisagreementListAnswer, SettledAnswer } from '../verdict.responses.js';
 import { DisagreementsService } from './disagreements.service.js';
 import { SettleItemDto } from './settle.dto.js';
 import { SettlementsService } from './settlements.service.js';
@@ -34,7 +36,14 @@ export class SettlingController {
   /** Items reviewers disagree on, or where a verdict went against a sure call of a healthy model version; by item id, `after` the cursor. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/disagreements')
-  list(@Param('deskId', ParseIntPipe) deskId: number, @Query('after') after?: string, @Query('limit') limit?: string) {
+  @ApiAnswer(DisagreementListAnswer)
+  @ApiQuery({ name: 'after', required: false, type: Number, description: 'the `next` of the previous page' })
+  @ApiQuery({ name: 'limit', required: false, type: Number, description: 'items per page, 1–200 (default 50)' })
+  list(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('after') after?: string,
+    @Query('limit') limit?: string,
+  ): Promise<Answer<typeof DisagreementListAnswer>> {
     return this.disagreements.list(deskId, {
       after: whole('after', after, 0, Number.MAX_SAFE_INTEGER),
       limit: whole('limit', limit, 1, 200) ?? 50,
@@ -45,11 +54,13 @@ export class SettlingController {
   @Roles('supervisor')
   @Post('items/:itemId/settle')
   @HttpCode(201)
+  @ApiAnswer(SettledAnswer, { status: 201, description: 'the settlement is stored' })
+  @ApiErrors({ 409: 'the item has no live verdict: there is nothing to settle' })
   async settle(
     @CurrentUser() user: Principal,
     @Param('itemId', ParseIntPipe) itemId: number,
     @Body() body: SettleItemDto,
-  ) {
+  ): Promise<Answer<typeof SettledAnswer>> {
     return { settlement: await this.settlements.settle(user, itemId, body) };
   }
 }

@@ -1,10 +1,12 @@
 import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
-import { ApiProduces, ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
+import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
 import { Roles } from '#auth';
 import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { TRAIL_COLUMNS, trailCsvLine, type TrailRow } from './trail-format.js';
 import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
+import { ApiVerdictFilters } from '../verdict.responses.js';
 
 @ApiTags('agreement')
 @Controller('api')
@@ -20,7 +22,8 @@ export class TrailController {
    */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/trail.csv')
-  @ApiProduces('text/csv')
+  @ApiTextAnswer('text/csv', 'the trail as CSV (RFC 4180, header row), streamed')
+  @ApiVerdictFilters()
   @ApiQuery({ name: 'raw', required: false, enum: ['1', '0'], description: 'values exactly as stored (for programs)' })
   @ApiQuery({ name: 'bom', required: false, enum: ['1', '0'], description: 'start with a UTF-8 byte order mark' })
   async csv(
@@ -48,7 +51,8 @@ export class TrailController {
   /** The same trail as newline-delimited JSON, one verdict per line, streamed. */
   @Roles('supervisor', 'auditor')
   @Get('desks/:deskId/trail.ndjson')
-  @ApiProduces('application/x-ndjson')
+  @ApiTextAnswer('application/x-ndjson', 'the trail as NDJSON, one verdict per line, streamed')
+  @ApiVerdictFilters()
   async ndjson(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('reviewer') reviewer: string | undefined,

@@ -1,0 +1,38 @@
+import { isoTime, named, z } from '#api-docs';
+import { CALIBRATION_MODES, SCORES, STRATEGIES } from '#database';
+import { CalibrationStatusAnswer } from '#models';
+
+/** A desk with its categories, seed terms and settings. */
+export const DeskAnswer = named(
+  'Desk',
+  z.strictObject({
+    id: z.int(),
+    name: z.string(),
+    categories: z.array(z.strictObject({ id: z.int(), name: z.string(), position: z.int() })),
+    seedTerms: z.record(z.string(), z.array(z.string())).describe('seed terms per category name'),
+    coverageTarget: z.number(),
+    calibration: z.enum(CALIBRATION_MODES),
+    randomShare: z.number(),
+    secondOpinionShare: z.number(),
+    leaseSeconds: z.int(),
+    strategy: z.enum(STRATEGIES),
+    score: z.enum(SCORES),
+    retrainEvery: z.int(),
+    retrainAfterSeconds: z.int(),
+    currentModelVersion: z.int().nullable(),
+    createdAt: isoTime,
+    updatedAt: isoTime,
+  }),
+);
+
+/** A desk after a change; a change of target, calibration or strategy also says how each threshold now stands. */
+export const UpdatedDeskAnswer = named(
+  'UpdatedDesk',
+  DeskAnswer.extend({
+    calibrationStatus: CalibrationStatusAnswer.nullable()
+      .optional()
+      .describe('present when coverageTarget, calibration or strategy changed; null before the first model'),
+  }),
+);
+
+export const DeskListAnswer = named('DeskList', z.strictObject({ desks: z.array(DeskAnswer) }));

@@ -1,0 +1,153 @@
+import { isoTime, named, z } from '#api-docs';
+import { CALIBRATION_MODES, MODEL_STATES, SCORES, TRIAGE_CALLS } from '#database';
+
+/** The model's call on an item as served: probabilities per category, the prediction set, the triage call. */
+export const PredictionAnswer = named(
+  'Prediction',
+  z.strictObject({
+    modelVersion: z.int(),
+    probabilities: z.record(z.string(), z.number()).describe('probability per category name'),
+    set: z.array(z.string()).describe('the prediction set at the desk’s coverage target'),
+    call: z.enum(TRIAGE_CALLS),
+  }),
+);
+
+/** The thresholds of a version at the desk's target, and the random verdicts each still needs. */
+export const CalibrationStatusAnswer = named(
+  'CalibrationStatus',
+  z.strictObject({
+    modelVersion: z.int(),
+    target: z.number(),
+    mode: z.enum(CALIBRATION_MODES),
+    score: z.enum(SCORES),
+    thresholds: z.array(
+      z.strictObject({
+        category: z.string().nullable().describe('null for the one threshold of marginal calibration'),
+        threshold: z.number().nullable().describe('null: too few random verdicts, the set is every category'),
+        n: z.int(),
+        needMore: z.int(),
+      }),
+    ),
+    needMore: z.int(),
+  }),
+);
+
+const qualityFigures = z.strictObject({
+  n: z.int(),
+  accuracy: z.number(),
+  macroF1: z.number(),
+  logLoss: z.number(),
+  brier: z.number(),
+  ece: z.number(),
+  reliability: z
+    .array(
+      z.strictObject({
+        lower: z.number(),
+        upper: z.number(),
+        count: z.int(),
+        meanConfidence: z.number().nullable().describe('null for an empty bin'),
+        accuracy: z.number().nullable().describe('null for an empty bin'),
+      }),
+    )
+    .optional()
+    .describe('reliability diagram, 10 equal-width bins (versions trained before it was recorded have none)'),
+});
+
+/** Quality figures of a version on its calibration set, as stored with the version. */
+export type QualityFigures = z.output<typeof qualityFigures>;
+
+const modelSummary = {
+  version: z.int(),
+  parentVersion: z.int().nullable(),
+  state: z.enum(MODEL_STATES),
+  createdAt: isoTime,
+  publishedAt: isoTime.nullable(),
+  verdictWatermark: z.int(),
+  trainingCounts: z.record(z.string(), z.int()),
+  calibrationCounts: z.record(z.string(), z.int()),
+  metrics: qualityFigures.nullable(),
+  timings: z.record(z.string(), z.number()).describe('milliseconds per phase (loadMs, featurizeMs, trainMs, …)'),
+  failure: z.string().nullable(),
+};
+
+export const ModelSummaryAnswer = named('ModelSummary', z.strictObject(modelSummary));
+
+export const ModelListAnswer = named(
+  'ModelList',
+  z.strictObject({ currentModelVersion: z.int().nullable(), models: z.array(ModelSummaryAnswer) }),
+);
+
+const verdictSet = z.strictObject({
+  counts: z.record(z.string(), z.int()),
+  draws: z.record(z.string(), z.int()),
+  items: z.array(z.int()),
+});
+
+export const ModelVersionAnswer = named(
+  'ModelVersion',
+  z.strictObject({
+    ...modelSummary,
+    training: verdictSet,
+    calibration: verdictSet,
+    thresholds: CalibrationStatusAnswer.nullable(),
+  }),
+);
+
+const coverageSummary = {
+  n: z.int(),
+  covered: z.int(),
+  coverage: z.number().nullable(),
+  interval: z.strictObject({ lower: z.number(), upper: z.number() }).nullable().describe('Wilson 95 % interval'),
+};
+const coverageCell = z.strictObject(coverageSummary);
+
+export const CoverageAnswer = named(
+  'Coverage',
+  z.strictObject({
+    target: z.number(),
+    mode: z.enum(CALIBRATION_MODES),
+    byVersion: z.array(
+      z.strictObject({ ...coverageSummary, modelVersion: z.int(), perCategory: z.record(z.string(), coverageCell) }),
+    ),
+    window: z.strictObject({ ...coverageSummary, size: z.int(), perCategory: z.record(z.string(), coverageCell) }),
+    alert: z.strictObject({ raised: z.boolean(), message: z.string().nullable() }),
+  }),
+);
+
+export const CoveragePreviewAnswer = named(
+  'CoveragePreview',
+  z.strictObject({
+    modelVersion: z.int().nullable(),
+    items: z.int().optional().describe('open items the preview covers (absent before the first model)'),
+    mode: z.enum(CALIBRATION_MODES).optional(),
+    points: z.array(
+      z.strictObject({
+        target: z.number(),
+        sureShare: z.number(),
+        ambiguousShare: z.number(),
+        unfamiliarShare: z.number(),
+        meanSetSize: z.number(),
+        calibrationCount: z.int(),
+        needMore: z.int(),
+        setSizes: z.array(z.int()).describe('open items by set size (index = categories in the set)'),
+      }),
+    ),
+  }),
+);
+
+export const PredictedItemsAnswer = named(
+  'PredictedItems',
+  z.strictObject({
+    modelVersion: z.int().nullable(),
+    items: z.array(
+      z.strictObject({
+        id: z.int(),
+        text: z.string().optional(),
+        externalId: z.string().nullable(),
+        source: z.string().nullable(),
+        prediction: PredictionAnswer,
+      }),
+    ),
+    nextCursor: z.string().nullable().describe('pass as `cursor` for the next page; null on the last'),
+  }),
+);
