@@ -6,6 +6,18 @@ import { Database } from '#database';
 import { JobQueueService } from '#queues';
 import { HealthAnswer, ReadyAnswer } from './api.responses.js';
 
+/** How long each readiness check may take. */
+const READY_TIMEOUT_MS = 500;
+
+/** The check's answer, or false once {@link READY_TIMEOUT_MS} have passed. */
+function withinReadyTimeout(check: Promise<boolean>): Promise<boolean> {
+  let timer: NodeJS.Timeout | undefined;
+  const late = new Promise<boolean>((resolve) => {
+    timer = setTimeout(() => resolve(false), READY_TIMEOUT_MS);
+  });
+  return Promise.race([check, late]).finally(() => clearTimeout(timer));
+}
+
 @ApiTags('health')
 @Controller()
 export class HealthController {
@@ -23,18 +35,23 @@ export class HealthController {
     return { status: 'ok' };
   }
 
-  /** The process can serve: the database and Redis answer. */
+  /**
+   * The process can serve: the database and Redis answer, each within {@link READY_TIMEOUT_MS}, so that a load
+   * balancer hears 503 within a second when either is gone instead of waiting on a command that never returns.
+   */
   @Public()
   @Get('readyz')
   @ApiAnswer(ReadyAnswer)
   @ApiErrors({ 503: 'the database or Redis does not answer; the body says which' })
   async ready(): Promise<Answer<typeof ReadyAnswer>> {
     const [database, redis] = await Promise.all([
-      this.db.query(null, 'SELECT 1').then(
-        () => true,
-        () => false,
+      withinReadyTimeout(
+        this.db.query(null, 'SELECT 1').then(
+          () => true,
+          () => false,
+        ),
       ),
-      this.jobs.ping(),
+      withinReadyTimeout(this.jobs.ping()),
     ]);
     if (!database || !redis) throw new ServiceUnavailableException({ status: 'not ready', database, redis });
     return { status: 'ready', database: true, redis: true, dialect: this.db.dialect };

@@ -32,12 +32,14 @@ async function freePort(): Promise<number> {
  */
 export async function startPrivateRedis(
   dataDir: string,
-): Promise<{ url: string; process: ChildProcess; stop: () => Promise<void> }> {
+  fixedPort?: number,
+): Promise<{ url: string; port: number; process: ChildProcess; stop: () => Promise<void> }> {
   const found = spawnSync('redis-server', ['--version'], { stdio: 'ignore' });
   if (found.error || found.status !== 0) throw new RedisMissingError();
   const dir = join(dataDir, 'redis');
   mkdirSync(dir, { recursive: true });
-  const port = await freePort();
+  // A restart keeps the port, so the API and workers reconnect to it on their own.
+  const port = fixedPort ?? (await freePort());
   const child = spawn(
     'redis-server',
     [
@@ -84,6 +86,7 @@ export async function startPrivateRedis(
   }
   return {
     url,
+    port,
     process: child,
     stop: () =>
       new Promise<void>((resolve) => {

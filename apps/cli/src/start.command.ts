@@ -10,8 +10,9 @@ const workerMain = fileURLToPath(new URL('../../worker/src/main.js', import.meta
 /**
  * `start`: runs the whole service on one machine: a private Redis when
  * REDIS_URL is not set, the migrations, the demo on an empty service (unless
- * DEMO=off), then the API and `--workers N` worker processes. Stops them all
- * on SIGINT/SIGTERM or when one dies.
+ * DEMO=off), then the API and `--workers N` worker processes, supervised
+ * ({@link Supervisor}): a process that dies is restarted; one that keeps dying
+ * stops everything with exit code 1; SIGINT/SIGTERM stop everything.
  */
 export const startCommand = defineCommand({
   name: 'start',
@@ -19,8 +20,9 @@ export const startCommand = defineCommand({
   description:
     'Runs the whole service on this machine: a private redis-server under DATA_DIR when REDIS_URL is unset, the ' +
     'migrations, the demo desk on an empty database (unless DEMO=off), then the API and the worker processes. ' +
-    'Ctrl+C (or SIGTERM) stops them all; so does the death of any one. Settings come from the environment (see ' +
-    'config/cribra.env.example).',
+    'A process that dies is restarted after a back-off; one that dies more than RESTART_LIMIT times within ' +
+    'RESTART_WINDOW_MINUTES stops everything with exit code 1. Ctrl+C (or SIGTERM) stops them all. Settings come ' +
+    'from the environment (see config/cribra.env.example).',
   options: {
     workers: {
       type: 'string',
@@ -45,6 +47,7 @@ async function start(workers: number): Promise<number> {
   const { formatDemoBlock } = await import('#demo');
   const { seedDemo } = await import('./demo-seed.js');
   const { RedisMissingError, startPrivateRedis } = await import('./redis-launcher.js');
+  const { Supervisor } = await import('./supervisor.js');
   let redis: Awaited<ReturnType<typeof startPrivateRedis>> | null = null;
   if (!config.redisUrl) {
     try {
@@ -67,34 +70,40 @@ async function start(workers: number): Promise<number> {
   }
 
   const env = { ...process.env, ...configToEnv(config) };
-  const children: ChildProcess[] = [];
-  let stopping = false;
-  const stopAll = async (code: number) => {
-    if (stopping) return;
-    stopping = true;
-    for (const c of children) if (c.exitCode === null) c.kill('SIGTERM');
-    await Promise.all(
-      children.map((c) => (c.exitCode !== null ? Promise.resolve() : new Promise((r) => c.once('exit', r)))),
-    );
-    await redis?.stop();
-    process.exit(code);
-  };
-  const run = (name: string, file: string, args: string[]) => {
-    const child = spawn(process.execPath, ['--enable-source-maps', ...args, file], { env, stdio: 'inherit' });
-    child.on('exit', (code, signal) => {
-      if (!stopping) {
-        process.stderr.write(`${name} stopped (${signal ?? `code ${code}`}); stopping the rest\n`);
-        void stopAll(code ?? 1);
-      }
+  const supervisor = new Supervisor({
+    restartLimit: config.restartLimit,
+    windowMs: config.restartWindowMinutes * 60_000,
+    dataDir: config.dataDir,
+    log: (line) => process.stderr.write(`launcher: ${line}\n`),
+  });
+  // Signals end the launcher whatever state its processes are in (a second one kills them at once).
+  process.on('SIGINT', () => supervisor.signal());
+  process.on('SIGTERM', () => supervisor.signal());
+  const node = (file: string, args: string[]) => (): Promise<ChildProcess> =>
+    Promise.resolve(spawn(process.execPath, ['--enable-source-maps', ...args, file], { env, stdio: 'inherit' }));
+  const processes = [];
+  if (redis) {
+    const privateRedis = redis;
+    let first = true;
+    processes.push({
+      name: 'redis',
+      start: async () => {
+        // The first is already running (the migrations and the demo needed it); later ones reopen its port and files.
+        if (first) {
+          first = false;
+          return privateRedis.process;
+        }
+        return (await startPrivateRedis(config.dataDir, privateRedis.port)).process;
+      },
     });
-    children.push(child);
-  };
-  run('api', apiMain, nodeArgsFor('api', config));
-  for (let i = 0; i < workers; i++) run(`worker ${i + 1}`, workerMain, nodeArgsFor('worker', config));
-  process.on('SIGINT', () => void stopAll(0));
-  process.on('SIGTERM', () => void stopAll(0));
+  }
+  processes.push({ name: 'api', start: node(apiMain, nodeArgsFor('api', config)) });
+  for (let i = 0; i < workers; i++)
+    processes.push({ name: `worker ${i + 1}`, start: node(workerMain, nodeArgsFor('worker', config)) });
+  await supervisor.run(processes);
   const url = `http://${config.host}:${config.port}/`;
   process.stdout.write(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)\n`);
   if (seeded) process.stdout.write(`${formatDemoBlock(url, seeded)}\n`);
-  return new Promise<number>(() => undefined);
+  const code = await supervisor.done;
+  process.exit(code);
 }

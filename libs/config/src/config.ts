@@ -44,6 +44,9 @@ export interface AppConfig {
     readonly perName: number;
     readonly windowMinutes: number;
   };
+  /** The launcher restarts a process that dies; more than this many deaths of one process within the window end it. */
+  readonly restartLimit: number;
+  readonly restartWindowMinutes: number;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -82,6 +85,8 @@ export const CONFIG_VARIABLES = [
   'SIGNIN_ATTEMPTS_PER_ADDRESS',
   'SIGNIN_ATTEMPTS_PER_NAME',
   'SIGNIN_WINDOW_MINUTES',
+  'RESTART_LIMIT',
+  'RESTART_WINDOW_MINUTES',
   'CRIBRA_TEST_PAUSE',
 ] as const;
 
@@ -195,6 +200,8 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
       perName: int('SIGNIN_ATTEMPTS_PER_NAME', 10, 1, 100_000),
       windowMinutes: int('SIGNIN_WINDOW_MINUTES', 15, 1, 1440),
     },
+    restartLimit: int('RESTART_LIMIT', 5, 0, 1000),
+    restartWindowMinutes: int('RESTART_WINDOW_MINUTES', 10, 1, 1440),
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -237,6 +244,8 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SIGNIN_ATTEMPTS_PER_ADDRESS: String(config.signIn.perAddress),
     SIGNIN_ATTEMPTS_PER_NAME: String(config.signIn.perName),
     SIGNIN_WINDOW_MINUTES: String(config.signIn.windowMinutes),
+    RESTART_LIMIT: String(config.restartLimit),
+    RESTART_WINDOW_MINUTES: String(config.restartWindowMinutes),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }
