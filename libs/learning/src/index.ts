@@ -110,3 +110,15 @@ export type { CountEstimate, CountMethod, CountOptions } from './screening/popul
 export { estimatePrevalence } from './screening/prevalence.js';
 export type { PeriodSample, PrevalenceEstimate } from './screening/prevalence.js';
 export { ESTIMATION_SHARE, inEstimationFold } from './screening/estimation-fold.js';
+
+export { assertSparseMatrix, sparseMatrixFromDense, sparseMatrixToDense } from './vocabulary/sparse-matrix.js';
+export type { SparseMatrix } from './vocabulary/sparse-matrix.js';
+export { DEFAULT_CONTEXT_SMOOTHING, ppmi } from './vocabulary/ppmi.js';
+export type { PpmiOptions } from './vocabulary/ppmi.js';
+export { DEFAULT_VOCABULARY_SIZE, VocabularyCounter } from './vocabulary/vocabulary-counter.js';
+export type { VocabularyCounterOptions, VocabularyOptions } from './vocabulary/vocabulary-counter.js';
+export { createPhraseJoiner } from './vocabulary/phrase-joiner.js';
+export { CooccurrenceCounter, DEFAULT_CONTEXT_WINDOW } from './vocabulary/cooccurrence-counter.js';
+export type { CooccurrenceOptions, CooccurrenceTable } from './vocabulary/cooccurrence-counter.js';
+export { rankBySimilarity, rowNorms } from './vocabulary/term-similarity.js';
+export type { SimilarityOptions, SimilarRow } from './vocabulary/term-similarity.js';
