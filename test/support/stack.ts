@@ -40,8 +40,14 @@ export interface Stack {
     body?: unknown,
     headers?: Record<string, string>,
   ): Promise<Reply<T>>;
-  /** Waits until no job is active or waiting; delayed jobs count too unless `ignoreDelayed`. */
-  waitForQueuesIdle(timeoutMs?: number, options?: { ignoreDelayed?: boolean }): Promise<void>;
+  /**
+   * Waits until no job is active or waiting; delayed jobs count too unless `ignoreDelayed`, or unless they are due
+   * more than `ignoreDelayedBeyondMs` from now (those that fire sooner are waited for until they have run).
+   */
+  waitForQueuesIdle(
+    timeoutMs?: number,
+    options?: { ignoreDelayed?: boolean; ignoreDelayedBeyondMs?: number },
+  ): Promise<void>;
   /** Stops the in-process worker (nothing is learned or scored after this). */
   stopWorker(): Promise<void>;
   stop(): Promise<void>;
@@ -110,7 +116,10 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     }
     return { status: res.status, body: parsed as T, headers: res.headers };
   };
-  const waitForQueuesIdle = async (timeoutMs = 60_000, opts: { ignoreDelayed?: boolean } = {}) => {
+  const waitForQueuesIdle = async (
+    timeoutMs = 60_000,
+    opts: { ignoreDelayed?: boolean; ignoreDelayedBeyondMs?: number } = {},
+  ) => {
     const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
     const queues = Object.values(QUEUES).map((q) => new Queue(q, { connection, prefix: queuePrefix }));
     try {
@@ -121,7 +130,12 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
         // The periodic sweep always has its next run scheduled: it does not count as work.
         const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed']))))
           .flat()
-          .filter((j) => j.name !== 'sweep-desks' && !opts.ignoreDelayed);
+          .filter((j) => j.name !== 'sweep-desks' && !opts.ignoreDelayed)
+          .filter(
+            (j) =>
+              opts.ignoreDelayedBeyondMs === undefined ||
+              j.timestamp + j.delay <= Date.now() + opts.ignoreDelayedBeyondMs,
+          );
         const counts = await Promise.all(
           queues.map((q) => q.getJobCounts('active', 'waiting', 'prioritized', 'waiting-children')),
         );

@@ -14,7 +14,8 @@ export interface WebDesk {
 /**
  * A desk for the browser tests: accounts with passwords (one per role), the
  * synthetic pool imported, and, when asked, reviewers' verdicts given through
- * the API from the hidden labels until a model version is current.
+ * the API from the hidden labels until a model version is current. Extra texts
+ * are imported after those verdicts and stay open.
  */
 export async function webDesk(
   s: Stack,
@@ -36,20 +37,25 @@ export async function webDesk(
   const pool = syntheticPool(options.pool ?? 400);
   const labels = new Map<string, string>(pool.map((p) => [p.externalId, p.label]));
   const rows = pool.map((p) => ({ text: p.text, externalId: p.externalId, source: 'board/general' }));
-  for (const [i, text] of (options.extraTexts ?? []).entries()) {
-    rows.push({ text, externalId: `extra-${i}`, source: 'board/general' });
-    labels.set(`extra-${i}`, 'ok');
-  }
-  const body = rows.map((r) => JSON.stringify(r)).join('\n');
-  const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, {
-    'content-type': 'application/x-ndjson',
-  });
-  await eventually(
-    async () =>
-      (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
-    60_000,
-    'import done',
-  );
+  const importRows = async (list: typeof rows) => {
+    const imp = await s.call(
+      sup,
+      'POST',
+      `/api/desks/${deskId}/imports`,
+      list.map((r) => JSON.stringify(r)).join('\n'),
+      {
+        'content-type': 'application/x-ndjson',
+      },
+    );
+    expect(imp.status).toBe(202);
+    await eventually(
+      async () =>
+        (await s.call(sup, 'GET', `/api/imports/${imp.body.importId}`)).body.state === 'done' ? true : undefined,
+      60_000,
+      'import done',
+    );
+  };
+  await importRows(rows);
   for (let i = 0; i < (options.verdicts ?? 0); i++) {
     // The pool is far from used up: an item comes back even while a version is being published.
     const l = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);
@@ -63,6 +69,14 @@ export async function webDesk(
     });
     expect(v.status).toBe(201);
   }
+  // The extra texts arrive after the setup verdicts, so that none of them is decided and a test can find each one open.
+  const extras = (options.extraTexts ?? []).map((text, i) => ({
+    text,
+    externalId: `extra-${i}`,
+    source: 'board/general',
+  }));
+  for (const e of extras) labels.set(e.externalId, 'ok');
+  if (extras.length > 0) await importRows(extras);
   if (options.verdicts) {
     await eventually(
       async () => ((await s.call(sup, 'GET', `/api/desks/${deskId}`)).body.currentModelVersion ? true : undefined),
