@@ -60,6 +60,14 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
     ).rejects.toThrow();
   });
 
+  it('refuses a confidence outside 0.5..0.999', async () => {
+    await expect(q(`UPDATE desks SET confidence = 0.2 WHERE name = 'alpha'`)).rejects.toThrow(
+      /ck_desks_confidence|CHECK/i,
+    );
+    await q(`UPDATE desks SET confidence = 0.9 WHERE name = 'alpha'`);
+    await q(`UPDATE desks SET confidence = NULL WHERE name = 'alpha'`);
+  });
+
   it('refuses a verdict whose category belongs to another desk', async () => {
     // category 2 belongs to desk 2, the item to desk 1.
     await expect(verdict(2, false, 'c-foreign')).rejects.toThrow(/foreign key|FOREIGN KEY/i);

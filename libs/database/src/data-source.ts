@@ -19,6 +19,7 @@ import { ModelReports1764900000000 } from './migrations/1764900000000-model-repo
 import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.js';
 import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
 import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expiry.js';
+import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -46,6 +47,7 @@ export const MIGRATIONS = [
   TrailIndex1765000000000,
   TermCounts1765100000000,
   TokenExpiry1766200000000,
+  ScreeningSettings1766400000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

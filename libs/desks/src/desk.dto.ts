@@ -50,6 +50,31 @@ export class CreateDeskDto {
   @Min(0.5)
   @Max(0.999)
   coverageTarget?: number;
+  /** Watched categories: an open item whose prediction set holds one is flagged, else cleared. */
+  @ApiPropertyOptional({ type: [String], maxItems: 20, example: ['threat'] })
+  @IsOptional()
+  @Transform(trimAll)
+  @IsArray()
+  @ArrayMaxSize(20)
+  @ArrayUnique()
+  @IsString({ each: true })
+  watch?: string[];
+  /** A coverage target per category name (0.5–0.999); the others use coverageTarget. Replaces the whole map. */
+  @ApiPropertyOptional({
+    type: 'object',
+    additionalProperties: { type: 'number', minimum: 0.5, maximum: 0.999 },
+    example: { threat: 0.98 },
+  })
+  @IsOptional()
+  @IsObject()
+  coverageTargets?: Record<string, number>;
+  /** Null: expected coverage; else the probability over the calibration draws that coverage reaches each target. */
+  @ApiPropertyOptional({ type: Number, nullable: true, minimum: 0.5, maximum: 0.999, default: null })
+  @IsOptional()
+  @IsNumber()
+  @Min(0.5)
+  @Max(0.999)
+  confidence?: number | null;
   @ApiPropertyOptional({ enum: CALIBRATION_MODES, default: 'per-category' })
   @IsOptional()
   @IsIn(CALIBRATION_MODES)
@@ -120,6 +145,31 @@ export class UpdateDeskDto {
   @Min(0.5)
   @Max(0.999)
   coverageTarget?: number;
+  /** Watched categories: an open item whose prediction set holds one is flagged, else cleared. */
+  @ApiPropertyOptional({ type: [String], maxItems: 20, example: ['threat'] })
+  @IsOptional()
+  @Transform(trimAll)
+  @IsArray()
+  @ArrayMaxSize(20)
+  @ArrayUnique()
+  @IsString({ each: true })
+  watch?: string[];
+  /** A coverage target per category name (0.5–0.999); the others use coverageTarget. Replaces the whole map. */
+  @ApiPropertyOptional({
+    type: 'object',
+    additionalProperties: { type: 'number', minimum: 0.5, maximum: 0.999 },
+    example: { threat: 0.98 },
+  })
+  @IsOptional()
+  @IsObject()
+  coverageTargets?: Record<string, number>;
+  /** Null: expected coverage; else the probability over the calibration draws that coverage reaches each target. */
+  @ApiPropertyOptional({ type: Number, nullable: true, minimum: 0.5, maximum: 0.999, default: null })
+  @IsOptional()
+  @IsNumber()
+  @Min(0.5)
+  @Max(0.999)
+  confidence?: number | null;
   @ApiPropertyOptional({ enum: CALIBRATION_MODES })
   @IsOptional()
   @IsIn(CALIBRATION_MODES)

@@ -11,7 +11,17 @@ export const DeskAnswer = named(
     categories: z.array(z.strictObject({ id: z.int(), name: z.string(), position: z.int() })),
     seedTerms: z.record(z.string(), z.array(z.string())).describe('seed terms per category name'),
     coverageTarget: z.number(),
+    coverageTargets: z
+      .record(z.string(), z.number())
+      .describe('coverage target per category name; the others use coverageTarget'),
     calibration: z.enum(CALIBRATION_MODES),
+    confidence: z
+      .number()
+      .nullable()
+      .describe(
+        'null: expected coverage; else the probability over the calibration draws that coverage reaches the target',
+      ),
+    watch: z.array(z.string()).describe('watched categories: an open item whose set holds one is flagged'),
     randomShare: z.number(),
     secondOpinionShare: z.number(),
     leaseSeconds: z.int(),
@@ -31,7 +41,9 @@ export const UpdatedDeskAnswer = named(
   DeskAnswer.extend({
     calibrationStatus: CalibrationStatusAnswer.nullable()
       .optional()
-      .describe('present when coverageTarget, calibration or strategy changed; null before the first model'),
+      .describe(
+        'present when a target, the calibration, the confidence, the watched categories or the strategy changed; null before the first model',
+      ),
   }),
 );
 

@@ -13,7 +13,10 @@ export interface DeskView {
   categories: Array<{ id: number; name: string; position: number }>;
   seedTerms: Record<string, string[]>;
   coverageTarget: number;
+  coverageTargets: Record<string, number>;
   calibration: DeskEntity['calibration'];
+  confidence: number | null;
+  watch: string[];
   randomShare: number;
   secondOpinionShare: number;
   leaseSeconds: number;
@@ -59,6 +62,44 @@ export function validateSeedTerms(seedTerms: unknown, categories: string[]): Rec
   return out;
 }
 
+/**
+ * Checks the screening settings against the desk's categories and
+ * calibration mode; returns them cleaned (watch in the desk's category
+ * order). Marginal calibration promises coverage only over the pool as a
+ * whole, so it can neither clear items of a watched category with a stated
+ * miss rate nor give a category its own target.
+ */
+export function validateScreening(
+  watch: unknown,
+  coverageTargets: unknown,
+  calibration: DeskEntity['calibration'],
+  categories: string[],
+): { watch: string[]; coverageTargets: Record<string, number> } {
+  const problems: string[] = [];
+  const list = Array.isArray(watch) ? (watch as unknown[]) : [];
+  for (const c of list)
+    if (typeof c !== 'string' || !categories.includes(c))
+      problems.push(`watch: ${JSON.stringify(c)} is not a category of this desk`);
+  const targets: Record<string, number> = {};
+  if (typeof coverageTargets !== 'object' || coverageTargets === null || Array.isArray(coverageTargets))
+    problems.push('coverageTargets: expected an object mapping category names to targets');
+  else
+    for (const [c, t] of Object.entries(coverageTargets as Record<string, unknown>)) {
+      if (!categories.includes(c)) problems.push(`coverageTargets.${c}: not a category of this desk`);
+      else if (typeof t !== 'number' || !Number.isFinite(t) || t < 0.5 || t > 0.999)
+        problems.push(`coverageTargets.${c}: a target must be a number from 0.5 to 0.999, got ${JSON.stringify(t)}`);
+      else targets[c] = t;
+    }
+  if (calibration === 'marginal' && list.length > 0)
+    problems.push(
+      'watch: marginal calibration gives no promise per category, so it cannot clear items with a stated miss rate; use calibration "per-category" or watch no category',
+    );
+  if (calibration === 'marginal' && Object.keys(targets).length > 0)
+    problems.push('coverageTargets: a target per category needs calibration "per-category"');
+  if (problems.length) throw new BadRequestException(problems);
+  return { watch: categories.filter((c) => list.includes(c)), coverageTargets: targets };
+}
+
 function checkCategoryNames(names: string[]): void {
   const reserved = names.filter((n) => RESERVED_CATEGORY_NAMES.includes(n.toLowerCase()));
   if (reserved.length)
@@ -83,6 +124,12 @@ export class DesksService {
   async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
     checkCategoryNames(dto.categories);
     const seedTerms = validateSeedTerms(dto.seedTerms, dto.categories);
+    const screening = validateScreening(
+      dto.watch ?? [],
+      dto.coverageTargets ?? {},
+      dto.calibration ?? 'per-category',
+      dto.categories,
+    );
     const deskId = await this.db.write(async (m) => {
       if (await m.findOneBy(DeskEntity, { name: dto.name }))
         throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
@@ -94,6 +141,9 @@ export class DesksService {
           seedTerms,
           coverageTarget: dto.coverageTarget ?? 0.9,
           calibration: dto.calibration ?? 'per-category',
+          watch: screening.watch,
+          coverageTargets: screening.coverageTargets,
+          confidence: dto.confidence ?? null,
           randomShare: dto.randomShare ?? 0.2,
           secondOpinionShare: dto.secondOpinionShare ?? 0.1,
           leaseSeconds: dto.leaseSeconds ?? 600,
@@ -140,9 +190,10 @@ export class DesksService {
   }
 
   /**
-   * Changes settings. A new coverage target or calibration mode changes every
-   * set at once (sets are read from the stored calibration scores); the
-   * answer then says what backs the new thresholds.
+   * Changes settings. A new coverage target (the desk's or a category's),
+   * calibration mode, confidence or list of watched categories changes every
+   * set at once (sets are read from the stored calibration scores, without
+   * retraining); the answer then says what backs the new thresholds.
    */
   async update(
     actor: AuditActor,
@@ -190,6 +241,17 @@ export class DesksService {
       const termsChanged = JSON.stringify(desk.seedTerms) !== JSON.stringify(before.seedTerms);
       if (dto.coverageTarget !== undefined) desk.coverageTarget = dto.coverageTarget;
       if (dto.calibration !== undefined) desk.calibration = dto.calibration;
+      // Watch and targets of a removed category go with it; what is left must suit the (new) calibration mode.
+      const screening = validateScreening(
+        dto.watch ?? desk.watch.filter((c) => categoryNames.includes(c)),
+        dto.coverageTargets ??
+          Object.fromEntries(Object.entries(desk.coverageTargets).filter(([k]) => categoryNames.includes(k))),
+        desk.calibration,
+        categoryNames,
+      );
+      desk.watch = screening.watch;
+      desk.coverageTargets = screening.coverageTargets;
+      if (dto.confidence !== undefined) desk.confidence = dto.confidence;
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
       if (dto.secondOpinionShare !== undefined) desk.secondOpinionShare = dto.secondOpinionShare;
       if (dto.leaseSeconds !== undefined) desk.leaseSeconds = dto.leaseSeconds;
@@ -217,7 +279,8 @@ export class DesksService {
     this.directory.forget(deskId);
     if (seedTermsChanged) await this.jobs.add(JOBS.reseedDesk, { deskId });
     const view = await this.get(deskId);
-    if (dto.coverageTarget === undefined && dto.calibration === undefined && dto.strategy === undefined) return view;
+    const setsChanged = [dto.coverageTarget, dto.coverageTargets, dto.calibration, dto.confidence, dto.watch];
+    if (setsChanged.every((x) => x === undefined) && dto.strategy === undefined) return view;
     const desk = (await this.db.manager.findOneBy(DeskEntity, { id: deskId }))!;
     const model = await this.predictions.current(desk);
     return { ...view, calibrationStatus: model ? this.predictions.calibrationStatus(desk, model) : null };
@@ -238,7 +301,10 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
     categories: cats.map((c) => ({ id: c.id, name: c.name, position: c.position })),
     seedTerms: d.seedTerms,
     coverageTarget: d.coverageTarget,
+    coverageTargets: d.coverageTargets,
     calibration: d.calibration,
+    confidence: d.confidence,
+    watch: d.watch,
     randomShare: d.randomShare,
     secondOpinionShare: d.secondOpinionShare,
     leaseSeconds: d.leaseSeconds,
@@ -258,7 +324,10 @@ function settingsOf(v: DeskView): Record<string, unknown> {
     categories: v.categories.map((c) => c.name),
     seedTerms: v.seedTerms,
     coverageTarget: v.coverageTarget,
+    coverageTargets: v.coverageTargets,
     calibration: v.calibration,
+    confidence: v.confidence,
+    watch: v.watch,
     randomShare: v.randomShare,
     secondOpinionShare: v.secondOpinionShare,
     leaseSeconds: v.leaseSeconds,

@@ -8,3 +8,4 @@ export { ScoringService } from './scoring.service.js';
 export { PublishService } from './publish.service.js';
 export { priorityOf } from './priority.js';
 export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';
+export { setOptionsOf, targetsOf, type SetSettings } from './set-options.js';

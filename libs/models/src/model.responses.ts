@@ -20,11 +20,19 @@ export const CalibrationStatusAnswer = named(
     target: z.number(),
     mode: z.enum(CALIBRATION_MODES),
     score: z.enum(SCORES),
+    confidence: z
+      .number()
+      .nullable()
+      .describe(
+        'null: expected coverage; else the probability over the calibration draws that coverage reaches the target',
+      ),
     thresholds: z.array(
       z.strictObject({
         category: z.string().nullable().describe('null for the one threshold of marginal calibration'),
+        target: z.number().describe('the coverage target of this threshold: the category’s own, or the desk’s'),
         threshold: z.number().nullable().describe('null: too few random verdicts, the set is every category'),
-        n: z.int(),
+        n: z.int().describe('calibration verdicts the threshold was read from'),
+        heldOut: z.int().describe('calibration verdicts of the estimation fold left out (watched categories only)'),
         needMore: z.int(),
       }),
     ),

@@ -3,6 +3,7 @@ import type { EntityManager } from 'typeorm';
 import { Database, type DbInt, type DeskEntity, type ShownPrediction } from '#database';
 import { predictionSet, wilsonInterval } from '#learning';
 import { ModelStore, type LoadedModel } from './model-store.service.js';
+import { setOptionsOf, targetsOf } from './set-options.js';
 
 /** What stands behind the thresholds at a desk's target. */
 export interface CalibrationStatus {
@@ -10,8 +11,19 @@ export interface CalibrationStatus {
   target: number;
   mode: DeskEntity['calibration'];
   score: DeskEntity['score'];
+  /** Null: expected coverage; else the confidence of the training-conditional thresholds. */
+  confidence: number | null;
   /** Calibration verdicts behind each threshold (one for marginal, one per category otherwise). */
-  thresholds: Array<{ category: string | null; threshold: number | null; n: number; needMore: number }>;
+  thresholds: Array<{
+    category: string | null;
+    /** The coverage target of this threshold (a category's own, or the desk's). */
+    target: number;
+    threshold: number | null;
+    n: number;
+    /** Calibration verdicts of the estimation fold left out of this threshold (watched categories only). */
+    heldOut: number;
+    needMore: number;
+  }>;
   /** More random verdicts needed before every threshold is finite at this target (0 when none are missing). */
   needMore: number;
 }
@@ -36,11 +48,7 @@ export class PredictionsService {
 
   show(desk: DeskEntity, model: LoadedModel, probs: ArrayLike<number>): ShownPrediction {
     // predictionSet checks that every entry is a probability.
-    const set = predictionSet(probs, model.calibration, {
-      alpha: 1 - desk.coverageTarget,
-      score: desk.score,
-      mode: desk.calibration,
-    });
+    const set = predictionSet(probs, model.calibration, setOptionsOf(desk, model.categories));
     return {
       modelVersion: model.version,
       probabilities: Object.fromEntries(model.categories.map((c, i) => [c, probs[i]])),
@@ -76,13 +84,16 @@ export class PredictionsService {
   }
 
   calibrationStatus(desk: DeskEntity, model: LoadedModel, target = desk.coverageTarget): CalibrationStatus {
-    const alpha = 1 - target;
-    const t = model.calibration.thresholds(desk.score, alpha, desk.calibration);
+    const options = setOptionsOf(desk, model.categories, target);
+    const t = model.calibration.thresholds(desk.score, options.alpha, desk.calibration, options);
     const per = desk.calibration === 'per-category';
+    const targets = per ? targetsOf(desk, model.categories, target) : model.categories.map(() => target);
     const thresholds = t.map((x, i) => ({
       category: per ? model.categories[i] : null,
+      target: targets[i],
       threshold: Number.isFinite(x.threshold) ? x.threshold : null,
       n: x.n,
+      heldOut: x.heldOut,
       needMore: x.needMore,
     }));
     return {
@@ -90,6 +101,7 @@ export class PredictionsService {
       target,
       mode: desk.calibration,
       score: desk.score,
+      confidence: desk.confidence,
       thresholds: per ? thresholds : thresholds.slice(0, 1),
       needMore: Math.max(0, ...t.map((x) => x.needMore)),
     };
@@ -118,7 +130,8 @@ export class PredictionsService {
   /**
    * For targets 0.50…0.99 in steps of 0.01: the share of sure, ambiguous and
    * unfamiliar calls and the mean set size over the open pool, under the
-   * current version and calibration mode.
+   * current version, calibration mode and confidence. Categories with a
+   * target of their own keep it.
    */
   async coveragePreview(desk: DeskEntity) {
     const model = await this.current(desk);
@@ -135,11 +148,7 @@ export class PredictionsService {
     for await (const { probs } of this.probabilities(desk, model)) {
       n++;
       for (const [i, target] of targets.entries()) {
-        const s = predictionSet(probs, model.calibration, {
-          alpha: 1 - target,
-          score: desk.score,
-          mode: desk.calibration,
-        });
+        const s = predictionSet(probs, model.calibration, setOptionsOf(desk, model.categories, target));
         acc[i][s.call]++;
         acc[i].size += s.categories.length;
         acc[i].sizes[s.categories.length]++;

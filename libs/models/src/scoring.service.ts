@@ -5,6 +5,7 @@ import type { ScoreChunkPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { ModelStore } from './model-store.service.js';
 import { priorityOf } from './priority.js';
+import { setOptionsOf } from './set-options.js';
 import { decodeTermCounts, encodeTermCounts } from './term-counts.js';
 import { PAUSE_HOOK, type PauseHook } from './training.service.js';
 
@@ -60,7 +61,7 @@ export class ScoringService {
       [p.deskId, p.fromId, p.toId, model.featurizerKey],
     );
     await this.pause('scoring');
-    const alpha = 1 - desk.coverageTarget;
+    const setOptions = setOptionsOf(desk, model.categories);
     const strategy = desk.strategy === 'set-size' ? 'entropy' : desk.strategy;
     const rows: unknown[][] = [];
     const backfill: unknown[][] = [];
@@ -76,10 +77,7 @@ export class ScoringService {
       }
       const probs = model.classifier.predictProba(model.weigh(counts));
       const setSize =
-        desk.strategy === 'set-size'
-          ? predictionSet(probs, model.calibration, { alpha, score: desk.score, mode: desk.calibration }).categories
-              .length
-          : 0;
+        desk.strategy === 'set-size' ? predictionSet(probs, model.calibration, setOptions).categories.length : 0;
       rows.push([
         id,
         p.version,

@@ -14,6 +14,7 @@ import {
   ConformalCalibration,
   expectedCalibrationError,
   IdfTable,
+  inEstimationFold,
   LogisticModel,
   logLoss,
   macroF1,
@@ -186,7 +187,10 @@ export class TrainingService {
     const tCal = performance.now();
     const probs = calibVectors.map((v) => classifier.predictProba(v));
     const labels = calib.map(([, e]) => categories.indexOf(e.label));
-    const calibration = ConformalCalibration.fromScores(categories, probs, labels);
+    // The estimation fold is marked, not removed: watched categories' thresholds leave it out when read.
+    const calibration = ConformalCalibration.fromScores(categories, probs, labels, {
+      heldOut: calib.map(([id]) => inEstimationFold(id)),
+    });
     const metrics = probs.length > 0 ? qualityFigures(probs, labels, categories.length) : null;
     const tDone = performance.now();
     const timings = {

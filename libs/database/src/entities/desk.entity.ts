@@ -30,6 +30,12 @@ export class DeskEntity {
   strategy!: Strategy;
   /** Nonconformity score of the prediction sets. */
   score!: ScoreKind;
+  /** Watched categories (names): an open item whose set holds one is flagged, else cleared. */
+  watch!: string[];
+  /** Coverage target per category name; a category without one uses `coverageTarget`. */
+  coverageTargets!: Record<string, number>;
+  /** Null: expected coverage; else the probability, over the calibration draws, that coverage reaches the target. */
+  confidence!: number | null;
   createdBy!: number;
   createdAt!: Date;
   updatedAt!: Date;
@@ -55,6 +61,9 @@ export const deskSchema = (d: Dialect) => {
       retrainAfterSeconds: c.int('retrain_after_seconds'),
       strategy: c.varchar('strategy', 20),
       score: c.varchar('score', 3),
+      watch: c.json('watch'),
+      coverageTargets: c.json('coverage_targets'),
+      confidence: c.double('confidence', true),
       createdBy: c.int('created_by'),
       createdAt: c.time('created_at'),
       updatedAt: c.time('updated_at'),
