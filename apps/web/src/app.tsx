@@ -3,6 +3,7 @@ import { useEffect, useRef, useState } from 'preact/hooks';
 import { ApiError, get, post, type Desk, type Me, type Role } from './api';
 import { Cautions } from './components/cautions';
 import { match, navigate, onLinkClick, useLocation } from './router';
+import { deskTabs, SCREENS, type ScreenPattern, type ScreenRoute } from './routes';
 import { DeskHome } from './pages/desk-home';
 import { DeskNew } from './pages/desk-new';
 import { DeskOverview } from './pages/desk-overview';
@@ -22,30 +23,28 @@ export interface PageProps {
   query: URLSearchParams;
 }
 
-interface Route {
-  pattern: string;
-  roles: Role[];
-  title: string;
+interface Route extends ScreenRoute {
   page: ComponentType<PageProps>;
 }
 
-const SUPERVISOR: Role[] = ['supervisor'];
-const READERS: Role[] = ['supervisor', 'auditor'];
+const PAGES: Record<ScreenPattern, ComponentType<PageProps>> = {
+  '/': DeskHome,
+  '/desks/new': DeskNew,
+  '/desks/:deskId/queue': QueuePage,
+  '/desks/:deskId': DeskOverview,
+  '/desks/:deskId/import': ImportPage,
+  '/desks/:deskId/coverage': CoveragePage,
+  '/desks/:deskId/settings': SettingsPage,
+  '/desks/:deskId/models': ModelsPage,
+  '/desks/:deskId/models/:version': ModelVersionPage,
+  '/desks/:deskId/trail': TrailPage,
+  '/desks/:deskId/disagreements': DisagreementsPage,
+};
 
-/** Every screen and who may open it; the same split as the API's role matrix. */
-export const ROUTES: Route[] = [
-  { pattern: '/', roles: ['reviewer', 'supervisor', 'auditor', 'admin'], title: 'Desks', page: DeskHome },
-  { pattern: '/desks/new', roles: SUPERVISOR, title: 'New desk', page: DeskNew },
-  { pattern: '/desks/:deskId/queue', roles: ['reviewer'], title: 'Queue', page: QueuePage },
-  { pattern: '/desks/:deskId', roles: SUPERVISOR, title: 'Desk', page: DeskOverview },
-  { pattern: '/desks/:deskId/import', roles: SUPERVISOR, title: 'Import', page: ImportPage },
-  { pattern: '/desks/:deskId/coverage', roles: SUPERVISOR, title: 'Coverage', page: CoveragePage },
-  { pattern: '/desks/:deskId/settings', roles: SUPERVISOR, title: 'Settings', page: SettingsPage },
-  { pattern: '/desks/:deskId/models', roles: READERS, title: 'Model versions', page: ModelsPage },
-  { pattern: '/desks/:deskId/models/:version', roles: READERS, title: 'Model version', page: ModelVersionPage },
-  { pattern: '/desks/:deskId/trail', roles: READERS, title: 'Decision trail', page: TrailPage },
-  { pattern: '/desks/:deskId/disagreements', roles: READERS, title: 'Agreement', page: DisagreementsPage },
-];
+/** Every screen with its page. */
+export const ROUTES: Route[] = SCREENS.map((r) => ({ ...r, roles: [...r.roles], page: PAGES[r.pattern] }));
+
+export { deskTabs };
 
 const ROLE_NAMES: Record<Role, string> = {
   reviewer: 'reviewer',
@@ -54,31 +53,13 @@ const ROLE_NAMES: Record<Role, string> = {
   admin: 'administrator',
 };
 
-/** The desk's sections a role can open, in the order of the tab bar. */
-export function deskTabs(role: Role, deskId: number | string): Array<{ href: string; label: string }> {
-  const base = `/desks/${deskId}`;
-  if (role === 'reviewer') return [{ href: `${base}/queue`, label: 'Queue' }];
-  const tabs =
-    role === 'supervisor'
-      ? [
-          { href: base, label: 'Overview' },
-          { href: `${base}/import`, label: 'Import' },
-          { href: `${base}/coverage`, label: 'Coverage' },
-          { href: `${base}/settings`, label: 'Settings' },
-        ]
-      : [];
-  if (role === 'supervisor' || role === 'auditor')
-    tabs.push(
-      { href: `${base}/models`, label: 'Models' },
-      { href: `${base}/disagreements`, label: 'Agreement' },
-      { href: `${base}/trail`, label: 'Trail' },
-    );
-  return tabs;
-}
-
 export function App() {
   const [me, setMe] = useState<Me | null | undefined>(undefined);
   const where = useLocation();
+  // The narrow-screen menu closes whenever the screen changes.
+  const [menuOpen, setMenuOpen] = useState(false);
+  const menuButton = useRef<HTMLButtonElement>(null);
+  useEffect(() => setMenuOpen(false), [where.path]);
 
   useEffect(() => {
     get<Me>('/auth/me').then(setMe, () => setMe(null));
@@ -133,14 +114,39 @@ export function App() {
         <a class="brand" href="/">
           Cribra
         </a>
-        {deskId && <DeskTabs me={me} deskId={deskId} path={where.path} />}
-        <div class="who">
-          <span>
-            {me.name} <span class="role">({ROLE_NAMES[me.role]})</span>
-          </span>
-          <button type="button" class="quiet" onClick={() => void signOut()}>
-            Sign out
-          </button>
+        <button
+          type="button"
+          class="menu-toggle"
+          ref={menuButton}
+          aria-expanded={menuOpen}
+          aria-controls="site-menu"
+          onClick={() => setMenuOpen(!menuOpen)}
+        >
+          Menu
+        </button>
+        <div
+          id="site-menu"
+          class={menuOpen ? 'site-menu open' : 'site-menu'}
+          onClick={(e) => {
+            // A section chosen from the menu closes it, even the screen already open.
+            if (e.target instanceof Element && e.target.closest('a')) setMenuOpen(false);
+          }}
+          onKeyDown={(e) => {
+            if (e.key === 'Escape' && menuOpen) {
+              setMenuOpen(false);
+              menuButton.current?.focus();
+            }
+          }}
+        >
+          {deskId && <DeskTabs me={me} deskId={deskId} path={where.path} />}
+          <div class="who">
+            <span>
+              {me.name} <span class="role">({ROLE_NAMES[me.role]})</span>
+            </span>
+            <button type="button" class="quiet" onClick={() => void signOut()}>
+              Sign out
+            </button>
+          </div>
         </div>
       </header>
       <main id="main">

@@ -1,4 +1,5 @@
-import { deskTabs, useData, type PageProps } from '../app';
+import { useData, type PageProps } from '../app';
+import { deskTabs } from '../routes';
 import type { DeskList } from '../api';
 
 const ROLE_HINT: Record<string, string> = {

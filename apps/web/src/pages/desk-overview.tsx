@@ -4,6 +4,7 @@ import { useData, useInterval, type PageProps } from '../app';
 import { BarChart, LineChart, niceTicks } from '../components/charts';
 import { CoverageAlert } from '../components/coverage-alert';
 import { count, num, when } from '../format';
+import { TableBox } from '../components/table-box';
 
 /** The supervisor's desk: progress, the learning curve, the coverage alert, exports, and the simulated reviewer. */
 export function DeskOverview({ params }: PageProps) {
@@ -116,29 +117,31 @@ export function DeskOverview({ params }: PageProps) {
         <section>
           <h2>Reviewers</h2>
           <p class="muted">In alphabetical order; counts show the work done, not a ranking.</p>
-          <table class="data">
-            <thead>
-              <tr>
-                <th>Reviewer</th>
-                <th class="num">Verdicts</th>
-                <th>Last verdict</th>
-              </tr>
-            </thead>
-            <tbody>
-              {progress.reviewers.length === 0 && (
+          <TableBox label="Reviewers">
+            <table class="data">
+              <thead>
                 <tr>
-                  <td colSpan={3}>No verdict yet.</td>
+                  <th>Reviewer</th>
+                  <th class="num">Verdicts</th>
+                  <th>Last verdict</th>
                 </tr>
-              )}
-              {progress.reviewers.map((r) => (
-                <tr>
-                  <td>{r.name}</td>
-                  <td class="num">{count(r.verdicts)}</td>
-                  <td>{when(r.lastAt)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {progress.reviewers.length === 0 && (
+                  <tr>
+                    <td colSpan={3}>No verdict yet.</td>
+                  </tr>
+                )}
+                {progress.reviewers.map((r) => (
+                  <tr>
+                    <td>{r.name}</td>
+                    <td class="num">{count(r.verdicts)}</td>
+                    <td>{when(r.lastAt)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </TableBox>
         </section>
       )}
       <SimulatedReviewer deskId={deskId} />

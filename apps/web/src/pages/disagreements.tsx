@@ -2,6 +2,7 @@ import { useState } from 'preact/hooks';
 import { get, post, type Agreement, type Desk, type Disagreement, type DisagreementList } from '../api';
 import { useData, type PageProps } from '../app';
 import { num, when } from '../format';
+import { TableBox } from '../components/table-box';
 
 function why(r: Disagreement['reasons'][number]): string {
   return r.kind === 'reviewers-differ'
@@ -60,44 +61,48 @@ export function DisagreementsPage({ me, params }: PageProps) {
               </dl>
               <p class="muted">Abstentions count as missing values. {agreement.fleiss.unequalVerdicts}</p>
               <div class="chart-pair">
-                <table class="data">
-                  <caption>Per category (Fleiss' kappa)</caption>
-                  <thead>
-                    <tr>
-                      <th>Category</th>
-                      <th class="num">Verdicts</th>
-                      <th class="num">Kappa</th>
-                    </tr>
-                  </thead>
-                  <tbody>
-                    {agreement.perCategory.map((c) => (
+                <TableBox label="Agreement per category">
+                  <table class="data">
+                    <caption>Per category (Fleiss' kappa)</caption>
+                    <thead>
                       <tr>
-                        <td>{c.category}</td>
-                        <td class="num">{c.verdicts}</td>
-                        <td class="num">{num(c.fleissKappa, 3)}</td>
+                        <th>Category</th>
+                        <th class="num">Verdicts</th>
+                        <th class="num">Kappa</th>
                       </tr>
-                    ))}
-                  </tbody>
-                </table>
-                <table class="data">
-                  <caption>Per pair of reviewers (Cohen's kappa)</caption>
-                  <thead>
-                    <tr>
-                      <th>Reviewers</th>
-                      <th class="num">Shared items</th>
-                      <th class="num">Kappa</th>
-                    </tr>
-                  </thead>
-                  <tbody>
-                    {agreement.cohen.map((c) => (
+                    </thead>
+                    <tbody>
+                      {agreement.perCategory.map((c) => (
+                        <tr>
+                          <td>{c.category}</td>
+                          <td class="num">{c.verdicts}</td>
+                          <td class="num">{num(c.fleissKappa, 3)}</td>
+                        </tr>
+                      ))}
+                    </tbody>
+                  </table>
+                </TableBox>
+                <TableBox label="Agreement per pair of reviewers">
+                  <table class="data">
+                    <caption>Per pair of reviewers (Cohen's kappa)</caption>
+                    <thead>
                       <tr>
-                        <td>{c.reviewers.join(' and ')}</td>
-                        <td class="num">{c.items}</td>
-                        <td class="num">{num(c.kappa, 3)}</td>
+                        <th>Reviewers</th>
+                        <th class="num">Shared items</th>
+                        <th class="num">Kappa</th>
                       </tr>
-                    ))}
-                  </tbody>
-                </table>
+                    </thead>
+                    <tbody>
+                      {agreement.cohen.map((c) => (
+                        <tr>
+                          <td>{c.reviewers.join(' and ')}</td>
+                          <td class="num">{c.items}</td>
+                          <td class="num">{num(c.kappa, 3)}</td>
+                        </tr>
+                      ))}
+                    </tbody>
+                  </table>
+                </TableBox>
               </div>
             </>
           )}
@@ -176,26 +181,28 @@ function DisagreementCard({
           <li>{why(r)}</li>
         ))}
       </ul>
-      <table class="data">
-        <thead>
-          <tr>
-            <th>Reviewer</th>
-            <th>Verdict</th>
-            <th>When</th>
-            <th>Model showed</th>
-          </tr>
-        </thead>
-        <tbody>
-          {d.verdicts.map((v) => (
-            <tr class={v.undoneAt ? 'undone' : ''}>
-              <td>{v.reviewer}</td>
-              <td>{v.abstain ? 'abstain' : v.category}</td>
-              <td>{when(v.createdAt)}</td>
-              <td>{v.modelVersion ? `v${v.modelVersion}: ${v.shownCall}` : 'no model'}</td>
+      <TableBox label="Verdicts on this item">
+        <table class="data">
+          <thead>
+            <tr>
+              <th>Reviewer</th>
+              <th>Verdict</th>
+              <th>When</th>
+              <th>Model showed</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {d.verdicts.map((v) => (
+              <tr class={v.undoneAt ? 'undone' : ''}>
+                <td>{v.reviewer}</td>
+                <td>{v.abstain ? 'abstain' : v.category}</td>
+                <td>{when(v.createdAt)}</td>
+                <td>{v.modelVersion ? `v${v.modelVersion}: ${v.shownCall}` : 'no model'}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </TableBox>
       {d.settled && (
         <p class="notice">
           Settled as <strong>{d.settled.category}</strong> by {d.settled.settledBy}, {when(d.settled.settledAt)}: “

@@ -2,6 +2,7 @@ import { useState } from 'preact/hooks';
 import { get, uploadFile, type ImportList, type ImportView } from '../api';
 import { useData, useInterval, type PageProps } from '../app';
 import { count, when } from '../format';
+import { TableBox } from '../components/table-box';
 
 const FINISHED = new Set(['done', 'failed']);
 
@@ -93,30 +94,32 @@ export function ImportPage({ params }: PageProps) {
       <h2>Earlier imports</h2>
       {history && history.imports.length === 0 && <p class="muted">None yet.</p>}
       {history && history.imports.length > 0 && (
-        <table class="data">
-          <thead>
-            <tr>
-              <th>File</th>
-              <th>Started</th>
-              <th>State</th>
-              <th class="num">Imported</th>
-              <th class="num">Duplicates</th>
-              <th class="num">Rejected</th>
-            </tr>
-          </thead>
-          <tbody>
-            {history.imports.map((i) => (
+        <TableBox label="Earlier imports">
+          <table class="data">
+            <thead>
               <tr>
-                <td>{i.fileName ?? '(request body)'}</td>
-                <td>{when(i.createdAt)}</td>
-                <td>{i.state}</td>
-                <td class="num">{count(i.imported)}</td>
-                <td class="num">{count(i.duplicates)}</td>
-                <td class="num">{count(i.rejected)}</td>
+                <th>File</th>
+                <th>Started</th>
+                <th>State</th>
+                <th class="num">Imported</th>
+                <th class="num">Duplicates</th>
+                <th class="num">Rejected</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {history.imports.map((i) => (
+                <tr>
+                  <td>{i.fileName ?? '(request body)'}</td>
+                  <td>{when(i.createdAt)}</td>
+                  <td>{i.state}</td>
+                  <td class="num">{count(i.imported)}</td>
+                  <td class="num">{count(i.duplicates)}</td>
+                  <td class="num">{count(i.rejected)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </TableBox>
       )}
     </section>
   );
@@ -176,25 +179,27 @@ function ImportProgress({ v }: { v: ImportView }) {
         </p>
       )}
       {v.errors.length > 0 && (
-        <table class="data row-errors">
-          <caption>
-            Rejected rows{v.errors.length < v.rejected ? ` (the first ${v.errors.length} of ${v.rejected})` : ''}
-          </caption>
-          <thead>
-            <tr>
-              <th class="num">Row</th>
-              <th>Reason</th>
-            </tr>
-          </thead>
-          <tbody>
-            {v.errors.map((e) => (
+        <TableBox label="Rejected rows">
+          <table class="data row-errors">
+            <caption>
+              Rejected rows{v.errors.length < v.rejected ? ` (the first ${v.errors.length} of ${v.rejected})` : ''}
+            </caption>
+            <thead>
               <tr>
-                <td class="num">{e.row}</td>
-                <td>{e.reason}</td>
+                <th class="num">Row</th>
+                <th>Reason</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {v.errors.map((e) => (
+                <tr>
+                  <td class="num">{e.row}</td>
+                  <td>{e.reason}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </TableBox>
       )}
     </section>
   );

@@ -2,6 +2,7 @@ import type { Coverage, CoveragePreview, Desk, ModelVersion } from '../api';
 import { useData, type PageProps } from '../app';
 import { BarChart, IntervalChart, LineChart } from '../components/charts';
 import { count, num, pct, when } from '../format';
+import { TableBox } from '../components/table-box';
 
 /** One model version for oversight: what it promised, what it achieved on random checks, its set sizes and its calibration quality. */
 export function ModelVersionPage({ params }: PageProps) {
@@ -42,33 +43,37 @@ export function ModelVersionPage({ params }: PageProps) {
           </p>
           <section>
             <h2>Verdicts behind it</h2>
-            <table class="data">
-              <thead>
-                <tr>
-                  <th>Category</th>
-                  <th class="num">Training verdicts</th>
-                  <th class="num">Calibration verdicts (random draws)</th>
-                  {m.thresholds && m.thresholds.mode === 'per-category' && <th class="num">Threshold at target</th>}
-                </tr>
-              </thead>
-              <tbody>
-                {categories.map((c) => {
-                  const t = m.thresholds?.thresholds.find((x) => x.category === c);
-                  return (
-                    <tr>
-                      <td>{c}</td>
-                      <td class="num">{count(m.training.counts[c] ?? 0)}</td>
-                      <td class="num">{count(m.calibration.counts[c] ?? 0)}</td>
-                      {m.thresholds?.mode === 'per-category' && (
-                        <td class="num">
-                          {t?.threshold === null || t === undefined ? 'every category (too few)' : num(t.threshold, 3)}
-                        </td>
-                      )}
-                    </tr>
-                  );
-                })}
-              </tbody>
-            </table>
+            <TableBox label="Verdicts behind it">
+              <table class="data">
+                <thead>
+                  <tr>
+                    <th>Category</th>
+                    <th class="num">Training verdicts</th>
+                    <th class="num">Calibration verdicts (random draws)</th>
+                    {m.thresholds && m.thresholds.mode === 'per-category' && <th class="num">Threshold at target</th>}
+                  </tr>
+                </thead>
+                <tbody>
+                  {categories.map((c) => {
+                    const t = m.thresholds?.thresholds.find((x) => x.category === c);
+                    return (
+                      <tr>
+                        <td>{c}</td>
+                        <td class="num">{count(m.training.counts[c] ?? 0)}</td>
+                        <td class="num">{count(m.calibration.counts[c] ?? 0)}</td>
+                        {m.thresholds?.mode === 'per-category' && (
+                          <td class="num">
+                            {t?.threshold === null || t === undefined
+                              ? 'every category (too few)'
+                              : num(t.threshold, 3)}
+                          </td>
+                        )}
+                      </tr>
+                    );
+                  })}
+                </tbody>
+              </table>
+            </TableBox>
             {m.thresholds && m.thresholds.needMore > 0 && (
               <p class="warning">
                 At the current target the calibration set is too small: {m.thresholds.needMore} more random verdicts are

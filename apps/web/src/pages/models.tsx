@@ -1,6 +1,7 @@
 import type { ModelList, ReportList } from '../api';
 import { useData, type PageProps } from '../app';
 import { count, num, when } from '../format';
+import { TableBox } from '../components/table-box';
 
 const sum = (r: Record<string, number>) => Object.values(r).reduce((a, b) => a + b, 0);
 
@@ -28,45 +29,47 @@ export function ModelsPage({ params }: PageProps) {
         </p>
       )}
       {data && data.models.length > 0 && (
-        <table class="data models-table">
-          <thead>
-            <tr>
-              <th>Version</th>
-              <th>State</th>
-              <th>Published</th>
-              <th class="num">Trained on</th>
-              <th class="num">Calibrated on</th>
-              <th class="num">Accuracy</th>
-              <th class="num">Macro-F1</th>
-              <th class="num">Log loss</th>
-              <th class="num">Brier</th>
-              <th class="num">ECE</th>
-              <th>Oversight report</th>
-            </tr>
-          </thead>
-          <tbody>
-            {data.models.map((m) => (
+        <TableBox label="Model versions">
+          <table class="data models-table">
+            <thead>
               <tr>
-                <td>
-                  <a href={`/desks/${deskId}/models/${m.version}`}>v{m.version}</a>
-                  {m.version === data.currentModelVersion && <span class="tag">current</span>}
-                </td>
-                <td>{m.state}</td>
-                <td>{when(m.publishedAt)}</td>
-                <td class="num">{count(sum(m.trainingCounts))}</td>
-                <td class="num">{count(sum(m.calibrationCounts))}</td>
-                <td class="num">{num(m.metrics?.accuracy, 3)}</td>
-                <td class="num">{num(m.metrics?.macroF1, 3)}</td>
-                <td class="num">{num(m.metrics?.logLoss, 3)}</td>
-                <td class="num">{num(m.metrics?.brier, 3)}</td>
-                <td class="num">{num(m.metrics?.ece, 3)}</td>
-                <td>
-                  <ReportLinks deskId={deskId} version={m.version} status={report(m.version)?.status} />
-                </td>
+                <th>Version</th>
+                <th>State</th>
+                <th>Published</th>
+                <th class="num">Trained on</th>
+                <th class="num">Calibrated on</th>
+                <th class="num">Accuracy</th>
+                <th class="num">Macro-F1</th>
+                <th class="num">Log loss</th>
+                <th class="num">Brier</th>
+                <th class="num">ECE</th>
+                <th>Oversight report</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {data.models.map((m) => (
+                <tr>
+                  <td>
+                    <a href={`/desks/${deskId}/models/${m.version}`}>v{m.version}</a>
+                    {m.version === data.currentModelVersion && <span class="tag">current</span>}
+                  </td>
+                  <td>{m.state}</td>
+                  <td>{when(m.publishedAt)}</td>
+                  <td class="num">{count(sum(m.trainingCounts))}</td>
+                  <td class="num">{count(sum(m.calibrationCounts))}</td>
+                  <td class="num">{num(m.metrics?.accuracy, 3)}</td>
+                  <td class="num">{num(m.metrics?.macroF1, 3)}</td>
+                  <td class="num">{num(m.metrics?.logLoss, 3)}</td>
+                  <td class="num">{num(m.metrics?.brier, 3)}</td>
+                  <td class="num">{num(m.metrics?.ece, 3)}</td>
+                  <td>
+                    <ReportLinks deskId={deskId} version={m.version} status={report(m.version)?.status} />
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </TableBox>
       )}
     </section>
   );

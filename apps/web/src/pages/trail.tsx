@@ -3,6 +3,7 @@ import { get, type Desk, type Verdict, type VerdictList } from '../api';
 import { useData, type PageProps } from '../app';
 import { navigate } from '../router';
 import { when } from '../format';
+import { TableBox } from '../components/table-box';
 
 const PAGE = 100;
 
@@ -86,42 +87,44 @@ export function TrailPage({ params, query }: PageProps) {
       )}
       {first && rows.length === 0 && <p class="empty">No verdict matches these filters.</p>}
       {rows.length > 0 && (
-        <table class="data trail">
-          <thead>
-            <tr>
-              <th>Time</th>
-              <th>Reviewer</th>
-              <th>Item</th>
-              <th>Verdict</th>
-              <th>Model showed</th>
-              <th class="num">Time taken</th>
-              <th>Note</th>
-            </tr>
-          </thead>
-          <tbody>
-            {rows.map((v) => (
-              <tr class={v.undoneAt ? 'undone' : ''}>
-                <td>{when(v.createdAt)}</td>
-                <td>
-                  {v.reviewer}
-                  {v.simulated && <span class="tag">simulated</span>}
-                </td>
-                <td class="num">{v.itemId}</td>
-                <td>
-                  {v.abstain ? 'abstain' : v.category}
-                  {v.undoneAt && <span class="tag">undone {when(v.undoneAt)}</span>}
-                </td>
-                <td>
-                  {v.modelVersion
-                    ? `v${v.modelVersion}: ${v.shownCall} {${(v.shownSet ?? []).join(', ')}}`
-                    : 'no model'}
-                </td>
-                <td class="num">{v.elapsedMs === null ? '–' : `${Math.round(v.elapsedMs / 1000)} s`}</td>
-                <td>{v.note ?? ''}</td>
+        <TableBox label="Decision trail">
+          <table class="data trail">
+            <thead>
+              <tr>
+                <th>Time</th>
+                <th>Reviewer</th>
+                <th>Item</th>
+                <th>Verdict</th>
+                <th>Model showed</th>
+                <th class="num">Time taken</th>
+                <th>Note</th>
               </tr>
-            ))}
-          </tbody>
-        </table>
+            </thead>
+            <tbody>
+              {rows.map((v) => (
+                <tr class={v.undoneAt ? 'undone' : ''}>
+                  <td>{when(v.createdAt)}</td>
+                  <td>
+                    {v.reviewer}
+                    {v.simulated && <span class="tag">simulated</span>}
+                  </td>
+                  <td class="num">{v.itemId}</td>
+                  <td>
+                    {v.abstain ? 'abstain' : v.category}
+                    {v.undoneAt && <span class="tag">undone {when(v.undoneAt)}</span>}
+                  </td>
+                  <td>
+                    {v.modelVersion
+                      ? `v${v.modelVersion}: ${v.shownCall} {${(v.shownSet ?? []).join(', ')}}`
+                      : 'no model'}
+                  </td>
+                  <td class="num">{v.elapsedMs === null ? '–' : `${Math.round(v.elapsedMs / 1000)} s`}</td>
+                  <td>{v.note ?? ''}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </TableBox>
       )}
       {rows.length > 0 && rows.length % PAGE === 0 && (
         <button type="button" onClick={() => void older()}>
