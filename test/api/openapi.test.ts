@@ -233,7 +233,7 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
 
   beforeAll(async () => {
     doc = await previewDocument();
-    s = await startStack(kind);
+    s = await startStack(kind, { env: { TERMS_AFTER_SECONDS: '0' } });
     for (const [name, role] of [
       ['sup', 'supervisor'],
       ['rev', 'reviewer'],
@@ -320,6 +320,9 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('sup', 'GET', `/api/desks/${deskId}/progress`);
     await call('aud', 'GET', `/api/desks/${deskId}/verdicts?limit=20&category=ok`);
     await call('sup', 'GET', `/api/desks/${deskId}/models`);
+    await call('sup', 'GET', `/api/desks/${deskId}/term-suggestions?category=threat&limit=5`);
+    await call('sup', 'POST', `/api/desks/${deskId}/term-suggestions/dismiss`, { category: 'threat', term: 'tonight' });
+    await call('sup', 'POST', `/api/desks/${deskId}/term-suggestions/accept`, { category: 'threat', term: 'burn' });
     await call('aud', 'GET', `/api/desks/${deskId}/models/1`);
     await call('aud', 'GET', `/api/desks/${deskId}/coverage`);
     await call('aud', 'GET', `/api/desks/${deskId}/coverage-preview`);

@@ -122,6 +122,19 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/models/1/report.json`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/models/1/report.html`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/term-suggestions`, allowed: ['supervisor'] },
+    {
+      method: 'POST',
+      path: `/api/desks/${deskId}/term-suggestions/accept`,
+      allowed: ['supervisor'],
+      body: () => ({ category: 'threat', term: 'matrix' }),
+    },
+    {
+      method: 'POST',
+      path: `/api/desks/${deskId}/term-suggestions/dismiss`,
+      allowed: ['supervisor'],
+      body: () => ({ category: 'threat', term: 'matrix' }),
+    },
     { method: 'GET', path: '/api/docs-json', allowed: ALL },
   ];
 

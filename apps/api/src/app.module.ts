@@ -11,6 +11,7 @@ import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsModule } from '#reports';
 import { VerdictsModule } from '#verdicts';
+import { VocabularyModule } from '#vocabulary';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
 
@@ -33,6 +34,7 @@ export class ApiModule {
         ModelsModule,
         DemoModule,
         ReportsModule,
+        VocabularyModule,
       ],
       controllers: [HealthController, AuditController],
     };

@@ -1,7 +1,8 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { Job } from 'bullmq';
 import { ImportRunner, ReseedService } from '#imports';
-import { JOBS, type ImportFilePayload, type JobHandler, type ReseedDeskPayload } from '#queues';
+import { JOBS, type CountTermsPayload, type ImportFilePayload, type JobHandler, type ReseedDeskPayload } from '#queues';
+import { TermStatisticsService } from '#vocabulary';
 
 @Injectable()
 export class ImportFileProcessor implements JobHandler<'import-file'> {
@@ -21,5 +22,15 @@ export class ReseedDeskProcessor implements JobHandler<'reseed-desk'> {
 
   async handle(job: Job<ReseedDeskPayload>): Promise<unknown> {
     return { updated: await this.reseed.run(job.data.deskId) };
+  }
+}
+
+@Injectable()
+export class CountTermsProcessor implements JobHandler<'count-terms'> {
+  readonly jobName = JOBS.countTerms;
+  constructor(@Inject(TermStatisticsService) private readonly terms: TermStatisticsService) {}
+
+  async handle(job: Job<CountTermsPayload>): Promise<unknown> {
+    return (await this.terms.run(job.data.deskId)) ?? { desk: 'gone' };
   }
 }

@@ -7,6 +7,7 @@ import { ImportsWorkModule } from '#imports';
 import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsWorkModule } from '#reports';
+import { VocabularyWorkModule } from '#vocabulary';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
 
@@ -25,6 +26,7 @@ export class WorkerModule {
         ModelsWorkModule.register({ pause: pauseHook(config) }),
         DemoWorkModule,
         ReportsWorkModule,
+        VocabularyWorkModule,
       ],
       providers: [
         ...PROCESSORS,

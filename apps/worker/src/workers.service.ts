@@ -12,7 +12,7 @@ import {
   type JobHandler,
   type JobName,
 } from '#queues';
-import { ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
+import { CountTermsProcessor, ImportFileProcessor, ReseedDeskProcessor } from './import.processor.js';
 import {
   PublishVersionProcessor,
   RetrainDeskProcessor,
@@ -113,4 +113,5 @@ export const PROCESSORS = [
   SweepDesksProcessor,
   SimulateReviewerProcessor,
   WriteReportProcessor,
+  CountTermsProcessor,
 ];

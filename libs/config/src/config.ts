@@ -25,6 +25,8 @@ export interface AppConfig {
   readonly jobLockSeconds: number;
   /** How often a worker looks for desks whose verdicts no model version has learned from. */
   readonly sweepSeconds: number;
+  /** Seconds after an import or a seed-term change before a desk's words are counted again (a burst gives one count). */
+  readonly termsAfterSeconds: number;
   /**
    * Old-space heap limit of the API process (MB), set by the launcher. The API holds little: with V8's default limit
    * (a share of the machine's memory) it lets garbage pile up to hundreds of MB while an export streams.
@@ -78,6 +80,7 @@ export const CONFIG_VARIABLES = [
   'SCORING_CHUNK_SIZE',
   'JOB_LOCK_SECONDS',
   'SWEEP_SECONDS',
+  'TERMS_AFTER_SECONDS',
   'API_HEAP_MB',
   'DEMO',
   'TOKEN_DAYS',
@@ -191,6 +194,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
     jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
+    termsAfterSeconds: int('TERMS_AFTER_SECONDS', 30, 0, 86_400),
     apiHeapMb: int('API_HEAP_MB', 512, 128, 65_536),
     demo: bool('DEMO', true),
     tokenDays: int('TOKEN_DAYS', 90, 1, 3650),
@@ -237,6 +241,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
     JOB_LOCK_SECONDS: String(config.jobLockSeconds),
     SWEEP_SECONDS: String(config.sweepSeconds),
+    TERMS_AFTER_SECONDS: String(config.termsAfterSeconds),
     API_HEAP_MB: String(config.apiHeapMb),
     DEMO: config.demo ? 'on' : 'off',
     TOKEN_DAYS: String(config.tokenDays),

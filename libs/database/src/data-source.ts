@@ -20,6 +20,7 @@ import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.
 import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
 import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expiry.js';
 import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
+import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -48,6 +49,7 @@ export const MIGRATIONS = [
   TermCounts1765100000000,
   TokenExpiry1766200000000,
   ScreeningSettings1766400000000,
+  TermSuggestions1766500000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

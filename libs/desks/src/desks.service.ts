@@ -1,6 +1,7 @@
 import { BadRequestException, ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
+import { APP_CONFIG, type AppConfig } from '#config';
 import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { PredictionsService, type CalibrationStatus } from '#models';
@@ -119,6 +120,7 @@ export class DesksService {
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
   ) {}
 
   async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
@@ -277,7 +279,11 @@ export class DesksService {
       return termsChanged;
     });
     this.directory.forget(deskId);
-    if (seedTermsChanged) await this.jobs.add(JOBS.reseedDesk, { deskId });
+    if (seedTermsChanged) {
+      await this.jobs.add(JOBS.reseedDesk, { deskId });
+      // Multi-word seed terms are counted as one token: the suggestions need a new count.
+      await this.jobs.add(JOBS.countTerms, { deskId }, { delay: this.config.termsAfterSeconds * 1000 });
+    }
     const view = await this.get(deskId);
     const setsChanged = [dto.coverageTarget, dto.coverageTargets, dto.calibration, dto.confidence, dto.watch];
     if (setsChanged.every((x) => x === undefined) && dto.strategy === undefined) return view;

@@ -6,6 +6,7 @@ import { APP_CONFIG, type AppConfig } from '#config';
 import { Database, DeskEntity, ImportEntity, type DbInt, type ImportRowError } from '#database';
 import { compileSeedTerms, type SeedTermMatcher } from '#learning';
 import { DeskFeaturesService, RetrainScheduler } from '#models';
+import { JOBS, JobQueueService } from '#queues';
 import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } from './parsing/index.js';
 import { uploadPath } from './imports.service.js';
 
@@ -42,6 +43,7 @@ export class ImportRunner {
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
   ) {}
 
   async run(
@@ -127,6 +129,10 @@ export class ImportRunner {
     await this.retrain
       .check(imp.deskId, 'import')
       .catch((e: unknown) => this.logger.warn(`retrain request after import failed: ${(e as Error).message}`));
+    // New words for the seed-term suggestions: one count for a burst of imports.
+    await this.jobs
+      .add(JOBS.countTerms, { deskId: imp.deskId }, { delay: this.config.termsAfterSeconds * 1000 })
+      .catch((e: unknown) => this.logger.warn(`term count request after import failed: ${(e as Error).message}`));
     rmSync(path, { force: true });
     const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
     this.logger.log(

@@ -111,7 +111,12 @@ export { estimatePrevalence } from './screening/prevalence.js';
 export type { PeriodSample, PrevalenceEstimate } from './screening/prevalence.js';
 export { ESTIMATION_SHARE, inEstimationFold } from './screening/estimation-fold.js';
 
-export { assertSparseMatrix, sparseMatrixFromDense, sparseMatrixToDense } from './vocabulary/sparse-matrix.js';
+export {
+  assertSparseMatrix,
+  keepLargestPerRow,
+  sparseMatrixFromDense,
+  sparseMatrixToDense,
+} from './vocabulary/sparse-matrix.js';
 export type { SparseMatrix } from './vocabulary/sparse-matrix.js';
 export { DEFAULT_CONTEXT_SMOOTHING, ppmi } from './vocabulary/ppmi.js';
 export type { PpmiOptions } from './vocabulary/ppmi.js';

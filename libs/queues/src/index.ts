@@ -13,6 +13,7 @@ export {
   type SweepDesksPayload,
   type SimulateReviewerPayload,
   type WriteReportPayload,
+  type CountTermsPayload,
 } from './queue-names.js';
 export { jobOptions } from './job-options.js';
 export { createRedis } from './redis.js';

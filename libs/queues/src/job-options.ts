@@ -69,6 +69,15 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
         backoff: { type: 'exponential', delay: 2000 },
       };
     }
+    case JOBS.countTerms:
+      // One id per desk, delayed by the caller: a burst of imports or seed-term edits gives one count, which reads
+      // the pool as it is when it runs. Removed when done so the next request can use the id again.
+      return {
+        ...vanish,
+        jobId: `terms-${(payload as JobPayloads['count-terms']).deskId}`,
+        attempts: 3,
+        backoff: { type: 'exponential', delay: 2000 },
+      };
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
     case JOBS.simulateReviewer:

@@ -33,6 +33,8 @@ export const JOBS = {
   simulateReviewer: 'simulate-reviewer',
   /** Write the oversight report (HTML and JSON) of a published model version. */
   writeReport: 'write-report',
+  /** Count word co-occurrences over a desk's pool for its seed-term suggestions. */
+  countTerms: 'count-terms',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -71,6 +73,10 @@ export interface SimulateReviewerPayload {
   until: number;
 }
 
+export interface CountTermsPayload {
+  deskId: number;
+}
+
 export interface WriteReportPayload {
   deskId: number;
   version: number;
@@ -86,6 +92,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.scoreChunk]: QUEUES.scoring,
   [JOBS.simulateReviewer]: QUEUES.simulation,
   [JOBS.writeReport]: QUEUES.reports,
+  [JOBS.countTerms]: QUEUES.maintenance,
 };
 
 export interface JobPayloads {
@@ -97,4 +104,5 @@ export interface JobPayloads {
   [JOBS.sweepDesks]: SweepDesksPayload;
   [JOBS.simulateReviewer]: SimulateReviewerPayload;
   [JOBS.writeReport]: WriteReportPayload;
+  [JOBS.countTerms]: CountTermsPayload;
 }

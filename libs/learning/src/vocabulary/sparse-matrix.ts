@@ -90,3 +90,38 @@ export function assertSparseMatrix(m: SparseMatrix, name: string): void {
     }
   }
 }
+
+/**
+ * Keeps the `perRow` largest values of each row (ties: the lower column), the
+ * rest dropped: bounds the size of a stored matrix whose rows are compared by
+ * cosine, where the largest entries carry most of each dot product.
+ * @throws RangeError for a `perRow` below 1.
+ */
+export function keepLargestPerRow(m: SparseMatrix, perRow: number): SparseMatrix {
+  if (!Number.isInteger(perRow) || perRow < 1) throw new RangeError(`perRow must be a positive integer, got ${perRow}`);
+  const rowStart = new Int32Array(m.rows + 1);
+  const columnIndex: number[] = [];
+  const values: number[] = [];
+  for (let r = 0; r < m.rows; r++) {
+    const a = m.rowStart[r];
+    const b = m.rowStart[r + 1];
+    let keep: number[] = [];
+    for (let k = a; k < b; k++) keep.push(k);
+    if (keep.length > perRow) {
+      keep.sort((x, y) => m.values[y] - m.values[x] || m.columnIndex[x] - m.columnIndex[y]);
+      keep = keep.slice(0, perRow).sort((x, y) => x - y);
+    }
+    for (const k of keep) {
+      columnIndex.push(m.columnIndex[k]);
+      values.push(m.values[k]);
+    }
+    rowStart[r + 1] = columnIndex.length;
+  }
+  return {
+    rows: m.rows,
+    columns: m.columns,
+    rowStart,
+    columnIndex: Int32Array.from(columnIndex),
+    values: Float64Array.from(values),
+  };
+}

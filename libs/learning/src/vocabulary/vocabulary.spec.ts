@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { CooccurrenceCounter } from './cooccurrence-counter.js';
 import { createPhraseJoiner } from './phrase-joiner.js';
 import { ppmi } from './ppmi.js';
-import { sparseMatrixFromDense, sparseMatrixToDense } from './sparse-matrix.js';
+import { keepLargestPerRow, sparseMatrixFromDense, sparseMatrixToDense } from './sparse-matrix.js';
 import { rankBySimilarity } from './term-similarity.js';
 import { VocabularyCounter } from './vocabulary-counter.js';
 
@@ -108,5 +108,22 @@ describe('rankBySimilarity', () => {
     const top = ranked.map((r) => vocabulary[r.row]);
     expect(top.slice(0, 2).sort()).toEqual(['slash', 'stab']);
     expect(top).not.toContain('bake');
+  });
+});
+
+describe('keepLargestPerRow', () => {
+  it('keeps the largest entries of each row in column order', () => {
+    const m = keepLargestPerRow(
+      sparseMatrixFromDense([
+        [1, 5, 3, 5],
+        [0, 2, 0, 0],
+      ]),
+      2,
+    );
+    expect(sparseMatrixToDense(m)).toEqual([
+      [0, 5, 0, 5],
+      [0, 2, 0, 0],
+    ]);
+    expect(() => keepLargestPerRow(m, 0)).toThrow(RangeError);
   });
 });

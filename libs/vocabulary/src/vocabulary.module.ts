@@ -1,0 +1,23 @@
+import { Module } from '@nestjs/common';
+import { DesksModule } from '#desks';
+import { ModelsCoreModule } from '#models';
+import { TermStatisticsRepository } from './term-statistics.repository.js';
+import { TermStatisticsService } from './term-statistics.service.js';
+import { TermSuggestionsController } from './term-suggestions.controller.js';
+import { TermSuggestionsService } from './term-suggestions.service.js';
+
+/** HTTP side: reading suggestions, accepting and dismissing them. */
+@Module({
+  imports: [DesksModule, ModelsCoreModule],
+  controllers: [TermSuggestionsController],
+  providers: [TermStatisticsRepository, TermSuggestionsService],
+})
+export class VocabularyModule {}
+
+/** Worker side: the count job. */
+@Module({
+  imports: [ModelsCoreModule],
+  providers: [TermStatisticsRepository, TermStatisticsService],
+  exports: [TermStatisticsService],
+})
+export class VocabularyWorkModule {}
