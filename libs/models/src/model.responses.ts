@@ -156,6 +156,7 @@ export const PredictedItemsAnswer = named(
         prediction: PredictionAnswer,
       }),
     ),
-    nextCursor: z.string().nullable().describe('pass as `cursor` for the next page; null on the last'),
+    next: z.string().nullable().describe('pass as `after` for the next page; null on the last'),
+    nextCursor: z.string().nullable().describe('the same as `next` (for clients that page with `cursor`)'),
   }),
 );

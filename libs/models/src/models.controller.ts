@@ -22,6 +22,10 @@ import {
 } from './model.responses.js';
 import { ModelStore } from './model-store.service.js';
 import { PredictionsService } from './predictions.service.js';
+import { ScreeningAnswer } from './screening/screening.responses.js';
+import { ScreeningService } from './screening/screening.service.js';
+
+const LANES = ['flagged', 'cleared'] as const;
 
 const READERS = ['supervisor', 'auditor'] as const;
 
@@ -33,7 +37,21 @@ export class ModelsController {
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(ModelStore) private readonly store: ModelStore,
+    @Inject(ScreeningService) private readonly screeningService: ScreeningService,
   ) {}
+
+  /**
+   * Open items flagged (their set holds a watched category), cleared (it
+   * holds none) or unscored under the current version, the promise of each
+   * watched category in a sentence, what the cleared pile still holds of it,
+   * and what flagging by seed terms alone would do.
+   */
+  @Roles(...READERS)
+  @Get('screening')
+  @ApiAnswer(ScreeningAnswer)
+  async screening(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ScreeningAnswer>> {
+    return this.screeningService.screening(await this.desk(deskId));
+  }
 
   /** Read fresh (not through the directory's short cache): these pages must show the version that is current now. */
   private async desk(deskId: number): Promise<DeskEntity> {
@@ -125,25 +143,42 @@ export class ModelsController {
     return this.predictions.coveragePreview(await this.desk(deskId));
   }
 
-  /** Open items with their current predictions, by item id; filter by call and by a category in the set. */
+  /** Open items with their current predictions, by item id; filter by call, by a category in the set, by lane. */
   @Roles(...READERS)
   @Get('items')
   @ApiAnswer(PredictedItemsAnswer)
   @ApiQuery({ name: 'call', required: false, enum: TRIAGE_CALLS, description: 'only items with this call' })
   @ApiQuery({ name: 'category', required: false, type: String, description: 'only items whose set holds it' })
-  @ApiQuery({ name: 'cursor', required: false, type: String, description: 'the nextCursor of the previous page' })
+  @ApiQuery({
+    name: 'lane',
+    required: false,
+    enum: LANES,
+    description: 'flagged: the set holds a watched category; cleared: it holds none',
+  })
+  @ApiQuery({ name: 'after', required: false, type: String, description: 'the `next` of the previous page' })
+  @ApiQuery({ name: 'cursor', required: false, type: String, description: 'the same as `after`' })
   @ApiQuery({ name: 'limit', required: false, type: Number, description: 'items per page, 1–500 (default 50)' })
   async items(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('call') call?: string,
     @Query('category') category?: string,
+    @Query('lane') lane?: string,
+    @Query('after') after?: string,
     @Query('cursor') cursor?: string,
     @Query('limit') limit?: string,
   ): Promise<Answer<typeof PredictedItemsAnswer>> {
     if (call !== undefined && !(TRIAGE_CALLS as readonly string[]).includes(call))
       throw new BadRequestException(`call: expected one of ${TRIAGE_CALLS.join(', ')}`);
-    if (cursor !== undefined && !/^\d+$/.test(cursor))
-      throw new BadRequestException('cursor: expected the nextCursor of a previous page');
+    if (lane !== undefined && !(LANES as readonly string[]).includes(lane))
+      throw new BadRequestException(`lane: expected one of ${LANES.join(', ')}`);
+    if (after !== undefined && cursor !== undefined)
+      throw new BadRequestException('after: give after or cursor, not both');
+    for (const [name, value] of [
+      ['after', after],
+      ['cursor', cursor],
+    ] as const)
+      if (value !== undefined && !/^\d+$/.test(value))
+        throw new BadRequestException(`${name}: expected the next of a previous page`);
     if (limit !== undefined && (!/^\d+$/.test(limit) || Number(limit) < 1 || Number(limit) > 500))
       throw new BadRequestException('limit: expected a whole number from 1 to 500');
     const desk = await this.desk(deskId);
@@ -151,26 +186,27 @@ export class ModelsController {
     if (category !== undefined && !entry.categories.some((c) => c.name === category))
       throw new BadRequestException(`category: this desk has ${entry.categories.map((c) => c.name).join(', ')}`);
     const model = await this.predictions.current(desk);
-    if (!model) return { modelVersion: null, items: [], nextCursor: null };
+    if (!model) return { modelVersion: null, items: [], next: null, nextCursor: null };
     const want = Number(limit ?? 50);
     const found: Array<{ itemId: number; prediction: ReturnType<PredictionsService['show']> }> = [];
     let next: number | null = null;
-    let after = Number(cursor ?? 0);
+    let from = Number(after ?? cursor ?? 0);
     // Sets depend on the current target, so filtering happens here, page by page of stored probabilities.
     outer: for (;;) {
       const rows = await this.db.query<{ item_id: DbInt; probabilities: string }>(
         null,
         `SELECT p.item_id, p.probabilities FROM predictions p JOIN items i ON i.id = p.item_id WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT 1000`,
-        [deskId, model.version, after],
+        [deskId, model.version, from],
       );
       for (const r of rows) {
         const pred = this.predictions.show(desk, model, JSON.parse(r.probabilities) as number[]);
-        after = Number(r.item_id);
+        from = Number(r.item_id);
         if (call !== undefined && pred.call !== call) continue;
         if (category !== undefined && !pred.set.includes(category)) continue;
+        if (lane !== undefined && pred.set.some((c) => desk.watch.includes(c)) !== (lane === 'flagged')) continue;
         found.push({ itemId: Number(r.item_id), prediction: pred });
         if (found.length === want) {
-          next = after;
+          next = from;
           break outer;
         }
       }
@@ -193,6 +229,7 @@ export class ModelsController {
         source: byId.get(f.itemId)?.source ?? null,
         prediction: f.prediction,
       })),
+      next: next === null ? null : String(next),
       nextCursor: next === null ? null : String(next),
     };
   }

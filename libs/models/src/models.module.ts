@@ -7,6 +7,8 @@ import { PredictionsService } from './predictions.service.js';
 import { PublishService } from './publish.service.js';
 import { RetrainScheduler } from './retrain-scheduler.service.js';
 import { ScoringService } from './scoring.service.js';
+import { ScreeningRepository } from './screening/screening.repository.js';
+import { ScreeningService } from './screening/screening.service.js';
 import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
 
 const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainScheduler];
@@ -19,6 +21,7 @@ export class ModelsCoreModule {}
 @Module({
   imports: [ModelsCoreModule],
   controllers: [ModelsController, PredictionsExportController],
+  providers: [ScreeningRepository, ScreeningService],
   exports: [ModelsCoreModule],
 })
 export class ModelsModule {}
