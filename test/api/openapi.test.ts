@@ -264,6 +264,7 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
       retrainEvery: 10,
       retrainAfterSeconds: 1,
       randomShare: 0.3,
+      watch: ['threat'],
     });
     expect(desk.status).toBe(201);
     const deskId = desk.body.id as number;
@@ -271,6 +272,7 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('rev', 'GET', `/api/desks/${deskId}`);
     await call('sup', 'GET', `/api/desks/${deskId}/coverage-preview`);
     await call('sup', 'GET', `/api/desks/${deskId}/items`);
+    await call('sup', 'GET', `/api/desks/${deskId}/screening`);
 
     const pool = syntheticPool(400, 11);
     const labels = new Map(pool.map((p) => [p.externalId, p.label]));
@@ -327,6 +329,8 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('aud', 'GET', `/api/desks/${deskId}/coverage`);
     await call('aud', 'GET', `/api/desks/${deskId}/coverage-preview`);
     await call('aud', 'GET', `/api/desks/${deskId}/items?limit=5&call=ambiguous`);
+    await call('aud', 'GET', `/api/desks/${deskId}/items?limit=5&lane=cleared`);
+    await call('aud', 'GET', `/api/desks/${deskId}/screening`);
     await call('sup', 'PATCH', `/api/desks/${deskId}`, { coverageTarget: 0.85 });
     await call('aud', 'GET', `/api/desks/${deskId}/agreement`);
     const live = (await s.call(tokens.aud, 'GET', `/api/desks/${deskId}/verdicts?limit=20`)).body.verdicts.find(
