@@ -101,15 +101,15 @@ async function oneDatabase(kind: string) {
       await api<{ token: string }>(base, admin.token, 'POST', '/api/users', { name: 'bench-sup', role: 'supervisor' })
     ).token;
     const reviewers: string[] = [];
-    for (let i = 0; i < 8; i++)
-      reviewers.push(
-        (
-          await api<{ token: string }>(base, admin.token, 'POST', '/api/users', {
-            name: `bench-rev-${i}`,
-            role: 'reviewer',
-          })
-        ).token,
-      );
+    const reviewerIds: number[] = [];
+    for (let i = 0; i < 8; i++) {
+      const made = await api<{ id: number; token: string }>(base, admin.token, 'POST', '/api/users', {
+        name: `bench-rev-${i}`,
+        role: 'reviewer',
+      });
+      reviewers.push(made.token);
+      reviewerIds.push(made.id);
+    }
     // No retrain from the count or time rules while the verdicts go in (the first model still comes as soon as it can).
     const desk = await api<{ id: number }>(base, sup, 'POST', '/api/desks', {
       name: 'bench-loop',
@@ -118,6 +118,8 @@ async function oneDatabase(kind: string) {
       retrainEvery: 100_000,
       retrainAfterSeconds: 86_400,
     });
+    for (const id of reviewerIds)
+      await api(base, sup, 'PUT', `/api/desks/${desk.id}/members/${id}`, { role: 'reviewer' });
     log(`${kind}: importing ${ITEMS} items`);
     const imported = await importPool(base, sup, desk.id, ndjsonPool(ITEMS, 7), 600_000, (v) =>
       log(`${kind}: import ${v.rowsRead} rows`),

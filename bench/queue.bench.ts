@@ -205,15 +205,14 @@ async function benchDatabase(kind: DatabaseKind, pool: Buffer) {
     role: 'supervisor',
   });
   const reviewerTokens: string[] = [];
+  const reviewerIds: number[] = [];
   for (let i = 1; i <= SETTINGS.reviewers; i++) {
-    reviewerTokens.push(
-      (
-        await api<{ token: string }>(baseUrl, admin.token, 'POST', '/api/users', {
-          name: `bench-reviewer-${i}`,
-          role: 'reviewer',
-        })
-      ).token,
-    );
+    const made = await api<{ id: number; token: string }>(baseUrl, admin.token, 'POST', '/api/users', {
+      name: `bench-reviewer-${i}`,
+      role: 'reviewer',
+    });
+    reviewerTokens.push(made.token);
+    reviewerIds.push(made.id);
   }
   const desk = await api<{ id: number }>(baseUrl, supervisor.token, 'POST', '/api/desks', {
     name: 'bench',
@@ -221,6 +220,8 @@ async function benchDatabase(kind: DatabaseKind, pool: Buffer) {
     randomShare: 0.2,
     leaseSeconds: 600,
   });
+  for (const id of reviewerIds)
+    await api(baseUrl, supervisor.token, 'PUT', `/api/desks/${desk.id}/members/${id}`, { role: 'reviewer' });
 
   log(`${kind}: importing ${SETTINGS.items} items through the API (worker running)`);
   const worker = start(`worker-${kind}`, SCRIPTS.worker);

@@ -22,6 +22,7 @@ describe.each(DATABASE_KINDS)('32 concurrent reviewers on %s', (kind) => {
       randomShare: 0.2,
     });
     deskId = d.body.id;
+    await s.enrol(deskId);
     const lines = Array.from({ length: ITEMS }, (_, i) =>
       JSON.stringify({ text: i % 3 === 0 ? `I will hurt you ${i}` : `calm post ${i}` }),
     );

@@ -72,6 +72,7 @@ describe.each(DATABASE_KINDS)('imports on %s', (kind) => {
     });
     expect(r.status).toBe(201);
     deskId = r.body.id;
+    await s.enrol(deskId);
   });
   afterAll(async () => (s as Stack | undefined)?.stop());
 

@@ -28,6 +28,7 @@ describe.each(DATABASE_KINDS)('SIGKILL of the API during verdicts on %s', (kind)
     deskId = (
       await s.call(sup, 'POST', '/api/desks', { name: 'kill', categories: ['threat', 'ok'], secondOpinionShare: 0 })
     ).body.id;
+    await s.enrol(deskId);
     const lines = Array.from({ length: 3000 }, (_, i) => JSON.stringify({ text: `post ${i}` })).join('\n');
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, lines, {
       'content-type': 'application/x-ndjson',

@@ -19,6 +19,7 @@ describe('a lease while every open item is held by another transaction (PostgreS
     rev = await s.user('rev', 'reviewer');
     deskId = (await s.call(sup, 'POST', '/api/desks', { name: 'held', categories: ['a', 'b'], secondOpinionShare: 0 }))
       .body.id;
+    await s.enrol(deskId);
     const body = Array.from({ length: 200 }, (_, i) => JSON.stringify({ text: `post number ${i}` })).join('\n');
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, body, {
       'content-type': 'application/x-ndjson',
@@ -56,6 +57,7 @@ describe('a lease while every open item is held by another transaction (PostgreS
   it('still answers 204 at once when the pool is truly empty', async () => {
     const sup = s.tokens.sup;
     const empty = (await s.call(sup, 'POST', '/api/desks', { name: 'empty', categories: ['a', 'b'] })).body.id;
+    await s.enrol(empty);
     const t0 = Date.now();
     expect((await s.call(rev, 'POST', `/api/desks/${empty}/leases`)).status).toBe(204);
     expect(Date.now() - t0).toBeLessThan(2000);

@@ -268,6 +268,22 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     });
     expect(desk.status).toBe(201);
     const deskId = desk.body.id as number;
+    // The creator supervises the desk; the others join through the members routes.
+    const ids = Object.fromEntries(
+      ((await s.call(tokens.adm, 'GET', '/api/users')).body.users as Array<{ id: number; name: string }>).map((u) => [
+        u.name,
+        u.id,
+      ]),
+    );
+    for (const [who, role] of [
+      ['rev', 'reviewer'],
+      ['rev2', 'reviewer'],
+      ['aud', 'auditor'],
+    ] as const)
+      await call('sup', 'PUT', `/api/desks/${deskId}/members/${ids[who]}`, { role });
+    await call('adm', 'PUT', `/api/desks/${deskId}/members/${ids.ash}`, { role: 'reviewer' });
+    await call('adm', 'DELETE', `/api/desks/${deskId}/members/${ids.ash}`);
+    await call('aud', 'GET', `/api/desks/${deskId}/members`);
     await call('sup', 'GET', '/api/desks');
     await call('rev', 'GET', `/api/desks/${deskId}`);
     await call('sup', 'GET', `/api/desks/${deskId}/coverage-preview`);

@@ -136,6 +136,7 @@ describe.each(DATABASE_KINDS)('the predictions export on %s', (kind) => {
   it('neutralises formula-leading notes and category names in the decision trail', async () => {
     const d = await s.call(desk.sup, 'POST', '/api/desks', { name: 'formulas', categories: ['=cmd', '@alert', 'ok'] });
     expect(d.status).toBe(201);
+    await s.enrol(d.body.id);
     const imp = await s.call(desk.sup, 'POST', `/api/desks/${d.body.id}/imports`, '{"text":"one post"}\n', {
       'content-type': 'application/x-ndjson',
     });

@@ -27,6 +27,7 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
       ...settings,
     });
     expect(r.status).toBe(201);
+    await s.enrol(r.body.id);
     const body = texts.map((text) => JSON.stringify({ text })).join('\n');
     const imp = await s.call(sup, 'POST', `/api/desks/${r.body.id}/imports`, body, {
       'content-type': 'application/x-ndjson',

@@ -41,6 +41,7 @@ describe.each(DATABASE_KINDS)('screening settings on %s', (kind) => {
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
+    await s.enrol(deskId);
     const pool = syntheticPool(1500, 11);
     await importRows(
       s,

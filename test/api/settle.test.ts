@@ -182,6 +182,7 @@ describe.each(DATABASE_KINDS)('disagreements and settling on %s', (kind) => {
       retrainAfterSeconds: 1,
     });
     const deskId = d.body.id as number;
+    await s.enrol(deskId);
     const pool = syntheticPool(300, 3);
     const labels = new Map(pool.map((p) => [p.externalId, p.label]));
     const imp = await s.call(

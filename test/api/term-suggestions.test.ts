@@ -32,6 +32,7 @@ describe.each(DATABASE_KINDS)('seed-term suggestions on %s', (kind) => {
       retrainAfterSeconds: 1,
     });
     deskId = d.body.id as number;
+    await s.enrol(deskId);
     const imp = await s.call(sup, 'POST', `/api/desks/${deskId}/imports`, mossbankNdjson(posts), {
       'content-type': 'application/x-ndjson',
     });

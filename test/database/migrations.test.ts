@@ -158,6 +158,37 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
     );
   });
 
+  it('makes every account but the admins a member of every existing desk, with its role', async () => {
+    await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('ada', 'admin', false, ?)`, [now]);
+    await q(`INSERT INTO users (name, role, disabled, created_at) VALUES ('oz', 'auditor', false, ?)`, [now]);
+    // Back to the schema before desk memberships, then forward again, with users and desks in place.
+    const since = MIGRATIONS.findIndex((m) => m.name === 'DeskMembers1766210000000');
+    expect(since).toBeGreaterThan(0);
+    for (let i = since; i < MIGRATIONS.length; i++) await ds.undoLastMigration({ transaction: 'each' });
+    await ds.runMigrations({ transaction: 'each' });
+    const rows: Array<{ desk: string; name: string; role: string }> = await q(
+      `SELECT d.name AS desk, u.name, m.role FROM desk_members m JOIN desks d ON d.id = m.desk_id JOIN users u ON u.id = m.user_id ORDER BY d.name, u.name`,
+    );
+    const users: Array<{ name: string; role: string }> = await q(`SELECT name, role FROM users WHERE role <> 'admin'`);
+    expect(users.length).toBeGreaterThanOrEqual(3);
+    expect(rows.map((r) => `${r.desk}:${r.name}:${r.role}`)).toEqual(
+      ['alpha', 'beta'].flatMap((d) => users.map((u) => `${d}:${u.name}:${u.role}`).sort((a, b) => a.localeCompare(b))),
+    );
+    expect(rows.some((r) => r.name === 'ada')).toBe(false);
+    await expect(
+      q(
+        `INSERT INTO desk_members (desk_id, user_id, role, created_at, updated_at) VALUES (1, (SELECT id FROM users WHERE name = 'ada'), 'admin', ?, ?)`,
+        [now, now],
+      ),
+    ).rejects.toThrow(/ck_desk_members_role|CHECK/i);
+    await expect(
+      q(`INSERT INTO desk_members (desk_id, user_id, role, created_at, updated_at) VALUES (1, 999, 'reviewer', ?, ?)`, [
+        now,
+        now,
+      ]),
+    ).rejects.toThrow(/foreign key|FOREIGN KEY/i);
+  });
+
   it('reverts every migration with down()', async () => {
     for (let i = 0; i < MIGRATIONS.length; i++) await ds.undoLastMigration({ transaction: 'each' });
     const tables: Array<{ name: string }> = await q(

@@ -72,6 +72,7 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
         retrainAfterSeconds: 600,
       })
     ).body.id;
+    await s.enrol(deskId);
     const pool = syntheticPool(POOL, 11);
     for (const p of pool) labels.set(p.externalId, p.label);
     const w = worker();

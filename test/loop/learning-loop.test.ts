@@ -37,6 +37,7 @@ describe.each(DATABASE_KINDS)('the learning loop end to end on %s', (kind) => {
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
+    await s.enrol(deskId);
     const pool = syntheticPool(POOL);
     for (const p of pool) labels.set(p.externalId, p.label);
     const body = pool.map((p) => JSON.stringify({ text: p.text, external_id: p.externalId })).join('\n');

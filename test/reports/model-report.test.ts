@@ -62,6 +62,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
+    await s.enrol(deskId);
     const pool = syntheticPool(POOL, 11);
     for (const p of pool) labels.set(p.externalId, p.label);
     const imp = await s.call(

@@ -8,7 +8,7 @@ import { Queue } from 'bullmq';
 import { Redis } from 'ioredis';
 import { createHttpApp } from '../../apps/api/src/http-app.js';
 import { WorkerModule } from '../../apps/worker/src/worker.module.js';
-import { AuthService } from '#auth';
+import { AuthService, MembershipService } from '#auth';
 import { parseConfig, type AppConfig } from '#config';
 import { Database, type Role } from '#database';
 import { QUEUES } from '#queues';
@@ -33,6 +33,11 @@ export interface Stack {
   tokens: Record<string, string>;
   /** Creates a user directly; returns its API token. */
   user(name: string, role: Role, password?: string): Promise<string>;
+  /**
+   * Makes users members of a desk (as the desk's supervisor or an admin would): `names` with their account's role,
+   * or, without names, every user made with {@link user} that is not an admin.
+   */
+  enrol(deskId: number, names?: string[]): Promise<void>;
   call<T = any>(
     token: string | null,
     method: string,
@@ -84,9 +89,23 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const db = api.get(Database);
   const tokens: Record<string, string> = {};
   const user = async (name: string, role: Role, password?: string) => {
-    const { token } = await auth.createUser({ id: null, name: 'test' }, { name, role, password });
+    const { token, user: made } = await auth.createUser({ id: null, name: 'test' }, { name, role, password });
     tokens[name] = token;
+    roles[name] = { id: made.id, role };
     return token;
+  };
+  const members = api.get(MembershipService);
+  const roles: Record<string, { id: number; role: Role }> = {};
+  const enrol = async (deskId: number, names?: string[]) => {
+    const who = names ?? Object.keys(roles).filter((n) => roles[n].role !== 'admin');
+    await db.write(async (m) => {
+      for (const n of who) {
+        const u = roles[n] as { id: number; role: Role } | undefined;
+        if (!u) throw new Error(`enrol: no user ${n} made by this stack`);
+        if (u.role === 'admin') throw new Error(`enrol: ${n} is an admin; give a member role through the API`);
+        await members.enrol(m, { id: null, name: 'test' }, deskId, u.id, u.role);
+      }
+    });
   };
   const call = async <T>(
     token: string | null,
@@ -181,6 +200,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
     db,
     tokens,
     user,
+    enrol,
     call,
     waitForQueuesIdle,
     stopWorker,

@@ -67,6 +67,7 @@ export async function deskWithItems(
   const d = await s.call(supervisor, 'POST', '/api/desks', { name, categories });
   if (d.status !== 201) throw new Error(`desk: ${d.status} ${JSON.stringify(d.body)}`);
   const deskId = d.body.id as number;
+  await s.enrol(deskId);
   const body = Array.from({ length: count }, (_, i) =>
     JSON.stringify({ text: `Mossbank Commons post number ${i} about the allotment fence`, external_id: `mb-${i}` }),
   ).join('\n');

@@ -34,6 +34,7 @@ export async function webDesk(
   });
   expect(d.status).toBe(201);
   const deskId = d.body.id as number;
+  await s.enrol(deskId);
   const pool = syntheticPool(options.pool ?? 400);
   const labels = new Map<string, string>(pool.map((p) => [p.externalId, p.label]));
   const rows = pool.map((p) => ({ text: p.text, externalId: p.externalId, source: 'board/general' }));

@@ -37,6 +37,7 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     await page.getByRole('button', { name: 'Create the desk' }).click();
     await page.waitForURL(/\/desks\/\d+\/import$/);
     deskId = Number(new URL(page.url()).pathname.split('/')[2]);
+    await s.enrol(deskId);
     const desk = (await s.call(sup, 'GET', `/api/desks/${deskId}`)).body;
     expect(desk.categories.map((c: { name: string }) => c.name)).toEqual(['threat', 'harassment', 'ok']);
     expect(desk.seedTerms).toEqual({ threat: ['hurt', 'find you'], harassment: ['idiot', 'clown'] });
@@ -125,6 +126,7 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
   it('settles a disagreement between two reviewers from the agreement screen', async () => {
     const { page } = b;
     const other = await s.user('kit', 'reviewer', PASSWORD);
+    await s.enrol(deskId, ['kit']);
     await s.call(sup, 'PATCH', `/api/desks/${deskId}`, { secondOpinionShare: 1 });
     await new Promise((r) => setTimeout(r, 2100)); // the desk settings cache lives 2 s
     const first = await s.call(rev, 'POST', `/api/desks/${deskId}/leases`);

@@ -50,7 +50,7 @@ const publicUser = (u: UserEntity) => ({
 });
 
 /** The accounts' errors as HTTP answers. */
-function toHttp(e: unknown): never {
+export function toHttp(e: unknown): never {
   if (e instanceof AuthConflict) throw new ConflictException(e.message);
   if (e instanceof AuthNotFound) throw new NotFoundException(e.message);
   if (e instanceof AuthForbidden) throw new ForbiddenException(e.message);

@@ -5,15 +5,18 @@ import { AuthGuard } from './auth.guard.js';
 import { AuthService } from './auth.service.js';
 import { SignInLimiter } from './sign-in-limiter.js';
 import { SignInService } from './sign-in.service.js';
+import { MembersController } from './members/members.controller.js';
+import { MembershipModule } from './members/membership.module.js';
 
 /** Accounts, sign-in and the global guard; the HTTP app imports it. */
 @Module({
-  controllers: [AuthController, UsersController],
+  imports: [MembershipModule],
+  controllers: [AuthController, UsersController, MembersController],
   providers: [AuthService, SignInLimiter, SignInService, { provide: APP_GUARD, useClass: AuthGuard }],
-  exports: [AuthService],
+  exports: [AuthService, MembershipModule],
 })
 export class AuthModule {}
 
 /** Accounts without HTTP, for the operator command line. */
-@Module({ providers: [AuthService], exports: [AuthService] })
+@Module({ imports: [MembershipModule], providers: [AuthService], exports: [AuthService, MembershipModule] })
 export class AuthCoreModule {}

@@ -12,6 +12,7 @@ import { userSchema } from './entities/user.entity.js';
 import { verdictSchema } from './entities/verdict.entity.js';
 import { modelVersionSchema } from './entities/model-version.entity.js';
 import { modelReportSchema } from './entities/model-report.entity.js';
+import { deskMemberSchema } from './entities/desk-member.entity.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-loop.js';
 import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js';
@@ -19,6 +20,7 @@ import { ModelReports1764900000000 } from './migrations/1764900000000-model-repo
 import { TrailIndex1765000000000 } from './migrations/1765000000000-trail-index.js';
 import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.js';
 import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expiry.js';
+import { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
 import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
 
@@ -36,6 +38,7 @@ export function entitySchemas(dialect: Dialect) {
     auditEventSchema,
     modelVersionSchema,
     modelReportSchema,
+    deskMemberSchema,
   ].map((f) => f(dialect));
 }
 
@@ -48,6 +51,7 @@ export const MIGRATIONS = [
   TrailIndex1765000000000,
   TermCounts1765100000000,
   TokenExpiry1766200000000,
+  DeskMembers1766210000000,
   ScreeningSettings1766400000000,
   TermSuggestions1766500000000,
 ];

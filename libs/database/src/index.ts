@@ -6,6 +6,8 @@ export type { Dialect } from './dialect.js';
 export { Mutex } from './mutex.js';
 export { UserEntity, ROLES, type Role } from './entities/user.entity.js';
 export { CredentialEntity } from './entities/credential.entity.js';
+export { DeskMemberEntity, MEMBER_ROLES, type MemberRole } from './entities/desk-member.entity.js';
+export { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
 export {
   DeskEntity,
   CALIBRATION_MODES,

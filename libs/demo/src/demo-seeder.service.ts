@@ -1,9 +1,9 @@
 import { randomBytes } from 'node:crypto';
 import { Readable } from 'node:stream';
 import { Inject, Injectable } from '@nestjs/common';
-import { AuthService } from '#auth';
+import { AuthService, MembershipService } from '#auth';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, type DbInt, type Role } from '#database';
+import { Database, type DbInt, type MemberRole } from '#database';
 import { DesksService } from '#desks';
 import { ImportsService } from '#imports';
 import {
@@ -18,7 +18,7 @@ import {
 export const DEMO_DESK_NAME = 'Mossbank Commons';
 
 /** The demo accounts, one per role; each name is its role, so nobody has to guess. */
-export const DEMO_ACCOUNTS: ReadonlyArray<{ name: string; role: Role }> = [
+export const DEMO_ACCOUNTS: ReadonlyArray<{ name: string; role: MemberRole }> = [
   { name: 'supervisor', role: 'supervisor' },
   { name: 'reviewer', role: 'reviewer' },
   { name: 'auditor', role: 'auditor' },
@@ -29,7 +29,7 @@ export interface DemoSeedResult {
   deskId: number;
   importId: string;
   posts: number;
-  accounts: Array<{ name: string; role: Role; password: string }>;
+  accounts: Array<{ name: string; role: MemberRole; password: string }>;
 }
 
 /**
@@ -45,6 +45,7 @@ export class DemoSeeder {
     @Inject(AuthService) private readonly auth: AuthService,
     @Inject(DesksService) private readonly desks: DesksService,
     @Inject(ImportsService) private readonly imports: ImportsService,
+    @Inject(MembershipService) private readonly members: MembershipService,
   ) {}
 
   /** Seeds when DEMO is on and the database has neither users nor desks; otherwise does nothing and returns null. */
@@ -71,6 +72,11 @@ export class DemoSeeder {
       name: DEMO_DESK_NAME,
       categories: [...MOSSBANK_CATEGORIES],
       seedTerms: Object.fromEntries(Object.entries(MOSSBANK_SEED_TERMS).map(([c, terms]) => [c, [...terms]])),
+    });
+    // The supervisor became a member by creating the desk; the others join with their account's role.
+    await this.db.write(async (m) => {
+      for (const a of DEMO_ACCOUNTS)
+        if (a.role !== 'supervisor') await this.members.enrol(m, supervisor, desk.id, ids.get(a.name)!, a.role);
     });
     const posts = generateMossbankPool({ seed: DEMO_POOL_SEED, count: DEMO_POOL_SIZE });
     const body = Object.assign(Readable.from([Buffer.from(mossbankNdjson(posts), 'utf8')]), {

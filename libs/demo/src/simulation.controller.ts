@@ -1,7 +1,7 @@
 import { Body, Controller, Delete, Get, HttpCode, Inject, Param, ParseIntPipe, Post } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, ApiErrors, ApiNoContent, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentUser, Roles, type Principal, OnDesk } from '#auth';
 import { StartSimulationDto } from './simulation.dto.js';
 import { SimulationRunAnswer, SimulationStatusAnswer } from './simulation.responses.js';
 import { SimulationService } from './simulation.service.js';
@@ -14,6 +14,7 @@ export class SimulationController {
 
   /** 202 with the new run; 409 on a desk that holds anything but generated posts, or while a run is going. */
   @Roles('supervisor')
+  @OnDesk()
   @Post()
   @HttpCode(202)
   @ApiAnswer(SimulationRunAnswer, { status: 202, description: 'the run has started' })
@@ -30,6 +31,7 @@ export class SimulationController {
   }
 
   @Roles('supervisor')
+  @OnDesk()
   @Get()
   @ApiAnswer(SimulationStatusAnswer)
   status(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof SimulationStatusAnswer>> {
@@ -37,6 +39,7 @@ export class SimulationController {
   }
 
   @Roles('supervisor')
+  @OnDesk()
   @Delete()
   @HttpCode(204)
   @ApiNoContent('the run has stopped')

@@ -1,5 +1,5 @@
 import { isoTime, named, z } from '#api-docs';
-import { CALIBRATION_MODES, SCORES, STRATEGIES } from '#database';
+import { CALIBRATION_MODES, MEMBER_ROLES, SCORES, STRATEGIES } from '#database';
 import { CalibrationStatusAnswer } from '#models';
 
 /** A desk with its categories, seed terms and settings. */
@@ -32,6 +32,10 @@ export const DeskAnswer = named(
     currentModelVersion: z.int().nullable(),
     createdAt: isoTime,
     updatedAt: isoTime,
+    role: z
+      .enum(MEMBER_ROLES)
+      .nullable()
+      .describe('the caller’s role on this desk; null for an admin who is not a member'),
   }),
 );
 

@@ -1,7 +1,7 @@
 import { Body, Controller, Get, Inject, Param, ParseIntPipe, Patch, Post } from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentDesk, CurrentUser, MembershipService, OnDesk, Roles, type DeskAccess, type Principal } from '#auth';
 import { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
 import { DeskAnswer, DeskListAnswer, UpdatedDeskAnswer } from './desk.responses.js';
 import { DesksService } from './desks.service.js';
@@ -9,39 +9,51 @@ import { DesksService } from './desks.service.js';
 @ApiTags('desks')
 @Controller('api/desks')
 export class DesksController {
-  constructor(@Inject(DesksService) private readonly desks: DesksService) {}
+  constructor(
+    @Inject(DesksService) private readonly desks: DesksService,
+    @Inject(MembershipService) private readonly members: MembershipService,
+  ) {}
 
   @Roles('supervisor')
   @Post()
   @ApiAnswer(DeskAnswer, { status: 201, description: 'the new desk' })
   @ApiErrors({ 409: 'a desk of that name exists already' })
-  create(@CurrentUser() user: Principal, @Body() body: CreateDeskDto): Promise<Answer<typeof DeskAnswer>> {
-    return this.desks.create(user, body);
+  async create(@CurrentUser() user: Principal, @Body() body: CreateDeskDto): Promise<Answer<typeof DeskAnswer>> {
+    return { ...(await this.desks.create(user, body)), role: 'supervisor' };
   }
 
-  @Roles('reviewer', 'supervisor', 'auditor')
+  /** The desks the caller is a member of; an admin sees every desk (to manage its members), with a null role. */
+  @Roles('reviewer', 'supervisor', 'auditor', 'admin')
   @Get()
   @ApiAnswer(DeskListAnswer)
-  async list(): Promise<Answer<typeof DeskListAnswer>> {
-    return { desks: await this.desks.list() };
+  async list(@CurrentUser() user: Principal): Promise<Answer<typeof DeskListAnswer>> {
+    const roles = await this.members.rolesOf(user.id);
+    const desks = await this.desks.list(user.role === 'admin' ? 'all' : [...roles.keys()]);
+    return { desks: desks.map((d) => ({ ...d, role: roles.get(d.id) ?? null })) };
   }
 
   @Roles('reviewer', 'supervisor', 'auditor')
+  @OnDesk()
   @Get(':deskId')
   @ApiAnswer(DeskAnswer)
-  get(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof DeskAnswer>> {
-    return this.desks.get(deskId);
+  async get(
+    @CurrentDesk() desk: DeskAccess,
+    @Param('deskId', ParseIntPipe) deskId: number,
+  ): Promise<Answer<typeof DeskAnswer>> {
+    return { ...(await this.desks.get(deskId)), role: desk.role };
   }
 
   @Roles('supervisor')
+  @OnDesk()
   @Patch(':deskId')
   @ApiAnswer(UpdatedDeskAnswer)
   @ApiErrors({ 409: 'a desk of that name exists already, or categories cannot change once verdicts exist' })
-  update(
+  async update(
     @CurrentUser() user: Principal,
+    @CurrentDesk() desk: DeskAccess,
     @Param('deskId', ParseIntPipe) deskId: number,
     @Body() body: UpdateDeskDto,
   ): Promise<Answer<typeof UpdatedDeskAnswer>> {
-    return this.desks.update(user, deskId, body);
+    return { ...(await this.desks.update(user, deskId, body)), role: desk.role };
   }
 }

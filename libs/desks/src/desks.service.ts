@@ -1,7 +1,8 @@
 import { BadRequestException, ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
-import type { EntityManager } from 'typeorm';
+import { In, type EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import { APP_CONFIG, type AppConfig } from '#config';
+import { MembershipService } from '#auth';
 import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { PredictionsService, type CalibrationStatus } from '#models';
@@ -121,6 +122,7 @@ export class DesksService {
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
+    @Inject(MembershipService) private readonly members: MembershipService,
   ) {}
 
   async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
@@ -164,6 +166,8 @@ export class DesksService {
         dto.categories.map((name, i) => ({ deskId: desk.id, name, position: i + 1, createdAt: now })),
       );
       const view = await this.viewIn(m, desk.id);
+      // The creator supervises the desk: nobody else sees it until they are made members.
+      if (actor.id !== null) await this.members.enrol(m, actor, desk.id, actor.id, 'supervisor');
       await this.audit.record(m, actor, {
         action: 'desk.create',
         entityType: 'desk',
@@ -176,8 +180,13 @@ export class DesksService {
     return this.get(deskId);
   }
 
-  async list(): Promise<DeskView[]> {
-    const desks = await this.db.manager.find(DeskEntity, { order: { id: 'ASC' } });
+  /** The desks with these ids, or every desk when `ids` is `'all'`. */
+  async list(ids: number[] | 'all'): Promise<DeskView[]> {
+    if (ids !== 'all' && ids.length === 0) return [];
+    const desks = await this.db.manager.find(DeskEntity, {
+      where: ids === 'all' ? {} : { id: In(ids) },
+      order: { id: 'ASC' },
+    });
     const cats = await this.db.manager.find(CategoryEntity, { order: { position: 'ASC' } });
     return desks.map((d) =>
       toView(

@@ -2,7 +2,7 @@ import { Controller, Get, HttpCode, Inject, Param, ParseIntPipe, ParseUUIDPipe, 
 import { ApiConsumes, ApiTags } from '@nestjs/swagger';
 import type { Request } from 'express';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentUser, Roles, type Principal, OnDesk } from '#auth';
 import { ImportAnswer, ImportListAnswer, ImportStartedAnswer } from './import.responses.js';
 import { ImportsService } from './imports.service.js';
 
@@ -16,6 +16,7 @@ export class ImportsController {
    * disk and queues it; answers `{importId}` as soon as the upload is stored.
    */
   @Roles('supervisor')
+  @OnDesk()
   @Post('desks/:deskId/imports')
   @HttpCode(202)
   @ApiConsumes('application/x-ndjson', 'text/csv', 'application/json', 'multipart/form-data')
@@ -30,6 +31,7 @@ export class ImportsController {
   }
 
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('desks/:deskId/imports')
   @ApiAnswer(ImportListAnswer)
   async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ImportListAnswer>> {
@@ -37,6 +39,7 @@ export class ImportsController {
   }
 
   @Roles('supervisor', 'auditor')
+  @OnDesk('importId')
   @Get('imports/:importId')
   @ApiAnswer(ImportAnswer)
   get(@Param('importId', new ParseUUIDPipe()) importId: string): Promise<Answer<typeof ImportAnswer>> {

@@ -13,7 +13,7 @@ import {
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiNoContent, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentUser, Roles, type Principal, OnDesk } from '#auth';
 import { LeaseGrantAnswer, MyLeasesAnswer } from './lease.responses.js';
 import { LeasesService } from './leases.service.js';
 
@@ -24,6 +24,7 @@ export class LeasesController {
 
   /** The next item for the reviewer: 201 with the lease, or 204 when nothing is left. */
   @Roles('reviewer')
+  @OnDesk()
   @Post('desks/:deskId/leases')
   @ApiAnswer(LeaseGrantAnswer, { status: 201, description: 'an item, held for this reviewer until the lease expires' })
   @ApiNoContent('nothing is left for this reviewer on the desk')
@@ -42,6 +43,7 @@ export class LeasesController {
   }
 
   @Roles('reviewer')
+  @OnDesk()
   @Get('desks/:deskId/leases/mine')
   @ApiAnswer(MyLeasesAnswer)
   async mine(
@@ -52,6 +54,7 @@ export class LeasesController {
   }
 
   @Roles('reviewer')
+  @OnDesk('leaseId')
   @Delete('leases/:leaseId')
   @HttpCode(204)
   @ApiNoContent('the item is back in the pool')

@@ -10,7 +10,7 @@ import {
 } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
-import { Roles } from '#auth';
+import { Roles, OnDesk } from '#auth';
 import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS, type DbInt } from '#database';
 import {
   CoverageAnswer,
@@ -62,6 +62,7 @@ export class ModelsController {
 
   /** Model versions, newest first: counts, quality figures, timings, parent. */
   @Roles(...READERS)
+  @OnDesk()
   @Get('models')
   @ApiAnswer(ModelListAnswer)
   async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ModelListAnswer>> {
@@ -92,6 +93,7 @@ export class ModelsController {
   }
 
   @Roles(...READERS)
+  @OnDesk()
   @Get('models/:version')
   @ApiAnswer(ModelVersionAnswer)
   async one(
@@ -129,6 +131,7 @@ export class ModelsController {
 
   /** Realized coverage of random draws against the sets shown, per version, per category and over the last 200; the coverage alert. */
   @Roles(...READERS)
+  @OnDesk()
   @Get('coverage')
   @ApiAnswer(CoverageAnswer)
   async coverage(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof CoverageAnswer>> {
@@ -137,6 +140,7 @@ export class ModelsController {
 
   /** Expected share of sure, ambiguous and unfamiliar calls and mean set size over the pool, for targets 0.50–0.99. */
   @Roles(...READERS)
+  @OnDesk()
   @Get('coverage-preview')
   @ApiAnswer(CoveragePreviewAnswer)
   async preview(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof CoveragePreviewAnswer>> {
@@ -145,6 +149,7 @@ export class ModelsController {
 
   /** Open items with their current predictions, by item id; filter by call, by a category in the set, by lane. */
   @Roles(...READERS)
+  @OnDesk()
   @Get('items')
   @ApiAnswer(PredictedItemsAnswer)
   @ApiQuery({ name: 'call', required: false, enum: TRIAGE_CALLS, description: 'only items with this call' })

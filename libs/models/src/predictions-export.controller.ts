@@ -2,7 +2,7 @@ import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
-import { Roles } from '#auth';
+import { Roles, OnDesk } from '#auth';
 import { Database, DeskEntity, type DbInt } from '#database';
 import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { PredictionsService } from './predictions.service.js';
@@ -33,6 +33,7 @@ export class PredictionsExportController {
 
   /** Text that a spreadsheet would run as a formula starts with an apostrophe unless `raw=1`; `bom=1` adds a UTF-8 byte order mark. */
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('predictions.csv')
   @ApiTextAnswer('text/csv', 'the current version’s prediction for every open item, CSV (RFC 4180), streamed')
   @ApiQuery({ name: 'raw', required: false, enum: ['1', '0'], description: 'values exactly as stored (for programs)' })
@@ -81,6 +82,7 @@ export class PredictionsExportController {
   }
 
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('predictions.ndjson')
   @ApiTextAnswer('application/x-ndjson', 'the same rows as NDJSON, one item per line, streamed')
   async ndjson(@Param('deskId', ParseIntPipe) deskId: number, @Res() res: Response): Promise<void> {

@@ -12,7 +12,7 @@ import {
 import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiErrors, ApiTextAnswer, type Answer } from '#api-docs';
-import { Roles } from '#auth';
+import { Roles, OnDesk } from '#auth';
 import { Database, DeskEntity, ModelReportEntity, ModelVersionEntity } from '#database';
 import { JOBS, JobQueueService, jobOptions } from '#queues';
 import { ReportAnswer, ReportListAnswer } from './report.responses.js';
@@ -39,6 +39,7 @@ export class ReportsController {
 
   /** Every published version with the state of its report. */
   @Roles(...READERS)
+  @OnDesk()
   @Get('reports')
   @ApiAnswer(ReportListAnswer)
   async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ReportListAnswer>> {
@@ -69,6 +70,7 @@ export class ReportsController {
   }
 
   @Roles(...READERS)
+  @OnDesk()
   @Get('models/:version/report.json')
   @Header('Content-Type', 'application/json; charset=utf-8')
   @ApiAnswer(ReportAnswer, { description: 'the report’s figures, as stored (canonical JSON)' })
@@ -84,6 +86,7 @@ export class ReportsController {
   }
 
   @Roles(...READERS)
+  @OnDesk()
   @Get('models/:version/report.html')
   @ApiTextAnswer('text/html', 'the report as one self-contained page (no script, loads nothing)')
   @ApiErrors({ 404: 'no such version, not published, the report is still being written, or it failed' })

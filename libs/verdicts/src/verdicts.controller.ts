@@ -13,7 +13,7 @@ import {
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentDesk, CurrentUser, OnDesk, Roles, type DeskAccess, type Principal } from '#auth';
 import { parseIsoDateTime } from '#imports';
 import { CreateVerdictDto } from './verdict.dto.js';
 import { ProgressService } from './progress.service.js';
@@ -48,6 +48,7 @@ export class VerdictsController {
 
   /** 201 with the new verdict; 200 with the stored one when the clientId was seen before. */
   @Roles('reviewer')
+  @OnDesk()
   @Post('desks/:deskId/verdicts')
   @ApiAnswer(OneVerdictAnswer, { status: 201, description: 'the verdict is stored' })
   @ApiAnswer(OneVerdictAnswer, { status: 200, description: 'this clientId was stored before: the stored verdict' })
@@ -64,6 +65,7 @@ export class VerdictsController {
   }
 
   @Roles('reviewer')
+  @OnDesk('verdictId')
   @Post('verdicts/:verdictId/undo')
   @ApiAnswer(OneVerdictAnswer, { status: 201, description: 'the verdict, marked undone' })
   @ApiErrors({ 409: 'already undone, past the undo window, or not this reviewer’s last verdict' })
@@ -76,6 +78,7 @@ export class VerdictsController {
 
   /** Every reviewer's verdicts on a desk: for supervisors and auditors only. */
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('desks/:deskId/verdicts')
   @ApiAnswer(VerdictListAnswer)
   @ApiVerdictFilters()
@@ -110,6 +113,7 @@ export class VerdictsController {
 
   /** The signed-in reviewer's own verdicts on a desk, newest first. */
   @Roles('reviewer')
+  @OnDesk()
   @Get('desks/:deskId/verdicts/mine')
   @ApiAnswer(VerdictListAnswer)
   @ApiQuery({ name: 'limit', required: false, type: Number, description: 'verdicts, 1–1000 (default 20)' })
@@ -127,12 +131,13 @@ export class VerdictsController {
   }
 
   @Roles('reviewer', 'supervisor', 'auditor', 'admin')
+  @OnDesk()
   @Get('desks/:deskId/progress')
   @ApiAnswer(ProgressAnswer)
   progress(
-    @CurrentUser() user: Principal,
+    @CurrentDesk() desk: DeskAccess,
     @Param('deskId', ParseIntPipe) deskId: number,
   ): Promise<Answer<typeof ProgressAnswer>> {
-    return this.progressService.progress(deskId, user.role === 'supervisor' || user.role === 'auditor');
+    return this.progressService.progress(deskId, desk.role === 'supervisor' || desk.role === 'auditor');
   }
 }

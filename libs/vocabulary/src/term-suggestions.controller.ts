@@ -12,7 +12,7 @@ import {
 } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentUser, OnDesk, Roles, type Principal } from '#auth';
 import { TermDecisionDto } from './term-suggestion.dto.js';
 import { TermDecisionAnswer, TermSuggestionsAnswer } from './term-suggestions.responses.js';
 import { TermSuggestionsService } from './term-suggestions.service.js';
@@ -27,6 +27,7 @@ export class TermSuggestionsController {
 
   /** Words to add to a category's seed terms: similar in use to its terms, and leaned towards it by the model. */
   @Roles('supervisor')
+  @OnDesk()
   @Get()
   @ApiAnswer(TermSuggestionsAnswer)
   @ApiQuery({ name: 'category', required: true, type: String, description: 'a category name of the desk' })
@@ -50,6 +51,7 @@ export class TermSuggestionsController {
 
   /** Adds the term to the category's seed terms (audited like any settings change). */
   @Roles('supervisor')
+  @OnDesk()
   @Post('accept')
   @HttpCode(200)
   @ApiAnswer(TermDecisionAnswer, { status: 200, description: 'the term is a seed term of the category' })
@@ -63,6 +65,7 @@ export class TermSuggestionsController {
 
   /** Never suggests the term for the category again (audited). */
   @Roles('supervisor')
+  @OnDesk()
   @Post('dismiss')
   @HttpCode(200)
   @ApiAnswer(TermDecisionAnswer, { status: 200, description: 'the term is no longer suggested for the category' })

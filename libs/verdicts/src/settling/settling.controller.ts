@@ -12,7 +12,7 @@ import {
 } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
-import { CurrentUser, Roles, type Principal } from '#auth';
+import { CurrentUser, Roles, type Principal, OnDesk } from '#auth';
 import { DisagreementListAnswer, SettledAnswer } from '../verdict.responses.js';
 import { DisagreementsService } from './disagreements.service.js';
 import { SettleItemDto } from './settle.dto.js';
@@ -35,6 +35,7 @@ export class SettlingController {
 
   /** Items reviewers disagree on, or where a verdict went against a sure call of a healthy model version; by item id, `after` the cursor. */
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('desks/:deskId/disagreements')
   @ApiAnswer(DisagreementListAnswer)
   @ApiQuery({ name: 'after', required: false, type: Number, description: 'the `next` of the previous page' })
@@ -52,6 +53,7 @@ export class SettlingController {
 
   /** The supervisor's label for an item, with a reason; the latest settlement trains and calibrates. */
   @Roles('supervisor')
+  @OnDesk('itemId')
   @Post('items/:itemId/settle')
   @HttpCode(201)
   @ApiAnswer(SettledAnswer, { status: 201, description: 'the settlement is stored' })

@@ -2,7 +2,7 @@ import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPi
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
-import { Roles } from '#auth';
+import { Roles, OnDesk } from '#auth';
 import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { TRAIL_COLUMNS, trailCsvLine, type TrailRow } from './trail-format.js';
 import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
@@ -21,6 +21,7 @@ export class TrailController {
    * apostrophe unless `raw=1`; `bom=1` starts the file with a UTF-8 byte order mark.
    */
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('desks/:deskId/trail.csv')
   @ApiTextAnswer('text/csv', 'the trail as CSV (RFC 4180, header row), streamed')
   @ApiVerdictFilters()
@@ -50,6 +51,7 @@ export class TrailController {
 
   /** The same trail as newline-delimited JSON, one verdict per line, streamed. */
   @Roles('supervisor', 'auditor')
+  @OnDesk()
   @Get('desks/:deskId/trail.ndjson')
   @ApiTextAnswer('application/x-ndjson', 'the trail as NDJSON, one verdict per line, streamed')
   @ApiVerdictFilters()
