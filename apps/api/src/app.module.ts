@@ -7,6 +7,7 @@ import { DemoModule } from '#demo';
 import { DesksModule } from '#desks';
 import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
+import { createRootLogger, LoggingModule } from '#logging';
 import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsModule } from '#reports';
@@ -23,6 +24,7 @@ export class ApiModule {
       module: ApiModule,
       imports: [
         ConfigModule.forRoot(config),
+        LoggingModule.forRoot(createRootLogger(config, 'api')),
         DatabaseModule.forRoot(),
         QueuesModule,
         AuditModule,

@@ -4,7 +4,8 @@ import { SwaggerModule } from '@nestjs/swagger';
 import { buildOpenApiDocument } from '#api-docs';
 import type { NestExpressApplication } from '@nestjs/platform-express';
 import express from 'express';
-import { nestLogLevels, type AppConfig } from '#config';
+import type { AppConfig } from '#config';
+import { NestPinoLogger, requestLogger, ROOT_LOGGER } from '#logging';
 import { AuthService, bearerOf, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
 import { JsonBodyInterceptor } from './json-body.js';
@@ -18,8 +19,11 @@ export const API_VERSION = '0.1.0';
 export async function createHttpApp(config: AppConfig): Promise<INestApplication> {
   const app = await NestFactory.create<NestExpressApplication>(ApiModule.forRoot(config), {
     bodyParser: false,
-    logger: nestLogLevels(config.logLevel),
+    // Nest's messages wait for the process's logger (LOG_LEVEL, LOG_FORMAT), which also writes a line per request.
+    bufferLogs: true,
   });
+  app.useLogger(app.get(NestPinoLogger));
+  app.use(requestLogger(app.get(ROOT_LOGGER)));
   app.disable('x-powered-by');
   app.use((_req: express.Request, res: express.Response, next: express.NextFunction) => {
     res.setHeader('X-Content-Type-Options', 'nosniff');

@@ -1,14 +1,16 @@
 import 'reflect-metadata';
 import { Logger } from '@nestjs/common';
 import { NestFactory } from '@nestjs/core';
-import { loadConfigOrExit, nestLogLevels } from '#config';
+import { loadConfigOrExit } from '#config';
+import { NestPinoLogger } from '#logging';
 import { WorkerModule } from './worker.module.js';
 
 async function main(): Promise<void> {
   const config = loadConfigOrExit();
   const app = await NestFactory.createApplicationContext(WorkerModule.forRoot(config), {
-    logger: nestLogLevels(config.logLevel),
+    bufferLogs: true,
   });
+  app.useLogger(app.get(NestPinoLogger));
   const logger = new Logger('Worker');
   let closing = false;
   const stop = async (signal: string) => {

@@ -4,6 +4,7 @@ import { AuditModule } from '#audit';
 import { DatabaseModule } from '#database';
 import { DemoWorkModule } from '#demo';
 import { ImportsWorkModule } from '#imports';
+import { createRootLogger, LoggingModule } from '#logging';
 import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsWorkModule } from '#reports';
@@ -19,6 +20,7 @@ export class WorkerModule {
       module: WorkerModule,
       imports: [
         ConfigModule.forRoot(config),
+        LoggingModule.forRoot(createRootLogger(config, 'worker')),
         DatabaseModule.forRoot(),
         QueuesModule,
         AuditModule,

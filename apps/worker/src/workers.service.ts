@@ -1,7 +1,9 @@
 import { hostname } from 'node:os';
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
 import { UnrecoverableError, Worker } from 'bullmq';
+import type { Logger as Pino } from 'pino';
 import { APP_CONFIG, type AppConfig } from '#config';
+import { logJob, ROOT_LOGGER } from '#logging';
 import {
   createRedis,
   handlerTable,
@@ -56,6 +58,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(JOB_HANDLERS) handlers: JobHandler[],
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
+    @Inject(ROOT_LOGGER) private readonly log: Pino,
   ) {
     this.table = handlerTable(handlers);
   }
@@ -83,8 +86,10 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
         },
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
+      // One line per finished attempt (see logJob); a job that failed before it was read has no job to describe.
+      worker.on('completed', (job) => logJob(this.log, job));
       worker.on('failed', (job, e) =>
-        this.logger.warn(`job ${job?.name} ${job?.id} failed (attempt ${job?.attemptsMade}): ${e.message}`),
+        job ? logJob(this.log, job, e) : this.logger.warn(`a job on ${queue} failed: ${e.message}`),
       );
       this.workers.push(worker);
     }

@@ -55,6 +55,15 @@ describe('parseConfig', () => {
     expect((error as Error).message).toContain('PORT="eighty"');
   });
 
+  it('writes text logs on a terminal and JSON lines otherwise, unless LOG_FORMAT says', () => {
+    expect(parseConfig({}, '/srv', true).logFormat).toBe('text');
+    expect(parseConfig({}, '/srv', false).logFormat).toBe('json');
+    expect(parseConfig({ LOG_FORMAT: 'JSON' }, '/srv', true).logFormat).toBe('json');
+    expect(parseConfig({ LOG_FORMAT: 'text' }, '/srv', false).logFormat).toBe('text');
+    expect(() => parseConfig({ LOG_FORMAT: 'xml' })).toThrow(/LOG_FORMAT="xml": expected text or json/);
+    expect(parseConfig({}).logLevel).toBe('log');
+  });
+
   it('rejects out-of-range numbers', () => {
     expect(() => parseConfig({ PORT: '70000' })).toThrow(/PORT="70000": expected an integer from 1 to 65535/);
     expect(() => parseConfig({ MAX_TEXT_LENGTH: '0' })).toThrow(/MAX_TEXT_LENGTH/);

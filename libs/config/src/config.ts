@@ -19,6 +19,8 @@ export interface AppConfig {
   readonly undoWindowSeconds: number;
   readonly importBatchSize: number;
   readonly logLevel: 'error' | 'warn' | 'log' | 'debug';
+  /** `text`: one readable line per entry (the default on a terminal); `json`: one JSON object per line (otherwise). */
+  readonly logFormat: 'text' | 'json';
   /** Open items per scoring job. */
   readonly scoringChunkSize: number;
   /** How long a worker holds a job before another may take it over when it stops renewing (a crashed worker). */
@@ -77,6 +79,7 @@ export const CONFIG_VARIABLES = [
   'UNDO_WINDOW_SECONDS',
   'IMPORT_BATCH_SIZE',
   'LOG_LEVEL',
+  'LOG_FORMAT',
   'SCORING_CHUNK_SIZE',
   'JOB_LOCK_SECONDS',
   'SWEEP_SECONDS',
@@ -95,9 +98,13 @@ export const CONFIG_VARIABLES = [
 
 /**
  * Builds and validates the configuration from an environment map.
- * Pure: takes the map as an argument so tests can pass their own.
+ * Pure: takes the map (and whether standard output is a terminal) as arguments so tests can pass their own.
  */
-export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
+export function parseConfig(
+  env: Env,
+  cwd: string = process.cwd(),
+  stdoutIsTerminal: boolean = (process.stdout.isTTY as boolean | undefined) === true,
+): AppConfig {
   const problems: string[] = [];
   const str = (name: string): string | undefined => {
     const v = env[name];
@@ -170,9 +177,13 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
   if (!/^[A-Za-z0-9_.-]{1,64}$/.test(queuePrefix))
     problems.push(`QUEUE_PREFIX=${JSON.stringify(queuePrefix)}: use 1–64 letters, digits, '_', '.', '-'`);
 
-  const logLevel = (str('LOG_LEVEL') ?? 'warn') as AppConfig['logLevel'];
+  const logLevel = (str('LOG_LEVEL') ?? 'log') as AppConfig['logLevel'];
   if (!['error', 'warn', 'log', 'debug'].includes(logLevel))
     problems.push(`LOG_LEVEL=${JSON.stringify(logLevel)}: expected error, warn, log or debug`);
+  const logFormat = (str('LOG_FORMAT')?.toLowerCase() ??
+    (stdoutIsTerminal ? 'text' : 'json')) as AppConfig['logFormat'];
+  if (!['text', 'json'].includes(logFormat))
+    problems.push(`LOG_FORMAT=${JSON.stringify(env.LOG_FORMAT)}: expected text or json`);
 
   const pause = str('CRIBRA_TEST_PAUSE') ?? null;
   if (pause !== null && pause !== 'training' && pause !== 'scoring')
@@ -191,6 +202,7 @@ export function parseConfig(env: Env, cwd: string = process.cwd()): AppConfig {
     undoWindowSeconds: int('UNDO_WINDOW_SECONDS', 300, 1, 86_400),
     importBatchSize: int('IMPORT_BATCH_SIZE', 1000, 1, 50_000),
     logLevel,
+    logFormat,
     scoringChunkSize: int('SCORING_CHUNK_SIZE', 5000, 100, 1_000_000),
     jobLockSeconds: int('JOB_LOCK_SECONDS', 60, 2, 3600),
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
@@ -238,6 +250,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     UNDO_WINDOW_SECONDS: String(config.undoWindowSeconds),
     IMPORT_BATCH_SIZE: String(config.importBatchSize),
     LOG_LEVEL: config.logLevel,
+    LOG_FORMAT: config.logFormat,
     SCORING_CHUNK_SIZE: String(config.scoringChunkSize),
     JOB_LOCK_SECONDS: String(config.jobLockSeconds),
     SWEEP_SECONDS: String(config.sweepSeconds),
