@@ -48,6 +48,9 @@ export type Disagreement = DisagreementList['disagreements'][number];
 export type Settlement = Schemas['Settlement'];
 export type ReportList = Schemas['ReportList'];
 export type PredictedItems = Schemas['PredictedItems'];
+export type TermSuggestions = Schemas['TermSuggestions'];
+export type TermSuggestion = TermSuggestions['similar'][number];
+export type TermDecision = Schemas['TermDecision'];
 
 export class ApiError extends Error {
   constructor(

@@ -2,6 +2,7 @@ import { useState } from 'preact/hooks';
 import { patch, type Desk } from '../api';
 import { useData, type PageProps } from '../app';
 import { DeskForm } from '../components/desk-form';
+import { TermSuggestionsPanel } from '../components/term-suggestions';
 
 export function SettingsPage({ params }: PageProps) {
   const [desk, error, reload] = useData<Desk>(`/desks/${params.deskId}`);
@@ -31,6 +32,7 @@ export function SettingsPage({ params }: PageProps) {
           }}
         />
       )}
+      {desk && <TermSuggestionsPanel desk={desk} onSeedTermsChanged={reload} />}
     </section>
   );
 }
