@@ -75,6 +75,7 @@ const DESK_ROUTES: DeskRoute[] = [
   { method: 'GET', template: '/api/desks/{deskId}/models', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/models/{version}', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/coverage', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/screening', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/coverage-preview', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/items', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/predictions.csv', allowed: [S, A] },

@@ -63,6 +63,7 @@ describe.each(DATABASE_KINDS)('screening a pile of mail on %s', (kind) => {
     });
     expect(d.status).toBe(201);
     deskId = d.body.id;
+    await s.enrol(deskId);
     // A fixed sample of the corpus, fixed before looking at any result.
     const corpus = shuffleInPlace(loadSpamAssassin(600), createRng(20261202)).slice(0, POOL);
     const rows = corpus.map((m, i) => {

@@ -47,6 +47,7 @@ export class ModelsController {
    * and what flagging by seed terms alone would do.
    */
   @Roles(...READERS)
+  @OnDesk()
   @Get('screening')
   @ApiAnswer(ScreeningAnswer)
   async screening(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ScreeningAnswer>> {
