@@ -98,6 +98,13 @@ const DESK_ROUTES: DeskRoute[] = [
   },
   { method: 'GET', template: '/api/desks/{deskId}/agreement', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/disagreements', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/erasures', allowed: [S, A] },
+  {
+    method: 'POST',
+    template: '/api/desks/{deskId}/erasures',
+    allowed: [S],
+    body: () => ({ externalIds: ['held by no item'], reason: 'desk access check' }),
+  },
   {
     method: 'POST',
     template: '/api/items/{itemId}/settle',

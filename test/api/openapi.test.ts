@@ -366,6 +366,9 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
       'a written report',
     );
     await call('aud', 'GET', `/api/desks/${deskId}/models/${ready.version}/report.json`);
+    await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { itemIds: [item], reason: 'a request to erase' });
+    await call('aud', 'GET', `/api/desks/${deskId}/erasures`);
+    await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { reason: 'no selector' });
     // Errors carry the documented body too.
     await call('rev', 'GET', `/api/desks/${deskId}/models`);
     await call('aud', 'GET', '/api/desks/999999');

@@ -128,6 +128,13 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'DELETE', path: `/api/desks/${deskId}/simulation`, allowed: ['supervisor'] },
     { method: 'GET', path: `/api/desks/${deskId}/agreement`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/disagreements`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/erasures`, allowed: ['supervisor', 'auditor'] },
+    {
+      method: 'POST',
+      path: `/api/desks/${deskId}/erasures`,
+      allowed: ['supervisor'],
+      body: () => ({ externalIds: ['held by no item'], reason: 'the matrix' }),
+    },
     {
       method: 'POST',
       path: `/api/items/${itemId}/settle`,

@@ -11,6 +11,7 @@ import { createRootLogger, LoggingModule } from '#logging';
 import { ModelsModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsModule } from '#reports';
+import { RetentionModule } from '#retention';
 import { VerdictsModule } from '#verdicts';
 import { VocabularyModule } from '#vocabulary';
 import { AuditController } from './audit.controller.js';
@@ -37,6 +38,7 @@ export class ApiModule {
         DemoModule,
         ReportsModule,
         VocabularyModule,
+        RetentionModule,
       ],
       controllers: [HealthController, AuditController],
     };

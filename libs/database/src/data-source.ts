@@ -13,6 +13,7 @@ import { verdictSchema } from './entities/verdict.entity.js';
 import { modelVersionSchema } from './entities/model-version.entity.js';
 import { modelReportSchema } from './entities/model-report.entity.js';
 import { deskMemberSchema } from './entities/desk-member.entity.js';
+import { erasureSchema } from './entities/erasure.entity.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-loop.js';
 import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js';
@@ -23,6 +24,7 @@ import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expir
 import { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
 import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
+import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -39,6 +41,7 @@ export function entitySchemas(dialect: Dialect) {
     modelVersionSchema,
     modelReportSchema,
     deskMemberSchema,
+    erasureSchema,
   ].map((f) => f(dialect));
 }
 
@@ -54,6 +57,7 @@ export const MIGRATIONS = [
   DeskMembers1766210000000,
   ScreeningSettings1766400000000,
   TermSuggestions1766500000000,
+  Erasure1766700000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

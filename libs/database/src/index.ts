@@ -19,7 +19,8 @@ export {
 } from './entities/desk.entity.js';
 export { CategoryEntity } from './entities/category.entity.js';
 export { ImportEntity, IMPORT_STATES, type ImportState, type ImportRowError } from './entities/import.entity.js';
-export { ItemEntity, ITEM_STATES, type ItemState } from './entities/item.entity.js';
+export { ItemEntity, ITEM_STATES, ERASED_BY, type ItemState, type ErasedBy } from './entities/item.entity.js';
+export { TOMBSTONE_TEXT, ERASURE_REASON_MAX } from './migrations/1766700000000-erasure.js';
 export {
   LeaseEntity,
   DRAW_KINDS,
@@ -39,3 +40,4 @@ export {
 export { dbErrorCode, isUniqueViolation } from './errors.js';
 export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
 export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';
+export { ErasureEntity, type ErasureAsked, type ErasureOutcome } from './entities/erasure.entity.js';

@@ -59,7 +59,7 @@ export class DemoDeskService {
     // Aggregates answer one row; SUM is null over no rows.
     const [counts] = await this.db.query<{ n: DbInt; other: DbInt | null }>(
       null,
-      `SELECT COUNT(*) AS n, SUM(CASE WHEN external_id LIKE 'mossbank-%' THEN 0 ELSE 1 END) AS other FROM items WHERE desk_id = $1`,
+      `SELECT COUNT(*) AS n, SUM(CASE WHEN external_id LIKE 'mossbank-%' THEN 0 ELSE 1 END) AS other FROM items WHERE desk_id = $1 AND erased_at IS NULL`,
       [deskId],
     );
     const n = Number(counts.n);
@@ -72,7 +72,8 @@ export class DemoDeskService {
     const posts = this.posts();
     const rows = await this.db.query<{ external_id: string; text: string }>(
       null,
-      'SELECT external_id, text FROM items WHERE desk_id = $1',
+      // Tombstones hold no text and are never served: only the items that still do must be generated posts.
+      'SELECT external_id, text FROM items WHERE desk_id = $1 AND erased_at IS NULL',
       [deskId],
     );
     const differ = rows.filter((r) => posts.get(r.external_id)?.text !== r.text).length;

@@ -265,12 +265,13 @@ export class LeasesService {
     let chosen = candidates[0];
     const model = candidates.length > 1 ? await this.predictions.current(desk) : null;
     if (model) {
-      const last = await this.db.queryOne<{ text: string }>(
+      const last = await this.db.queryOne<{ text: string; erased_at: unknown }>(
         m,
-        'SELECT i.text FROM leases l JOIN items i ON i.id = l.item_id WHERE l.desk_id = $1 AND l.reviewer_id = $2 ORDER BY l.created_at DESC LIMIT 1',
+        'SELECT i.text, i.erased_at FROM leases l JOIN items i ON i.id = l.item_id WHERE l.desk_id = $1 AND l.reviewer_id = $2 ORDER BY l.created_at DESC LIMIT 1',
         [desk.id, reviewer.id],
       );
-      if (last) {
+      // An erased item's text is gone: there is no near-duplicate of it to avoid.
+      if (last && last.erased_at === null) {
         const previous = model.vectorize(last.text);
         chosen =
           candidates.find((c) => cosineSimilarity(model.vectorize(c.text), previous) < NEAR_DUPLICATE_COSINE) ?? chosen;

@@ -83,6 +83,39 @@ export class DeskFeaturesService {
     await this.storeCounts(m, cached);
   }
 
+  /**
+   * Takes erased items out of a desk's table, within the erasure's write transaction: their texts are counted again
+   * with the featuriser {@link addItems} used (the table's), so each bucket loses exactly what the import added, and
+   * their stored term counts are deleted. Later versions weigh terms as if the items had never been imported.
+   */
+  async removeItems(
+    m: EntityManager,
+    deskId: number,
+    items: ReadonlyArray<{ id: number; text: string }>,
+  ): Promise<void> {
+    if (items.length === 0) return;
+    const lock = this.db.pg ? ' FOR UPDATE' : '';
+    const row = await this.db.queryOne<{ df: string }>(m, `SELECT df FROM desk_features WHERE desk_id = $1${lock}`, [
+      deskId,
+    ]);
+    if (row) {
+      const table = IdfTable.fromJSON(JSON.parse(row.df) as IdfTableJson);
+      const f = this.featurizer(table.hashBits);
+      for (const it of items) table.removeDocument(f.counts(it.text));
+      await this.db.query(
+        m,
+        'UPDATE desk_features SET document_count = $1, df = $2, updated_at = $3 WHERE desk_id = $4',
+        [table.documentCount, JSON.stringify(table.toJSON()), this.db.time(new Date()), deskId],
+      );
+    }
+    const ids = items.map((it) => it.id);
+    await this.db.query(
+      m,
+      `DELETE FROM item_term_counts WHERE item_id IN (${ids.map((_, i) => `$${i + 1}`).join(', ')})`,
+      ids,
+    );
+  }
+
   /** Stores term counts `[itemId, featurizerKey, encoded]`; rows already there stay as they are. */
   async storeCounts(m: EntityManager, rows: readonly (readonly unknown[])[]): Promise<void> {
     await this.db.insertRows(m, 'item_term_counts', TERM_COUNT_COLUMNS, rows);

@@ -88,7 +88,7 @@ export class TrainingService {
     const labelled = await this.db.query<LabelledRow>(
       null,
       `SELECT v.item_id, v.draw, c.name AS category, i.text FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
-       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.id <= $2 ORDER BY v.id`,
+       WHERE v.desk_id = $1 AND v.undone_at IS NULL AND v.id <= $2 AND i.erased_at IS NULL ORDER BY v.id`,
       [deskId, watermark],
     );
     const settled = await this.db.query<{ item_id: DbInt; category: string }>(
@@ -97,6 +97,7 @@ export class TrainingService {
        WHERE s.desk_id = $1 AND s.id = (SELECT MAX(s2.id) FROM settlements s2 WHERE s2.item_id = s.item_id)`,
       [deskId],
     );
+    // Erased items (their text and term counts are gone) neither train nor calibrate; their verdicts stay in the trail.
     // One label per item: the supervisor's latest settlement when the item was settled, else the latest verdict of its
     // original draw, never a second opinion. A second opinion is served because the item was decided already, so taking
     // its label instead would replace the labels of the items reviewers disagree on (the hard cases) by later ones: the

@@ -3,7 +3,8 @@ import { Database, DeskEntity } from '#database';
 
 export interface DeskProgress {
   deskId: number;
-  items: { total: number; open: number; leased: number; decided: number };
+  /** `erased`: tombstones (text erased), whatever their state; the other counts leave them out. */
+  items: { total: number; open: number; leased: number; decided: number; erased: number };
   verdicts: {
     total: number;
     byCategory: Record<string, number>;
@@ -28,8 +29,10 @@ export class ProgressService {
     const q = <T>(sql: string, params: unknown[]) => this.db.query<T>(null, sql, params);
     const now = this.db.time(new Date());
     const [states, cats, draws, undone, active] = await Promise.all([
-      q<{ state: string; leased: number | string; n: number | string }>(
-        `SELECT state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END AS leased, COUNT(*) AS n FROM items WHERE desk_id = $1 GROUP BY state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END`,
+      q<{ state: string; leased: number | string; erased: number | string; n: number | string }>(
+        `SELECT state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END AS leased, CASE WHEN erased_at IS NULL THEN 0 ELSE 1 END AS erased, COUNT(*) AS n
+         FROM items WHERE desk_id = $1
+         GROUP BY state, CASE WHEN state = 'leased' AND leased_until > $2 THEN 1 ELSE 0 END, CASE WHEN erased_at IS NULL THEN 0 ELSE 1 END`,
         [deskId, now],
       ),
       q<{ name: string | null; n: number | string }>(
@@ -48,11 +51,13 @@ export class ProgressService {
         [deskId, this.db.time(new Date(Date.now() - 3600_000))],
       ),
     ]);
-    const items = { total: 0, open: 0, leased: 0, decided: 0 };
+    const items = { total: 0, open: 0, leased: 0, decided: 0, erased: 0 };
     for (const s of states) {
       const n = Number(s.n);
       items.total += n;
-      if (s.state === 'decided') items.decided += n;
+      // Erased items have left the queue, decided or not: counted apart.
+      if (Number(s.erased) === 1) items.erased += n;
+      else if (s.state === 'decided') items.decided += n;
       else if (Number(s.leased) === 1) items.leased += n;
       else items.open += n;
     }

@@ -32,7 +32,13 @@ export const ProgressAnswer = named(
   'Progress',
   z.strictObject({
     deskId: z.int(),
-    items: z.strictObject({ total: z.int(), open: z.int(), leased: z.int(), decided: z.int() }),
+    items: z.strictObject({
+      total: z.int(),
+      open: z.int(),
+      leased: z.int(),
+      decided: z.int(),
+      erased: z.int().describe('items whose text was erased (left out of the other counts)'),
+    }),
     verdicts: z.strictObject({
       total: z.int(),
       byCategory: z.record(z.string(), z.int()),
@@ -117,7 +123,12 @@ export const DisagreementListAnswer = named(
   z.strictObject({
     disagreements: z.array(
       z.strictObject({
-        item: z.strictObject({ id: z.int(), externalId: z.string().nullable(), text: z.string() }),
+        item: z.strictObject({
+          id: z.int(),
+          externalId: z.string().nullable(),
+          text: z.string().nullable().describe('null once the item was erased'),
+          erasedAt: isoTime.nullable().describe('when the text, metadata, external id and source were erased'),
+        }),
         verdicts: z.array(
           z.strictObject({
             id: z.int(),

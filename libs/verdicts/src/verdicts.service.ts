@@ -51,6 +51,7 @@ interface LeaseAndItem {
   state: string;
   item_lease_id: string | null;
   leased_until: unknown;
+  erased_at: unknown;
   existing_id: DbInt | null;
   existing_item: DbInt | null;
   so_state: string | null;
@@ -125,7 +126,7 @@ export class VerdictsService {
         const lock = this.db.pg ? ' FOR UPDATE OF i' : '';
         const row = await this.db.queryOne<LeaseAndItem>(
           m,
-          `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until,
+          `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until, i.erased_at,
                   (SELECT v.id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_id,
                   (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item,
                   so.state AS so_state, so.lease_id AS so_lease_id, so.leased_until AS so_leased_until
@@ -156,6 +157,11 @@ export class VerdictsService {
         if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId)
           throw new BadRequestException(
             `lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`,
+          );
+        // Erased while the reviewer held it: the item keeps no text to have a verdict about.
+        if (row.erased_at !== null)
+          throw new ConflictException(
+            `item ${dto.itemId} was erased while you held it (erasure on request or retention); your verdict was not recorded`,
           );
         const now = new Date();
         const heldByOther =
@@ -309,16 +315,20 @@ export class VerdictsService {
         [v.itemId],
       );
       if (Number(n) === 0) {
-        await this.db.query(m, `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1`, [
-          v.itemId,
-        ]);
+        // An erased item never goes back to the queue.
+        await this.db.query(
+          m,
+          `UPDATE items SET state = 'open', lease_id = NULL, leased_until = NULL WHERE id = $1 AND erased_at IS NULL`,
+          [v.itemId],
+        );
         // Back in the open pool: a second opinion nobody has started yet is no longer due.
         await this.db.query(m, `DELETE FROM second_opinions WHERE item_id = $1 AND state = 'due'`, [v.itemId]);
       } else if (v.draw === 'second-opinion') {
-        // The opinion taken back is due again, for a reviewer who has not seen the item.
+        // The opinion taken back is due again, for a reviewer who has not seen the item (unless the item was erased).
         await this.db.query(
           m,
-          `UPDATE second_opinions SET state = 'due', verdict_id = NULL, done_at = NULL WHERE item_id = $1 AND verdict_id = $2`,
+          `UPDATE second_opinions SET state = 'due', verdict_id = NULL, done_at = NULL WHERE item_id = $1 AND verdict_id = $2
+             AND NOT EXISTS (SELECT 1 FROM items i WHERE i.id = $1 AND i.erased_at IS NOT NULL)`,
           [v.itemId, v.id],
         );
       }

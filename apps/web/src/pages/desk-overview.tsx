@@ -57,6 +57,12 @@ export function DeskOverview({ params }: PageProps) {
             <dt>Decided</dt>
             <dd>{count(progress.items.decided)}</dd>
           </div>
+          {progress.items.erased > 0 && (
+            <div>
+              <dt>Erased</dt>
+              <dd>{count(progress.items.erased)}</dd>
+            </div>
+          )}
           <div>
             <dt>Verdicts</dt>
             <dd>{count(progress.verdicts.total)}</dd>

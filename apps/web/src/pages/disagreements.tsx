@@ -175,7 +175,11 @@ function DisagreementCard({
         Item {d.item.id}
         {d.item.externalId ? ` · ref ${d.item.externalId}` : ''}
       </p>
-      <p class="item-text small">{d.item.text}</p>
+      {d.item.text === null ? (
+        <p class="item-text small erased">Text erased on {when(d.item.erasedAt)}</p>
+      ) : (
+        <p class="item-text small">{d.item.text}</p>
+      )}
       <ul>
         {d.reasons.map((r) => (
           <li>{why(r)}</li>

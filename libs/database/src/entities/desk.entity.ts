@@ -36,6 +36,8 @@ export class DeskEntity {
   coverageTargets!: Record<string, number>;
   /** Null: expected coverage; else the probability, over the calibration draws, that coverage reaches the target. */
   confidence!: number | null;
+  /** Key of the HMAC that hashes the external ids and sources of erased items; made at the desk's first erasure. */
+  erasureSalt!: string | null;
   createdBy!: number;
   createdAt!: Date;
   updatedAt!: Date;
@@ -64,6 +66,7 @@ export const deskSchema = (d: Dialect) => {
       watch: c.json('watch'),
       coverageTargets: c.json('coverage_targets'),
       confidence: c.double('confidence', true),
+      erasureSalt: c.varchar('erasure_salt', 64, true),
       createdBy: c.int('created_by'),
       createdAt: c.time('created_at'),
       updatedAt: c.time('updated_at'),

@@ -5,6 +5,9 @@ import { columns } from './columns.js';
 /** `leased` items stay leased after the lease expires, until someone else is handed them. */
 export const ITEM_STATES = ['open', 'leased', 'decided'] as const;
 export type ItemState = (typeof ITEM_STATES)[number];
+/** Who erased an item: a supervisor's request, or the desk's retention period. */
+export const ERASED_BY = ['request', 'retention'] as const;
+export type ErasedBy = (typeof ERASED_BY)[number];
 
 export class ItemEntity {
   id!: number;
@@ -32,6 +35,12 @@ export class ItemEntity {
   randKey!: number;
   leaseId!: string | null;
   leasedUntil!: Date | null;
+  /** When the text, metadata, external id and source were erased; null while the item holds them. */
+  erasedAt!: Date | null;
+  erasedBy!: ErasedBy | null;
+  /** The erased external id and source, HMAC-SHA256 with the desk's salt (hex), so a subject can still be found. */
+  externalIdHash!: string | null;
+  sourceHash!: string | null;
 }
 
 export const itemSchema = (d: Dialect) => {
@@ -59,6 +68,10 @@ export const itemSchema = (d: Dialect) => {
       randKey: c.double('rand_key'),
       leaseId: c.varchar('lease_id', 36, true),
       leasedUntil: c.time('leased_until', true),
+      erasedAt: c.time('erased_at', true),
+      erasedBy: c.varchar('erased_by', 10, true),
+      externalIdHash: c.varchar('external_id_hash', 64, true),
+      sourceHash: c.varchar('source_hash', 64, true),
     },
   });
 };

@@ -58,6 +58,27 @@ export class IdfTable {
     this.n++;
   }
 
+  /**
+   * Takes back one document counted by {@link addDocument} with the same counts (an erased item): every bucket with a
+   * non-zero count loses one. Throws a RangeError, changing nothing, when a bucket or the document count would go below
+   * zero, which means these counts were never added.
+   */
+  removeDocument(counts: SparseVector): void {
+    const { indices, values } = counts;
+    if (this.n === 0) throw new RangeError('removeDocument: the table counts no document');
+    for (let i = 0; i < indices.length; i++) {
+      const index = indices[i];
+      if (index < 0 || index >= this.df.length) {
+        throw new RangeError(`counts.indices[${i}] = ${index} is outside 0…${this.df.length - 1}`);
+      }
+      if (values[i] !== 0 && this.df[index] === 0) {
+        throw new RangeError(`removeDocument: bucket ${index} has document frequency 0`);
+      }
+    }
+    for (let i = 0; i < indices.length; i++) if (values[i] !== 0) this.df[indices[i]]--;
+    this.n--;
+  }
+
   /** Document frequency of bucket `index`. */
   documentFrequency(index: number): number {
     return this.df[index] ?? 0;

@@ -100,6 +100,23 @@ describe('tfidf', () => {
     expect(() => IdfTable.fromJSON({ ...json, type: 'x' })).toThrow(TypeError);
   });
 
+  it('takes back a document exactly as it was added, and refuses counts it never added', () => {
+    const idf = table();
+    const before = JSON.stringify(idf.toJSON());
+    const extra = sparse([0, 4, 0, 1]);
+    idf.addDocument(extra);
+    expect(JSON.stringify(idf.toJSON())).not.toBe(before);
+    idf.removeDocument(extra);
+    expect(JSON.stringify(idf.toJSON())).toBe(before);
+    // Counts never added: nothing to take back, and the table stays as it was.
+    const empty = IdfTable.create(2);
+    expect(() => empty.removeDocument(sparse([1, 0, 0, 0]))).toThrow(RangeError);
+    empty.addDocument(sparse([1, 0, 0, 0]));
+    expect(() => empty.removeDocument(sparse([1, 1, 0, 0]))).toThrow(/bucket 1/);
+    expect(empty.documentCount).toBe(1);
+    expect(empty.documentFrequency(0)).toBe(1);
+  });
+
   it('rejects counts outside the table', () => {
     expect(() => tfidf(sparse([0, 0, 0, 0, 1]), table())).toThrow(RangeError);
   });

@@ -9,7 +9,8 @@ export type DisagreementReason =
   | { kind: 'against-sure-call'; verdictId: number; modelVersion: number; shownSet: string[]; category: string };
 
 export interface Disagreement {
-  item: { id: number; externalId: string | null; text: string };
+  /** `text` is null once the item was erased (`erasedAt`). */
+  item: { id: number; externalId: string | null; text: string | null; erasedAt: Date | null };
   verdicts: Array<{
     id: number;
     reviewer: string;
@@ -42,6 +43,7 @@ interface VerdictRow {
   shown_call: string | null;
   external_id: string | null;
   text: string;
+  erased_at: unknown;
 }
 
 const CANDIDATE_BATCH = 500;
@@ -96,7 +98,7 @@ export class DisagreementsService {
       const list = ids.map((r) => Number(r.item_id));
       const rows = await this.db.query<VerdictRow>(
         null,
-        `SELECT v.id, v.item_id, u.name AS reviewer, c.name AS category, v.abstain, v.draw, v.created_at, v.undone_at, v.model_version, v.shown_set, v.shown_call, i.external_id, i.text
+        `SELECT v.id, v.item_id, u.name AS reviewer, c.name AS category, v.abstain, v.draw, v.created_at, v.undone_at, v.model_version, v.shown_set, v.shown_call, i.external_id, i.text, i.erased_at
          FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
          WHERE v.item_id IN (${list.map((_, i) => `$${i + 1}`).join(', ')}) ORDER BY v.item_id, v.id`,
         list,
@@ -117,7 +119,13 @@ export class DisagreementsService {
         const first = rows[0];
         const history = settled.get(Number(first.item_id)) ?? [];
         return {
-          item: { id: Number(first.item_id), externalId: first.external_id, text: first.text },
+          item: {
+            id: Number(first.item_id),
+            externalId: first.external_id,
+            // A tombstone shows when it was erased, never its placeholder.
+            text: first.erased_at === null ? first.text : null,
+            erasedAt: this.db.parseTime(first.erased_at),
+          },
           verdicts: rows.map((r) => ({
             id: Number(r.id),
             reviewer: r.reviewer,

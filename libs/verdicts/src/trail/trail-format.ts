@@ -21,6 +21,8 @@ export interface TrailRow {
   settledCategory: string | null;
   settledBy: string | null;
   settledAt: string | null;
+  /** When the item's text, metadata and external id were erased (the verdict stays); null while it holds them. */
+  itemErasedAt: string | null;
 }
 
 export const TRAIL_COLUMNS = [
@@ -43,6 +45,7 @@ export const TRAIL_COLUMNS = [
   'settled_category',
   'settled_by',
   'settled_at',
+  'item_erased_at',
 ] as const;
 
 /** One verdict as a CSV record; text fields neutralised for spreadsheets unless `options` says raw. */
@@ -68,6 +71,7 @@ export function trailCsvLine(r: TrailRow, options: CsvOptions = SPREADSHEET_SAFE
       r.settledCategory,
       r.settledBy,
       r.settledAt,
+      r.itemErasedAt,
     ],
     options,
   );

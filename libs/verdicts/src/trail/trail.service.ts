@@ -96,7 +96,7 @@ export class TrailService {
     for (;;) {
       const page = await this.db.query(
         null,
-        `SELECT v.id, v.item_id, i.external_id, u.name AS reviewer, v.created_at, c.name AS category, v.abstain, v.undone_at, v.draw, v.model_version,
+        `SELECT v.id, v.item_id, i.external_id, i.erased_at AS item_erased_at, u.name AS reviewer, v.created_at, c.name AS category, v.abstain, v.undone_at, v.draw, v.model_version,
                 v.shown_set, v.shown_call, v.elapsed_ms, v.note, v.simulated, sc.name AS settled_category, su.name AS settled_by, s.created_at AS settled_at
          FROM (SELECT v.id, v.item_id, v.reviewer_id, v.category_id, v.created_at, v.abstain, v.undone_at, v.draw, v.model_version, v.shown_set, v.shown_call,
                       v.elapsed_ms, v.note, v.simulated
@@ -140,6 +140,7 @@ export class TrailService {
       settledCategory: (r.settled_category as string | null) ?? null,
       settledBy: (r.settled_by as string | null) ?? null,
       settledAt: iso(r.settled_at),
+      itemErasedAt: iso(r.item_erased_at),
     };
   }
 }

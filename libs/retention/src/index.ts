@@ -1,0 +1,11 @@
+export { RetentionModule } from './retention.module.js';
+export {
+  ErasureService,
+  ERASURE_BATCH,
+  type ErasureCounts,
+  type ErasureRequest,
+  type ErasureView,
+} from './erasure.service.js';
+export { EraseItemsDto, ERASURE_SELECTOR_MAX } from './erasure.dto.js';
+export { ErasureAnswer, ErasureListAnswer, OneErasureAnswer } from './retention.responses.js';
+export { subjectHash, newErasureSalt } from './subject-hash.js';
