@@ -16,6 +16,7 @@ import { VerdictsModule } from '#verdicts';
 import { VocabularyModule } from '#vocabulary';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
+import { ServiceMetrics } from './metrics/service-metrics.js';
 
 /** The HTTP application: every route of the API. It registers no queue processors. */
 @Module({})
@@ -41,6 +42,7 @@ export class ApiModule {
         RetentionModule,
       ],
       controllers: [HealthController, AuditController],
+      providers: [ServiceMetrics],
     };
   }
 }

@@ -9,6 +9,7 @@ import { NestPinoLogger, requestLogger, ROOT_LOGGER } from '#logging';
 import { AuthService, bearerOf, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
 import { JsonBodyInterceptor } from './json-body.js';
+import { mountMetrics } from './metrics/metrics-endpoint.js';
 import { StrictValidationPipe } from './strict-validation.pipe.js';
 import { webScreens } from './web-screens.js';
 
@@ -24,6 +25,14 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
   });
   app.useLogger(app.get(NestPinoLogger));
   app.use(requestLogger(app.get(ROOT_LOGGER)));
+  const metricsServer = mountMetrics(app, config);
+  if (metricsServer) {
+    const close = app.close.bind(app);
+    app.close = async () => {
+      await new Promise<void>((resolve) => metricsServer.close(() => resolve()));
+      await close();
+    };
+  }
   app.disable('x-powered-by');
   app.use((_req: express.Request, res: express.Response, next: express.NextFunction) => {
     res.setHeader('X-Content-Type-Options', 'nosniff');

@@ -1,6 +1,7 @@
 import { hostname } from 'node:os';
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
-import { UnrecoverableError, Worker } from 'bullmq';
+import { UnrecoverableError, Worker, type Job } from 'bullmq';
+import type { Redis } from 'ioredis';
 import type { Logger as Pino } from 'pino';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { logJob, ROOT_LOGGER } from '#logging';
@@ -11,6 +12,8 @@ import {
   JOBS,
   JobQueueService,
   QUEUES,
+  recordJob,
+  REDIS,
   type JobHandler,
   type JobName,
 } from '#queues';
@@ -59,6 +62,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
     @Inject(JOB_HANDLERS) handlers: JobHandler[],
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
     @Inject(ROOT_LOGGER) private readonly log: Pino,
+    @Inject(REDIS) private readonly redis: Redis,
   ) {
     this.table = handlerTable(handlers);
   }
@@ -87,9 +91,19 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
       );
       worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
       // One line per finished attempt (see logJob); a job that failed before it was read has no job to describe.
-      worker.on('completed', (job) => logJob(this.log, job));
+      // …and the same attempt counted in Redis, where the API's /metrics reads every worker's figures.
+      const finished = (job: Job, e?: Error) => {
+        const { outcome, durationMs } = logJob(this.log, job, e);
+        recordJob(this.redis, this.config.queuePrefix, {
+          queue,
+          job: job.name,
+          outcome,
+          seconds: (durationMs ?? 0) / 1000,
+        }).catch((err: unknown) => this.logger.warn(`job figures not recorded: ${(err as Error).message}`));
+      };
+      worker.on('completed', (job) => finished(job));
       worker.on('failed', (job, e) =>
-        job ? logJob(this.log, job, e) : this.logger.warn(`a job on ${queue} failed: ${e.message}`),
+        job ? finished(job, e) : this.logger.warn(`a job on ${queue} failed: ${e.message}`),
       );
       this.workers.push(worker);
     }

@@ -51,6 +51,12 @@ export interface AppConfig {
   /** The launcher restarts a process that dies; more than this many deaths of one process within the window end it. */
   readonly restartLimit: number;
   readonly restartWindowMinutes: number;
+  /**
+   * `GET /metrics` (Prometheus text): with a token, it answers a request bearing it on the API's port; with a port, it
+   * is served on that port only (bound to `host`), with no authentication of its own. Without either, only an admin's
+   * bearer token or session reads it.
+   */
+  readonly metrics: { readonly token: string | null; readonly port: number | null };
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -93,6 +99,8 @@ export const CONFIG_VARIABLES = [
   'SIGNIN_WINDOW_MINUTES',
   'RESTART_LIMIT',
   'RESTART_WINDOW_MINUTES',
+  'METRICS_TOKEN',
+  'METRICS_PORT',
   'CRIBRA_TEST_PAUSE',
 ] as const;
 
@@ -185,6 +193,12 @@ export function parseConfig(
   if (!['text', 'json'].includes(logFormat))
     problems.push(`LOG_FORMAT=${JSON.stringify(env.LOG_FORMAT)}: expected text or json`);
 
+  const metricsToken = str('METRICS_TOKEN') ?? null;
+  if (metricsToken !== null && metricsToken.length < 16)
+    problems.push('METRICS_TOKEN: use at least 16 characters (e.g. openssl rand -hex 24)');
+  const metricsPort = str('METRICS_PORT') === undefined ? null : int('METRICS_PORT', 0, 1, 65535);
+  if (metricsPort !== null && metricsPort === port) problems.push(`METRICS_PORT=${metricsPort}: must differ from PORT`);
+
   const pause = str('CRIBRA_TEST_PAUSE') ?? null;
   if (pause !== null && pause !== 'training' && pause !== 'scoring')
     problems.push(`CRIBRA_TEST_PAUSE=${JSON.stringify(pause)}: expected training or scoring`);
@@ -218,6 +232,7 @@ export function parseConfig(
     },
     restartLimit: int('RESTART_LIMIT', 5, 0, 1000),
     restartWindowMinutes: int('RESTART_WINDOW_MINUTES', 10, 1, 1440),
+    metrics: { token: metricsToken, port: metricsPort },
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -264,6 +279,8 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SIGNIN_WINDOW_MINUTES: String(config.signIn.windowMinutes),
     RESTART_LIMIT: String(config.restartLimit),
     RESTART_WINDOW_MINUTES: String(config.restartWindowMinutes),
+    ...(config.metrics.token ? { METRICS_TOKEN: config.metrics.token } : {}),
+    ...(config.metrics.port ? { METRICS_PORT: String(config.metrics.port) } : {}),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

@@ -15,7 +15,11 @@ export interface LoggedJob {
  * One line per finished job attempt: queue, name, id, outcome and how long it ran. A failed attempt that BullMQ will
  * try again says so (`outcome: "retrying"`); ids only, never a payload.
  */
-export function logJob(logger: Logger, job: LoggedJob, error?: Error): void {
+export function logJob(
+  logger: Logger,
+  job: LoggedJob,
+  error?: Error,
+): { outcome: 'completed' | 'retrying' | 'failed'; durationMs: number | null } {
   const durationMs = job.processedOn !== undefined ? (job.finishedOn ?? Date.now()) - job.processedOn : null;
   const fields = {
     queue: job.queueName,
@@ -26,7 +30,7 @@ export function logJob(logger: Logger, job: LoggedJob, error?: Error): void {
   };
   if (!error) {
     logger.info({ ...fields, outcome: 'completed' }, `job ${job.queueName}/${job.name} ${job.id ?? ''} completed`);
-    return;
+    return { outcome: 'completed', durationMs };
   }
   const retrying = error.name !== 'UnrecoverableError' && job.attemptsMade < (job.opts.attempts ?? 1);
   const outcome = retrying ? 'retrying' : 'failed';
@@ -34,4 +38,5 @@ export function logJob(logger: Logger, job: LoggedJob, error?: Error): void {
     { ...fields, outcome, error: error.message },
     `job ${job.queueName}/${job.name} ${job.id ?? ''} ${outcome}: ${error.message}`,
   );
+  return { outcome, durationMs };
 }

@@ -20,3 +20,4 @@ export { createRedis } from './redis.js';
 export { JobQueueService, REDIS } from './job-queue.service.js';
 export { QueuesModule } from './queues.module.js';
 export { handlerTable, type JobHandler } from './job-handler.js';
+export { recordJob, readJobFigures, type JobFigure, type JobOutcome } from './job-metrics.js';
