@@ -176,8 +176,14 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     const l = (await lease(rev, id)).body;
     expect((await s.call(rev2, 'DELETE', `/api/leases/${l.lease.id}`)).status).toBe(403);
     expect((await s.call(rev, 'DELETE', `/api/leases/${l.lease.id}`)).status).toBe(204);
+    // A verdict on the lease handed back is refused, whether or not someone took the item since.
+    const late = await decide(rev, id, l, { category: 'ok', clientId: 'giveback-late' });
+    expect(late.status).toBe(409);
+    expect(late.body.message).toMatch(/handed back; your verdict was not recorded/);
     const again = await lease(rev2, id);
     expect(again.body.item.id).toBe(l.item.id);
+    expect((await decide(rev, id, l, { category: 'ok', clientId: 'giveback-later' })).status).toBe(409);
+    expect((await s.call(sup, 'GET', `/api/desks/${id}/verdicts`)).body.verdicts).toEqual([]);
   });
 
   it('lets the author undo their last verdict within the window; the item returns to the queue and the trail keeps both', async () => {

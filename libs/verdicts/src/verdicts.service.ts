@@ -48,6 +48,7 @@ interface LeaseAndItem {
   draw: DrawKind;
   prediction: string | null;
   closed_at: unknown;
+  closed_reason: 'verdict' | 'returned' | null;
   state: string;
   item_lease_id: string | null;
   leased_until: unknown;
@@ -126,7 +127,7 @@ export class VerdictsService {
         const lock = this.db.pg ? ' FOR UPDATE OF i' : '';
         const row = await this.db.queryOne<LeaseAndItem>(
           m,
-          `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, i.state, i.lease_id AS item_lease_id, i.leased_until, i.erased_at,
+          `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, l.closed_reason, i.state, i.lease_id AS item_lease_id, i.leased_until, i.erased_at,
                   (SELECT v.id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_id,
                   (SELECT v.item_id FROM verdicts v WHERE v.reviewer_id = $2 AND v.client_id = $3) AS existing_item,
                   so.state AS so_state, so.lease_id AS so_lease_id, so.leased_until AS so_leased_until
@@ -162,6 +163,11 @@ export class VerdictsService {
         if (row.erased_at !== null)
           throw new ConflictException(
             `item ${dto.itemId} was erased while you held it (erasure on request or retention); your verdict was not recorded`,
+          );
+        // The reviewer gave the item back: the item may be anyone's now, and this lease no longer covers a verdict.
+        if (row.closed_reason === 'returned')
+          throw new ConflictException(
+            `lease ${dto.leaseId} was handed back; your verdict was not recorded (ask for the item again)`,
           );
         const now = new Date();
         const heldByOther =
