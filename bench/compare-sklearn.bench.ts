@@ -156,7 +156,7 @@ const output = {
     train: `median of ${RUNS} fits on the first ${TRAIN_N} training items; scikit-learn LogisticRegression() defaults (lbfgs, L2, C=1)`,
     macroF1: 'models fitted on the whole training split, measured on the test split',
     sklearnIterations: s === undefined ? null : (sk as { result: Record<string, unknown> }).result.iterationsFull,
-    oursSteps: full.model.training.steps,
+    oursTraining: full.model.training,
   },
 };
 process.stdout.write(JSON.stringify(output, null, 2) + '\n');

@@ -48,7 +48,7 @@ for (const n of TRAIN_SIZES) {
   for (let r = 0; r < TRAIN_RUNS; r++) {
     const { model, ms } = timedTrain(vectors, data, rows, categories, featurizer.hashBits);
     times.push(ms);
-    trainSteps[String(n)] = model.training.steps;
+    trainSteps[String(n)] = 'iterations' in model.training ? model.training.iterations : model.training.steps;
     if (n === 2000) model2000 = model;
   }
   if (n === 2000) heldOut2000 = sample.slice(n);

@@ -19,10 +19,23 @@ export { tfidf } from './features/tfidf.js';
 export type { TfidfOptions } from './features/tfidf.js';
 
 export { LogisticModel } from './classifier/logistic-model.js';
-export type { LogisticModelJson, TrainingSummary } from './classifier/logistic-model.js';
-export { DEFAULT_MAX_FEATURES, defaultMaxSteps, trainLogisticModel } from './classifier/train-logistic.js';
-export type { TrainOptions } from './classifier/train-logistic.js';
-export { DenseColumn, SparseDesignMatrix } from './classifier/sparse-design-matrix.js';
+export { LOGISTIC_MODEL_VERSION } from './classifier/logistic-model.js';
+export type {
+  LogisticLink,
+  LogisticModelJson,
+  OneVsRestTrainingSummary,
+  SoftmaxTrainingSummary,
+  TrainingSummary,
+} from './classifier/logistic-model.js';
+export {
+  DEFAULT_C,
+  DEFAULT_MAX_ITERATIONS,
+  DEFAULT_TOLERANCE,
+  trainLogisticModel,
+} from './classifier/train-logistic.js';
+export type { ClassWeight, TrainOptions } from './classifier/train-logistic.js';
+export { minimizeLbfgs } from './classifier/lbfgs.js';
+export type { LbfgsOptions, LbfgsResult, Objective } from './classifier/lbfgs.js';
 
 export { assertAlpha, assertLabel, assertProbabilities, PROBABILITY_SUM_TOLERANCE } from './probability-checks.js';
 export { entropy, leastConfidence, margin, uncertainty } from './uncertainty/uncertainty-scores.js';

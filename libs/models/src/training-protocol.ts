@@ -10,6 +10,8 @@ export interface TrainRequest {
   labels: string[];
   categories: string[];
   hashBits: number;
+  /** The model to start from (the desk's current version), or null for a cold start. */
+  warmStart: LogisticModelJson | null;
 }
 
 export type TrainReply = { ok: true; model: LogisticModelJson } | { ok: false; error: string };
@@ -37,12 +39,16 @@ function trainingThread(): Worker {
   return worker;
 }
 
-/** Trains in the process's training thread; the vectors' buffers are moved, not copied. */
+/**
+ * Trains in the process's training thread; the vectors' buffers are moved, not copied. `warmStart` is the
+ * previous version's classifier (see trainLogisticModel's warm start), or null.
+ */
 export async function trainInThread(
   vectors: SparseVector[],
   labels: string[],
   categories: string[],
   hashBits: number,
+  warmStart: LogisticModelJson | null = null,
 ): Promise<LogisticModelJson> {
   const req: TrainRequest = {
     indices: vectors.map((v) => Int32Array.from(v.indices)),
@@ -50,6 +56,7 @@ export async function trainInThread(
     labels,
     categories,
     hashBits,
+    warmStart,
   };
   const reply = await turns.run(() => {
     const worker = trainingThread();

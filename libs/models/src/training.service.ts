@@ -17,6 +17,7 @@ import {
   inEstimationFold,
   LogisticModel,
   logLoss,
+  type LogisticModelJson,
   macroF1,
   reliabilityBins,
   tfidf,
@@ -177,12 +178,19 @@ export class TrainingService {
     const tFeat = performance.now();
     const trainVectors = train.map(([, e]) => vectorize(e.text));
     const calibVectors = calib.map(([, e]) => vectorize(e.text));
+    // Warm start from the desk's current version: its weights are near the new optimum.
+    const parent =
+      desk.currentModelVersion === null
+        ? null
+        : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: desk.currentModelVersion });
+    const parentClassifier = (parent?.model?.classifier ?? null) as LogisticModelJson | null;
     const tTrain = performance.now();
     const classifierJson = await trainInThread(
       trainVectors,
       train.map(([, e]) => e.label),
       categories,
       idf.hashBits,
+      parentClassifier,
     );
     const classifier = LogisticModel.fromJSON(classifierJson);
     const tCal = performance.now();

@@ -1,5 +1,5 @@
 import { parentPort } from 'node:worker_threads';
-import { trainLogisticModel } from '#learning';
+import { LogisticModel, trainLogisticModel } from '#learning';
 import type { TrainRequest, TrainReply } from './training-protocol.js';
 
 // Runs trainings off the worker's event loop, so the worker keeps renewing its job locks; one request at a time.
@@ -7,7 +7,18 @@ parentPort?.on('message', (req: TrainRequest) => {
   let reply: TrainReply;
   try {
     const vectors = req.indices.map((indices, i) => ({ indices, values: req.values[i] }));
-    const model = trainLogisticModel(vectors, req.labels, { categories: req.categories, hashBits: req.hashBits });
+    // A previous version that cannot be read (or is one-vs-rest) only costs the warm start.
+    let warmStart: LogisticModel | null = null;
+    try {
+      warmStart = req.warmStart === null ? null : LogisticModel.fromJSON(req.warmStart);
+    } catch {
+      warmStart = null;
+    }
+    const model = trainLogisticModel(vectors, req.labels, {
+      categories: req.categories,
+      hashBits: req.hashBits,
+      warmStart,
+    });
     reply = { ok: true, model: model.toJSON() };
   } catch (e) {
     reply = { ok: false, error: (e as Error).message };

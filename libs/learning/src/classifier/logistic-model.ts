@@ -1,24 +1,60 @@
 import type { StoredJson } from '../stored-json.js';
 import { assertSparseVector, type SparseVector } from '../features/sparse-vector.js';
 
-/** How a model was trained (for reports; not needed to score). */
-export interface TrainingSummary {
+/** How a multinomial model was trained (for reports; not needed to score). */
+export interface SoftmaxTrainingSummary {
+  method: 'l-bfgs';
   /** Training rows. */
   rows: number;
-  /** Gradient steps taken per one-vs-rest class. */
+  /** Hashed buckets that occur in the training rows (the model's columns). */
+  features: number;
+  /** Inverse regularisation strength C of the objective (see trainLogisticModel). */
+  c: number;
+  /** Weight of each trained class's rows, in `trained` order. */
+  classWeights: number[];
+  /** Relative gradient tolerance: stop at ‖∇f‖₂ ≤ tolerance · ‖∇f(0)‖₂. */
+  tolerance: number;
+  /** L-BFGS iterations. */
+  iterations: number;
+  /** Objective-and-gradient evaluations (passes over the training rows). */
+  evaluations: number;
+  /** Final objective value f. */
+  objective: number;
+  /** ‖∇f‖₂ at the returned weights. */
+  gradientNorm: number;
+  /** ‖∇f‖₂ at zero weights, the scale of the tolerance. */
+  gradientNormAtZero: number;
+  /** True when the gradient tolerance was reached. */
+  converged: boolean;
+  /** True when training started from a previous model's weights. */
+  warmStart: boolean;
+}
+
+/**
+ * How a one-vs-rest model of format version 1 was trained (gradient steps of
+ * ml-logistic-regression; such models are no longer trained but still score).
+ */
+export interface OneVsRestTrainingSummary {
+  rows: number;
   steps: number;
-  /** Final summed logistic loss over the one-vs-rest problems. */
   loss: number;
-  /** Step size passed to ml-logistic-regression in the last round. */
   learningRate: number;
-  /** True when training stopped because the loss stopped improving. */
   converged: boolean;
 }
+
+export type TrainingSummary = SoftmaxTrainingSummary | OneVsRestTrainingSummary;
+
+/**
+ * How scores become probabilities: `softmax` (multinomial logistic
+ * regression, format version 2) or `one-vs-rest` (format version 1).
+ */
+export type LogisticLink = 'softmax' | 'one-vs-rest';
 
 /** Serialised form of a {@link LogisticModel}. */
 export interface LogisticModelJson {
   type: 'cribra.logistic-model';
-  version: 1;
+  /** 2: multinomial (softmax); 1: one-vs-rest with the library's "not c" scores. */
+  version: 1 | 2;
   /** Every category of the desk, in its order. */
   categories: string[];
   /** Positions in `categories` of the categories that had training examples, ascending. */
@@ -33,16 +69,23 @@ export interface LogisticModelJson {
   training: TrainingSummary;
 }
 
+/** The newest format version written by {@link LogisticModel.toJSON} for a softmax model. */
+export const LOGISTIC_MODEL_VERSION = 2;
+
 /**
- * A trained one-vs-rest logistic model, scored without ml-matrix (one sparse
- * dot product per category).
+ * A trained logistic model over hashed sparse features, scored with one
+ * sparse dot product per category.
  *
- * ml-logistic-regression's class-c model gives σ(s_c) = P(not c | x) (its
- * one-vs-rest target is 0 for the class, 1 for the rest), so
- * q_c = 1 − σ(s_c) = σ(−s_c). The one-vs-rest outputs are normalised into
- * multinomial probabilities p_c = q_c / Σ_j q_j, as scikit-learn does for
- * one-vs-rest logistic regression; categories without training examples get
- * probability 0.
+ * - `softmax` (what training now produces): s_c = b_c + w_c·x is the log-odds
+ *   of class c up to a shared constant, and p_c = exp(s_c) / Σ_j exp(s_j), the
+ *   multinomial logistic model (Bishop, Pattern Recognition and Machine
+ *   Learning, 2006, §4.3.4, eq. 4.104).
+ * - `one-vs-rest` (format version 1, still read so that stored versions keep
+ *   scoring): ml-logistic-regression's class-c model gives σ(s_c) = P(not c | x),
+ *   so q_c = σ(−s_c), normalised into p_c = q_c / Σ_j q_j as scikit-learn does
+ *   for one-vs-rest logistic regression.
+ *
+ * Categories without training examples get probability 0.
  */
 export class LogisticModel {
   private lookup: Int32Array | null = null;
@@ -53,6 +96,7 @@ export class LogisticModel {
    * @param features    hashed buckets, ascending
    * @param weights     feature-major: weights[j * k + c] for feature j, class c (k = trained.length)
    * @param biases      constant term of each trained class's score
+   * @param link        how scores become probabilities (default softmax)
    */
   constructor(
     readonly categories: readonly string[],
@@ -62,6 +106,7 @@ export class LogisticModel {
     readonly weights: Float64Array,
     readonly biases: Float64Array,
     readonly training: TrainingSummary,
+    readonly link: LogisticLink = 'softmax',
   ) {
     const k = trained.length;
     if (k < 1) throw new RangeError('a model needs at least one trained category');
@@ -85,7 +130,7 @@ export class LogisticModel {
     return this.lookup;
   }
 
-  /** Raw one-vs-rest scores s_c (the library's logit of "not c"), one per trained class. */
+  /** Raw scores s_c, one per trained class (see the class comment for their meaning under each link). */
   scores(x: SparseVector): Float64Array {
     const k = this.trained.length;
     const s = new Float64Array(k);
@@ -108,10 +153,7 @@ export class LogisticModel {
     return s;
   }
 
-  /**
-   * Multinomial probabilities over all categories (sum 1): normalised
-   * one-vs-rest outputs, see the class comment.
-   */
+  /** Probabilities over all categories (sum 1), see the class comment. */
   predictProba(x: SparseVector): Float64Array {
     const out = new Float64Array(this.categories.length);
     const k = this.trained.length;
@@ -120,19 +162,22 @@ export class LogisticModel {
       return out;
     }
     const s = this.scores(x);
-    let total = 0;
     const q = new Float64Array(k);
-    for (let c = 0; c < k; c++) {
-      q[c] = 1 / (1 + Math.exp(s[c]));
-      total += q[c];
+    let total = 0;
+    if (this.link === 'one-vs-rest') {
+      for (let c = 0; c < k; c++) {
+        q[c] = 1 / (1 + Math.exp(s[c]));
+        total += q[c];
+      }
     }
-    if (!(total > 0)) {
-      // Every q_c underflowed: fall back to the limit, a softmax of −s.
+    if (this.link === 'softmax' || !(total > 0)) {
+      // Softmax of s (or, when every one-vs-rest q_c underflowed, of −s, their limit).
+      const sign = this.link === 'softmax' ? 1 : -1;
       let max = -Infinity;
-      for (let c = 0; c < k; c++) max = Math.max(max, -s[c]);
+      for (let c = 0; c < k; c++) max = Math.max(max, sign * s[c]);
       total = 0;
       for (let c = 0; c < k; c++) {
-        q[c] = Math.exp(-s[c] - max);
+        q[c] = Math.exp(sign * s[c] - max);
         total += q[c];
       }
     }
@@ -156,7 +201,7 @@ export class LogisticModel {
     }
     return {
       type: 'cribra.logistic-model',
-      version: 1,
+      version: this.link === 'softmax' ? 2 : 1,
       categories: [...this.categories],
       trained: [...this.trained],
       hashBits: this.hashBits,
@@ -167,10 +212,14 @@ export class LogisticModel {
     };
   }
 
-  /** Restores a model written by {@link LogisticModel.toJSON}. */
+  /**
+   * Restores a model written by {@link LogisticModel.toJSON}: version 2
+   * (softmax) or version 1 (one-vs-rest, written before the multinomial solver).
+   */
   static fromJSON(json: StoredJson<LogisticModelJson>): LogisticModel {
     if (json?.type !== 'cribra.logistic-model') throw new TypeError(`not a logistic model: type ${String(json?.type)}`);
-    if (json.version !== 1) throw new RangeError(`unsupported logistic model version ${String(json.version)}`);
+    if (json.version !== 1 && json.version !== 2)
+      throw new RangeError(`unsupported logistic model version ${String(json.version)}`);
     const k = json.trained.length;
     const m = json.features.length;
     if (json.weights.length !== k) throw new RangeError(`weights has ${json.weights.length} classes, expected ${k}`);
@@ -194,6 +243,7 @@ export class LogisticModel {
       weights,
       Float64Array.from(json.biases),
       json.training,
+      json.version === 2 ? 'softmax' : 'one-vs-rest',
     );
   }
 }

@@ -1,4 +1,4 @@
-// Types for the parts of ml-logistic-regression 2.x this library uses
+// Types for the parts of ml-logistic-regression 2.x the solver's reference test uses
 // (the package ships none). Read from its source, src/logreg.js.
 declare module 'ml-logistic-regression' {
   import type { AbstractMatrix, Matrix } from 'ml-matrix';

@@ -158,12 +158,19 @@ interface Timing {
   scoreMs: number[];
 }
 
-function train(data: RehearsalData, rows: number[], options: RehearsalOptions, timing: Timing): LogisticModel {
+/** Trains on `rows`, from the previous model's weights when there is one (as the service's retrain does). */
+function train(
+  data: RehearsalData,
+  rows: number[],
+  options: RehearsalOptions,
+  timing: Timing,
+  previous: LogisticModel | null = null,
+): LogisticModel {
   const started = performance.now();
   const model = trainLogisticModel(
     rows.map((i) => data.vectors[i]),
     rows.map((i) => data.classes[data.labels[i]]),
-    { categories: data.classes, hashBits: data.hashBits, ...options.training },
+    { categories: data.classes, hashBits: data.hashBits, warmStart: previous, ...options.training },
   );
   timing.trainMs.push(performance.now() - started);
   return model;
@@ -243,8 +250,9 @@ function runCurve(
   const calibrationRows: number[] = [];
   const labelled = new Set(trainRows);
   const curve: CurvePoint[] = [];
+  let model: LogisticModel | null = null;
   for (;;) {
-    const model = train(data, trainRows, options, timing);
+    model = train(data, trainRows, options, timing, model);
     const started = performance.now();
     const probabilities = new Map<number, Float64Array>();
     // Score what the service scores: the unlabelled pool (for the next draw),
