@@ -226,6 +226,50 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     expect(tooLate.body.message).toMatch(/undo window of 5 minutes/);
   });
 
+  it('reopens the same item for the same reviewer on an undo with reopen=true, under the draw it was served by', async () => {
+    const id = await desk('reopen', ['r1', 'r2', 'r3'], { randomShare: 1 });
+    const since = new Date(Date.now() - 1000).toISOString();
+    const count = async () =>
+      (await s.call(rev, 'GET', `/api/desks/${id}/verdicts/mine/count?since=${encodeURIComponent(since)}`)).body
+        .count as number;
+    const l1 = (await lease(rev, id)).body;
+    const v1 = (await decide(rev, id, l1, { category: 'threat', clientId: 'ro-1' })).body.verdict;
+    expect(await count()).toBe(1);
+    const undone = await s.call(rev, 'POST', `/api/verdicts/${v1.id}/undo?reopen=true`);
+    expect(undone.status).toBe(201);
+    expect(undone.body.verdict.undoneAt).not.toBeNull();
+    expect(undone.body.lease.item.id).toBe(l1.item.id);
+    expect(await count()).toBe(0);
+    // Held for this reviewer: another reviewer is served the other items, never this one.
+    const others: number[] = [];
+    for (;;) {
+      const r = await lease(rev2, id);
+      if (r.status === 204) break;
+      others.push(r.body.item.id);
+    }
+    expect(others).toHaveLength(2);
+    expect(others).not.toContain(l1.item.id);
+    const [row] = await s.db.query<{ draw: string; reviewer_id: DbInt }>(
+      null,
+      'SELECT draw, reviewer_id FROM leases WHERE id = $1',
+      [undone.body.lease.lease.id],
+    );
+    // A correction of a random draw is still a random draw: it still calibrates.
+    expect(row.draw).toBe('random');
+    const v2 = await decide(rev, id, undone.body.lease, { category: 'ok', clientId: 'ro-2' });
+    expect(v2.status).toBe(201);
+    expect(v2.body.verdict).toMatchObject({ itemId: l1.item.id, category: 'ok', undoneAt: null });
+    expect(await count()).toBe(1);
+    // Without reopen the answer holds no lease; a bad value is a 400; since is required.
+    const plain = await s.call(rev, 'POST', `/api/verdicts/${v2.body.verdict.id}/undo`);
+    expect(plain.status).toBe(201);
+    expect(plain.body).not.toHaveProperty('lease');
+    expect((await s.call(rev, 'POST', `/api/verdicts/${v2.body.verdict.id}/undo?reopen=yes`)).status).toBe(400);
+    const noSince = await s.call(rev, 'GET', `/api/desks/${id}/verdicts/mine/count`);
+    expect(noSince.status).toBe(400);
+    expect(noSince.body.message).toMatch(/since/);
+  });
+
   it('reports progress: items by state, verdicts by category and draw, active reviewers', async () => {
     const id = await desk('progress', ['p1', 'p2', 'p3', 'p4'], { randomShare: 1 });
     const a = (await lease(rev, id)).body;

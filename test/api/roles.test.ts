@@ -112,6 +112,7 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'POST', path: `/api/verdicts/${verdictId}/undo`, allowed: ['reviewer'] },
     { method: 'GET', path: `/api/desks/${deskId}/verdicts`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/verdicts/mine`, allowed: ['reviewer'] },
+    { method: 'GET', path: `/api/desks/${deskId}/verdicts/mine/count`, allowed: ['reviewer'] },
     { method: 'GET', path: `/api/desks/${deskId}/progress`, allowed: ['reviewer', 'supervisor', 'auditor', 'admin'] },
     { method: 'GET', path: '/api/audit', allowed: ALL },
     { method: 'GET', path: `/api/desks/${deskId}/models`, allowed: ['supervisor', 'auditor'] },

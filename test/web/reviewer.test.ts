@@ -67,11 +67,13 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     );
     expect(median).toBeLessThanOrEqual(NEXT_ITEM_TARGET_MS);
 
-    // `u` undoes the last verdict; the screen says so and keeps the item in front of the reviewer.
-    const current = await item.getAttribute('data-item-id');
+    // `u` undoes the last verdict and puts that same item back in front of the reviewer to correct it.
     await page.keyboard.press('u');
-    await page.getByRole('status').filter({ hasText: 'undone' }).waitFor();
-    expect(await item.getAttribute('data-item-id')).toBe(current);
+    await page.getByRole('status').filter({ hasText: 'back for you to decide again' }).waitFor();
+    await page.waitForFunction(
+      (id) => document.querySelector('article.item')?.getAttribute('data-item-id') === String(id),
+      decided[4].itemId,
+    );
 
     const mine = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=10`)).body
       .verdicts as Array<{ itemId: number; category: string; undoneAt: string | null; elapsedMs: number }>;
@@ -81,6 +83,90 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     const undone = fromScreen.filter((v) => v.undoneAt !== null);
     expect(undone.map((v) => v.itemId)).toEqual([decided[4].itemId]);
     expect(fromScreen.every((v) => v.elapsedMs >= 0)).toBe(true);
+
+    // The correction is a new verdict on the same item by the same reviewer; today's count follows.
+    // (The desk's setup verdicts were given today by the same reviewer through the API: they count too.)
+    const midnight = new Date();
+    midnight.setHours(0, 0, 0, 0);
+    const live = (
+      await s.call(
+        desk.rev,
+        'GET',
+        `/api/desks/${desk.deskId}/verdicts/mine/count?since=${encodeURIComponent(midnight.toISOString())}`,
+      )
+    ).body.count as number;
+    const todayShown = async () => Number(await page.locator('.today strong').innerText());
+    await expect(todayShown()).resolves.toBe(live);
+    const again = decided[4].category === 'ok' ? 'threat' : 'ok';
+    await page.keyboard.press(String(['threat', 'harassment', 'ok'].indexOf(again) + 1));
+    await page.waitForFunction(
+      (id) => document.querySelector('article.item')?.getAttribute('data-item-id') !== String(id),
+      decided[4].itemId,
+    );
+    await expect(todayShown()).resolves.toBe(live + 1);
+    const [corrected] = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1`)).body
+      .verdicts;
+    expect(corrected).toMatchObject({ itemId: decided[4].itemId, category: again, undoneAt: null });
+    expect(b.foreign).toEqual([]);
+  });
+
+  it('keeps the keys working whatever has focus, except while typing the note; h hands back, ? lists every key', async () => {
+    const { page } = b;
+    const item = page.locator('article.item');
+    const current = async () => Number(await item.getAttribute('data-item-id'));
+    const changed = (prev: number) =>
+      page.waitForFunction(
+        (p) => document.querySelector('article.item')?.getAttribute('data-item-id') !== String(p),
+        prev,
+      );
+    // After a click on the check box, a number key still decides.
+    const box = page.getByLabel('Confirm each verdict with Enter');
+    await box.click();
+    await box.click();
+    await expect(page.evaluate(() => document.activeElement?.getAttribute('type'))).resolves.toBe('checkbox');
+    let id = await current();
+    await page.keyboard.press('3');
+    await changed(id);
+    // In the note a digit is text; Esc leaves the note and the next digit decides.
+    id = await current();
+    await page.getByLabel(/^Note/).click();
+    await page.keyboard.type('3 posts alike');
+    expect(await current()).toBe(id);
+    await page.keyboard.press('Escape');
+    await page.keyboard.press('3');
+    await changed(id);
+    const [withNote] = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1`)).body.verdicts;
+    expect(withNote).toMatchObject({ itemId: id, category: 'ok', note: '3 posts alike' });
+    // h: the item goes back to the queue and another one is shown; nothing is decided.
+    id = await current();
+    const before = (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts
+      .length;
+    await page.keyboard.press('h');
+    await changed(id);
+    await page
+      .getByRole('status')
+      .filter({ hasText: `Item ${id} is handed back` })
+      .waitFor();
+    expect(
+      (await s.call(desk.rev, 'GET', `/api/desks/${desk.deskId}/verdicts/mine?limit=1000`)).body.verdicts.length,
+    ).toBe(before);
+    const [returned] = await s.db.query<{ closed_reason: string }>(
+      null,
+      'SELECT closed_reason FROM leases WHERE item_id = $1 ORDER BY created_at DESC LIMIT 1',
+      [id],
+    );
+    expect(returned.closed_reason).toBe('returned');
+    // ? lists every key; while it is open a number key decides nothing; Esc closes it.
+    id = await current();
+    await page.keyboard.press('?');
+    const dialog = page.getByRole('dialog', { name: 'Every key of the queue' });
+    await dialog.waitFor();
+    for (const k of ['1', '0', 'u', 'n', 'h', 'Esc', '?'])
+      await dialog.locator('kbd', { hasText: k }).first().waitFor();
+    await page.keyboard.press('2');
+    expect(await current()).toBe(id);
+    await page.keyboard.press('Escape');
+    await dialog.waitFor({ state: 'detached' });
     expect(b.foreign).toEqual([]);
   });
 

@@ -116,22 +116,7 @@ export class LeasesService {
           (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
       }
       if (!row) return null;
-      // What the reviewer is shown is recorded with the lease, and later with the verdict.
-      const prediction = await this.predictions.forItem(m, desk, Number(row.id), row.text);
-      await this.db.query(
-        m,
-        'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)',
-        [
-          leaseId,
-          deskId,
-          row.id,
-          reviewer.id,
-          draw,
-          prediction ? JSON.stringify(prediction) : null,
-          this.db.time(now),
-          this.db.time(expiresAt),
-        ],
-      );
+      const prediction = await this.record(m, reviewer, desk, leaseId, now, expiresAt, row, draw);
       return { row, prediction };
     });
     if (!picked) {
@@ -139,8 +124,84 @@ export class LeasesService {
         return this.lease(reviewer, deskId, attempt + 1);
       return null;
     }
-    const { prediction } = picked;
-    const row = picked.row;
+    return this.grant(desk, leaseId, expiresAt, picked.row, picked.prediction);
+  }
+
+  /**
+   * Leases one given item to a reviewer, inside the caller's transaction:
+   * an open item, or for a `second-opinion` draw an item whose second
+   * opinion is due. The lease records `draw`, so a correction of a verdict on
+   * a random draw is still a random draw (it still calibrates). Null when the
+   * item is no longer free (someone else took it, or it is decided).
+   */
+  async grantItem(
+    m: EntityManager,
+    reviewer: Principal,
+    desk: DeskEntity,
+    itemId: number,
+    draw: DrawKind,
+  ): Promise<LeaseGrant | null> {
+    const leaseId = randomUUID();
+    const now = new Date();
+    const expiresAt = new Date(now.getTime() + desk.leaseSeconds * 1000);
+    let row: PickedRow | null | undefined;
+    if (draw === 'second-opinion') {
+      const due = await this.db.queryOne<{ item_id: DbInt }>(
+        m,
+        `UPDATE second_opinions SET state = 'leased', lease_id = $1, leased_until = $2 WHERE item_id = $3 AND desk_id = $4 AND state = 'due' RETURNING item_id`,
+        [leaseId, this.db.time(expiresAt), itemId, desk.id],
+      );
+      row = due
+        ? await this.db.queryOne<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE id = $1`, [itemId])
+        : null;
+    } else {
+      row = await this.db.queryOne<PickedRow>(
+        m,
+        `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3 AND desk_id = $4 AND state = 'open' RETURNING ${PICK_COLUMNS}`,
+        [leaseId, this.db.time(expiresAt), itemId, desk.id],
+      );
+    }
+    if (!row) return null;
+    const prediction = await this.record(m, reviewer, desk, leaseId, now, expiresAt, row, draw);
+    return this.grant(desk, leaseId, expiresAt, row, prediction);
+  }
+
+  /** Writes the lease row with what the reviewer is shown (recorded with the lease, and later with the verdict). */
+  private async record(
+    m: EntityManager,
+    reviewer: Principal,
+    desk: DeskEntity,
+    leaseId: string,
+    now: Date,
+    expiresAt: Date,
+    row: PickedRow,
+    draw: DrawKind,
+  ): Promise<ShownPrediction | null> {
+    const prediction = await this.predictions.forItem(m, desk, Number(row.id), row.text);
+    await this.db.query(
+      m,
+      'INSERT INTO leases (id, desk_id, item_id, reviewer_id, draw, prediction, created_at, expires_at, closed_at, closed_reason) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, NULL, NULL)',
+      [
+        leaseId,
+        desk.id,
+        row.id,
+        reviewer.id,
+        draw,
+        prediction ? JSON.stringify(prediction) : null,
+        this.db.time(now),
+        this.db.time(expiresAt),
+      ],
+    );
+    return prediction;
+  }
+
+  private grant(
+    desk: DeskEntity,
+    leaseId: string,
+    expiresAt: Date,
+    row: PickedRow,
+    prediction: ShownPrediction | null,
+  ): LeaseGrant {
     return {
       lease: { id: leaseId, expiresAt },
       item: {

@@ -2,6 +2,7 @@ import { applyDecorators } from '@nestjs/common';
 import { ApiQuery } from '@nestjs/swagger';
 import { isoTime, named, z } from '#api-docs';
 import { DRAW_KINDS, TRIAGE_CALLS } from '#database';
+import { LeaseGrantAnswer } from '#leases';
 
 /** A verdict with the model version and the set that were shown when it was given. */
 export const VerdictAnswer = named(
@@ -26,6 +27,22 @@ export const VerdictAnswer = named(
 );
 
 export const OneVerdictAnswer = named('OneVerdict', z.strictObject({ verdict: VerdictAnswer }));
+export const UndoneVerdictAnswer = named(
+  'UndoneVerdict',
+  z.strictObject({
+    verdict: VerdictAnswer,
+    lease: LeaseGrantAnswer.nullable()
+      .optional()
+      .describe('with reopen=true: the same item, leased again to this reviewer; null when it could not be'),
+  }),
+);
+export const VerdictCountAnswer = named(
+  'VerdictCount',
+  z.strictObject({
+    since: isoTime,
+    count: z.int().describe('this reviewer’s verdicts on the desk since then, undone ones left out'),
+  }),
+);
 export const VerdictListAnswer = named('VerdictList', z.strictObject({ verdicts: z.array(VerdictAnswer) }));
 
 export const ProgressAnswer = named(

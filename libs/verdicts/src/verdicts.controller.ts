@@ -17,7 +17,14 @@ import { CurrentDesk, CurrentUser, OnDesk, Roles, type DeskAccess, type Principa
 import { parseIsoDateTime } from '#imports';
 import { CreateVerdictDto } from './verdict.dto.js';
 import { ProgressService } from './progress.service.js';
-import { ApiVerdictFilters, OneVerdictAnswer, ProgressAnswer, VerdictListAnswer } from './verdict.responses.js';
+import {
+  ApiVerdictFilters,
+  OneVerdictAnswer,
+  ProgressAnswer,
+  UndoneVerdictAnswer,
+  VerdictCountAnswer,
+  VerdictListAnswer,
+} from './verdict.responses.js';
 import { VerdictsService } from './verdicts.service.js';
 
 const intOrUndefined = (name: string, v: string | undefined, max = Number.MAX_SAFE_INTEGER): number | undefined => {
@@ -67,13 +74,39 @@ export class VerdictsController {
   @Roles('reviewer')
   @OnDesk('verdictId')
   @Post('verdicts/:verdictId/undo')
-  @ApiAnswer(OneVerdictAnswer, { status: 201, description: 'the verdict, marked undone' })
+  @ApiAnswer(UndoneVerdictAnswer, { status: 201, description: 'the verdict, marked undone' })
   @ApiErrors({ 409: 'already undone, past the undo window, or not this reviewer’s last verdict' })
+  @ApiQuery({
+    name: 'reopen',
+    required: false,
+    enum: ['true', 'false'],
+    description: 'true: lease the same item again to this reviewer at once, to correct the verdict',
+  })
   async undo(
     @CurrentUser() user: Principal,
     @Param('verdictId', ParseIntPipe) verdictId: number,
-  ): Promise<Answer<typeof OneVerdictAnswer>> {
-    return { verdict: await this.verdicts.undo(user, verdictId) };
+    @Query('reopen') reopen?: string,
+  ): Promise<Answer<typeof UndoneVerdictAnswer>> {
+    if (reopen !== undefined && reopen !== 'true' && reopen !== 'false')
+      throw new BadRequestException(`reopen: expected true or false, got ${JSON.stringify(reopen)}`);
+    const { verdict, lease } = await this.verdicts.undo(user, verdictId, { reopen: reopen === 'true' });
+    return reopen === 'true' ? { verdict, lease } : { verdict };
+  }
+
+  /** How many verdicts the signed-in reviewer gave on a desk since a moment (the screen asks for its local midnight). */
+  @Roles('reviewer')
+  @OnDesk()
+  @Get('desks/:deskId/verdicts/mine/count')
+  @ApiAnswer(VerdictCountAnswer)
+  @ApiQuery({ name: 'since', required: true, type: String, description: 'an ISO 8601 date-time' })
+  async countMine(
+    @CurrentUser() user: Principal,
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Query('since') since: string,
+  ): Promise<Answer<typeof VerdictCountAnswer>> {
+    const from = timeOrUndefined('since', since);
+    if (!from) throw new BadRequestException('since: required, an ISO 8601 date-time');
+    return { since: from, count: await this.verdicts.countMine(user, deskId, from) };
   }
 
   /** Every reviewer's verdicts on a desk: for supervisors and auditors only. */

@@ -1,4 +1,5 @@
 import { Module } from '@nestjs/common';
+import { LeasesModule } from '#leases';
 import { ModelsCoreModule } from '#models';
 import { AgreementController } from './agreement/agreement.controller.js';
 import { AgreementService } from './agreement/agreement.service.js';
@@ -12,7 +13,7 @@ import { VerdictsController } from './verdicts.controller.js';
 import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
 
 @Module({
-  imports: [ModelsCoreModule],
+  imports: [ModelsCoreModule, LeasesModule],
   controllers: [VerdictsController, AgreementController, SettlingController, TrailController],
   providers: [
     VerdictsService,

@@ -19,6 +19,7 @@ import {
   type DrawKind,
   type ShownPrediction,
 } from '#database';
+import { LeasesService, type LeaseGrant } from '#leases';
 import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
 
@@ -91,6 +92,7 @@ export class VerdictsService {
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
+    @Inject(LeasesService) private readonly leases: LeasesService,
     @Inject(SECOND_OPINION_RANDOM) private readonly random: () => number,
   ) {}
 
@@ -298,9 +300,25 @@ export class VerdictsService {
     }
   }
 
-  /** Takes back the author's last verdict within the undo window; the item returns to the queue. */
-  async undo(reviewer: Principal, verdictId: number): Promise<VerdictView> {
-    await this.db.write(async (m) => {
+  /**
+   * Takes back the author's last verdict within the undo window; the item
+   * returns to the queue. With `reopen`, the same item is leased again to
+   * the same reviewer in the same transaction, under the draw it was served
+   * by, so the reviewer can correct the verdict before anyone else is served
+   * the item; `lease` is null when it could not be (another reviewer's
+   * verdict already decides it).
+   */
+  async undo(
+    reviewer: Principal,
+    verdictId: number,
+    options: { reopen?: boolean } = {},
+  ): Promise<{ verdict: VerdictView; lease: LeaseGrant | null }> {
+    // The desk's settings are read before the write transaction, as a lease reads them.
+    const found = options.reopen
+      ? await this.db.queryOne<{ desk_id: DbInt }>(null, 'SELECT desk_id FROM verdicts WHERE id = $1', [verdictId])
+      : undefined;
+    const entry = found ? await this.directory.get(Number(found.desk_id)) : null;
+    const lease = await this.db.write(async (m) => {
       const v = await m.findOneBy(VerdictEntity, { id: verdictId });
       if (!v) throw new NotFoundException(`no verdict ${verdictId}`);
       if (v.reviewerId !== reviewer.id) throw new ForbiddenException('only the author may undo a verdict');
@@ -346,10 +364,21 @@ export class VerdictsService {
         before: { undoneAt: null },
         after: { undoneAt: now.toISOString() },
       });
+      return entry ? this.leases.grantItem(m, reviewer, entry.desk, v.itemId, v.draw) : null;
     });
     const undone = await this.view(verdictId);
     this.retrain.nudge(undone.deskId, 'undo');
-    return undone;
+    return { verdict: undone, lease };
+  }
+
+  /** A reviewer's live verdicts on a desk given at or after `since`. */
+  async countMine(reviewer: Principal, deskId: number, since: Date): Promise<number> {
+    const row = await this.db.queryOne<{ n: DbInt }>(
+      null,
+      'SELECT COUNT(*) AS n FROM verdicts WHERE desk_id = $1 AND reviewer_id = $2 AND created_at >= $3 AND undone_at IS NULL',
+      [deskId, reviewer.id, this.db.time(since)],
+    );
+    return Number(row?.n ?? 0);
   }
 
   async view(id: number): Promise<VerdictView> {

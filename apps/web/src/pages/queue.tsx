@@ -10,7 +10,9 @@ import {
   type MyLeases,
   type OneVerdict,
   type Progress,
+  type UndoneVerdict,
   type Verdict,
+  type VerdictCount,
 } from '../api';
 import { useInterval, type PageProps } from '../app';
 import { CallStatement, Probabilities } from '../components/call';
@@ -37,6 +39,21 @@ interface Last {
 
 const label = (c: Choice) => ('abstain' in c ? 'abstain' : c.category);
 
+/** Where typing goes: keys pressed there are text, not commands. Check boxes and buttons are not. */
+function typingIn(el: EventTarget | null): el is HTMLElement {
+  if (!(el instanceof HTMLElement)) return false;
+  if (el.isContentEditable || el.tagName === 'TEXTAREA' || el.tagName === 'SELECT') return true;
+  if (el.tagName !== 'INPUT') return false;
+  return !['checkbox', 'radio', 'button', 'submit', 'reset', 'range', 'file'].includes((el as HTMLInputElement).type);
+}
+
+/** The start of today on the reviewer's own clock. */
+function localMidnight(): Date {
+  const d = new Date();
+  d.setHours(0, 0, 0, 0);
+  return d;
+}
+
 /**
  * The reviewer's queue: one item at a time, decided by one key. The next
  * item is requested together with the verdict, so it appears as soon as
@@ -60,6 +77,8 @@ export function QueuePage({ params }: PageProps) {
   const [now, setNow] = useState(Date.now());
   const shownAt = useRef(performance.now());
   const noteRef = useRef<HTMLTextAreaElement>(null);
+  const [help, setHelp] = useState(false);
+  const [today, setToday] = useState<number | null>(null);
 
   useInterval(() => setNow(Date.now()), 1000);
   useInterval(
@@ -91,6 +110,12 @@ export function QueuePage({ params }: PageProps) {
     void (async () => {
       try {
         setDesk(await get<Desk>(`/desks/${deskId}`));
+        void get<VerdictCount>(
+          `/desks/${deskId}/verdicts/mine/count?since=${encodeURIComponent(localMidnight().toISOString())}`,
+        ).then(
+          (c) => setToday(c.count),
+          () => setToday(null),
+        );
         // Items this reviewer held before a reload go back to the queue at once rather than waiting for their leases to run out.
         const { leases } = await get<MyLeases>(`/desks/${deskId}/leases/mine`);
         await Promise.all(leases.map((l) => api('DELETE', `/leases/${l.id}`).catch(() => undefined)));
@@ -132,6 +157,7 @@ export function QueuePage({ params }: PageProps) {
     if (verdict.status === 'fulfilled') {
       setLast({ verdict: verdict.value, label: label(p.choice), at: Date.now() });
       setNotice(null);
+      setToday((n) => (n === null ? n : n + 1));
     } else {
       setFailed(p);
       setError(
@@ -166,17 +192,55 @@ export function QueuePage({ params }: PageProps) {
     });
   }
 
+  /**
+   * Takes back the last verdict and puts that same item in front of the
+   * reviewer again (the server leases it to them in the same step), so it can
+   * be corrected; the item that was showing goes back to the queue.
+   */
   async function undo(): Promise<void> {
     if (!last || sending.current) return;
+    sending.current = true;
     try {
-      await post(`/verdicts/${last.verdict.id}/undo`);
-      setNotice(
-        `Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`,
-      );
+      const answer = await post<UndoneVerdict>(`/verdicts/${last.verdict.id}/undo?reopen=true`);
+      setToday((n) => (n === null ? n : Math.max(0, n - 1)));
       setLast(null);
-      if (!grant) await next();
+      if (answer.lease) {
+        if (grant) void api('DELETE', `/leases/${grant.lease.id}`).catch(() => undefined);
+        show(answer.lease);
+        setNotice(
+          `Your verdict “${last.label}” on item ${last.verdict.itemId} is undone: the item is back for you to decide again.`,
+        );
+      } else {
+        setNotice(
+          `Your verdict “${last.label}” on item ${last.verdict.itemId} is undone; the item is back in the queue.`,
+        );
+        if (!grant) await next();
+      }
+      setError(null);
     } catch (e) {
       setError(`Undo failed: ${(e as Error).message}`);
+    } finally {
+      sending.current = false;
+    }
+  }
+
+  /** Hands the item back: the next one is leased first, so the queue cannot serve the same item straight back. */
+  async function handBack(): Promise<void> {
+    if (!grant || sending.current) return;
+    sending.current = true;
+    setBusy(true);
+    const old = grant;
+    try {
+      const g = await post<LeaseGrant | null>(`/desks/${deskId}/leases`);
+      await api('DELETE', `/leases/${old.lease.id}`);
+      show(g, g ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined));
+      setNotice(`Item ${old.item.id} is handed back to the queue for another reviewer.`);
+      setError(null);
+    } catch (e) {
+      setError(`Handing back failed: ${(e as Error).message}`);
+    } finally {
+      sending.current = false;
+      setBusy(false);
     }
   }
 
@@ -190,19 +254,28 @@ export function QueuePage({ params }: PageProps) {
   // item is drawn acts on that item (an effect would install the new handler only after the browser has painted).
   const onKey = useRef<(e: KeyboardEvent) => void>(() => undefined);
   onKey.current = (e: KeyboardEvent) => {
-    const target = e.target as HTMLElement;
-    if (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT') {
+    const target = e.target;
+    // Typing in the note is text; Esc leaves the note and the keys work again. Anywhere else they always work.
+    if (typingIn(target)) {
       if (e.key === 'Escape') target.blur();
       return;
     }
     if (e.ctrlKey || e.metaKey || e.altKey) return;
+    if (help) {
+      if (e.key === 'Escape' || e.key === '?') {
+        e.preventDefault();
+        setHelp(false);
+      }
+      return;
+    }
     const k = keyed.find((x) => x.key === e.key);
     if (k) {
       e.preventDefault();
       decide(k.choice);
       return;
     }
-    if (e.key === 'Enter' && confirm && selected && target.tagName !== 'BUTTON') {
+    const onButton = target instanceof HTMLElement && target.tagName === 'BUTTON';
+    if (e.key === 'Enter' && confirm && selected && !onButton) {
       e.preventDefault();
       decide(selected);
       return;
@@ -211,14 +284,16 @@ export function QueuePage({ params }: PageProps) {
       setSelected(null);
       return;
     }
-    if (e.key === 'u') {
+    const command: Partial<Record<string, () => void>> = {
+      u: () => void undo(),
+      n: () => noteRef.current?.focus(),
+      h: () => void handBack(),
+      '?': () => setHelp(true),
+    };
+    const run = command[e.key];
+    if (run) {
       e.preventDefault();
-      void undo();
-      return;
-    }
-    if (e.key === 'n') {
-      e.preventDefault();
-      noteRef.current?.focus();
+      run();
     }
   };
   useEffect(() => {
@@ -283,15 +358,17 @@ export function QueuePage({ params }: PageProps) {
                 <kbd>{k.key}</kbd> {k.text}{' '}
               </span>
             ))}
-            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note
+            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note · <kbd>h</kbd> hand back
             {confirm ? (
               <>
                 {' '}
                 · <kbd>Enter</kbd> confirm
               </>
-            ) : null}
+            ) : null}{' '}
+            · <kbd>?</kbd> every key
           </p>
         )}
+        {help && <KeyHelp keyed={keyed} confirm={confirm} onClose={() => setHelp(false)} />}
         {!grant && empty && (
           <div class="empty-queue" role="status">
             <h1>Nothing to decide right now</h1>
@@ -356,6 +433,11 @@ export function QueuePage({ params }: PageProps) {
             </label>
           </div>
         )}
+        {today !== null && (
+          <p class="today">
+            Today: <strong>{today}</strong> {today === 1 ? 'verdict' : 'verdicts'} on this desk
+          </p>
+        )}
         <dl class="timers">
           {grant && (
             <>
@@ -381,6 +463,59 @@ export function QueuePage({ params }: PageProps) {
         )}
       </aside>
     </section>
+  );
+}
+
+/** Every key of the queue, in one list; `?` opens it and Esc or `?` closes it. */
+function KeyHelp({
+  keyed,
+  confirm,
+  onClose,
+}: {
+  keyed: Array<{ key: string; text: string }>;
+  confirm: boolean;
+  onClose: () => void;
+}) {
+  const close = useRef<HTMLButtonElement>(null);
+  useEffect(() => {
+    const before = document.activeElement;
+    close.current?.focus();
+    return () => {
+      if (before instanceof HTMLElement) before.focus();
+    };
+  }, []);
+  const rows: Array<[string, string]> = [
+    ...keyed.map((k): [string, string] => [
+      k.key,
+      k.text === 'abstain' ? 'abstain: you cannot tell' : `verdict “${k.text}”`,
+    ]),
+    ['Enter', confirm ? 'confirm the chosen verdict' : 'confirm (only with “Confirm each verdict with Enter” on)'],
+    ['Esc', 'leave the note; drop a chosen verdict before it is confirmed; close this list'],
+    ['u', 'undo your last verdict: its item comes back to you to decide again'],
+    ['n', 'write a note with the verdict'],
+    ['h', 'hand the item back to the queue for another reviewer'],
+    ['?', 'show or hide this list'],
+  ];
+  return (
+    <div class="key-help" role="dialog" aria-modal="true" aria-labelledby="key-help-title">
+      <div class="key-help-box">
+        <h2 id="key-help-title">Every key of the queue</h2>
+        <p class="muted">The keys work wherever the focus is, except while you type in the note.</p>
+        <dl>
+          {rows.map(([k, what]) => (
+            <>
+              <dt>
+                <kbd>{k}</kbd>
+              </dt>
+              <dd>{what}</dd>
+            </>
+          ))}
+        </dl>
+        <button type="button" ref={close} onClick={onClose}>
+          Close
+        </button>
+      </div>
+    </div>
   );
 }
 
