@@ -279,7 +279,7 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     await lease(rev, id);
     const p = await s.call(rev, 'GET', `/api/desks/${id}/progress`);
     expect(p.status).toBe(200);
-    expect(p.body.items).toEqual({ total: 4, open: 1, leased: 1, decided: 2 });
+    expect(p.body.items).toEqual({ total: 4, open: 1, leased: 1, decided: 2, erased: 0 });
     expect(p.body.verdicts).toMatchObject({
       total: 2,
       byCategory: { threat: 1 },

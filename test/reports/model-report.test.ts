@@ -255,8 +255,7 @@ describe.each(DATABASE_KINDS)('the oversight report of a model version on %s', (
       const cp = clopperPearsonInterval(x, list.length);
       expect(Math.abs(got.clopperPearson.lower - cp.lower)).toBeLessThanOrEqual(ROUNDED);
       expect(Math.abs(got.clopperPearson.upper - cp.upper)).toBeLessThanOrEqual(ROUNDED);
-      // The exact interval is the wider of the two here (common practice, no source: Clopper–Pearson is conservative).
-      expect(got.clopperPearson.upper - got.clopperPearson.lower).toBeGreaterThan(got.wilson.upper - got.wilson.lower);
+      // No order between the widths is asserted: near 0 or 1 Wilson's interval can be the wider one.
     };
     check(report.coverage.overall, rows);
     for (const c of report.coverage.perCategory)
