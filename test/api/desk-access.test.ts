@@ -71,6 +71,12 @@ const DESK_ROUTES: DeskRoute[] = [
   },
   { method: 'GET', template: '/api/desks/{deskId}/verdicts', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/verdicts/mine', allowed: [R] },
+  {
+    method: 'GET',
+    template: '/api/desks/{deskId}/verdicts/mine/count',
+    allowed: [R],
+    query: '?since=2026-01-01T00:00:00.000Z',
+  },
   { method: 'GET', template: '/api/desks/{deskId}/progress', allowed: [R, S, A, 'admin'] },
   { method: 'GET', template: '/api/desks/{deskId}/models', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/models/{version}', allowed: [S, A] },
