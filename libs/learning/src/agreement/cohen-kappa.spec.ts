@@ -6,7 +6,7 @@ const TOL = 5e-5;
 describe("Cohen's kappa", () => {
   it('Cohen (1960) Table 2', () => {
     // Cohen (1960), "A coefficient of agreement for nominal scales", Educ. Psychol. Meas. 20(1):37–46,
-    // Table 2 [reproduced] (CHECK-VALUES.md): p_o = 0.70, p_e = 0.41, κ = 0.29/0.59 (printed .492).
+    // Table 2 [reproduced]: p_o = 0.70, p_e = 0.41, κ = 0.29/0.59 (printed .492).
     const r = cohenKappaFromMatrix([
       [88, 14, 18],
       [10, 40, 10],

@@ -4,7 +4,7 @@ import { fleissKappa } from './fleiss-kappa.js';
 const TOL = 5e-5;
 
 // Fleiss (1971), "Measuring nominal scale agreement among many raters", Psychol. Bull. 76(5):378–382,
-// Table 1 [reproduced; printed .430 from memory] (CHECK-VALUES.md): 30 subjects, 6 raters, 5 categories.
+// Table 1 [reproduced; printed .430 from memory]: 30 subjects, 6 raters, 5 categories.
 const FLEISS_1971 = [
   [0, 0, 0, 6, 0],
   [0, 3, 0, 0, 3],

@@ -6,7 +6,7 @@ import { krippendorffAlpha } from './krippendorff-alpha.js';
 const TOL = 5e-5;
 
 // Krippendorff (2011), "Computing Krippendorff's Alpha-Reliability", Annenberg School for Communication,
-// section C [reproduced in R's irr documentation and several test suites] (CHECK-VALUES.md):
+// section C [reproduced in R's irr documentation and several test suites]:
 // 4 observers × 12 units, null missing. Written observers × units as in the paper, transposed below.
 const SECTION_C_BY_OBSERVER = [
   [1, 2, 3, 3, 2, 1, 4, 1, 2, null, null, null],

@@ -10,7 +10,7 @@ const TOL = 5e-5;
 describe('split-conformal rank and threshold', () => {
   it('follows the worked example', () => {
     // Angelopoulos & Bates (2021, v6 2022), arXiv:2107.07511 [paper]
-    // (CHECK-VALUES.md): n = 10, α = 0.05 → k = 11 > 10 → full set;
+    // n = 10, α = 0.05 → k = 11 > 10 → full set;
     // α = 0.1 → k = 10 → q̂ = the largest score.
     expect(conformalRank(10, 0.05)).toBe(11);
     expect(conformalRank(10, 0.1)).toBe(10);
@@ -45,7 +45,7 @@ describe('split-conformal rank and threshold', () => {
 describe('nonconformity scores', () => {
   it('APS follows the worked example', () => {
     // Romano, Sesia & Candès (2020), NeurIPS [paper, authors' code]; example
-    // recomputed (CHECK-VALUES.md): p = (0.5, 0.3, 0.15, 0.05), y at rank 3
+    // recomputed: p = (0.5, 0.3, 0.15, 0.05), y at rank 3
     // → s = 0.95; randomised 0.8 + 0.15·U.
     const p = [0.3, 0.05, 0.15, 0.5];
     expect(Math.abs(apsScore(p, 2) - 0.95)).toBeLessThan(TOL);

@@ -29,7 +29,7 @@ function expectClose(actual: number[], expected: number[]): void {
 }
 
 // scikit-learn's TfidfTransformer documentation, worked example [reproduced]
-// (CHECK-VALUES.md, "TF-IDF").
+// (the documentation of scikit-learn 1.2, sklearn.feature_extraction.text.TfidfTransformer).
 const COUNTS = [
   [3, 0, 1],
   [2, 0, 0],
@@ -66,7 +66,7 @@ describe('tfidf', () => {
   });
 
   it('reproduces the recomputed rows with sublinear tf', () => {
-    // Same source, sublinear values recomputed only (CHECK-VALUES.md).
+    // Same source, sublinear values recomputed only.
     const idf = table();
     const rows = COUNTS.map((row) => dense(tfidf(sparse(row), idf), 3));
     const expected = [

@@ -3,8 +3,8 @@ import { murmur3String, murmur3x86_32 } from './murmur3.js';
 
 describe('murmur3x86_32', () => {
   it('passes the SMHasher verification test', () => {
-    // SMHasher verification value for MurmurHash3_x86_32, Appleby [paper]
-    // (CHECK-VALUES.md): hash [0..i-1] with seed 256-i, then hash the
+    // SMHasher verification value for MurmurHash3_x86_32, Appleby [paper]:
+    // hash [0..i-1] with seed 256-i, then hash the
     // little-endian concatenation of the 256 results with seed 0.
     const all = new Uint8Array(1024);
     const view = new DataView(all.buffer);
@@ -17,7 +17,7 @@ describe('murmur3x86_32', () => {
   });
 
   it('matches the published vectors', () => {
-    // Vectors from CHECK-VALUES.md, "MurmurHash3 x86, 32-bit" [reproduced].
+    // Published MurmurHash3 x86 32-bit test vectors (Appleby, SMHasher) [reproduced].
     expect(murmur3String('', 0)).toBe(0x00000000);
     expect(murmur3String('', 1)).toBe(0x514e28b7);
     expect(murmur3String('', 0xffffffff)).toBe(0x81f16f39);

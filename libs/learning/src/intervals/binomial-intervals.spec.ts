@@ -9,7 +9,7 @@ import { inverseRegularizedIncompleteBeta, logGamma, regularizedIncompleteBeta }
 
 // Newcombe (1998), "Two-sided confidence intervals for the single proportion:
 // comparison of seven methods", Stat. Med. 17:857–872, Table I [reproduced in
-// R ratesci's tests and recomputed] (CHECK-VALUES.md). The table prints four
+// R ratesci's tests and recomputed]. The table prints four
 // decimals, so the tolerance is half a unit in the fourth place.
 const TABLE_TOL = 5e-5;
 const TABLE = [

@@ -10,7 +10,7 @@ const TOL = 5e-5;
 describe('quality metrics', () => {
   it('ECE matches the recomputed example', () => {
     // Guo et al. (2017), "On Calibration of Modern Neural Networks", ICML, eq. 3;
-    // example recomputed, no published source (CHECK-VALUES.md): → 0.133333.
+    // example recomputed, no published source: → 0.133333.
     const confidences = [0.9, 0.9, 0.9, 0.9, 0.6, 0.6];
     const correct = [1, 1, 1, 0, 1, 0];
     expect(Math.abs(expectedCalibrationError(confidences, correct, 10) - 0.133333)).toBeLessThan(TOL);

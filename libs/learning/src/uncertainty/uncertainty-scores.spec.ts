@@ -6,7 +6,7 @@ const TOL = 5e-5;
 describe('uncertainty scores', () => {
   it('match the worked example', () => {
     // Settles (2009), "Active Learning Literature Survey", §3.1 [memory for
-    // equation numbers]; example p = (0.5, 0.3, 0.2) recomputed (CHECK-VALUES.md).
+    // equation numbers]; example p = (0.5, 0.3, 0.2) recomputed.
     const p = [0.5, 0.3, 0.2];
     expect(Math.abs(leastConfidence(p) - 0.5)).toBeLessThan(TOL);
     expect(Math.abs(margin(p) - 0.2)).toBeLessThan(TOL);

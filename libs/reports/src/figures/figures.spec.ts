@@ -15,7 +15,7 @@ describe('coverageFigure', () => {
     const f = coverageFigure(checks);
     expect(f.checks).toBe(263);
     expect(f.covered).toBe(81);
-    // Newcombe (1998), Table I [reproduced in CHECK-VALUES.md]: Wilson 0.2553–0.3662, Clopper–Pearson 0.2527–0.3676; tolerance 5e-5.
+    // Newcombe (1998), Table I [reproduced]: Wilson 0.2553–0.3662, Clopper–Pearson 0.2527–0.3676; tolerance 5e-5.
     expect(Math.abs(f.wilson!.lower - 0.2553)).toBeLessThan(5e-5);
     expect(Math.abs(f.wilson!.upper - 0.3662)).toBeLessThan(5e-5);
     expect(Math.abs(f.clopperPearson!.lower - 0.2527)).toBeLessThan(5e-5);
