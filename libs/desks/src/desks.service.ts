@@ -3,7 +3,7 @@ import { In, type EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { MembershipService } from '#auth';
-import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity } from '#database';
+import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity, type DbInt } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { PredictionsService, type CalibrationStatus } from '#models';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
@@ -220,10 +220,19 @@ export class DesksService {
         checkCategoryNames(dto.categories);
         const removed = before.categories.filter((c) => !dto.categories!.includes(c.name));
         for (const c of removed) {
-          const used = await m.countBy(VerdictEntity, { categoryId: c.id });
-          if (used > 0)
+          const verdicts = await m.countBy(VerdictEntity, { categoryId: c.id });
+          const settled = await this.db.queryOne<{ n: DbInt }>(
+            m,
+            'SELECT COUNT(*) AS n FROM settlements WHERE category_id = $1',
+            [c.id],
+          );
+          const uses = [
+            verdicts ? `${verdicts} verdict(s)` : '',
+            Number(settled?.n ?? 0) ? `${Number(settled!.n)} settlement(s)` : '',
+          ].filter(Boolean);
+          if (uses.length)
             throw new ConflictException(
-              `category ${JSON.stringify(c.name)} is used by ${used} verdict(s): categories can be added, but one in use cannot be removed or renamed`,
+              `category ${JSON.stringify(c.name)} is used by ${uses.join(' and ')}: categories can be added, but one in use cannot be removed or renamed`,
             );
         }
         if (removed.length)

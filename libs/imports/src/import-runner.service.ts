@@ -69,6 +69,25 @@ export class ImportRunner {
     );
     const matcher = compileSeedTerms(desk.seedTerms);
     const resumeAfter = imp.rowsCommitted;
+    const open = () =>
+      parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, {
+        maxTextLength: this.config.maxTextLength,
+      });
+    // A JSON array or a CSV file can turn out broken after its first rows (cut short, a quote never closed). Such a
+    // file is refused whole: a first pass reads it to the end without writing, so none of its rows land. NDJSON
+    // lines stand alone (a bad line is a rejected row), so it needs no such pass.
+    if (resumeAfter === 0 && imp.format !== 'ndjson') {
+      try {
+        const rows = open();
+        let step = await rows.next();
+        while (!step.done) step = await rows.next();
+      } catch (e) {
+        if (!(e instanceof ImportFileError)) throw e;
+        await this.fail(importId, `row ${e.row}: ${e.message}; nothing was imported`);
+        rmSync(path, { force: true });
+        throw new UnrecoverableError(e.message);
+      }
+    }
     let records: ImportRecord[] = [];
     let rejected: RejectedRow[] = [];
     let lastRow = resumeAfter;
@@ -101,9 +120,7 @@ export class ImportRunner {
     };
 
     try {
-      for await (const row of parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, {
-        maxTextLength: this.config.maxTextLength,
-      })) {
+      for await (const row of open()) {
         const n = row.ok ? row.record.row : row.rejected.row;
         if (n <= resumeAfter) continue;
         lastRow = n;
@@ -114,8 +131,14 @@ export class ImportRunner {
       await flush();
     } catch (e) {
       if (e instanceof ImportFileError) {
+        // Only when the file changed on disk after the first pass: say exactly what stayed, the rows before it.
         await flush().catch(() => undefined);
-        await this.fail(importId, `row ${e.row}: ${e.message}`);
+        const kept = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!.rowsCommitted;
+        await this.fail(
+          importId,
+          `row ${e.row}: ${e.message}; ` +
+            (kept ? `rows 1 to ${kept} were imported before it and stay` : 'nothing was imported'),
+        );
         rmSync(path, { force: true });
         throw new UnrecoverableError(e.message);
       }

@@ -17,6 +17,7 @@ import { CurrentDesk, CurrentUser, OnDesk, Roles, type DeskAccess, type Principa
 import { parseIsoDateTime } from '#imports';
 import { CreateVerdictDto } from './verdict.dto.js';
 import { ProgressService } from './progress.service.js';
+import { TrailService, trailQuery } from './trail/trail.service.js';
 import {
   ApiVerdictFilters,
   OneVerdictAnswer,
@@ -51,6 +52,7 @@ export class VerdictsController {
   constructor(
     @Inject(VerdictsService) private readonly verdicts: VerdictsService,
     @Inject(ProgressService) private readonly progressService: ProgressService,
+    @Inject(TrailService) private readonly trail: TrailService,
   ) {}
 
   /** 201 with the new verdict; 200 with the stored one when the clientId was seen before. */
@@ -119,29 +121,21 @@ export class VerdictsController {
   @ApiQuery({ name: 'limit', required: false, type: Number, description: 'verdicts per page, 1–1000 (default 100)' })
   async list(
     @Param('deskId', ParseIntPipe) deskId: number,
-    @Query('before') before?: string,
-    @Query('limit') limit?: string,
-    @Query('reviewer') reviewer?: string,
-    @Query('category') category?: string,
-    @Query('from') from?: string,
-    @Query('to') to?: string,
+    // Typed `string | undefined`, not `?: string`: validation would turn a repeated key into one joined string.
+    @Query('before') before: string | undefined,
+    @Query('limit') limit: string | undefined,
+    @Query('reviewer') reviewer: string | undefined,
+    @Query('category') category: string | undefined,
+    @Query('from') from: string | undefined,
+    @Query('to') to: string | undefined,
   ): Promise<Answer<typeof VerdictListAnswer>> {
-    // `from` inclusive, `to` exclusive, as in the trail export.
-    const since = timeOrUndefined('from', from);
-    const until = timeOrUndefined('to', to);
-    if (since && until && since > until) throw new BadRequestException('from: must not be after to');
-    const reviewerId = reviewer ? await this.verdicts.userId(reviewer) : undefined;
-    if (reviewer && reviewerId === null) return { verdicts: [] };
-    return {
-      verdicts: await this.verdicts.listForDesk(deskId, {
-        before: intOrUndefined('before', before),
-        limit: intOrUndefined('limit', limit, 1000) ?? 100,
-        reviewerId: reviewerId ?? undefined,
-        category: category || undefined,
-        from: since,
-        to: until,
-      }),
-    };
+    // The trail's filters, checked the same way (400 on an unknown category, a bad or repeated one); `from`
+    // inclusive, `to` exclusive. A reviewer that does not exist matches nothing, as in the trail.
+    const pageBefore = intOrUndefined('before', before);
+    const pageLimit = intOrUndefined('limit', limit, 1000) ?? 100;
+    const filter = await this.trail.filter(deskId, trailQuery({ reviewer, category, from, to }));
+    if (filter.reviewerId === null) return { verdicts: [] };
+    return { verdicts: await this.verdicts.listForDesk(filter, { before: pageBefore, limit: pageLimit }) };
   }
 
   /** The signed-in reviewer's own verdicts on a desk, newest first. */
@@ -156,10 +150,10 @@ export class VerdictsController {
     @Query('limit') limit?: string,
   ): Promise<Answer<typeof VerdictListAnswer>> {
     return {
-      verdicts: await this.verdicts.listForDesk(deskId, {
-        limit: intOrUndefined('limit', limit, 1000) ?? 20,
-        reviewerId: user.id,
-      }),
+      verdicts: await this.verdicts.listForDesk(
+        { deskId, reviewerId: user.id },
+        { limit: intOrUndefined('limit', limit, 1000) ?? 20 },
+      ),
     };
   }
 

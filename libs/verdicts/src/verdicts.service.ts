@@ -14,7 +14,6 @@ import {
   DeskDirectory,
   type DbInt,
   isUniqueViolation,
-  UserEntity,
   VerdictEntity,
   type DrawKind,
   type ShownPrediction,
@@ -22,6 +21,7 @@ import {
 import { LeasesService, type LeaseGrant } from '#leases';
 import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
+import type { TrailFilter } from './trail/trail.service.js';
 
 /** A verdict as the API shows it. */
 export interface VerdictView {
@@ -388,34 +388,20 @@ export class VerdictsService {
   }
 
   /** Verdicts of a desk, newest first, paged by id. */
-  async listForDesk(
-    deskId: number,
-    opts: { before?: number; limit: number; reviewerId?: number; category?: string; from?: Date; to?: Date },
-  ): Promise<VerdictView[]> {
-    const params: unknown[] = [deskId];
+  async listForDesk(filter: TrailFilter, page: { before?: number; limit: number }): Promise<VerdictView[]> {
+    const params: unknown[] = [filter.deskId];
     let where = `v.desk_id = $1`;
-    if (opts.before) {
-      params.push(opts.before);
-      where += ` AND v.id < $${params.length}`;
-    }
-    if (opts.reviewerId) {
-      params.push(opts.reviewerId);
-      where += ` AND v.reviewer_id = $${params.length}`;
-    }
-    if (opts.category === 'abstain') where += ' AND v.category_id IS NULL';
-    else if (opts.category) {
-      params.push(opts.category);
-      where += ` AND c.name = $${params.length}`;
-    }
-    if (opts.from) {
-      params.push(this.db.time(opts.from));
-      where += ` AND v.created_at >= $${params.length}`;
-    }
-    if (opts.to) {
-      params.push(this.db.time(opts.to));
-      where += ` AND v.created_at < $${params.length}`;
-    }
-    return this.listWhere(where, params, opts.limit);
+    const and = (sql: string, value: unknown) => {
+      params.push(value);
+      where += ` AND ${sql}$${params.length}`;
+    };
+    if (page.before) and('v.id < ', page.before);
+    if (filter.reviewerId) and('v.reviewer_id = ', filter.reviewerId);
+    if (filter.abstain) where += ' AND v.category_id IS NULL';
+    else if (filter.categoryId) and('v.category_id = ', filter.categoryId);
+    if (filter.from) and('v.created_at >= ', this.db.time(filter.from));
+    if (filter.to) and('v.created_at < ', this.db.time(filter.to));
+    return this.listWhere(where, params, page.limit);
   }
 
   private async listWhere(where: string, params: unknown[], limit: number): Promise<VerdictView[]> {
@@ -444,10 +430,5 @@ export class VerdictsService {
       createdAt: this.db.parseTime(r.created_at)!,
       undoneAt: this.db.parseTime(r.undone_at),
     }));
-  }
-
-  /** Whether a user exists (for filters). */
-  async userId(name: string): Promise<number | null> {
-    return (await this.db.manager.findOneBy(UserEntity, { name }))?.id ?? null;
   }
 }

@@ -1,11 +1,11 @@
-import { BadRequestException, Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
+import { Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
 import { Roles, OnDesk } from '#auth';
 import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
 import { TRAIL_COLUMNS, trailCsvLine, type TrailRow } from './trail-format.js';
-import { TrailService, type TrailFilter, type TrailQuery } from './trail.service.js';
+import { TrailService, trailQuery as pick, type TrailFilter } from './trail.service.js';
 import { ApiVerdictFilters } from '../verdict.responses.js';
 
 @ApiTags('agreement')
@@ -92,14 +92,4 @@ export class TrailController {
       this.logger.warn(`trail export of desk ${filter.deskId} stopped: ${e.message}`),
     );
   }
-}
-
-/** Repeated query keys arrive as arrays: refuse them rather than guess. */
-function pick(q: Record<string, unknown>): TrailQuery {
-  const s = (key: string) => {
-    const v = q[key];
-    if (v !== undefined && typeof v !== 'string') throw new BadRequestException(`${key}: give it at most once`);
-    return v;
-  };
-  return { reviewer: s('reviewer'), category: s('category'), from: s('from'), to: s('to') };
 }

@@ -11,6 +11,19 @@ export interface TrailQuery {
   to?: string;
 }
 
+/**
+ * The filters from a query string. Repeated query keys arrive as arrays: refuse them rather than guess. The decision
+ * trail and the verdict list read their filters through this and `TrailService.filter`, so they refuse the same things.
+ */
+export function trailQuery(q: Record<string, unknown>): TrailQuery {
+  const s = (key: string) => {
+    const v = q[key];
+    if (v !== undefined && typeof v !== 'string') throw new BadRequestException(`${key}: give it at most once`);
+    return v;
+  };
+  return { reviewer: s('reviewer'), category: s('category'), from: s('from'), to: s('to') };
+}
+
 /** Checked filters: a reviewer that does not exist matches nothing. */
 export interface TrailFilter {
   deskId: number;
