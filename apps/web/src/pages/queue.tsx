@@ -17,6 +17,7 @@ import {
 import { useInterval, type PageProps } from '../app';
 import { CallStatement, Probabilities } from '../components/call';
 import { HighlightedText } from '../components/highlighted-text';
+import { countHidden } from '../hidden-characters';
 import { clock, when } from '../format';
 
 /** The server keeps undo open this long by default (UNDO_WINDOW_SECONDS); it has the last word. */
@@ -342,6 +343,13 @@ export function QueuePage({ params }: PageProps) {
               {grant.item.postedAt && <span>posted {when(grant.item.postedAt)}</span>}
             </header>
             <HighlightedText text={grant.item.text} highlights={grant.highlights} categories={categories} />
+            {countHidden(grant.item.text) > 0 && (
+              <p class="hidden-legend warning">
+                This text holds {countHidden(grant.item.text)} hidden character(s): controls that change the direction
+                of the text, or invisible ones. Each is shown as a boxed marker where it stands (point at it for its
+                name); the text around it is shown in the order it was written.
+              </p>
+            )}
             {grant.highlights.length > 0 && (
               <p class="seed-legend muted">
                 Marked: seed terms, numbered by the category they belong to (
