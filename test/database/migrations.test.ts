@@ -97,6 +97,21 @@ describe.each(DATABASE_KINDS)('migrations on %s', (kind) => {
     );
   });
 
+  it('takes the screen draw, refuses an unknown one, and keeps the review-lane share within 0..1', async () => {
+    const draw = (kind: string, clientId: string) =>
+      q(
+        `INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, simulated, created_at, undone_at) VALUES (1, 1, 1, ?, NULL, true, ?, false, ?, ?)`,
+        [clientId, kind, now, now],
+      );
+    await draw('screen', 'lane-1');
+    await expect(draw('hunch', 'lane-2')).rejects.toThrow(/ck_verdicts_draw|CHECK/i);
+    const [row] = await q(`SELECT screen_share AS share FROM desks WHERE name = 'alpha'`);
+    expect(Number(row.share)).toBe(0.5);
+    await expect(q(`UPDATE desks SET screen_share = 1.5 WHERE name = 'alpha'`)).rejects.toThrow(
+      /ck_desks_screen_share|CHECK/i,
+    );
+  });
+
   it('refuses an empty settlement reason and a settled category of another desk', async () => {
     await expect(
       q(

@@ -23,6 +23,7 @@ import { TermCounts1765100000000 } from './migrations/1765100000000-term-counts.
 import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expiry.js';
 import { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
 import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
+import { ScreenLane1766410000000 } from './migrations/1766410000000-screen-lane.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 
@@ -56,6 +57,7 @@ export const MIGRATIONS = [
   TokenExpiry1766200000000,
   DeskMembers1766210000000,
   ScreeningSettings1766400000000,
+  ScreenLane1766410000000,
   TermSuggestions1766500000000,
   Erasure1766700000000,
 ];

@@ -85,6 +85,17 @@ export class CreateDeskDto {
   @Min(0)
   @Max(1)
   randomShare?: number;
+  /**
+   * Share of leases drawn from the review lane (flagged items, highest probability of a watched category first) once
+   * a version exists and a category is watched; randomShare + screenShare may not exceed 1. Default 0.5, or what the
+   * random share leaves when that is less.
+   */
+  @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.5 })
+  @IsOptional()
+  @IsNumber()
+  @Min(0)
+  @Max(1)
+  screenShare?: number;
   /** Share of decided items served again to a different reviewer, for agreement figures. */
   @ApiPropertyOptional({ minimum: 0, maximum: 1, default: 0.1 })
   @IsOptional()
@@ -175,6 +186,8 @@ export class UpdateDeskDto {
   @IsIn(CALIBRATION_MODES)
   calibration?: CalibrationMode;
   @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) randomShare?: number;
+  /** Share of leases drawn from the review lane once a version exists and a category is watched. */
+  @ApiPropertyOptional({ minimum: 0, maximum: 1 }) @IsOptional() @IsNumber() @Min(0) @Max(1) screenShare?: number;
   @ApiPropertyOptional({ minimum: 0, maximum: 1 })
   @IsOptional()
   @IsNumber()

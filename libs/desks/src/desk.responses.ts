@@ -23,6 +23,9 @@ export const DeskAnswer = named(
       ),
     watch: z.array(z.string()).describe('watched categories: an open item whose set holds one is flagged'),
     randomShare: z.number(),
+    screenShare: z
+      .number()
+      .describe('share of leases from the review lane (flagged items) once a version exists and a category is watched'),
     secondOpinionShare: z.number(),
     leaseSeconds: z.int(),
     strategy: z.enum(STRATEGIES),

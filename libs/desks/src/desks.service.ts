@@ -20,6 +20,7 @@ export interface DeskView {
   confidence: number | null;
   watch: string[];
   randomShare: number;
+  screenShare: number;
   secondOpinionShare: number;
   leaseSeconds: number;
   strategy: DeskEntity['strategy'];
@@ -62,6 +63,17 @@ export function validateSeedTerms(seedTerms: unknown, categories: string[]): Rec
   }
   if (problems.length) throw new BadRequestException(problems);
   return out;
+}
+
+/** Shares above one by more than rounding: the random draws and the review lane cannot take more than every lease. */
+const SHARE_SLACK = 1e-9;
+
+/** Refuses a random share and a review-lane share that add up to more than every lease. */
+export function checkShares(randomShare: number, screenShare: number): void {
+  if (randomShare + screenShare > 1 + SHARE_SLACK)
+    throw new BadRequestException([
+      `screenShare: randomShare + screenShare may not exceed 1 (got ${randomShare} + ${screenShare}); lower one of them`,
+    ]);
 }
 
 /**
@@ -134,6 +146,9 @@ export class DesksService {
       dto.calibration ?? 'per-category',
       dto.categories,
     );
+    const randomShare = dto.randomShare ?? 0.2;
+    const screenShare = dto.screenShare ?? Math.min(0.5, 1 - randomShare);
+    checkShares(randomShare, screenShare);
     const deskId = await this.db.write(async (m) => {
       if (await m.findOneBy(DeskEntity, { name: dto.name }))
         throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
@@ -148,7 +163,8 @@ export class DesksService {
           watch: screening.watch,
           coverageTargets: screening.coverageTargets,
           confidence: dto.confidence ?? null,
-          randomShare: dto.randomShare ?? 0.2,
+          randomShare,
+          screenShare,
           secondOpinionShare: dto.secondOpinionShare ?? 0.1,
           leaseSeconds: dto.leaseSeconds ?? 600,
           currentModelVersion: null,
@@ -273,6 +289,8 @@ export class DesksService {
       desk.coverageTargets = screening.coverageTargets;
       if (dto.confidence !== undefined) desk.confidence = dto.confidence;
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
+      if (dto.screenShare !== undefined) desk.screenShare = dto.screenShare;
+      checkShares(desk.randomShare, desk.screenShare);
       if (dto.secondOpinionShare !== undefined) desk.secondOpinionShare = dto.secondOpinionShare;
       if (dto.leaseSeconds !== undefined) desk.leaseSeconds = dto.leaseSeconds;
       if (dto.strategy !== undefined) desk.strategy = dto.strategy;
@@ -330,6 +348,7 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
     confidence: d.confidence,
     watch: d.watch,
     randomShare: d.randomShare,
+    screenShare: d.screenShare,
     secondOpinionShare: d.secondOpinionShare,
     leaseSeconds: d.leaseSeconds,
     strategy: d.strategy,
@@ -353,6 +372,7 @@ function settingsOf(v: DeskView): Record<string, unknown> {
     confidence: v.confidence,
     watch: v.watch,
     randomShare: v.randomShare,
+    screenShare: v.screenShare,
     secondOpinionShare: v.secondOpinionShare,
     leaseSeconds: v.leaseSeconds,
     strategy: v.strategy,

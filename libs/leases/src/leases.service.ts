@@ -14,7 +14,7 @@ import {
   type ShownPrediction,
 } from '#database';
 import { cosineSimilarity } from '#learning';
-import { PredictionsService } from '#models';
+import { PredictionsService, ScreenLaneService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
 export interface LeaseGrant {
@@ -53,6 +53,8 @@ const PICK_COLUMNS = 'id, text, meta, external_id, source, posted_at, seed_hits'
 /** Near-duplicates: cosine of tf-idf vectors at or above this (the batch picker's rule in the learning core). */
 const NEAR_DUPLICATE_COSINE = 0.95;
 const NEAR_DUPLICATE_CANDIDATES = 5;
+/** Items of the review lane's order looked up at a time. */
+const SCREEN_PAGE = 100;
 
 /**
  * Hands items to reviewers. No item is leased to two reviewers at once:
@@ -69,6 +71,7 @@ export class LeasesService {
     @Inject(LEASE_RANDOM) private readonly random: UniformSource,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
+    @Inject(ScreenLaneService) private readonly lane: ScreenLaneService,
   ) {}
 
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
@@ -76,9 +79,14 @@ export class LeasesService {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const { desk } = entry;
-    const wantRandom = this.random() < desk.randomShare;
+    // One uniform number chooses the kind: random below randomShare, the review lane up to randomShare + screenShare
+    // (once a version exists and a category is watched), uncertainty above.
+    const u = this.random();
+    const wantRandom = u < desk.randomShare;
     const r = this.random();
     const coldStart = desk.currentModelVersion === null;
+    const screenOrder =
+      !wantRandom && !coldStart && u < desk.randomShare + desk.screenShare ? await this.lane.order(desk) : null;
     const hasSeeds = Object.values(desk.seedTerms).some((t) => t.length > 0);
     const leaseId = randomUUID();
     const now = new Date();
@@ -100,7 +108,14 @@ export class LeasesService {
       } else if ((row = await this.claimSecondOpinion(m, reviewer, deskId, leaseId, expiresAt, now))) {
         draw = 'second-opinion';
       } else if (draw !== 'random') {
-        if (draw === 'uncertainty') {
+        if (
+          draw === 'uncertainty' &&
+          screenOrder &&
+          (row = await this.claimScreen(m, desk, leaseId, expiresAt, screenOrder))
+        ) {
+          draw = 'screen';
+        } else if (draw === 'uncertainty') {
+          // Also when the lane is empty: every flagged item is decided or held.
           row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt);
         } else if (hasSeeds) {
           // Cold start: most seed-term matches first.
@@ -344,6 +359,52 @@ export class LeasesService {
       [leaseId, this.db.time(expiresAt), chosen.id],
     );
     return rows[0] ?? null;
+  }
+
+  /**
+   * The first item of the review lane (flagged items, highest probability of
+   * a watched category first) that is still open, read in pages of the
+   * lane's order: on PostgreSQL, rows other transactions hold are skipped
+   * (`FOR UPDATE SKIP LOCKED`); on SQLite the write transaction is
+   * serialised. Items found decided are dropped from the kept order.
+   */
+  private async claimScreen(
+    m: EntityManager,
+    desk: DeskEntity,
+    leaseId: string,
+    expiresAt: Date,
+    order: number[],
+  ): Promise<PickedRow | null> {
+    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const decided = new Set<number>();
+    let chosen: number | undefined;
+    for (let from = 0; from < order.length && chosen === undefined; from += SCREEN_PAGE) {
+      const page = order.slice(from, from + SCREEN_PAGE);
+      const list = page.map((_, i) => `$${i + 2}`).join(', ');
+      const states = await this.db.query<{ id: DbInt; state: string }>(
+        m,
+        `SELECT id, state FROM items WHERE desk_id = $1 AND id IN (${list})`,
+        [desk.id, ...page],
+      );
+      for (const s of states) if (s.state === 'decided') decided.add(Number(s.id));
+      const open = states.filter((s) => s.state === 'open').map((s) => Number(s.id));
+      if (open.length === 0) continue;
+      const free = await this.db.query<{ id: DbInt }>(
+        m,
+        `SELECT id FROM items WHERE desk_id = $1 AND state = 'open' AND id IN (${open.map((_, i) => `$${i + 2}`).join(', ')})${lock}`,
+        [desk.id, ...open],
+      );
+      const freeIds = new Set(free.map((f) => Number(f.id)));
+      chosen = page.find((id) => freeIds.has(id));
+    }
+    this.lane.forget(desk, decided);
+    if (chosen === undefined) return null;
+    const row = await this.db.queryOne<PickedRow>(
+      m,
+      `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2 WHERE id = $3 RETURNING ${PICK_COLUMNS}`,
+      [leaseId, this.db.time(expiresAt), chosen],
+    );
+    return row ?? null;
   }
 
   /*

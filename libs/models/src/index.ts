@@ -8,4 +8,5 @@ export { ScoringService } from './scoring.service.js';
 export { PublishService } from './publish.service.js';
 export { priorityOf } from './priority.js';
 export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';
+export { ScreenLaneService } from './screening/screen-lane.service.js';
 export { setOptionsOf, targetsOf, type SetSettings } from './set-options.js';

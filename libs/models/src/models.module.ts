@@ -8,10 +8,11 @@ import { PublishService } from './publish.service.js';
 import { RetrainScheduler } from './retrain-scheduler.service.js';
 import { ScoringService } from './scoring.service.js';
 import { ScreeningRepository } from './screening/screening.repository.js';
+import { ScreenLaneService } from './screening/screen-lane.service.js';
 import { ScreeningService } from './screening/screening.service.js';
 import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
 
-const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainScheduler];
+const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainScheduler, ScreenLaneService];
 
 /** Reading models and predictions (and asking for retrains): no training here. */
 @Module({ providers: shared, exports: shared })

@@ -9,6 +9,7 @@ export type DeskFormValue = Pick<
   | 'coverageTarget'
   | 'calibration'
   | 'randomShare'
+  | 'screenShare'
   | 'leaseSeconds'
   | 'strategy'
   | 'retrainEvery'
@@ -57,6 +58,7 @@ export function DeskForm({
   const [target, setTarget] = useState(String(initial?.coverageTarget ?? 0.9));
   const [calibration, setCalibration] = useState<DeskFormValue['calibration']>(initial?.calibration ?? 'per-category');
   const [randomShare, setRandomShare] = useState(String(initial?.randomShare ?? 0.2));
+  const [screenShare, setScreenShare] = useState(String(initial?.screenShare ?? 0.5));
   const [leaseSeconds, setLeaseSeconds] = useState(String(initial?.leaseSeconds ?? 600));
   const [strategy, setStrategy] = useState(initial?.strategy ?? 'entropy');
   const [retrainEvery, setRetrainEvery] = useState(String(initial?.retrainEvery ?? 10));
@@ -87,6 +89,7 @@ export function DeskForm({
         coverageTarget: Number(target),
         calibration,
         randomShare: Number(randomShare),
+        screenShare: Number(screenShare),
         leaseSeconds: Number(leaseSeconds),
         strategy,
         retrainEvery: Number(retrainEvery),
@@ -171,6 +174,19 @@ export function DeskForm({
             required
             value={randomShare}
             onInput={(e) => setRandomShare(e.currentTarget.value)}
+          />
+        </label>
+        <label>
+          Share of the review lane (flagged items, likeliest watched category first, once a model exists and a category
+          is watched; with the random share at most 1)
+          <input
+            type="number"
+            min="0"
+            max="1"
+            step="0.01"
+            required
+            value={screenShare}
+            onInput={(e) => setScreenShare(e.currentTarget.value)}
           />
         </label>
         <label>

@@ -17,6 +17,8 @@ export class DeskEntity {
   coverageTarget!: number;
   calibration!: CalibrationMode;
   randomShare!: number;
+  /** Share of leases drawn from the review lane (flagged items) once a version exists and a category is watched. */
+  screenShare!: number;
   /** Share of decided items served again, to a different reviewer, for a second opinion. */
   secondOpinionShare!: number;
   leaseSeconds!: number;
@@ -56,6 +58,7 @@ export const deskSchema = (d: Dialect) => {
       coverageTarget: c.double('coverage_target'),
       calibration: c.varchar('calibration', 20),
       randomShare: c.double('random_share'),
+      screenShare: c.double('screen_share'),
       secondOpinionShare: c.double('second_opinion_share'),
       leaseSeconds: c.int('lease_seconds'),
       currentModelVersion: c.int('current_model_version', true),

@@ -3,7 +3,7 @@ import type { Dialect } from '../dialect.js';
 import { columns } from './columns.js';
 
 /** Why an item was served. Recorded on the lease and the verdict; never shown to the reviewer. */
-export const DRAW_KINDS = ['seed', 'uncertainty', 'random', 'second-opinion'] as const;
+export const DRAW_KINDS = ['seed', 'uncertainty', 'random', 'second-opinion', 'screen'] as const;
 export type DrawKind = (typeof DRAW_KINDS)[number];
 
 export const TRIAGE_CALLS = ['sure', 'ambiguous', 'unfamiliar'] as const;
