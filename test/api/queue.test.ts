@@ -84,6 +84,29 @@ describe.each(DATABASE_KINDS)('the review queue on %s', (kind) => {
     expect(draws.map((d) => d.draw)).toEqual(['seed', 'seed', 'seed', 'seed']);
   });
 
+  it('matches any ending of a seed term ending in *, marking the whole word, and refuses one letter before *', async () => {
+    const id = await desk('endings', ['ett lugnt inlägg', 'Han hotar oss', 'De hotade och HOTAR igen'], {
+      seedTerms: { threat: ['hota*'] },
+      randomShare: 0,
+    });
+    const first = await lease(rev, id);
+    expect(first.body.item.text).toBe('De hotade och HOTAR igen');
+    expect(first.body.highlights).toEqual([
+      { start: 3, end: 9, category: 'threat' },
+      { start: 14, end: 19, category: 'threat' },
+    ]);
+    expect((await lease(rev, id)).body.item.text).toBe('Han hotar oss');
+    for (const [method, path, body] of [
+      ['POST', '/api/desks', { name: 'endings-bad', categories: ['threat', 'ok'], seedTerms: { threat: ['h*'] } }],
+      ['PATCH', `/api/desks/${id}`, { seedTerms: { threat: ['hota*', 'h *'] } }],
+    ] as const) {
+      const r = await s.call(sup, method, path, body);
+      expect(r.status).toBe(400);
+      expect(String(r.body.message)).toMatch(/seedTerms\.threat: "h ?\*" ends in \* after a single character/);
+    }
+    expect((await s.call(sup, 'GET', `/api/desks/${id}`)).body.seedTerms).toEqual({ threat: ['hota*'] });
+  });
+
   it('records a verdict once: a replayed clientId returns the stored verdict with 200 and writes nothing', async () => {
     const id = await desk('replay', ['one', 'two']);
     const l = (await lease(rev, id)).body;

@@ -6,6 +6,7 @@ import { MembershipService } from '#auth';
 import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity, type DbInt } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { PredictionsService, type CalibrationStatus } from '#models';
+import { parseSeedTerm } from '#learning';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
 
 /** A desk with its categories in display order: what the API returns. */
@@ -59,6 +60,10 @@ export function validateSeedTerms(seedTerms: unknown, categories: string[]): Rec
       problems.push(
         `seedTerms.${category}: a term is longer than 100 characters (${JSON.stringify(long.slice(0, 20))}…)`,
       );
+    for (const term of clean) {
+      const { problem } = parseSeedTerm(term);
+      if (problem !== undefined) problems.push(`seedTerms.${category}: ${problem}`);
+    }
     if (clean.length > 0) out[category] = clean;
   }
   if (problems.length) throw new BadRequestException(problems);

@@ -3,8 +3,8 @@
  * split-conformal prediction sets, intervals and quality metrics. Pure
  * TypeScript: no framework, no database, no I/O.
  */
-export { compileSeedTerms } from './text/seed-terms.js';
-export type { SeedMatch, SeedTermMatcher } from './text/seed-terms.js';
+export { compileSeedTerms, MIN_WORD_ENDING_STEM, parseSeedTerm } from './text/seed-terms.js';
+export type { ParsedSeedTerm, SeedMatch, SeedTermMatcher } from './text/seed-terms.js';
 
 export { murmur3String, murmur3x86_32 } from './hashing/murmur3.js';
 export { createRng, randomInt, shuffleInPlace } from './random/rng.js';

@@ -4,6 +4,7 @@ import { CategoryEntity, Database, DeskEntity } from '#database';
 import {
   CooccurrenceCounter,
   createPhraseJoiner,
+  parseSeedTerm,
   keepLargestPerRow,
   ppmi,
   VocabularyCounter,
@@ -23,9 +24,15 @@ import {
 
 const PAGE = 1000;
 
-/** The token key of a seed term: its tokens under the desk's tokeniser, joined by one space. */
+/**
+ * The token key of a seed term: its tokens under the desk's tokeniser, joined
+ * by one space, and `*` after the last when the term takes any ending of its
+ * last word (the count job then counts every form as that one token).
+ */
 export function seedTermKey(featurizer: Featurizer, term: string): string {
-  return featurizer.tokens(term).join(' ');
+  const tokens = featurizer.tokens(term);
+  if (tokens.length === 0) return '';
+  return tokens.join(' ') + (parseSeedTerm(term).anyEnding ? '*' : '');
 }
 
 /** A hash of a desk's seed terms: the stored statistics say which terms they were counted for. */

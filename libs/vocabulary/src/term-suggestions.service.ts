@@ -94,6 +94,8 @@ export class TermSuggestionsService {
         .flat()
         .map((t) => seedTermKey(featurizer, t)),
     );
+    // A word that is a form of a seed term ending in `*` is that term already.
+    const stems = [...allSeeds].filter((k) => k.endsWith('*') && !k.includes(' ')).map((k) => k.slice(0, -1));
     const seedRows = seedTerms.map((t) => index.get(seedTermKey(featurizer, t)) ?? -1);
     const dismissed = await this.repository.dismissed(deskId, category.id);
     const candidate = (w: number) => {
@@ -103,6 +105,7 @@ export class TermSuggestionsService {
         LETTER.test(word) &&
         !SINGLE_CHARACTER.test(word) &&
         !allSeeds.has(word) &&
+        !stems.some((stem) => word.startsWith(stem)) &&
         !dismissed.has(word)
       );
     };

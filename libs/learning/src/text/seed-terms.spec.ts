@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compileSeedTerms } from './seed-terms.js';
+import { compileSeedTerms, parseSeedTerm } from './seed-terms.js';
 
 function slices(text: string, matcher = compileSeedTerms({ x: ['cafe'] })) {
   return matcher.match(text).map((m) => text.slice(m.start, m.end));
@@ -64,6 +64,48 @@ describe('compileSeedTerms', () => {
     const matcher = compileSeedTerms({ first: ['Bomb'], second: ['bomb', '  ', '!!'] });
     expect(matcher.size).toBe(1);
     expect(matcher.match('bomb')).toEqual([{ start: 0, end: 4, category: 'first', term: 'Bomb' }]);
+  });
+
+  describe('a term ending in * takes any ending of its last word', () => {
+    it('Swedish: döda* and hota* match their inflected forms, whole words marked, not other words', () => {
+      const matcher = compileSeedTerms({ threat: ['döda*', 'hota*'] });
+      const text = 'Han hotar dem. De dödade tiden, DÖDAR inget; hotelse och hotell är andra ord. Döda!';
+      expect(slices(text, matcher)).toEqual(['hotar', 'dödade', 'DÖDAR', 'Döda']);
+      expect(matcher.match(text).map((m) => m.term)).toEqual(['hota*', 'döda*', 'döda*', 'döda*']);
+    });
+
+    it('German: droh* matches drohen, Drohung and drohte, not bedrohen (the stem is at the start of the word)', () => {
+      const matcher = compileSeedTerms({ threat: ['droh*'] });
+      expect(slices('Sie drohen. Eine Drohung! Er drohte, sie bedrohen niemanden.', matcher)).toEqual([
+        'drohen',
+        'Drohung',
+        'drohte',
+      ]);
+    });
+
+    it('Arabic: كتب* matches كتبت and كتبوا, not مكتب', () => {
+      const matcher = compileSeedTerms({ x: ['كتب*'] });
+      expect(slices('كتبت رسالة و كتبوا في مكتب', matcher)).toEqual(['كتبت', 'كتبوا']);
+    });
+
+    it('applies to the last word of a multi-word term, and a term without * wins at the same length', () => {
+      const matcher = compileSeedTerms({ a: ['will hurt*'], b: ['hotar'], c: ['hota*'] });
+      const text = 'I will hurting you; WILL HURT. hotar hotade';
+      expect(matcher.match(text).map((m) => [text.slice(m.start, m.end), m.category])).toEqual([
+        ['will hurting', 'a'],
+        ['WILL HURT', 'a'],
+        ['hotar', 'b'],
+        ['hotade', 'c'],
+      ]);
+      expect(matcher.size).toBe(3);
+    });
+
+    it('refuses a single character before *, and the matcher reads such a stored term as the bare word', () => {
+      expect(parseSeedTerm('x*').problem).toMatch(/single character/);
+      expect(parseSeedTerm('döda *')).toEqual({ words: ['doda'], anyEnding: true });
+      expect(parseSeedTerm('döda')).toEqual({ words: ['doda'], anyEnding: false });
+      expect(slices('x xylophone', compileSeedTerms({ a: ['x*'] }))).toEqual(['x']);
+    });
   });
 
   it('rejects bad arguments with a named error', () => {

@@ -61,6 +61,47 @@ function termWords(term: string): string[] {
   return foldedWords(foldString(term)).map((w) => w.text);
 }
 
+/** A seed term ending in `*` (spaces after it allowed) matches any ending of its last word. */
+const ANY_ENDING = /\*\s*$/u;
+
+/** The shortest last word a term ending in `*` may have: one letter would match a large part of any language. */
+export const MIN_WORD_ENDING_STEM = 2;
+
+const GRAPHEMES = new Intl.Segmenter(undefined, { granularity: 'grapheme' });
+
+/** The number of characters a reader sees in `word` (a letter with its marks counts once). */
+function graphemes(word: string): number {
+  let n = 0;
+  for (const _ of GRAPHEMES.segment(word)) n++;
+  return n;
+}
+
+/** A seed term as the matcher reads it: its folded words and whether the last one takes any ending. */
+export interface ParsedSeedTerm {
+  words: string[];
+  anyEnding: boolean;
+}
+
+/**
+ * Reads a seed term: folded words (as the matcher compares them), whether it
+ * ends in `*`, and, when the word before `*` is shorter than
+ * {@link MIN_WORD_ENDING_STEM} characters, the problem in words (the desk
+ * settings refuse such a term; the matcher reads it as the bare word, which
+ * is what it meant before `*` had a meaning).
+ */
+export function parseSeedTerm(term: string): ParsedSeedTerm & { problem?: string } {
+  const words = termWords(term);
+  if (!ANY_ENDING.test(term) || words.length === 0) return { words, anyEnding: false };
+  if (graphemes(words[words.length - 1]) < MIN_WORD_ENDING_STEM) {
+    return {
+      words,
+      anyEnding: false,
+      problem: `${JSON.stringify(term)} ends in * after a single character; give at least ${MIN_WORD_ENDING_STEM} characters before *`,
+    };
+  }
+  return { words, anyEnding: true };
+}
+
 interface Entry {
   category: string;
   term: string;
@@ -77,6 +118,12 @@ interface Entry {
  * several categories reports the first category in `seedTerms` order.
  * Leftmost-longest matching: common practice, no source.
  *
+ * A term ending in `*` matches any ending of its last word, the bare word
+ * included (`hota*` matches "hota", "hotar", "hotade"), for keyword lists in
+ * inflected languages; the whole word is reported, so a highlight marks it
+ * all. At a position, a term without `*` wins over one with it when both
+ * span the same number of words.
+ *
  * @param seedTerms category → terms; terms without any letter or digit are ignored.
  * @throws TypeError if `seedTerms` is not an object of string arrays.
  */
@@ -87,6 +134,9 @@ export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermM
     throw new TypeError(`seedTerms must be an object mapping categories to term lists, got ${String(given)}`);
   }
   const table = new Map<string, Entry>();
+  // Terms ending in `*`: key = the words before the last, a tab, the stem of the last.
+  const stems = new Map<string, Entry>();
+  const stemLengths = new Set<number>();
   let maxWords = 0;
   for (const [category, terms] of Object.entries(seedTerms)) {
     if (!Array.isArray(terms)) {
@@ -96,18 +146,39 @@ export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermM
       if (typeof term !== 'string') {
         throw new TypeError(`seedTerms[${JSON.stringify(category)}] holds a non-string term: ${String(term)}`);
       }
-      const words = termWords(term);
+      const { words, anyEnding } = parseSeedTerm(term);
       if (words.length === 0) continue;
-      const key = words.join(' ');
-      if (!table.has(key)) table.set(key, { category, term });
+      if (anyEnding) {
+        const stem = words[words.length - 1];
+        const key = `${words.slice(0, -1).join(' ')}\t${stem}`;
+        if (!stems.has(key)) stems.set(key, { category, term });
+        stemLengths.add(stem.length);
+      } else {
+        const key = words.join(' ');
+        if (!table.has(key)) table.set(key, { category, term });
+      }
       maxWords = Math.max(maxWords, words.length);
     }
   }
 
   function match(text: string): SeedMatch[] {
     if (typeof text !== 'string') throw new TypeError(`text must be a string, got ${typeof text}`);
-    if (table.size === 0) return [];
+    if (table.size === 0 && stems.size === 0) return [];
     const words = foldedWords(text);
+    const lengths = [...stemLengths].sort((a, b) => b - a);
+    /** The entry of a term ending in `*` that the n words at i match (longest stem first), if any. */
+    const byStem = (i: number, n: number): Entry | undefined => {
+      if (stems.size === 0) return undefined;
+      let head = '';
+      for (let j = 0; j < n - 1; j++) head += (j > 0 ? ' ' : '') + words[i + j].text;
+      const last = words[i + n - 1].text;
+      for (const length of lengths) {
+        if (length > last.length) continue;
+        const entry = stems.get(`${head}\t${last.slice(0, length)}`);
+        if (entry !== undefined) return entry;
+      }
+      return undefined;
+    };
     const out: SeedMatch[] = [];
     let lastEnd = 0;
     let i = 0;
@@ -117,7 +188,7 @@ export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermM
       for (let n = limit; n >= 1 && matched === 0; n--) {
         let key = words[i].text;
         for (let j = 1; j < n; j++) key += ' ' + words[i + j].text;
-        const entry = table.get(key);
+        const entry = table.get(key) ?? byStem(i, n);
         // A code point that folds to several words (e.g. "½") can give two
         // words the same source range; never report overlapping ranges.
         if (entry !== undefined && words[i].start >= lastEnd) {
@@ -134,6 +205,6 @@ export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermM
   return {
     match,
     count: (text: string) => match(text).length,
-    size: table.size,
+    size: table.size + stems.size,
   };
 }

@@ -37,6 +37,20 @@ describe('createPhraseJoiner', () => {
     expect(join(['we', 'burn', 'it', 'down', 'and', 'burn', 'it'])).toEqual(['we', 'burn it down', 'and', 'burn it']);
     expect(join(['burn'])).toEqual(['burn']);
   });
+
+  it('rewrites every form of a term ending in * to the term itself, keeping a word listed on its own', () => {
+    const join = createPhraseJoiner([['hota*'], ['hotar'], ['will', 'hurt*']]);
+    expect(join(['hota', 'hotade', 'hotar', 'hotell', 'will', 'hurting', 'will', 'go'])).toEqual([
+      'hota*',
+      'hota*',
+      'hotar',
+      'hotell',
+      'will hurt*',
+      'will',
+      'go',
+    ]);
+    expect(() => createPhraseJoiner([['a*', 'b']])).toThrow(/only the last/);
+  });
 });
 
 describe('CooccurrenceCounter', () => {
