@@ -61,6 +61,8 @@ export interface Stack {
 export interface StackOptions {
   worker?: boolean;
   env?: Record<string, string>;
+  /** Rewrites the test database's URL before the API and worker connect (e.g. through a relay the test controls). */
+  databaseUrl?: (url: string) => string;
 }
 
 export async function startStack(kind: 'sqlite' | 'postgres', options: StackOptions = {}): Promise<Stack> {
@@ -70,7 +72,7 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
   const queuePrefix = `cribra-test-${randomBytes(4).toString('hex')}`;
   const config = parseConfig({
     DATA_DIR: dataDir,
-    DATABASE_URL: tdb.config.url,
+    DATABASE_URL: options.databaseUrl ? options.databaseUrl(tdb.config.url) : tdb.config.url,
     REDIS_URL: TEST_REDIS_URL,
     QUEUE_PREFIX: queuePrefix,
     LOG_LEVEL: 'error',

@@ -9,7 +9,7 @@ import { ImportsModule } from '#imports';
 import { LeasesModule } from '#leases';
 import { createRootLogger, LoggingModule } from '#logging';
 import { ModelsModule } from '#models';
-import { QueuesModule } from '#queues';
+import { QueuesModule, REQUEST_REDIS_TIMEOUT_MS } from '#queues';
 import { ReportsModule } from '#reports';
 import { RetentionModule } from '#retention';
 import { VerdictsModule } from '#verdicts';
@@ -28,7 +28,7 @@ export class ApiModule {
         ConfigModule.forRoot(config),
         LoggingModule.forRoot(createRootLogger(config, 'api')),
         DatabaseModule.forRoot(),
-        QueuesModule,
+        QueuesModule.forRoot({ commandTimeoutMs: REQUEST_REDIS_TIMEOUT_MS }),
         AuditModule,
         AuthModule,
         DesksModule,

@@ -15,7 +15,13 @@ import { QueuesModule } from '#queues';
 export async function seedDemo(config: AppConfig): Promise<DemoSeedResult | null> {
   if (!config.demo) return null;
   @Module({
-    imports: [ConfigModule.forRoot(config), DatabaseModule.forRoot(), QueuesModule, AuditModule, DemoSeedModule],
+    imports: [
+      ConfigModule.forRoot(config),
+      DatabaseModule.forRoot(),
+      QueuesModule.forRoot(),
+      AuditModule,
+      DemoSeedModule,
+    ],
   })
   class DemoSeedCliModule {}
   const app = await NestFactory.createApplicationContext(DemoSeedCliModule, { logger: ['error'] });

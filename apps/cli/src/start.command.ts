@@ -79,8 +79,15 @@ async function start(workers: number): Promise<number> {
   // Signals end the launcher whatever state its processes are in (a second one kills them at once).
   process.on('SIGINT', () => supervisor.signal());
   process.on('SIGTERM', () => supervisor.signal());
-  const node = (file: string, args: string[]) => (): Promise<ChildProcess> =>
-    Promise.resolve(spawn(process.execPath, ['--enable-source-maps', ...args, file], { env, stdio: 'inherit' }));
+  const node =
+    (file: string, args: string[], extraEnv: Record<string, string> = {}) =>
+    (): Promise<ChildProcess> =>
+      Promise.resolve(
+        spawn(process.execPath, ['--enable-source-maps', ...args, file], {
+          env: { ...env, ...extraEnv },
+          stdio: 'inherit',
+        }),
+      );
   const processes = [];
   if (redis) {
     const privateRedis = redis;
@@ -98,8 +105,15 @@ async function start(workers: number): Promise<number> {
     });
   }
   processes.push({ name: 'api', start: node(apiMain, nodeArgsFor('api', config)) });
-  for (let i = 0; i < workers; i++)
-    processes.push({ name: `worker ${i + 1}`, start: node(workerMain, nodeArgsFor('worker', config)) });
+  for (let i = 0; i < workers; i++) {
+    // Each worker its own health port: WORKER_HEALTH_PORT, then the ports after it.
+    const health: Record<string, string> =
+      config.workerHealthPort === null ? {} : { WORKER_HEALTH_PORT: String(config.workerHealthPort + i) };
+    processes.push({
+      name: `worker ${i + 1}`,
+      start: node(workerMain, nodeArgsFor('worker', config), health),
+    });
+  }
   await supervisor.run(processes);
   const url = `http://${config.host}:${config.port}/`;
   process.stdout.write(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)\n`);

@@ -11,6 +11,7 @@ import { ReportsWorkModule } from '#reports';
 import { VocabularyWorkModule } from '#vocabulary';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
+import { WorkerHealthServer } from './health-server.js';
 
 /** The worker process: BullMQ processors, no HTTP. The only place processors are registered. */
 @Module({})
@@ -22,7 +23,7 @@ export class WorkerModule {
         ConfigModule.forRoot(config),
         LoggingModule.forRoot(createRootLogger(config, 'worker')),
         DatabaseModule.forRoot(),
-        QueuesModule,
+        QueuesModule.forRoot(),
         AuditModule,
         ImportsWorkModule,
         ModelsWorkModule.register({ pause: pauseHook(config) }),
@@ -34,6 +35,7 @@ export class WorkerModule {
         ...PROCESSORS,
         { provide: JOB_HANDLERS, inject: PROCESSORS, useFactory: (...handlers: unknown[]) => handlers },
         WorkersService,
+        WorkerHealthServer,
       ],
     };
   }

@@ -6,6 +6,7 @@ import type { Logger as Pino } from 'pino';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { logJob, ROOT_LOGGER } from '#logging';
 import {
+  atMostEvery,
   createRedis,
   handlerTable,
   JOB_QUEUE,
@@ -56,6 +57,10 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
   private readonly logger = new Logger('Workers');
   private readonly workers: Worker[] = [];
   private readonly table: Map<JobName, JobHandler>;
+  /** Worker errors, mostly Redis going away (each queue's connections report every reconnect attempt): one line per 30 s. */
+  private readonly workerError = atMostEvery(30_000, (queue: string, e: Error) =>
+    this.logger.error(`worker ${queue}: ${e.message}`),
+  );
 
   constructor(
     @Inject(APP_CONFIG) private readonly config: AppConfig,
@@ -89,7 +94,7 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           maxStalledCount: MAX_STALLED,
         },
       );
-      worker.on('error', (e) => this.logger.error(`worker ${queue}: ${e.message}`));
+      worker.on('error', (e) => this.workerError(queue, e));
       // One line per finished attempt (see logJob); a job that failed before it was read has no job to describe.
       // …and the same attempt counted in Redis, where the API's /metrics reads every worker's figures.
       const finished = (job: Job, e?: Error) => {
@@ -116,6 +121,11 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
         { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } },
       );
     this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
+  }
+
+  /** How many queues this process works, and how many of their BullMQ workers are running (not closed or closing). */
+  state(): { queues: number; running: number } {
+    return { queues: Object.values(QUEUES).length, running: this.workers.filter((w) => w.isRunning()).length };
   }
 
   async onApplicationShutdown(): Promise<void> {

@@ -57,6 +57,11 @@ export interface AppConfig {
    * bearer token or session reads it.
    */
   readonly metrics: { readonly token: string | null; readonly port: number | null };
+  /**
+   * A worker answers `GET /healthz` (alive) and `GET /readyz` (its database and Redis answer) on this port, bound to
+   * `host`; `null`: no health server. The launcher gives its N workers this port and the N − 1 after it.
+   */
+  readonly workerHealthPort: number | null;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -101,6 +106,7 @@ export const CONFIG_VARIABLES = [
   'RESTART_WINDOW_MINUTES',
   'METRICS_TOKEN',
   'METRICS_PORT',
+  'WORKER_HEALTH_PORT',
   'CRIBRA_TEST_PAUSE',
 ] as const;
 
@@ -199,6 +205,10 @@ export function parseConfig(
   const metricsPort = str('METRICS_PORT') === undefined ? null : int('METRICS_PORT', 0, 1, 65535);
   if (metricsPort !== null && metricsPort === port) problems.push(`METRICS_PORT=${metricsPort}: must differ from PORT`);
 
+  const workerHealthPort = str('WORKER_HEALTH_PORT') === undefined ? null : int('WORKER_HEALTH_PORT', 0, 1, 65535);
+  if (workerHealthPort !== null && workerHealthPort === port)
+    problems.push(`WORKER_HEALTH_PORT=${workerHealthPort}: must differ from PORT`);
+
   const pause = str('CRIBRA_TEST_PAUSE') ?? null;
   if (pause !== null && pause !== 'training' && pause !== 'scoring')
     problems.push(`CRIBRA_TEST_PAUSE=${JSON.stringify(pause)}: expected training or scoring`);
@@ -233,6 +243,7 @@ export function parseConfig(
     restartLimit: int('RESTART_LIMIT', 5, 0, 1000),
     restartWindowMinutes: int('RESTART_WINDOW_MINUTES', 10, 1, 1440),
     metrics: { token: metricsToken, port: metricsPort },
+    workerHealthPort,
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -281,6 +292,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     RESTART_WINDOW_MINUTES: String(config.restartWindowMinutes),
     ...(config.metrics.token ? { METRICS_TOKEN: config.metrics.token } : {}),
     ...(config.metrics.port ? { METRICS_PORT: String(config.metrics.port) } : {}),
+    ...(config.workerHealthPort ? { WORKER_HEALTH_PORT: String(config.workerHealthPort) } : {}),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

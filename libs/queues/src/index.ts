@@ -16,8 +16,9 @@ export {
   type CountTermsPayload,
 } from './queue-names.js';
 export { jobOptions } from './job-options.js';
-export { createRedis } from './redis.js';
+export { atMostEvery, createRedis, isRedisUnavailable, REQUEST_REDIS_TIMEOUT_MS } from './redis.js';
 export { JobQueueService, REDIS } from './job-queue.service.js';
 export { QueuesModule } from './queues.module.js';
 export { handlerTable, type JobHandler } from './job-handler.js';
 export { recordJob, readJobFigures, type JobFigure, type JobOutcome } from './job-metrics.js';
+export { checkDependencies, READY_TIMEOUT_MS } from './readiness.js';

@@ -3,6 +3,7 @@ import { FlowProducer, Queue, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { jobOptions } from './job-options.js';
+import { atMostEvery } from './redis.js';
 import { JOB_QUEUE, QUEUES, type JobName, type JobPayloads, type QueueName } from './queue-names.js';
 
 export const REDIS = Symbol('REDIS');
@@ -13,14 +14,23 @@ export class JobQueueService implements OnApplicationShutdown {
   private readonly logger = new Logger('JobQueue');
   private readonly queues = new Map<QueueName, Queue>();
   private readonly flows: FlowProducer;
+  /**
+   * Connection errors while Redis is away come from every queue at each reconnect attempt: without a listener BullMQ
+   * prints each one raw on stderr. One warning line per half minute says the same through the process's logger.
+   */
+  private readonly connectionError = atMostEvery(30_000, (e: Error) => this.logger.warn(`Redis: ${e.message}`));
 
   constructor(
     @Inject(REDIS) private readonly redis: Redis,
     @Inject(APP_CONFIG) config: AppConfig,
   ) {
-    for (const name of Object.values(QUEUES))
-      this.queues.set(name, new Queue(name, { connection: redis, prefix: config.queuePrefix }));
+    for (const name of Object.values(QUEUES)) {
+      const queue = new Queue(name, { connection: redis, prefix: config.queuePrefix });
+      queue.on('error', (e) => this.connectionError(e));
+      this.queues.set(name, queue);
+    }
     this.flows = new FlowProducer({ connection: redis, prefix: config.queuePrefix });
+    this.flows.on('error', (e) => this.connectionError(e));
   }
 
   queue(name: QueueName): Queue {
