@@ -29,6 +29,8 @@ export interface LbfgsOptions {
   sufficientDecrease?: number;
   /** Most trial steps per line search (default 40). */
   maxBacktracks?: number;
+  /** The objective and its gradient at `x0`, when already computed (saves one evaluation). */
+  start?: { value: number; gradient: Float64Array };
 }
 
 export interface LbfgsResult {
@@ -36,7 +38,7 @@ export interface LbfgsResult {
   value: number;
   gradientNorm: number;
   iterations: number;
-  /** Objective-and-gradient evaluations, the first included. */
+  /** Objective-and-gradient evaluations, the first included (unless given as `start`). */
   evaluations: number;
   /** True when ‖∇f‖₂ reached the tolerance. */
   converged: boolean;
@@ -71,14 +73,26 @@ export function minimizeLbfgs(f: Objective, x0: Float64Array, options: LbfgsOpti
   const n = x0.length;
   let x = Float64Array.from(x0);
   let g = new Float64Array(n);
-  let value = f(x, g);
-  let evaluations = 1;
+  let value: number;
+  if (options.start !== undefined) {
+    if (options.start.gradient.length !== n)
+      throw new RangeError(`start.gradient has ${options.start.gradient.length} entries for ${n} parameters`);
+    value = options.start.value;
+    g.set(options.start.gradient);
+  } else value = f(x, g);
+  let evaluations = options.start === undefined ? 1 : 0;
   if (!Number.isFinite(value)) throw new RangeError(`the objective is not finite at the start (${value})`);
   let gnorm = Math.sqrt(dot(g, g));
 
-  const sList: Float64Array[] = [];
-  const yList: Float64Array[] = [];
-  const rhoList: number[] = [];
+  // Correction pairs in a ring buffer of memory + 1 slots, each allocated once: pair p (0 = oldest) sits in
+  // slot (head + p) % ring, and a new pair is written into the free slot after the newest before it is kept.
+  const ring = memory + 1;
+  const sList: (Float64Array | undefined)[] = [];
+  const yList: (Float64Array | undefined)[] = [];
+  const rhoList = new Float64Array(ring);
+  let head = 0;
+  let pairs = 0;
+  const slot = (p: number): number => (head + p) % ring;
   const alpha = new Float64Array(memory);
   const d = new Float64Array(n);
   let xNew = new Float64Array(n);
@@ -97,30 +111,30 @@ export function minimizeLbfgs(f: Objective, x0: Float64Array, options: LbfgsOpti
     }
     // Two-loop recursion: d = −H·g.
     for (let i = 0; i < n; i++) d[i] = -g[i];
-    const pairs = sList.length;
     for (let p = pairs - 1; p >= 0; p--) {
-      const a = rhoList[p] * dot(sList[p], d);
+      const q = slot(p);
+      const a = rhoList[q] * dot(sList[q]!, d);
       alpha[p] = a;
-      const y = yList[p];
+      const y = yList[q]!;
       for (let i = 0; i < n; i++) d[i] -= a * y[i];
     }
     if (pairs > 0) {
-      const last = pairs - 1;
-      const gamma = 1 / (rhoList[last] * dot(yList[last], yList[last]));
+      const last = slot(pairs - 1);
+      const yLast = yList[last]!;
+      const gamma = 1 / (rhoList[last] * dot(yLast, yLast));
       for (let i = 0; i < n; i++) d[i] *= gamma;
     }
     for (let p = 0; p < pairs; p++) {
-      const b = rhoList[p] * dot(yList[p], d);
-      const s = sList[p];
+      const q = slot(p);
+      const b = rhoList[q] * dot(yList[q]!, d);
+      const s = sList[q]!;
       const a = alpha[p];
       for (let i = 0; i < n; i++) d[i] += (a - b) * s[i];
     }
     let slope = dot(g, d);
     if (!(slope < 0)) {
       // Not a descent direction (rounding): restart from steepest descent.
-      sList.length = 0;
-      yList.length = 0;
-      rhoList.length = 0;
+      pairs = 0;
       for (let i = 0; i < n; i++) d[i] = -g[i];
       slope = -gnorm * gnorm;
     }
@@ -145,27 +159,33 @@ export function minimizeLbfgs(f: Objective, x0: Float64Array, options: LbfgsOpti
       break;
     }
     iterations++;
-    const s = new Float64Array(n);
-    const y = new Float64Array(n);
+    const q = slot(pairs);
+    const s = (sList[q] ??= new Float64Array(n));
+    const y = (yList[q] ??= new Float64Array(n));
+    let sy = 0;
+    let ss = 0;
+    let yy = 0;
+    let gg = 0;
     for (let i = 0; i < n; i++) {
-      s[i] = xNew[i] - x[i];
-      y[i] = gNew[i] - g[i];
+      const si = xNew[i] - x[i];
+      const gi = gNew[i];
+      const yi = gi - g[i];
+      s[i] = si;
+      y[i] = yi;
+      sy += si * yi;
+      ss += si * si;
+      yy += yi * yi;
+      gg += gi * gi;
     }
-    const sy = dot(s, y);
-    if (sy > 1e-12 * Math.sqrt(dot(s, s) * dot(y, y))) {
-      if (sList.length === memory) {
-        sList.shift();
-        yList.shift();
-        rhoList.shift();
-      }
-      sList.push(s);
-      yList.push(y);
-      rhoList.push(1 / sy);
+    if (sy > 1e-12 * Math.sqrt(ss * yy)) {
+      rhoList[q] = 1 / sy;
+      if (pairs < memory) pairs++;
+      else head = (head + 1) % ring;
     }
     [x, xNew] = [xNew, x];
     [g, gNew] = [gNew, g];
     value = valueNew;
-    gnorm = Math.sqrt(dot(g, g));
+    gnorm = Math.sqrt(gg);
   }
   return { x, value, gradientNorm: gnorm, iterations, evaluations, converged: gnorm <= tol, stop };
 }

@@ -57,54 +57,83 @@ export interface TrainOptions {
   warmStart?: LogisticModel | null;
 }
 
-/** Training rows in compressed sparse row form over the compacted columns 0…m−1. */
+/**
+ * Training rows in compressed sparse row form over the compacted columns
+ * 0…m−1, numbered by falling frequency (the column that occurs in most rows
+ * is 0; ties by bucket), so that the parameters of the common n-grams, which
+ * almost every row reads, share a few cache lines.
+ */
 interface Csr {
   rowPtr: Int32Array;
-  colIdx: Int32Array;
+  /** Column of each non-zero, times the objective's stride (see {@link softmaxObjective}). */
+  colBase: Int32Array;
   values: Float64Array;
-  /** Hashed bucket of each column, ascending. */
+  /** Hashed bucket of each column. */
   features: Int32Array;
+  /** Column of each bucket, −1 when it does not occur. */
+  columnOf: Int32Array;
 }
 
-function buildCsr(vectors: readonly SparseVector[], dimension: number): Csr {
-  const seen = new Uint8Array(dimension);
+function buildCsr(vectors: readonly SparseVector[], dimension: number, stride: number): Csr {
+  const occurs = new Int32Array(dimension);
   let nnz = 0;
+  let most = 0;
   vectors.forEach((v, i) => {
     assertSparseVector(v, `vectors[${i}]`, dimension);
     nnz += v.indices.length;
-    for (let t = 0; t < v.indices.length; t++) seen[v.indices[t]] = 1;
+    for (let t = 0; t < v.indices.length; t++) {
+      const n = ++occurs[v.indices[t]];
+      if (n > most) most = n;
+    }
   });
+  // Counting sort of the buckets by falling frequency, ascending bucket within a frequency.
+  const startOf = new Int32Array(most + 2);
   let m = 0;
-  for (let b = 0; b < dimension; b++) m += seen[b];
+  for (let bucket = 0; bucket < dimension; bucket++) {
+    const n = occurs[bucket];
+    if (n > 0) {
+      startOf[most - n + 1]++;
+      m++;
+    }
+  }
+  for (let r = 1; r <= most + 1; r++) startOf[r] += startOf[r - 1];
   const features = new Int32Array(m);
-  const compact = new Int32Array(dimension);
-  for (let b = 0, j = 0; b < dimension; b++) {
-    if (seen[b] === 1) {
-      features[j] = b;
-      compact[b] = j++;
+  const columnOf = new Int32Array(dimension).fill(-1);
+  for (let bucket = 0; bucket < dimension; bucket++) {
+    const n = occurs[bucket];
+    if (n > 0) {
+      const j = startOf[most - n]++;
+      features[j] = bucket;
+      columnOf[bucket] = j;
     }
   }
   const rows = vectors.length;
   const rowPtr = new Int32Array(rows + 1);
-  const colIdx = new Int32Array(nnz);
+  const colBase = new Int32Array(nnz);
   const values = new Float64Array(nnz);
   let p = 0;
   for (let i = 0; i < rows; i++) {
     const v = vectors[i];
     for (let t = 0; t < v.indices.length; t++) {
-      colIdx[p] = compact[v.indices[t]];
+      colBase[p] = columnOf[v.indices[t]] * stride;
       values[p++] = v.values[t];
     }
     rowPtr[i + 1] = p;
   }
-  return { rowPtr, colIdx, values, features };
+  return { rowPtr, colBase, values, features, columnOf };
 }
 
 /**
  * The objective of {@link trainLogisticModel} and its gradient over the
- * parameters θ = (W feature-major, m·k entries; then b, k entries): one pass
- * over the rows computes the scores, the softmax, the loss and, row by row,
- * the gradient's contribution Xᵀ·(ω ⊙ (P − Y)).
+ * parameters θ = (W column-major by feature: m·k entries, then b: k entries).
+ * One pass over the rows computes the scores, the softmax, the loss and, row
+ * by row, the gradient's contribution Xᵀ·(ω ⊙ (P − Y)).
+ *
+ * Internally the weights and the gradient of column j sit side by side in one
+ * buffer (stride 2k: θ_j then ∇_j), so the gradient update of a row finds in
+ * cache the lines its scores just read; θ is copied in and ∇ out per call,
+ * O(m·k) sequential work against O(non-zeros·k) scattered work. k = 2 and 3
+ * have unrolled loops.
  */
 function softmaxObjective(
   csr: Csr,
@@ -113,51 +142,124 @@ function softmaxObjective(
   k: number,
   c: number,
 ): (theta: Float64Array, gradient: Float64Array) => number {
-  const { rowPtr, colIdx, values } = csr;
+  const { rowPtr, colBase, values } = csr;
   const m = csr.features.length;
   const rows = y.length;
+  const stride = 2 * k;
+  const buffer = new Float64Array(m * stride);
   const s = new Float64Array(k);
   const bOffset = m * k;
+  const bias = new Float64Array(k);
+  const biasGradient = new Float64Array(k);
   return (theta, gradient) => {
-    gradient.fill(0);
+    for (let j = 0, o = 0, t = 0; j < m; j++, o += stride) {
+      for (let a = 0; a < k; a++) {
+        buffer[o + a] = theta[t++];
+        buffer[o + k + a] = 0;
+      }
+    }
+    for (let a = 0; a < k; a++) {
+      bias[a] = theta[bOffset + a];
+      biasGradient[a] = 0;
+    }
     let loss = 0;
     for (let i = 0; i < rows; i++) {
-      for (let a = 0; a < k; a++) s[a] = theta[bOffset + a];
       const start = rowPtr[i];
       const end = rowPtr[i + 1];
-      for (let p = start; p < end; p++) {
-        const base = colIdx[p] * k;
-        const v = values[p];
-        for (let a = 0; a < k; a++) s[a] += v * theta[base + a];
-      }
-      let max = s[0];
-      for (let a = 1; a < k; a++) if (s[a] > max) max = s[a];
       const label = y[i];
-      const shiftedLabelScore = s[label] - max;
-      let total = 0;
-      for (let a = 0; a < k; a++) {
-        s[a] = Math.exp(s[a] - max);
-        total += s[a];
-      }
       const weight = c * rowWeight[i];
-      // −log p_y = log Σ_a exp(s_a − max) − (s_y − max).
-      loss += weight * (Math.log(total) - shiftedLabelScore);
-      // Residuals ω(p − y), scaled by C, into s.
-      for (let a = 0; a < k; a++) s[a] = (weight * s[a]) / total;
-      s[label] -= weight;
-      for (let a = 0; a < k; a++) gradient[bOffset + a] += s[a];
-      for (let p = start; p < end; p++) {
-        const base = colIdx[p] * k;
-        const v = values[p];
-        for (let a = 0; a < k; a++) gradient[base + a] += v * s[a];
+      if (k === 2) {
+        let s0 = bias[0];
+        let s1 = bias[1];
+        for (let p = start; p < end; p++) {
+          const o = colBase[p];
+          const v = values[p];
+          s0 += v * buffer[o];
+          s1 += v * buffer[o + 1];
+        }
+        const max = s0 > s1 ? s0 : s1;
+        const e0 = Math.exp(s0 - max);
+        const e1 = Math.exp(s1 - max);
+        const total = e0 + e1;
+        loss += weight * (Math.log(total) - ((label === 0 ? s0 : s1) - max));
+        const r0 = (weight * e0) / total - (label === 0 ? weight : 0);
+        const r1 = (weight * e1) / total - (label === 1 ? weight : 0);
+        biasGradient[0] += r0;
+        biasGradient[1] += r1;
+        for (let p = start; p < end; p++) {
+          const o = colBase[p];
+          const v = values[p];
+          buffer[o + 2] += v * r0;
+          buffer[o + 3] += v * r1;
+        }
+      } else if (k === 3) {
+        let s0 = bias[0];
+        let s1 = bias[1];
+        let s2 = bias[2];
+        for (let p = start; p < end; p++) {
+          const o = colBase[p];
+          const v = values[p];
+          s0 += v * buffer[o];
+          s1 += v * buffer[o + 1];
+          s2 += v * buffer[o + 2];
+        }
+        let max = s0 > s1 ? s0 : s1;
+        if (s2 > max) max = s2;
+        const e0 = Math.exp(s0 - max);
+        const e1 = Math.exp(s1 - max);
+        const e2 = Math.exp(s2 - max);
+        const total = e0 + e1 + e2;
+        loss += weight * (Math.log(total) - ((label === 0 ? s0 : label === 1 ? s1 : s2) - max));
+        const r0 = (weight * e0) / total - (label === 0 ? weight : 0);
+        const r1 = (weight * e1) / total - (label === 1 ? weight : 0);
+        const r2 = (weight * e2) / total - (label === 2 ? weight : 0);
+        biasGradient[0] += r0;
+        biasGradient[1] += r1;
+        biasGradient[2] += r2;
+        for (let p = start; p < end; p++) {
+          const o = colBase[p];
+          const v = values[p];
+          buffer[o + 3] += v * r0;
+          buffer[o + 4] += v * r1;
+          buffer[o + 5] += v * r2;
+        }
+      } else {
+        for (let a = 0; a < k; a++) s[a] = bias[a];
+        for (let p = start; p < end; p++) {
+          const o = colBase[p];
+          const v = values[p];
+          for (let a = 0; a < k; a++) s[a] += v * buffer[o + a];
+        }
+        let max = s[0];
+        for (let a = 1; a < k; a++) if (s[a] > max) max = s[a];
+        const shiftedLabelScore = s[label] - max;
+        let total = 0;
+        for (let a = 0; a < k; a++) {
+          s[a] = Math.exp(s[a] - max);
+          total += s[a];
+        }
+        // −log p_y = log Σ_a exp(s_a − max) − (s_y − max).
+        loss += weight * (Math.log(total) - shiftedLabelScore);
+        // Residuals ω(p − y), scaled by C, into s.
+        for (let a = 0; a < k; a++) s[a] = (weight * s[a]) / total;
+        s[label] -= weight;
+        for (let a = 0; a < k; a++) biasGradient[a] += s[a];
+        for (let p = start; p < end; p++) {
+          const o = colBase[p] + k;
+          const v = values[p];
+          for (let a = 0; a < k; a++) buffer[o + a] += v * s[a];
+        }
       }
     }
     let penalty = 0;
-    for (let j = 0; j < bOffset; j++) {
-      const w = theta[j];
-      penalty += w * w;
-      gradient[j] += w;
+    for (let j = 0, o = 0, t = 0; j < m; j++, o += stride) {
+      for (let a = 0; a < k; a++) {
+        const w = buffer[o + a];
+        penalty += w * w;
+        gradient[t++] = buffer[o + k + a] + w;
+      }
     }
+    for (let a = 0; a < k; a++) gradient[bOffset + a] = biasGradient[a];
     return loss + 0.5 * penalty;
   };
 }
@@ -240,7 +342,7 @@ export function trainLogisticModel(
   const classOf = new Map(trained.map((p, i) => [p, i]));
   const k = trained.length;
   const rows = vectors.length;
-  const csr = buildCsr(vectors, dimension);
+  const csr = buildCsr(vectors, dimension, 2 * Math.max(k, 1));
   const m = csr.features.length;
   const y = Int32Array.from(rowCategory, (p) => classOf.get(p)!);
   const counts = new Float64Array(k);
@@ -288,28 +390,47 @@ export function trainLogisticModel(
   const objective = softmaxObjective(csr, y, rowWeight, k, c);
   const size = m * k + k;
   const zero = new Float64Array(size);
-  const scratch = new Float64Array(size);
-  objective(zero, scratch);
-  let gradientNormAtZero = 0;
-  for (let i = 0; i < size; i++) gradientNormAtZero += scratch[i] * scratch[i];
-  gradientNormAtZero = Math.sqrt(gradientNormAtZero);
-  const start = warmStartWeights(options.warmStart ?? null, categories, trained, hashBits, csr.features);
+  const start = warmStartWeights(options.warmStart ?? null, categories, trained, hashBits, csr.columnOf, m);
+  let gradientNormAtZero: number;
+  let atZero: { value: number; gradient: Float64Array } | undefined;
+  let evaluations = 0;
+  if (start === null) {
+    // Cold: the evaluation at zero is L-BFGS's first one too.
+    const gradient = new Float64Array(size);
+    atZero = { value: objective(zero, gradient), gradient };
+    evaluations++;
+    gradientNormAtZero = Math.sqrt(gradient.reduce((sum, g) => sum + g * g, 0));
+  } else {
+    gradientNormAtZero = gradientNormAtZeroOf(csr, y, rowWeight, k, c);
+  }
   const result = minimizeLbfgs(objective, start ?? zero, {
     gradientTolerance: tolerance * gradientNormAtZero,
     maxIterations,
     memory,
+    start: atZero,
   });
+  evaluations += result.evaluations;
+  // Back to buckets in ascending order, weights feature-major.
   const theta = result.x;
+  const features = new Int32Array(m);
+  const modelWeights = new Float64Array(m * k);
+  for (let bucket = 0, j = 0; j < m; bucket++) {
+    const column = csr.columnOf[bucket];
+    if (column < 0) continue;
+    features[j] = bucket;
+    for (let a = 0; a < k; a++) modelWeights[j * k + a] = theta[column * k + a];
+    j++;
+  }
   return new LogisticModel(
     categories,
     trained,
     hashBits,
-    csr.features,
-    theta.slice(0, m * k),
+    features,
+    modelWeights,
     theta.slice(m * k),
     summary({
       iterations: result.iterations,
-      evaluations: result.evaluations + 1,
+      evaluations,
       objective: result.value,
       gradientNorm: result.gradientNorm,
       gradientNormAtZero,
@@ -317,6 +438,28 @@ export function trainLogisticModel(
       warmStart: start !== null,
     }),
   );
+}
+
+/**
+ * ‖∇f(0)‖₂ without the scores: at θ = 0 every p_a is 1/k, so the residual
+ * of row i is C·ω_i·(1/k − [a = y_i]) and ∇f(0) = (Xᵀ·R, Σ_i R_i).
+ */
+function gradientNormAtZeroOf(csr: Csr, y: Int32Array, rowWeight: Float64Array, k: number, c: number): number {
+  const { rowPtr, colBase, values } = csr;
+  const m = csr.features.length;
+  const stride = 2 * k;
+  const gradient = new Float64Array(m * k + k);
+  const bOffset = m * k;
+  for (let i = 0; i < y.length; i++) {
+    const weight = c * rowWeight[i];
+    const label = y[i];
+    for (let a = 0; a < k; a++) {
+      const r = weight * (1 / k - (a === label ? 1 : 0));
+      gradient[bOffset + a] += r;
+      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) gradient[(colBase[p] / stride) * k + a] += values[p] * r;
+    }
+  }
+  return Math.sqrt(gradient.reduce((sum, g) => sum + g * g, 0));
 }
 
 /**
@@ -329,11 +472,11 @@ function warmStartWeights(
   categories: readonly string[],
   trained: readonly number[],
   hashBits: number,
-  features: Int32Array,
+  columnOf: Int32Array,
+  m: number,
 ): Float64Array | null {
   if (previous === null || previous.link !== 'softmax' || previous.hashBits !== hashBits) return null;
   const k = trained.length;
-  const m = features.length;
   const oldK = previous.trained.length;
   const oldClass = trained.map((p) => {
     const at = previous.categories.indexOf(categories[p]);
@@ -342,15 +485,10 @@ function warmStartWeights(
   if (oldClass.every((o) => o < 0) || oldK < 2) return null;
   const theta = new Float64Array(m * k + k);
   const old = previous.features;
-  // Both bucket lists ascend: merge them.
-  for (let j = 0, o = 0; j < m && o < old.length;) {
-    if (features[j] < old[o]) j++;
-    else if (features[j] > old[o]) o++;
-    else {
-      for (let a = 0; a < k; a++) if (oldClass[a] >= 0) theta[j * k + a] = previous.weights[o * oldK + oldClass[a]];
-      j++;
-      o++;
-    }
+  for (let o = 0; o < old.length; o++) {
+    const j = columnOf[old[o]];
+    if (j < 0) continue;
+    for (let a = 0; a < k; a++) if (oldClass[a] >= 0) theta[j * k + a] = previous.weights[o * oldK + oldClass[a]];
   }
   let mean = 0;
   for (let a = 0; a < k; a++) if (oldClass[a] >= 0) theta[m * k + a] = previous.biases[oldClass[a]];
