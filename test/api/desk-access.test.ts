@@ -111,6 +111,7 @@ const DESK_ROUTES: DeskRoute[] = [
     allowed: [S],
     body: () => ({ externalIds: ['held by no item'], reason: 'desk access check' }),
   },
+  { method: 'POST', template: '/api/desks/{deskId}/retention/run', allowed: [S], query: '?dryRun=1' },
   {
     method: 'POST',
     template: '/api/items/{itemId}/settle',

@@ -371,6 +371,10 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { itemIds: [item], reason: 'a request to erase' });
     await call('aud', 'GET', `/api/desks/${deskId}/erasures`);
     await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { reason: 'no selector' });
+    await call('sup', 'PATCH', `/api/desks/${deskId}`, {
+      retention: { decidedAfterDays: 3650, categories: { ok: 365 } },
+    });
+    await call('sup', 'POST', `/api/desks/${deskId}/retention/run?dryRun=1`);
     // Errors carry the documented body too.
     await call('rev', 'GET', `/api/desks/${deskId}/models`);
     await call('aud', 'GET', '/api/desks/999999');

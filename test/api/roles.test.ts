@@ -136,6 +136,7 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
       allowed: ['supervisor'],
       body: () => ({ externalIds: ['held by no item'], reason: 'the matrix' }),
     },
+    { method: 'POST', path: `/api/desks/${deskId}/retention/run?dryRun=1`, allowed: ['supervisor'] },
     {
       method: 'POST',
       path: `/api/items/${itemId}/settle`,

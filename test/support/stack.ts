@@ -148,11 +148,17 @@ export async function startStack(kind: 'sqlite' | 'postgres', options: StackOpti
       // Quiet twice in a row: a job finishing on one queue may have just added one to another that was already counted.
       for (let quiet = 0; quiet < 2;) {
         // Delayed first: a job only moves forward (delayed → waiting → active), so it cannot slip between the two reads.
-        // The periodic sweep always has its next run scheduled: it does not count as work. Nor does a word count for
+        // The periodic sweep and the daily retention run always have their next run scheduled: they do not count as work. Nor does a word count for
         // the seed-term suggestions waiting out TERMS_AFTER_SECONDS (a test that needs one sets it to 0).
         const delayed = (await Promise.all(queues.map((q) => q.getJobs(['delayed']))))
           .flat()
-          .filter((j) => j.name !== 'sweep-desks' && j.name !== 'count-terms' && !opts.ignoreDelayed)
+          .filter(
+            (j) =>
+              j.name !== 'sweep-desks' &&
+              j.name !== 'count-terms' &&
+              j.name !== 'apply-retention' &&
+              !opts.ignoreDelayed,
+          )
           .filter(
             (j) =>
               opts.ignoreDelayedBeyondMs === undefined ||

@@ -10,6 +10,7 @@ export const COMMANDS: Readonly<Record<string, () => Promise<CliEntry>>> = {
   user: async () => (await import('./user.command.js')).userCommands,
   migrate: async () => (await import('./migrate.command.js')).migrateCommand,
   rehearse: async () => (await import('./rehearse.command.js')).rehearse,
+  retention: async () => (await import('./retention.command.js')).retentionCommands,
 };
 
 /** The top-level group with every command loaded (for `cribra --help`, and the tests that walk every command). */

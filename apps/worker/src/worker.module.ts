@@ -8,6 +8,7 @@ import { createRootLogger, LoggingModule } from '#logging';
 import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsWorkModule } from '#reports';
+import { RetentionCoreModule } from '#retention';
 import { VocabularyWorkModule } from '#vocabulary';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
@@ -30,6 +31,7 @@ export class WorkerModule {
         DemoWorkModule,
         ReportsWorkModule,
         VocabularyWorkModule,
+        RetentionCoreModule,
       ],
       providers: [
         ...PROCESSORS,

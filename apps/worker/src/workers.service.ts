@@ -27,6 +27,7 @@ import {
 } from './learning.processor.js';
 import { SimulateReviewerProcessor } from './simulation.processor.js';
 import { WriteReportProcessor } from './report.processor.js';
+import { ApplyRetentionProcessor } from './retention.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 /** Simulated reviewers mostly wait (their pauses), so one worker runs several desks' at once. */
@@ -120,6 +121,14 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
         { every: this.config.sweepSeconds * 1000 },
         { name: JOBS.sweepDesks, data: {}, opts: { removeOnComplete: true, removeOnFail: true } },
       );
+    // Once a day, at RETENTION_HOUR UTC, one worker erases the items past their desk's retention periods.
+    await this.jobs
+      .queue(QUEUES.maintenance)
+      .upsertJobScheduler(
+        'apply-retention',
+        { pattern: `0 ${this.config.retentionHour} * * *`, tz: 'UTC' },
+        { name: JOBS.applyRetention, data: {}, opts: { removeOnComplete: true, removeOnFail: true } },
+      );
     this.logger.log(`processing queues ${Object.values(QUEUES).join(', ')} with prefix ${this.config.queuePrefix}`);
   }
 
@@ -143,4 +152,5 @@ export const PROCESSORS = [
   SimulateReviewerProcessor,
   WriteReportProcessor,
   CountTermsProcessor,
+  ApplyRetentionProcessor,
 ];

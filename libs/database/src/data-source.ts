@@ -26,6 +26,7 @@ import { ScreeningSettings1766400000000 } from './migrations/1766400000000-scree
 import { ScreenLane1766410000000 } from './migrations/1766410000000-screen-lane.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
+import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -60,6 +61,7 @@ export const MIGRATIONS = [
   ScreenLane1766410000000,
   TermSuggestions1766500000000,
   Erasure1766700000000,
+  Retention1766700000001,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

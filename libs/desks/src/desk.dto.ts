@@ -134,6 +134,23 @@ export class CreateDeskDto {
 export class UpdateDeskDto {
   @ApiPropertyOptional() @IsOptional() @IsString() @Length(1, 200) name?: string;
 
+  /**
+   * Retention periods in days (1–3650; null keeps): the members given replace the current ones, `categories` as a
+   * whole map.
+   */
+  @ApiPropertyOptional({
+    type: 'object',
+    properties: {
+      decidedAfterDays: { type: 'integer', minimum: 1, maximum: 3650, nullable: true },
+      categories: { type: 'object', additionalProperties: { type: 'integer', minimum: 1, maximum: 3650 } },
+      openAfterDays: { type: 'integer', minimum: 1, maximum: 3650, nullable: true },
+    },
+    example: { decidedAfterDays: 365, categories: { ok: 30, threat: 1095 }, openAfterDays: 180 },
+  })
+  @IsOptional()
+  @IsObject()
+  retention?: Record<string, unknown>;
+
   /** The full new list. Categories may be added; one a verdict uses may not be removed or renamed. */
   @ApiPropertyOptional({ type: [String], minItems: 2, maxItems: 20 })
   @IsOptional()

@@ -32,6 +32,13 @@ export const DeskAnswer = named(
     score: z.enum(SCORES),
     retrainEvery: z.int(),
     retrainAfterSeconds: z.int(),
+    retention: z
+      .strictObject({
+        decidedAfterDays: z.int().nullable().describe('decided items go this many days after their last decision'),
+        categories: z.record(z.string(), z.int()).describe('a period per category for decided items with that label'),
+        openAfterDays: z.int().nullable().describe('items never decided go this many days after their import'),
+      })
+      .describe('retention periods in days; null keeps'),
     currentModelVersion: z.int().nullable(),
     createdAt: isoTime,
     updatedAt: isoTime,

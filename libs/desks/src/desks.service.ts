@@ -3,7 +3,17 @@ import { In, type EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { MembershipService } from '#auth';
-import { CategoryEntity, Database, DeskDirectory, DeskEntity, VerdictEntity, type DbInt } from '#database';
+import {
+  CategoryEntity,
+  Database,
+  DeskDirectory,
+  DeskEntity,
+  RETENTION_DAYS_MAX,
+  retentionOf,
+  VerdictEntity,
+  type DbInt,
+  type RetentionSettings,
+} from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { PredictionsService, type CalibrationStatus } from '#models';
 import { parseSeedTerm } from '#learning';
@@ -28,6 +38,7 @@ export interface DeskView {
   score: DeskEntity['score'];
   retrainEvery: number;
   retrainAfterSeconds: number;
+  retention: RetentionSettings;
   currentModelVersion: number | null;
   createdAt: Date;
   updatedAt: Date;
@@ -119,6 +130,52 @@ export function validateScreening(
   return { watch: categories.filter((c) => list.includes(c)), coverageTargets: targets };
 }
 
+/**
+ * Applies a change of retention periods to the current ones and checks the result: each period a whole number of days
+ * from 1 to {@link RETENTION_DAYS_MAX} or null (keep), each key of `categories` a category of the desk. Members not
+ * given stay; `categories` is replaced as a whole (a category mapped to null is left out). Every problem is named.
+ */
+export function validateRetention(
+  change: unknown,
+  current: RetentionSettings,
+  categories: string[],
+): RetentionSettings {
+  if (typeof change !== 'object' || change === null || Array.isArray(change))
+    throw new BadRequestException(['retention: expected an object with decidedAfterDays, categories, openAfterDays']);
+  const problems: string[] = [];
+  const days = (field: string, v: unknown): v is number | null => {
+    if (v === null || (Number.isInteger(v) && (v as number) >= 1 && (v as number) <= RETENTION_DAYS_MAX)) return true;
+    problems.push(
+      `${field}: a whole number of days from 1 to ${RETENTION_DAYS_MAX}, or null to keep; got ${JSON.stringify(v)}`,
+    );
+    return false;
+  };
+  const out = retentionOf(current);
+  for (const [k, v] of Object.entries(change as Record<string, unknown>)) {
+    if (k === 'decidedAfterDays' || k === 'openAfterDays') {
+      if (days(`retention.${k}`, v)) out[k] = v;
+    } else if (k === 'categories') {
+      if (v === null) {
+        out.categories = {};
+        continue;
+      }
+      if (typeof v !== 'object' || Array.isArray(v)) {
+        problems.push('retention.categories: expected an object mapping category names to days');
+        continue;
+      }
+      const map: Record<string, number> = {};
+      for (const [c, d] of Object.entries(v as Record<string, unknown>)) {
+        if (!categories.includes(c)) problems.push(`retention.categories.${c}: not a category of this desk`);
+        else if (days(`retention.categories.${c}`, d) && d !== null) map[c] = d;
+      }
+      // In the desk's category order, so the same periods always read the same.
+      out.categories = Object.fromEntries(categories.filter((c) => c in map).map((c) => [c, map[c]]));
+    } else problems.push(`retention.${k}: unknown; expected decidedAfterDays, categories or openAfterDays`);
+  }
+  if (problems.length) throw new BadRequestException(problems);
+  return out;
+}
+
 function checkCategoryNames(names: string[]): void {
   const reserved = names.filter((n) => RESERVED_CATEGORY_NAMES.includes(n.toLowerCase()));
   if (reserved.length)
@@ -177,6 +234,7 @@ export class DesksService {
           score: dto.score ?? 'lac',
           retrainEvery: dto.retrainEvery ?? 10,
           retrainAfterSeconds: dto.retrainAfterSeconds ?? 30,
+          retention: {},
           createdBy: actor.id ?? 0,
           createdAt: now,
           updatedAt: now,
@@ -293,6 +351,13 @@ export class DesksService {
       desk.watch = screening.watch;
       desk.coverageTargets = screening.coverageTargets;
       if (dto.confidence !== undefined) desk.confidence = dto.confidence;
+      // The period of a removed category goes with it.
+      const retention = retentionOf(desk.retention);
+      retention.categories = Object.fromEntries(
+        Object.entries(retention.categories).filter(([k]) => categoryNames.includes(k)),
+      );
+      desk.retention =
+        dto.retention === undefined ? retention : validateRetention(dto.retention, retention, categoryNames);
       if (dto.randomShare !== undefined) desk.randomShare = dto.randomShare;
       if (dto.screenShare !== undefined) desk.screenShare = dto.screenShare;
       checkShares(desk.randomShare, desk.screenShare);
@@ -360,6 +425,7 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
     score: d.score,
     retrainEvery: d.retrainEvery,
     retrainAfterSeconds: d.retrainAfterSeconds,
+    retention: retentionOf(d.retention),
     currentModelVersion: d.currentModelVersion,
     createdAt: d.createdAt,
     updatedAt: d.updatedAt,
@@ -384,5 +450,6 @@ function settingsOf(v: DeskView): Record<string, unknown> {
     score: v.score,
     retrainEvery: v.retrainEvery,
     retrainAfterSeconds: v.retrainAfterSeconds,
+    retention: v.retention,
   };
 }

@@ -1,4 +1,4 @@
-export { ModelsModule, ModelsCoreModule, ModelsWorkModule } from './models.module.js';
+export { ModelsModule, ModelsCoreModule, ModelsWorkModule, DeskFeaturesModule } from './models.module.js';
 export { DeskFeaturesService } from './desk-features.service.js';
 export { ModelStore, type LoadedModel } from './model-store.service.js';
 export { PredictionsService, type CalibrationStatus } from './predictions.service.js';

@@ -12,10 +12,14 @@ import { ScreenLaneService } from './screening/screen-lane.service.js';
 import { ScreeningService } from './screening/screening.service.js';
 import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
 
-const shared = [DeskFeaturesService, ModelStore, PredictionsService, RetrainScheduler, ScreenLaneService];
+/** The desk's document frequencies alone: needs the database only (no Redis), so operator commands can use it. */
+@Module({ providers: [DeskFeaturesService], exports: [DeskFeaturesService] })
+export class DeskFeaturesModule {}
+
+const shared = [ModelStore, PredictionsService, RetrainScheduler, ScreenLaneService];
 
 /** Reading models and predictions (and asking for retrains): no training here. */
-@Module({ providers: shared, exports: shared })
+@Module({ imports: [DeskFeaturesModule], providers: shared, exports: [DeskFeaturesModule, ...shared] })
 export class ModelsCoreModule {}
 
 /** The HTTP side: model versions, coverage, preview, items with predictions. */

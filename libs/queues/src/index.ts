@@ -14,6 +14,7 @@ export {
   type SimulateReviewerPayload,
   type WriteReportPayload,
   type CountTermsPayload,
+  type ApplyRetentionPayload,
 } from './queue-names.js';
 export { jobOptions } from './job-options.js';
 export { atMostEvery, createRedis, isRedisUnavailable, REQUEST_REDIS_TIMEOUT_MS } from './redis.js';

@@ -80,6 +80,9 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
       };
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
+    case JOBS.applyRetention:
+      // Each batch commits on its own and a retry judges the items again, so a failed run can simply run again.
+      return { ...vanish, jobId: 'apply-retention', attempts: 3, backoff: { type: 'exponential', delay: 60_000 } };
     case JOBS.simulateReviewer:
       // One run per desk at a time; kept a day so its final count stays readable. A retry (after a worker
       // crash or shutdown) goes on until the same end time.

@@ -35,6 +35,8 @@ export const JOBS = {
   writeReport: 'write-report',
   /** Count word co-occurrences over a desk's pool for its seed-term suggestions. */
   countTerms: 'count-terms',
+  /** Erase the items past their desk's retention periods (daily, on every desk). */
+  applyRetention: 'apply-retention',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -77,6 +79,8 @@ export interface CountTermsPayload {
   deskId: number;
 }
 
+export type ApplyRetentionPayload = Record<string, never>;
+
 export interface WriteReportPayload {
   deskId: number;
   version: number;
@@ -93,6 +97,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.simulateReviewer]: QUEUES.simulation,
   [JOBS.writeReport]: QUEUES.reports,
   [JOBS.countTerms]: QUEUES.maintenance,
+  [JOBS.applyRetention]: QUEUES.maintenance,
 };
 
 export interface JobPayloads {
@@ -105,4 +110,5 @@ export interface JobPayloads {
   [JOBS.simulateReviewer]: SimulateReviewerPayload;
   [JOBS.writeReport]: WriteReportPayload;
   [JOBS.countTerms]: CountTermsPayload;
+  [JOBS.applyRetention]: ApplyRetentionPayload;
 }

@@ -262,7 +262,7 @@ export class ErasureService {
   }
 
   /** Stores one erasure and its audit line (counts and reason, never a text, an external id or a source). */
-  private async record(
+  async record(
     m: EntityManager,
     actor: AuditActor,
     deskId: number,

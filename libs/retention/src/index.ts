@@ -1,4 +1,4 @@
-export { RetentionModule } from './retention.module.js';
+export { RetentionModule, RetentionCoreModule } from './retention.module.js';
 export {
   ErasureService,
   ERASURE_BATCH,
@@ -6,6 +6,8 @@ export {
   type ErasureRequest,
   type ErasureView,
 } from './erasure.service.js';
+export { RetentionService, type RetentionRun } from './retention.service.js';
+export { RetentionClock } from './retention-clock.js';
 export { EraseItemsDto, ERASURE_SELECTOR_MAX } from './erasure.dto.js';
-export { ErasureAnswer, ErasureListAnswer, OneErasureAnswer } from './retention.responses.js';
+export { ErasureAnswer, ErasureListAnswer, OneErasureAnswer, RetentionRunAnswer } from './retention.responses.js';
 export { subjectHash, newErasureSalt } from './subject-hash.js';

@@ -1,13 +1,21 @@
 import { Module } from '@nestjs/common';
-import { ModelsCoreModule } from '#models';
+import { DeskFeaturesModule } from '#models';
 import { ErasureService } from './erasure.service.js';
 import { ErasuresController } from './erasures.controller.js';
+import { RetentionClock } from './retention-clock.js';
+import { RetentionController } from './retention.controller.js';
+import { RetentionService } from './retention.service.js';
+
+const services = [ErasureService, RetentionService, RetentionClock];
+
+/** Erasure and retention without HTTP: the worker's daily run and the `cribra retention` command (database only). */
+@Module({ imports: [DeskFeaturesModule], providers: services, exports: services })
+export class RetentionCoreModule {}
 
 /** Erasure of items: on a supervisor's request, and (built on it) by the desks' retention periods. */
 @Module({
-  imports: [ModelsCoreModule],
-  controllers: [ErasuresController],
-  providers: [ErasureService],
-  exports: [ErasureService],
+  imports: [RetentionCoreModule],
+  controllers: [ErasuresController, RetentionController],
+  exports: [RetentionCoreModule],
 })
 export class RetentionModule {}

@@ -23,3 +23,26 @@ export const ErasureAnswer = named(
 
 export const OneErasureAnswer = named('OneErasure', z.strictObject({ erasure: ErasureAnswer }));
 export const ErasureListAnswer = named('ErasureList', z.strictObject({ erasures: z.array(ErasureAnswer) }));
+
+/** One desk's retention run: what went, or in a dry run what would go. */
+export const RetentionRunAnswer = named(
+  'RetentionRun',
+  z.strictObject({
+    run: z.strictObject({
+      deskId: z.int(),
+      dryRun: z.boolean(),
+      at: isoTime.describe('the time the periods were measured against'),
+      retention: z.strictObject({
+        decidedAfterDays: z.int().nullable(),
+        categories: z.record(z.string(), z.int()),
+        openAfterDays: z.int().nullable(),
+      }),
+      items: z.int().describe('items erased (in a dry run: that would be)'),
+      byCategory: z
+        .record(z.string(), z.int())
+        .describe('of those, decided items by label (settled, else decided); every category listed'),
+      unlabelled: z.int().describe('decided items without a label (abstentions only)'),
+      open: z.int().describe('items never decided, past openAfterDays'),
+    }),
+  }),
+);

@@ -9,6 +9,27 @@ export type Strategy = (typeof STRATEGIES)[number];
 export const SCORES = ['lac', 'aps'] as const;
 export type ScoreKind = (typeof SCORES)[number];
 
+/** A desk's retention periods in days (1–3650); null keeps. See the retention migration. */
+export interface RetentionSettings {
+  /** Decided items, counted from their last decision (verdict or settlement). */
+  decidedAfterDays: number | null;
+  /** Decided items labelled with this category, instead of `decidedAfterDays`. */
+  categories: Record<string, number>;
+  /** Items never decided, counted from their import. */
+  openAfterDays: number | null;
+}
+
+export const RETENTION_DAYS_MAX = 3650;
+
+/** A desk's stored retention periods with every member present (an absent period keeps). */
+export function retentionOf(stored: Partial<RetentionSettings> | null | undefined): RetentionSettings {
+  return {
+    decidedAfterDays: stored?.decidedAfterDays ?? null,
+    categories: { ...(stored?.categories ?? {}) },
+    openAfterDays: stored?.openAfterDays ?? null,
+  };
+}
+
 export class DeskEntity {
   id!: number;
   name!: string;
@@ -40,6 +61,8 @@ export class DeskEntity {
   confidence!: number | null;
   /** Key of the HMAC that hashes the external ids and sources of erased items; made at the desk's first erasure. */
   erasureSalt!: string | null;
+  /** Retention periods; `{}` in the database reads as no period. */
+  retention!: Partial<RetentionSettings>;
   createdBy!: number;
   createdAt!: Date;
   updatedAt!: Date;
@@ -70,6 +93,7 @@ export const deskSchema = (d: Dialect) => {
       coverageTargets: c.json('coverage_targets'),
       confidence: c.double('confidence', true),
       erasureSalt: c.varchar('erasure_salt', 64, true),
+      retention: c.json('retention'),
       createdBy: c.int('created_by'),
       createdAt: c.time('created_at'),
       updatedAt: c.time('updated_at'),
