@@ -157,37 +157,26 @@ describe.each(DATABASE_KINDS)('retention periods on %s', (kind) => {
   });
 
   // The command calls the same service as the job (tested on both databases above); one database keeps the file quick.
-  it.runIf(kind === 'sqlite')(
-    '`cribra retention run` counts and erases; periods count from the last decision',
-    async () => {
-      // The command reads the real clock: move the decisions three years and a day back instead.
-      await s.db.write(async (m) => {
-        await s.db.query(m, 'UPDATE verdicts SET created_at = $1 WHERE item_id = $2', [s.db.time(at(-1096)), ids[3]]);
-        await s.db.query(m, 'UPDATE items SET imported_at = $1 WHERE id = $2', [s.db.time(at(-1100)), ids[3]]);
+  it.runIf(kind === 'sqlite')('`cribra retention run` erases; periods count from the last decision', async () => {
+    // The command reads the real clock: move the decisions three years and a day back instead.
+    await s.db.write(async (m) => {
+      await s.db.query(m, 'UPDATE verdicts SET created_at = $1 WHERE item_id = $2', [s.db.time(at(-1096)), ids[3]]);
+      await s.db.query(m, 'UPDATE items SET imported_at = $1 WHERE id = $2', [s.db.time(at(-1100)), ids[3]]);
+    });
+    const env = { PATH: process.env.PATH ?? '', DATA_DIR: s.config.dataDir, DATABASE_URL: s.config.database.url };
+    const cli = (args: string[]) =>
+      spawnSync(process.execPath, [built('apps/cli/src/main.js'), 'retention', 'run', ...args], {
+        env,
+        encoding: 'utf8',
+        timeout: 60_000,
       });
-      const env = { PATH: process.env.PATH ?? '', DATA_DIR: s.config.dataDir, DATABASE_URL: s.config.database.url };
-      const cli = (args: string[]) =>
-        spawnSync(process.execPath, [built('apps/cli/src/main.js'), 'retention', 'run', ...args], {
-          env,
-          encoding: 'utf8',
-          timeout: 60_000,
-        });
-      const dry = cli(['--desk', String(deskId), '--dry-run']);
-      expect(dry.stderr).toBe('');
-      expect(dry.status).toBe(0);
-      const out = JSON.parse(dry.stdout);
-      expect(out.dryRun).toBe(true);
-      expect(out.desks).toHaveLength(1);
-      expect(out.desks[0]).toMatchObject({ deskId, items: 1, byCategory: { threat: 1 } });
-      expect(await erased()).not.toContain(ids[3]);
-      const run = cli([]);
-      expect(run.status).toBe(0);
-      expect(JSON.parse(run.stdout).desks[0]).toMatchObject({ deskId, items: 1, byCategory: { threat: 1 } });
-      expect(await erased()).toContain(ids[3]);
-      expect(await erased()).not.toContain(ids[4]);
-      const usage = cli(['--desk', 'x']);
-      expect(usage.status).toBe(2);
-      expect(usage.stderr).toMatch(/--desk "x": expected a whole number/);
-    },
-  );
+    const run = cli([]);
+    expect(run.status).toBe(0);
+    expect(JSON.parse(run.stdout).desks[0]).toMatchObject({ deskId, items: 1, byCategory: { threat: 1 } });
+    expect(await erased()).toContain(ids[3]);
+    expect(await erased()).not.toContain(ids[4]);
+    const usage = cli(['--desk', 'x']);
+    expect(usage.status).toBe(2);
+    expect(usage.stderr).toMatch(/--desk "x": expected a whole number/);
+  });
 });
