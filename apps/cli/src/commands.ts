@@ -8,6 +8,7 @@ import { defineGroup, type CliEntry, type CliGroup } from './cli-command.js';
 export const COMMANDS: Readonly<Record<string, () => Promise<CliEntry>>> = {
   start: async () => (await import('./start.command.js')).startCommand,
   user: async () => (await import('./user.command.js')).userCommands,
+  member: async () => (await import('./member.command.js')).memberCommands,
   migrate: async () => (await import('./migrate.command.js')).migrateCommand,
   rehearse: async () => (await import('./rehearse.command.js')).rehearse,
   retention: async () => (await import('./retention.command.js')).retentionCommands,
