@@ -105,6 +105,7 @@ const DESK_ROUTES: DeskRoute[] = [
   { method: 'GET', template: '/api/desks/{deskId}/agreement', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/disagreements', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/erasures', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/subject', allowed: [S, A], query: '?externalId=held-by-no-item' },
   {
     method: 'POST',
     template: '/api/desks/{deskId}/erasures',

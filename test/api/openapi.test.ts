@@ -375,6 +375,20 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
       retention: { decidedAfterDays: 3650, categories: { ok: 365 } },
     });
     await call('sup', 'POST', `/api/desks/${deskId}/retention/run?dryRun=1`);
+    const [scored] = await s.db.query<{ external_id: string }>(
+      null,
+      `SELECT i.external_id FROM items i JOIN predictions p ON p.item_id = i.id
+       WHERE i.desk_id = $1 AND i.erased_at IS NULL ORDER BY i.id LIMIT 1`,
+      [deskId],
+    );
+    const subject = await call('aud', 'GET', `/api/desks/${deskId}/subject?externalId=${scored.external_id}`);
+    expect(Object.keys(subject.body.items[0].predictions[0].probabilities).sort()).toEqual([
+      'harassment',
+      'ok',
+      'threat',
+    ]);
+    await call('sup', 'GET', `/api/desks/${deskId}/subject?source=board&download=1`);
+    await call('sup', 'GET', `/api/desks/${deskId}/subject`);
     // Errors carry the documented body too.
     await call('rev', 'GET', `/api/desks/${deskId}/models`);
     await call('aud', 'GET', '/api/desks/999999');

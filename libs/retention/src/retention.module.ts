@@ -1,10 +1,12 @@
 import { Module } from '@nestjs/common';
-import { DeskFeaturesModule } from '#models';
+import { DeskFeaturesModule, ModelsCoreModule } from '#models';
 import { ErasureService } from './erasure.service.js';
 import { ErasuresController } from './erasures.controller.js';
 import { RetentionClock } from './retention-clock.js';
 import { RetentionController } from './retention.controller.js';
 import { RetentionService } from './retention.service.js';
+import { SubjectController } from './subject.controller.js';
+import { SubjectService } from './subject.service.js';
 
 const services = [ErasureService, RetentionService, RetentionClock];
 
@@ -14,8 +16,9 @@ export class RetentionCoreModule {}
 
 /** Erasure of items: on a supervisor's request, and (built on it) by the desks' retention periods. */
 @Module({
-  imports: [RetentionCoreModule],
-  controllers: [ErasuresController, RetentionController],
+  imports: [RetentionCoreModule, ModelsCoreModule],
+  controllers: [ErasuresController, RetentionController, SubjectController],
+  providers: [SubjectService],
   exports: [RetentionCoreModule],
 })
 export class RetentionModule {}

@@ -46,3 +46,53 @@ export const RetentionRunAnswer = named(
     }),
   }),
 );
+
+/** What the desk holds about one external id or source. */
+export const SubjectAnswer = named(
+  'Subject',
+  z.strictObject({
+    deskId: z.int(),
+    selector: z.strictObject({ externalId: z.string().optional(), source: z.string().optional() }),
+    at: isoTime,
+    items: z.array(
+      z.strictObject({
+        id: z.int(),
+        externalId: z.string().nullable().describe('null once erased (the tombstone’s keyed hash matched)'),
+        source: z.string().nullable(),
+        text: z.string().nullable().describe('null once erased'),
+        meta: z.record(z.string(), z.unknown()).nullable(),
+        postedAt: isoTime.nullable(),
+        importedAt: isoTime,
+        state: z.string(),
+        erasedAt: isoTime.nullable(),
+        erasedBy: z.enum(ERASED_BY).nullable(),
+        verdicts: z.array(
+          z.strictObject({
+            id: z.int(),
+            reviewer: z.string(),
+            category: z.string().nullable(),
+            abstain: z.boolean(),
+            draw: z.string(),
+            note: z.string().nullable(),
+            modelVersion: z.int().nullable(),
+            shownSet: z.array(z.string()).nullable(),
+            createdAt: isoTime,
+            undoneAt: isoTime.nullable(),
+          }),
+        ),
+        settlements: z.array(
+          z.strictObject({
+            id: z.int(),
+            category: z.string(),
+            reason: z.string(),
+            settledBy: z.string(),
+            createdAt: isoTime,
+          }),
+        ),
+        predictions: z.array(
+          z.strictObject({ modelVersion: z.int(), probabilities: z.record(z.string(), z.number()) }),
+        ),
+      }),
+    ),
+  }),
+);
