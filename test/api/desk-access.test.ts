@@ -119,6 +119,9 @@ const DESK_ROUTES: DeskRoute[] = [
     allowed: [S],
     body: () => ({ category: 'ok', reason: 'desk access check' }),
   },
+  { method: 'GET', template: '/api/desks/{deskId}/urgent', allowed: [S, A] },
+  // The set-up's item was never marked urgent: a supervisor gets the service's 404, which is not the guard's.
+  { method: 'POST', template: '/api/items/{itemId}/acknowledge', allowed: [S] },
   { method: 'POST', template: '/api/verdicts/{verdictId}/undo', allowed: [R] },
   { method: 'GET', template: '/api/desks/{deskId}/trail.csv', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/trail.ndjson', allowed: [S, A] },

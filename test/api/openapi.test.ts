@@ -351,6 +351,18 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('aud', 'GET', `/api/desks/${deskId}/screening`);
     await call('sup', 'PATCH', `/api/desks/${deskId}`, { coverageTarget: 0.85 });
     await call('aud', 'GET', `/api/desks/${deskId}/agreement`);
+    const urgent = await call('rev', 'POST', `/api/desks/${deskId}/leases`);
+    expect(urgent.status).toBe(201);
+    await call('rev', 'POST', `/api/desks/${deskId}/verdicts`, {
+      leaseId: urgent.body.lease.id,
+      itemId: urgent.body.item.id,
+      category: 'threat',
+      clientId: 'urgent-in-the-document',
+      urgent: true,
+      urgentReason: 'names a place and a time',
+    });
+    await call('aud', 'GET', `/api/desks/${deskId}/urgent`);
+    await call('sup', 'POST', `/api/items/${urgent.body.item.id}/acknowledge`);
     const live = (await s.call(tokens.aud, 'GET', `/api/desks/${deskId}/verdicts?limit=20`)).body.verdicts.find(
       (v: { undoneAt: string | null }) => v.undoneAt === null,
     );

@@ -53,6 +53,9 @@ export type PredictedItems = Schemas['PredictedItems'];
 export type TermSuggestions = Schemas['TermSuggestions'];
 export type TermSuggestion = TermSuggestions['similar'][number];
 export type TermDecision = Schemas['TermDecision'];
+export type UrgentList = Schemas['UrgentList'];
+export type UrgentItem = UrgentList['items'][number];
+export type Acknowledged = Schemas['Acknowledged'];
 
 export class ApiError extends Error {
   constructor(

@@ -9,6 +9,7 @@ import { ModelsWorkModule } from '#models';
 import { QueuesModule } from '#queues';
 import { ReportsWorkModule } from '#reports';
 import { RetentionCoreModule } from '#retention';
+import { EscalationWorkModule } from '#verdicts';
 import { VocabularyWorkModule } from '#vocabulary';
 import { JOB_HANDLERS, PROCESSORS, WorkersService } from './workers.service.js';
 import { pauseHook } from './pause-hook.js';
@@ -32,6 +33,7 @@ export class WorkerModule {
         ReportsWorkModule,
         VocabularyWorkModule,
         RetentionCoreModule,
+        EscalationWorkModule,
       ],
       providers: [
         ...PROCESSORS,

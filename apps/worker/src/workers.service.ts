@@ -28,6 +28,7 @@ import {
 import { SimulateReviewerProcessor } from './simulation.processor.js';
 import { WriteReportProcessor } from './report.processor.js';
 import { ApplyRetentionProcessor } from './retention.processor.js';
+import { NotifyUrgentProcessor } from './urgent.processor.js';
 
 export const JOB_HANDLERS = Symbol('JOB_HANDLERS');
 /** Simulated reviewers mostly wait (their pauses), so one worker runs several desks' at once. */
@@ -153,4 +154,5 @@ export const PROCESSORS = [
   WriteReportProcessor,
   CountTermsProcessor,
   ApplyRetentionProcessor,
+  NotifyUrgentProcessor,
 ];

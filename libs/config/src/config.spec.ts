@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ConfigError, parseConfig } from './config.js';
+import { ConfigError, configToEnv, parseConfig } from './config.js';
 
 describe('parseConfig', () => {
   it('gives the documented defaults for an empty environment', () => {
@@ -21,6 +21,17 @@ describe('parseConfig', () => {
     expect(parseConfig({ DEMO: 'off' }).demo).toBe(false);
     expect(parseConfig({ DEMO: 'on' }).demo).toBe(true);
     expect(() => parseConfig({ DEMO: 'later' })).toThrow(/DEMO="later": expected on\/off/);
+  });
+
+  it('reads URGENT_WEBHOOK_URL as an http(s) URL, off by default, and passes it on to child processes', () => {
+    expect(parseConfig({}).urgentWebhookUrl).toBeNull();
+    const c = parseConfig({ URGENT_WEBHOOK_URL: 'https://alerts.example/cribra' });
+    expect(c.urgentWebhookUrl).toBe('https://alerts.example/cribra');
+    expect(configToEnv(c).URGENT_WEBHOOK_URL).toBe('https://alerts.example/cribra');
+    expect(() => parseConfig({ URGENT_WEBHOOK_URL: 'ftp://alerts.example' })).toThrow(
+      /URGENT_WEBHOOK_URL: expected an http:\/\/ or https:\/\/ URL/,
+    );
+    expect(() => parseConfig({ URGENT_WEBHOOK_URL: 'not a url' })).toThrow(/URGENT_WEBHOOK_URL/);
   });
 
   it('selects PostgreSQL from a postgres:// URL', () => {

@@ -64,6 +64,8 @@ export interface AppConfig {
    * `host`; `null`: no health server. The launcher gives its N workers this port and the N − 1 after it.
    */
   readonly workerHealthPort: number | null;
+  /** Where an urgent escalation is announced (a POST with ids only, never a text), retried from a queue; null: nowhere. */
+  readonly urgentWebhookUrl: string | null;
   /** Test hook for crash tests: the worker stops at this point of a retrain (and waits to be killed). */
   readonly testPauseAt: 'training' | 'scoring' | null;
 }
@@ -109,6 +111,7 @@ export const CONFIG_VARIABLES = [
   'METRICS_TOKEN',
   'METRICS_PORT',
   'WORKER_HEALTH_PORT',
+  'URGENT_WEBHOOK_URL',
   'CRIBRA_TEST_PAUSE',
 ] as const;
 
@@ -201,6 +204,16 @@ export function parseConfig(
   if (!['text', 'json'].includes(logFormat))
     problems.push(`LOG_FORMAT=${JSON.stringify(env.LOG_FORMAT)}: expected text or json`);
 
+  const urgentWebhookUrl = str('URGENT_WEBHOOK_URL') ?? null;
+  if (urgentWebhookUrl !== null) {
+    let ok: boolean;
+    try {
+      ok = ['http:', 'https:'].includes(new URL(urgentWebhookUrl).protocol);
+    } catch {
+      ok = false;
+    }
+    if (!ok) problems.push(`URGENT_WEBHOOK_URL: expected an http:// or https:// URL`);
+  }
   const metricsToken = str('METRICS_TOKEN') ?? null;
   if (metricsToken !== null && metricsToken.length < 16)
     problems.push('METRICS_TOKEN: use at least 16 characters (e.g. openssl rand -hex 24)');
@@ -247,6 +260,7 @@ export function parseConfig(
     restartWindowMinutes: int('RESTART_WINDOW_MINUTES', 10, 1, 1440),
     metrics: { token: metricsToken, port: metricsPort },
     workerHealthPort,
+    urgentWebhookUrl,
     testPauseAt: pause as AppConfig['testPauseAt'],
   };
   if (problems.length > 0) throw new ConfigError(problems);
@@ -297,6 +311,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     ...(config.metrics.token ? { METRICS_TOKEN: config.metrics.token } : {}),
     ...(config.metrics.port ? { METRICS_PORT: String(config.metrics.port) } : {}),
     ...(config.workerHealthPort ? { WORKER_HEALTH_PORT: String(config.workerHealthPort) } : {}),
+    ...(config.urgentWebhookUrl ? { URGENT_WEBHOOK_URL: config.urgentWebhookUrl } : {}),
     ...(config.testPauseAt ? { CRIBRA_TEST_PAUSE: config.testPauseAt } : {}),
   };
 }

@@ -14,6 +14,7 @@ import { modelVersionSchema } from './entities/model-version.entity.js';
 import { modelReportSchema } from './entities/model-report.entity.js';
 import { deskMemberSchema } from './entities/desk-member.entity.js';
 import { erasureSchema } from './entities/erasure.entity.js';
+import { escalationSchema } from './entities/escalation.entity.js';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation.js';
 import { LearningLoop1764700000000 } from './migrations/1764700000000-learning-loop.js';
 import { Agreement1764800000000 } from './migrations/1764800000000-agreement.js';
@@ -24,6 +25,7 @@ import { TokenExpiry1766200000000 } from './migrations/1766200000000-token-expir
 import { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
 import { ScreeningSettings1766400000000 } from './migrations/1766400000000-screening-settings.js';
 import { ScreenLane1766410000000 } from './migrations/1766410000000-screen-lane.js';
+import { Escalations1766420000000 } from './migrations/1766420000000-escalations.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
@@ -44,6 +46,7 @@ export function entitySchemas(dialect: Dialect) {
     modelReportSchema,
     deskMemberSchema,
     erasureSchema,
+    escalationSchema,
   ].map((f) => f(dialect));
 }
 
@@ -59,6 +62,7 @@ export const MIGRATIONS = [
   DeskMembers1766210000000,
   ScreeningSettings1766400000000,
   ScreenLane1766410000000,
+  Escalations1766420000000,
   TermSuggestions1766500000000,
   Erasure1766700000000,
   Retention1766700000001,

@@ -24,6 +24,7 @@ export { CategoryEntity } from './entities/category.entity.js';
 export { ImportEntity, IMPORT_STATES, type ImportState, type ImportRowError } from './entities/import.entity.js';
 export { ItemEntity, ITEM_STATES, ERASED_BY, type ItemState, type ErasedBy } from './entities/item.entity.js';
 export { TOMBSTONE_TEXT, ERASURE_REASON_MAX } from './migrations/1766700000000-erasure.js';
+export { URGENT_REASON_MAX } from './migrations/1766420000000-escalations.js';
 export {
   LeaseEntity,
   DRAW_KINDS,
@@ -43,4 +44,5 @@ export {
 export { dbErrorCode, isUniqueViolation } from './errors.js';
 export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
 export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';
+export { EscalationEntity } from './entities/escalation.entity.js';
 export { ErasureEntity, type ErasureAsked, type ErasureOutcome } from './entities/erasure.entity.js';

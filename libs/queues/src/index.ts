@@ -15,6 +15,7 @@ export {
   type WriteReportPayload,
   type CountTermsPayload,
   type ApplyRetentionPayload,
+  type NotifyUrgentPayload,
 } from './queue-names.js';
 export { jobOptions } from './job-options.js';
 export { atMostEvery, createRedis, isRedisUnavailable, REQUEST_REDIS_TIMEOUT_MS } from './redis.js';

@@ -78,6 +78,14 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
         attempts: 3,
         backoff: { type: 'exponential', delay: 2000 },
       };
+    case JOBS.notifyUrgent:
+      // One delivery per escalation; a receiver that is down gets it again, 1 s, 2 s, 4 s… apart (about 4 minutes in all).
+      return {
+        ...keep,
+        jobId: `urgent-${(payload as JobPayloads['notify-urgent']).escalationId}`,
+        attempts: 8,
+        backoff: { type: 'exponential', delay: 1000 },
+      };
     case JOBS.sweepDesks:
       return { ...vanish, jobId: 'sweep-desks', attempts: 1 };
     case JOBS.applyRetention:

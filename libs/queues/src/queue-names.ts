@@ -13,6 +13,8 @@ export const QUEUES = {
   simulation: 'simulation',
   /** Oversight reports of published model versions. */
   reports: 'reports',
+  /** Announcements to outside systems (the urgent webhook): their own queue, so a slow receiver holds up nothing else. */
+  notifications: 'notifications',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -37,6 +39,8 @@ export const JOBS = {
   countTerms: 'count-terms',
   /** Erase the items past their desk's retention periods (daily, on every desk). */
   applyRetention: 'apply-retention',
+  /** Announce an urgent escalation to the configured webhook (ids only). */
+  notifyUrgent: 'notify-urgent',
 } as const;
 export type JobName = (typeof JOBS)[keyof typeof JOBS];
 
@@ -80,6 +84,15 @@ export interface CountTermsPayload {
 }
 
 export type ApplyRetentionPayload = Record<string, never>;
+/** Ids only: the receiver asks Cribra for anything more, with its own credentials. */
+export interface NotifyUrgentPayload {
+  escalationId: number;
+  deskId: number;
+  itemId: number;
+  verdictId: number;
+  /** ISO 8601. */
+  raisedAt: string;
+}
 
 export interface WriteReportPayload {
   deskId: number;
@@ -98,6 +111,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.writeReport]: QUEUES.reports,
   [JOBS.countTerms]: QUEUES.maintenance,
   [JOBS.applyRetention]: QUEUES.maintenance,
+  [JOBS.notifyUrgent]: QUEUES.notifications,
 };
 
 export interface JobPayloads {
@@ -111,4 +125,5 @@ export interface JobPayloads {
   [JOBS.writeReport]: WriteReportPayload;
   [JOBS.countTerms]: CountTermsPayload;
   [JOBS.applyRetention]: ApplyRetentionPayload;
+  [JOBS.notifyUrgent]: NotifyUrgentPayload;
 }

@@ -15,3 +15,5 @@ export { SettleItemDto } from './settling/settle.dto.js';
 export { TrailService, TRAIL_PAGE_SIZE } from './trail/trail.service.js';
 export { TRAIL_COLUMNS, type TrailRow } from './trail/trail-format.js';
 export { AgreementAnswer } from './verdict.responses.js';
+export { EscalationsService, type UrgentItem } from './escalation/escalations.service.js';
+export { EscalationWorkModule, UrgentNotifier, WebhookDeliveryError } from './escalation/urgent-notifier.service.js';

@@ -1,5 +1,6 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
-import { Equals, IsInt, IsOptional, IsString, IsUUID, Length, Max, Min } from 'class-validator';
+import { Equals, IsBoolean, IsInt, IsOptional, IsString, IsUUID, Length, Max, Min } from 'class-validator';
+import { URGENT_REASON_MAX } from '#database';
 
 export class CreateVerdictDto {
   @ApiProperty({ format: 'uuid' }) @IsUUID() leaseId!: string;
@@ -21,4 +22,18 @@ export class CreateVerdictDto {
   clientId!: string;
   @ApiPropertyOptional({ minimum: 0 }) @IsOptional() @IsInt() @Min(0) @Max(7 * 24 * 3600 * 1000) elapsedMs?: number;
   @ApiPropertyOptional({ maxLength: 2000 }) @IsOptional() @IsString() @Length(0, 2000) note?: string;
+  @ApiPropertyOptional({
+    description: 'true escalates the item: it waits at the top of the supervisor’s overview until acknowledged',
+  })
+  @IsOptional()
+  @IsBoolean()
+  urgent?: boolean;
+  @ApiPropertyOptional({
+    minLength: 1,
+    maxLength: URGENT_REASON_MAX,
+    description: 'Why it is urgent, in a few words: required with urgent: true, refused without it',
+  })
+  @IsOptional()
+  @IsString()
+  urgentReason?: string;
 }

@@ -3,6 +3,8 @@ import { LeasesModule } from '#leases';
 import { ModelsCoreModule } from '#models';
 import { AgreementController } from './agreement/agreement.controller.js';
 import { AgreementService } from './agreement/agreement.service.js';
+import { EscalationsController } from './escalation/escalations.controller.js';
+import { EscalationsService } from './escalation/escalations.service.js';
 import { DisagreementsService } from './settling/disagreements.service.js';
 import { SettlementsService } from './settling/settlements.service.js';
 import { SettlingController } from './settling/settling.controller.js';
@@ -14,7 +16,7 @@ import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
 
 @Module({
   imports: [ModelsCoreModule, LeasesModule],
-  controllers: [VerdictsController, AgreementController, SettlingController, TrailController],
+  controllers: [VerdictsController, AgreementController, SettlingController, TrailController, EscalationsController],
   providers: [
     VerdictsService,
     ProgressService,
@@ -22,6 +24,7 @@ import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
     SettlementsService,
     DisagreementsService,
     TrailService,
+    EscalationsService,
     { provide: SECOND_OPINION_RANDOM, useValue: Math.random },
   ],
   exports: [VerdictsService, ProgressService, AgreementService, SettlementsService, DisagreementsService],

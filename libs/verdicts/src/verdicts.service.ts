@@ -4,6 +4,7 @@ import {
   ForbiddenException,
   Inject,
   Injectable,
+  Logger,
   NotFoundException,
 } from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -14,6 +15,7 @@ import {
   DeskDirectory,
   type DbInt,
   isUniqueViolation,
+  URGENT_REASON_MAX,
   VerdictEntity,
   type DrawKind,
   type ShownPrediction,
@@ -22,6 +24,26 @@ import { LeasesService, type LeaseGrant } from '#leases';
 import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
 import type { TrailFilter } from './trail/trail.service.js';
+import { EscalationsService } from './escalation/escalations.service.js';
+
+/** The trimmed reason of an urgent verdict, or null for a verdict that is not urgent; refuses what does not fit. */
+export function checkUrgent(dto: Pick<CreateVerdictDto, 'urgent' | 'urgentReason'>): string | null {
+  const reason = dto.urgentReason?.trim();
+  if (dto.urgent !== true) {
+    if (dto.urgentReason !== undefined)
+      throw new BadRequestException('urgentReason: only with urgent: true (the reason of an escalation)');
+    return null;
+  }
+  if (reason === undefined || reason === '')
+    throw new BadRequestException(
+      `urgentReason: required with urgent: true, a few words (1 to ${URGENT_REASON_MAX} characters) saying why`,
+    );
+  if (reason.length > URGENT_REASON_MAX)
+    throw new BadRequestException(
+      `urgentReason: at most ${URGENT_REASON_MAX} characters (got ${reason.length}); say why in a few words and use the note for more`,
+    );
+  return reason;
+}
 
 /** A verdict as the API shows it. */
 export interface VerdictView {
@@ -86,6 +108,8 @@ export const SECOND_OPINION_RANDOM = Symbol('SECOND_OPINION_RANDOM');
 /** Receives verdicts: idempotent by client id, never lost, with what was shown at the time. */
 @Injectable()
 export class VerdictsService {
+  private readonly logger = new Logger('Verdicts');
+
   constructor(
     @Inject(Database) private readonly db: Database,
     @Inject(AuditService) private readonly audit: AuditService,
@@ -94,6 +118,7 @@ export class VerdictsService {
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
     @Inject(LeasesService) private readonly leases: LeasesService,
     @Inject(SECOND_OPINION_RANDOM) private readonly random: () => number,
+    @Inject(EscalationsService) private readonly escalations: EscalationsService,
   ) {}
 
   /**
@@ -110,6 +135,7 @@ export class VerdictsService {
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
       throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
     }
+    const urgentReason = checkUrgent(dto);
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     let categoryId: number | null = null;
@@ -279,10 +305,28 @@ export class VerdictsService {
             ...(simulated ? { simulated: true } : {}),
           },
         });
-        return { created: { id: verdictId, ...view } };
+        const raised =
+          urgentReason === null
+            ? null
+            : await this.escalations.raise(m, reviewer, {
+                deskId,
+                itemId: dto.itemId,
+                verdictId,
+                reason: urgentReason,
+                at: now,
+              });
+        return { created: { id: verdictId, ...view }, raised };
       });
       if (result.replayOf !== undefined) return { verdict: await this.view(result.replayOf), replayed: true };
       this.retrain.nudge(deskId, 'verdict');
+      if (result.raised) {
+        // The escalation is stored and shows on the overview; only the outside announcement would be missing.
+        await this.escalations.announce(result.raised).catch((e: unknown) => {
+          this.logger.error(
+            `urgent escalation ${result.raised!.escalationId}: not queued for the webhook: ${String(e)}`,
+          );
+        });
+      }
       return { verdict: result.created, replayed: false };
     } catch (e) {
       if (isUniqueViolation(e)) {

@@ -1,5 +1,14 @@
 import { useState } from 'preact/hooks';
-import { api, post, type Coverage, type Desk, type ModelList, type Progress, type SimulationStatus } from '../api';
+import {
+  api,
+  post,
+  type Coverage,
+  type Desk,
+  type ModelList,
+  type Progress,
+  type SimulationStatus,
+  type UrgentList,
+} from '../api';
 import { useData, useInterval, type PageProps } from '../app';
 import { BarChart, LineChart, niceTicks } from '../components/charts';
 import { CoverageAlert } from '../components/coverage-alert';
@@ -37,6 +46,9 @@ export function DeskOverview({ params }: PageProps) {
         <p class="error" role="alert">
           {progressError}
         </p>
+      )}
+      {desk && (desk.role === 'supervisor' || desk.role === 'auditor') && (
+        <UrgentItems deskId={deskId} canAcknowledge={desk.role === 'supervisor'} />
       )}
       <CoverageAlert deskId={deskId} coverage={coverage} />
       {progress && (
@@ -181,6 +193,62 @@ export function DeskOverview({ params }: PageProps) {
           </li>
         </ul>
       </section>
+    </section>
+  );
+}
+
+/**
+ * Items reviewers marked urgent and no supervisor has acknowledged yet, at the top of the overview (looked at every
+ * 5 seconds); a supervisor acknowledges each once it is in hand.
+ */
+function UrgentItems({ deskId, canAcknowledge }: { deskId: string; canAcknowledge: boolean }) {
+  const [urgent, error, reload] = useData<UrgentList>(`/desks/${deskId}/urgent`);
+  const [actionError, setActionError] = useState<string | null>(null);
+  useInterval(reload, 5000);
+  const acknowledge = async (itemId: number) => {
+    setActionError(null);
+    try {
+      await post(`/items/${itemId}/acknowledge`);
+    } catch (e) {
+      setActionError((e as Error).message);
+    }
+    reload();
+  };
+  if (error) return <p class="error">{error}</p>;
+  if (!urgent || urgent.waiting === 0) return null;
+  return (
+    <section class="urgent" aria-labelledby="urgent-title" role="region">
+      <h2 id="urgent-title">
+        Urgent: {urgent.waiting} {urgent.waiting === 1 ? 'item waits' : 'items wait'} for a supervisor
+      </h2>
+      <p class="muted">
+        A reviewer marked these urgent with their verdict. Act under your organisation's protocol; where a life may be
+        at risk, contact the emergency services. Acknowledging records that a supervisor has it in hand.
+      </p>
+      {actionError && (
+        <p class="error" role="alert">
+          {actionError}
+        </p>
+      )}
+      <ul class="urgent-list">
+        {urgent.items.map((u) => (
+          <li data-item-id={u.itemId}>
+            <p class="urgent-reason">
+              <strong>{u.reason}</strong>{' '}
+              <span class="muted">
+                — {u.raisedBy}, {when(u.raisedAt)}, verdict “{u.category ?? 'abstain'}”, item {u.itemId}
+                {u.externalId ? ` (ref ${u.externalId})` : ''}
+              </span>
+            </p>
+            <blockquote class="urgent-text">{u.erased ? 'The text of this item was erased.' : u.text}</blockquote>
+            {canAcknowledge && (
+              <button type="button" class="primary" onClick={() => void acknowledge(u.itemId)}>
+                Acknowledge item {u.itemId}
+              </button>
+            )}
+          </li>
+        ))}
+      </ul>
     </section>
   );
 }

@@ -31,6 +31,8 @@ interface Pending {
   grant: LeaseGrant;
   elapsedMs: number;
   note: string;
+  /** The reason of an urgent verdict; null when it is not urgent. */
+  urgentReason: string | null;
 }
 interface Last {
   verdict: Verdict;
@@ -78,6 +80,10 @@ export function QueuePage({ params }: PageProps) {
   const [now, setNow] = useState(Date.now());
   const shownAt = useRef(performance.now());
   const noteRef = useRef<HTMLTextAreaElement>(null);
+  // Urgent: `e` opens the short reason field; the verdict key then sends the verdict as urgent.
+  const [urgent, setUrgent] = useState(false);
+  const [urgentReason, setUrgentReason] = useState('');
+  const urgentRef = useRef<HTMLInputElement>(null);
   const [help, setHelp] = useState(false);
   const [today, setToday] = useState<number | null>(null);
 
@@ -93,6 +99,8 @@ export function QueuePage({ params }: PageProps) {
     setGrant(g);
     setSelected(null);
     setNote('');
+    setUrgent(false);
+    setUrgentReason('');
     shownAt.current = performance.now();
     setEmpty(g ? null : emptyReason(why ?? null));
   };
@@ -139,6 +147,7 @@ export function QueuePage({ params }: PageProps) {
       clientId: p.clientId,
       elapsedMs: p.elapsedMs,
       ...(p.note.trim() ? { note: p.note.trim() } : {}),
+      ...(p.urgentReason !== null ? { urgent: true, urgentReason: p.urgentReason } : {}),
       ...p.choice,
     };
     const submit = async (): Promise<Verdict> => {
@@ -157,7 +166,11 @@ export function QueuePage({ params }: PageProps) {
     ]);
     if (verdict.status === 'fulfilled') {
       setLast({ verdict: verdict.value, label: label(p.choice), at: Date.now() });
-      setNotice(null);
+      setNotice(
+        p.urgentReason !== null
+          ? `Item ${p.grant.item.id} is marked urgent: it waits at the top of the supervisors' overview until one of them acknowledges it.`
+          : null,
+      );
       setToday((n) => (n === null ? n : n + 1));
     } else {
       setFailed(p);
@@ -180,6 +193,11 @@ export function QueuePage({ params }: PageProps) {
 
   function decide(choice: Choice): void {
     if (!grant || sending.current) return;
+    if (urgent && urgentReason.trim() === '') {
+      setError('An urgent verdict needs a short reason: type it in the urgent field, then press the verdict key.');
+      urgentRef.current?.focus();
+      return;
+    }
     if (confirm && (selected === null || label(selected) !== label(choice))) {
       setSelected(choice);
       return;
@@ -190,7 +208,20 @@ export function QueuePage({ params }: PageProps) {
       grant,
       elapsedMs: Math.round(performance.now() - shownAt.current),
       note,
+      urgentReason: urgent ? urgentReason.trim() : null,
     });
+  }
+
+  /** `e`: opens the urgent field (or, when it is open and empty, closes it). */
+  function toggleUrgent(): void {
+    if (!grant) return;
+    if (urgent && urgentReason.trim() === '') {
+      setUrgent(false);
+      return;
+    }
+    setUrgent(true);
+    // The field exists after this render.
+    setTimeout(() => urgentRef.current?.focus(), 0);
   }
 
   /**
@@ -288,6 +319,7 @@ export function QueuePage({ params }: PageProps) {
     const command: Partial<Record<string, () => void>> = {
       u: () => void undo(),
       n: () => noteRef.current?.focus(),
+      e: () => toggleUrgent(),
       h: () => void handBack(),
       '?': () => setHelp(true),
     };
@@ -366,7 +398,7 @@ export function QueuePage({ params }: PageProps) {
                 <kbd>{k.key}</kbd> {k.text}{' '}
               </span>
             ))}
-            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note · <kbd>h</kbd> hand back
+            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note · <kbd>e</kbd> urgent · <kbd>h</kbd> hand back
             {confirm ? (
               <>
                 {' '}
@@ -416,6 +448,39 @@ export function QueuePage({ params }: PageProps) {
               <p class="confirm-hint" role="status">
                 Press <kbd>Enter</kbd> to confirm “{label(selected)}”, or another key to change.
               </p>
+            )}
+            {urgent && (
+              <label class="urgent-field">
+                <span>
+                  <strong>Urgent</strong>: say why in a few words (<kbd>Enter</kbd> or <kbd>Esc</kbd> leaves the field),
+                  then press the verdict key. The item goes to the top of the supervisors' overview.
+                </span>
+                <input
+                  ref={urgentRef}
+                  type="text"
+                  maxLength={280}
+                  required
+                  value={urgentReason}
+                  aria-label="Why it is urgent"
+                  onInput={(e) => setUrgentReason(e.currentTarget.value)}
+                  onKeyDown={(e) => {
+                    if (e.key === 'Enter') {
+                      e.preventDefault();
+                      e.currentTarget.blur();
+                    }
+                  }}
+                />
+                <button
+                  type="button"
+                  class="quiet"
+                  onClick={() => {
+                    setUrgent(false);
+                    setUrgentReason('');
+                  }}
+                >
+                  Not urgent after all
+                </button>
+              </label>
             )}
             <label class="note">
               Note (optional, <kbd>n</kbd>; <kbd>Esc</kbd> leaves)
@@ -501,6 +566,7 @@ function KeyHelp({
     ['Esc', 'leave the note; drop a chosen verdict before it is confirmed; close this list'],
     ['u', 'undo your last verdict: its item comes back to you to decide again'],
     ['n', 'write a note with the verdict'],
+    ['e', 'mark the item urgent: type a short reason, leave the field, then press the verdict key'],
     ['h', 'hand the item back to the queue for another reviewer'],
     ['?', 'show or hide this list'],
   ];
