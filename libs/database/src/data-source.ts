@@ -1,6 +1,7 @@
 import { DataSource, type DataSourceOptions } from 'typeorm';
 import type { DatabaseConfig } from '#config';
 import type { Dialect } from './dialect.js';
+import { withMigrationLock } from './migration-lock.js';
 import { auditEventSchema } from './entities/audit-event.entity.js';
 import { categorySchema } from './entities/category.entity.js';
 import { credentialSchema } from './entities/credential.entity.js';
@@ -94,13 +95,22 @@ export function createDataSource(db: DatabaseConfig, options: { poolSize?: numbe
   return new DataSource(opts);
 }
 
-/** Connects and brings the schema up to date. */
+/**
+ * Connects and brings the schema up to date, under the migration lock ({@link withMigrationLock}): of several
+ * processes opening the database at once, one runs the pending migrations and the others wait. `onWait` hears when
+ * this one has to wait (default: a line on stderr).
+ */
 export async function openDatabase(
   db: DatabaseConfig,
-  options: { poolSize?: number; migrate?: boolean } = {},
+  options: { poolSize?: number; migrate?: boolean; onWait?: (message: string) => void } = {},
 ): Promise<DataSource> {
   const ds = createDataSource(db, options);
   await ds.initialize();
-  if (options.migrate !== false) await ds.runMigrations({ transaction: 'each' });
+  if (options.migrate !== false)
+    await withMigrationLock(
+      ds,
+      () => ds.runMigrations({ transaction: 'each' }),
+      options.onWait ?? ((message) => process.stderr.write(`${message}\n`)),
+    );
   return ds;
 }

@@ -1,4 +1,4 @@
-import { Global, Inject, Module, type DynamicModule, type OnApplicationShutdown } from '@nestjs/common';
+import { Global, Inject, Logger, Module, type DynamicModule, type OnApplicationShutdown } from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { openDatabase } from './data-source.js';
 import { Database } from './database.js';
@@ -17,7 +17,13 @@ export class DatabaseModule implements OnApplicationShutdown {
         {
           provide: Database,
           inject: [APP_CONFIG],
-          useFactory: async (config: AppConfig) => new Database(await openDatabase(config.database, options)),
+          useFactory: async (config: AppConfig) =>
+            new Database(
+              await openDatabase(config.database, {
+                ...options,
+                onWait: (message) => new Logger('Database').log(message),
+              }),
+            ),
         },
         DeskDirectory,
       ],

@@ -46,3 +46,4 @@ export { SETTLEMENT_REASON_MAX } from './migrations/1764800000000-agreement.js';
 export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/model-report.entity.js';
 export { EscalationEntity } from './entities/escalation.entity.js';
 export { ErasureEntity, type ErasureAsked, type ErasureOutcome } from './entities/erasure.entity.js';
+export { withMigrationLock, MIGRATION_LOCK_KEY, MIGRATION_WAIT_MESSAGE } from './migration-lock.js';
