@@ -56,6 +56,12 @@ export type TermDecision = Schemas['TermDecision'];
 export type UrgentList = Schemas['UrgentList'];
 export type UrgentItem = UrgentList['items'][number];
 export type Acknowledged = Schemas['Acknowledged'];
+export type User = Schemas['User'];
+export type UserList = Schemas['UserList'];
+export type NewUser = Schemas['NewUser'];
+export type Member = Schemas['Member'];
+export type MemberList = Schemas['MemberList'];
+export type MemberRole = Member['role'];
 
 export class ApiError extends Error {
   constructor(
@@ -101,6 +107,8 @@ export async function api<T>(method: string, path: string, body?: unknown): Prom
 export const get = <T>(path: string) => api<T>('GET', path);
 export const post = <T>(path: string, body?: unknown) => api<T>('POST', path, body ?? {});
 export const patch = <T>(path: string, body: unknown) => api<T>('PATCH', path, body);
+export const put = <T>(path: string, body: unknown) => api<T>('PUT', path, body);
+export const del = (path: string) => api<null>('DELETE', path);
 
 /**
  * Uploads a file as a multipart form (the server reads the format from the

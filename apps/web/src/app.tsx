@@ -16,9 +16,12 @@ import { TrailPage } from './pages/trail';
 import { DisagreementsPage } from './pages/disagreements';
 import { QueuePage } from './pages/queue';
 import { SignIn } from './pages/sign-in';
+import { AccountsPage } from './pages/accounts';
 
 export interface PageProps {
   me: Me;
+  /** The role that counts on this screen: the caller's role on the desk for a desk's screens, else the account role. */
+  role: Role;
   params: Record<string, string>;
   query: URLSearchParams;
 }
@@ -30,6 +33,7 @@ interface Route extends ScreenRoute {
 const PAGES: Record<ScreenPattern, ComponentType<PageProps>> = {
   '/': DeskHome,
   '/desks/new': DeskNew,
+  '/accounts': AccountsPage,
   '/desks/:deskId/queue': QueuePage,
   '/desks/:deskId': DeskOverview,
   '/desks/:deskId/import': ImportPage,
@@ -60,6 +64,21 @@ export function App() {
   const [menuOpen, setMenuOpen] = useState(false);
   const menuButton = useRef<HTMLButtonElement>(null);
   useEffect(() => setMenuOpen(false), [where.path]);
+
+  // The desk of the screen, with the caller's role on it; 'missing' when the server answers no (not a member).
+  const deskIdOfPath = /^\/desks\/(\d+)(\/|$)/.exec(where.path)?.[1];
+  const [desk, setDesk] = useState<{ id: string; desk: Desk | 'missing' } | null>(null);
+  useEffect(() => {
+    if (!deskIdOfPath || !me) return;
+    let live = true;
+    get<Desk>(`/desks/${deskIdOfPath}`).then(
+      (d) => live && setDesk({ id: deskIdOfPath, desk: d }),
+      () => live && setDesk({ id: deskIdOfPath, desk: 'missing' }),
+    );
+    return () => {
+      live = false;
+    };
+  }, [deskIdOfPath, me?.id]);
 
   useEffect(() => {
     get<Me>('/auth/me').then(setMe, () => setMe(null));
@@ -104,6 +123,9 @@ export function App() {
   }
   document.title = found ? `${found.route.title} · Cribra` : 'Not found · Cribra';
   const deskId = found?.params.deskId;
+  const deskNow = deskId && desk?.id === deskId ? desk.desk : null;
+  // On a desk's screens the role there counts; elsewhere the account role.
+  const role: Role | null = deskId ? (deskNow && deskNow !== 'missing' ? (deskNow.role ?? null) : null) : me.role;
   const signOut = async () => {
     await post('/auth/logout').catch(() => undefined);
     setMe(null);
@@ -138,8 +160,11 @@ export function App() {
             }
           }}
         >
-          {deskId && <DeskTabs me={me} deskId={deskId} path={where.path} />}
+          {deskId && role && deskNow && deskNow !== 'missing' && (
+            <DeskTabs desk={deskNow} role={role} path={where.path} />
+          )}
           <div class="who">
+            {me.role === 'admin' && <a href="/accounts">Accounts</a>}
             <span>
               {me.name} <span class="role">({ROLE_NAMES[me.role]})</span>
             </span>
@@ -151,14 +176,29 @@ export function App() {
       </header>
       <main id="main">
         {!found && <Refusal title="No such page" text={`There is no screen at ${where.path}.`} />}
-        {found && !found.route.roles.includes(me.role) && (
+        {found && deskId && !deskNow && (
+          <p class="loading" role="status">
+            Loading…
+          </p>
+        )}
+        {found && deskId && (deskNow === 'missing' || (deskNow && !role)) && (
           <Refusal
-            title="Not open to your role"
-            text={`This screen is for ${found.route.roles.map((r) => ROLE_NAMES[r]).join(' and ')} accounts. You are signed in as ${me.name}, a ${ROLE_NAMES[me.role]}; the server refuses its data to your role as well.`}
+            title="No such desk"
+            text={`There is no desk ${deskId}, or you are not one of its members. A supervisor of the desk or an administrator can add you.`}
           />
         )}
-        {found && found.route.roles.includes(me.role) && (
-          <found.route.page me={me} params={found.params} query={where.query} />
+        {found && role && !found.route.roles.includes(role) && (
+          <Refusal
+            title="Not open to your role"
+            text={
+              deskId
+                ? `This screen is for the desk's ${found.route.roles.map((r) => ROLE_NAMES[r]).join(' and ')}s. You are signed in as ${me.name}, a ${ROLE_NAMES[role]} on this desk; the server refuses its data to your role as well.`
+                : `This screen is for ${found.route.roles.map((r) => ROLE_NAMES[r]).join(' and ')} accounts. You are signed in as ${me.name}, a ${ROLE_NAMES[me.role]}; the server refuses its data to your role as well.`
+            }
+          />
+        )}
+        {found && role && found.route.roles.includes(role) && (
+          <found.route.page me={me} role={role} params={found.params} query={where.query} />
         )}
       </main>
       <footer class="footer">
@@ -172,15 +212,13 @@ function safeNext(next: string | null): string {
   return next && next.startsWith('/') && !next.startsWith('//') && !next.startsWith('/signin') ? next : '/';
 }
 
-function DeskTabs({ me, deskId, path }: { me: Me; deskId: string; path: string }) {
-  const [desk, setDesk] = useState<Desk | null>(null);
-  useEffect(() => {
-    get<Desk>(`/desks/${deskId}`).then(setDesk, () => setDesk(null));
-  }, [deskId]);
-  const tabs = deskTabs(me.role, deskId);
+function DeskTabs({ desk, role, path }: { desk: Desk; role: Role; path: string }) {
+  const tabs = deskTabs(role, desk.id);
   return (
     <nav class="desk-tabs" aria-label="Desk sections">
-      <span class="desk-name">{desk?.name ?? `Desk ${deskId}`}</span>
+      <span class="desk-name">
+        {desk.name} <span class="role">({ROLE_NAMES[role]} here)</span>
+      </span>
       {tabs.map((t) => (
         <a
           href={t.href}

@@ -13,11 +13,14 @@ const READERS: Role[] = ['supervisor', 'auditor'];
 
 /**
  * Every screen and who may open it; the same split as the API's role matrix.
+ * On a desk's screens (`/desks/:deskId…`) the roles are roles on that desk
+ * (the caller's membership); elsewhere they are account roles.
  * Kept free of components so the browser tests can walk the same list.
  */
 export const SCREENS = [
   { pattern: '/', roles: ['reviewer', 'supervisor', 'auditor', 'admin'], title: 'Desks' },
   { pattern: '/desks/new', roles: SUPERVISOR, title: 'New desk' },
+  { pattern: '/accounts', roles: ['admin'], title: 'Accounts' },
   { pattern: '/desks/:deskId/queue', roles: ['reviewer'], title: 'Queue' },
   { pattern: '/desks/:deskId', roles: SUPERVISOR, title: 'Desk' },
   { pattern: '/desks/:deskId/import', roles: SUPERVISOR, title: 'Import' },

@@ -11,14 +11,14 @@ function why(r: Disagreement['reasons'][number]): string {
 }
 
 /** Agreement between reviewers, and the items they disagree on; supervisors settle them, auditors read. */
-export function DisagreementsPage({ me, params }: PageProps) {
+export function DisagreementsPage({ role, params }: PageProps) {
   const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
   const [agreement, agreementError] = useData<Agreement>(`/desks/${deskId}/agreement`);
   const [page, error, reload] = useData<DisagreementList>(`/desks/${deskId}/disagreements?limit=50`);
   const [more, setMore] = useState<Disagreement[]>([]);
   const rows = [...(page?.disagreements ?? []), ...more];
-  const canSettle = me.role === 'supervisor';
+  const canSettle = role === 'supervisor';
 
   return (
     <section class="page">
