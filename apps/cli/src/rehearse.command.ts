@@ -26,46 +26,75 @@ export const rehearse = defineCommand({
   description:
     'Runs the learning loop offline on texts that are already labelled, as if reviewers worked a desk: a cold ' +
     'start, then batches chosen by the strategy with a random share that calibrates. Prints the learning curve, ' +
-    'the coverage reached on held-out rows, and how many verdicts the model needed. The file is read like an ' +
-    'import (same formats, row rules and messages); rejected rows are listed on stderr and left out.',
+    'the coverage of the prediction sets on the items still open at each point (what a desk shows sets on) and on ' +
+    'held-out rows, how many verdicts the model needed, and the answer in one sentence. With --seeds it runs once ' +
+    'per seed and prints medians and ranges. The file is read like an import (same formats, row rules and ' +
+    'messages); rejected rows are listed on stderr and left out, and a warning says when the input or the budget ' +
+    'is too small for the requested target.',
   options: REHEARSE_OPTIONS,
   async run({ values }, io) {
     const flags = rehearseFlags(values);
     // Loaded here so that `--help` does not load the learning core and the import parser.
     const { prepareRehearsal, runRehearsal } = await import('#learning');
-    const { formatRehearsal, progressBar } = await import('./rehearse/format-rehearsal.js');
+    const { formatRehearsal, formatSeeds, progressBar } = await import('./rehearse/format-rehearsal.js');
     const { checkUsable, InputError, readLabelledFile } = await import('./rehearse/read-labelled-file.js');
     try {
       const input = await readLabelledFile(flags.input, flags.labelField, flags.format);
       reportInput(input, io);
       checkUsable(input, flags.input, flags.labelField);
-      const data = prepareRehearsal(input.items, { testShare: flags.testShare, seed: flags.seed });
-      const result = runRehearsal(data, {
-        target: flags.target,
-        calibration: flags.calibration,
-        score: flags.score,
-        strategy: flags.strategy,
-        randomShare: flags.randomShare,
-        start: flags.start,
-        batch: flags.batch,
-        budget: flags.budget,
-        testShare: flags.testShare,
-        seed: flags.seed,
-        compareRandom: flags.compareRandom,
-        onProgress: flags.json ? undefined : (done, total) => io.stderr.write(progressBar(done, total)),
-      });
+      const { createFeaturizer, summarizeSeeds, tuneRehearsalC } = await import('#learning');
+      // Hashed counts do not depend on the seed: computed once for every run.
+      const featurizer = createFeaturizer();
+      const counts = input.items.map((item) => featurizer.counts(item.text));
+      const results = [];
+      const tuning = [];
+      const runs = flags.seeds.length;
+      for (const [r, seed] of flags.seeds.entries()) {
+        const data = prepareRehearsal(input.items, { testShare: flags.testShare, seed, counts });
+        const tuned = flags.tune ? tuneRehearsalC(data, { budget: flags.budget, seed, folds: flags.folds }) : null;
+        if (tuned !== null) tuning.push({ seed, ...tuned });
+        const result = runRehearsal(data, {
+          target: flags.target,
+          calibration: flags.calibration,
+          score: flags.score,
+          strategy: flags.strategy,
+          randomShare: flags.randomShare,
+          start: flags.start,
+          batch: flags.batch,
+          budget: flags.budget,
+          testShare: flags.testShare,
+          seed,
+          compareRandom: flags.compareRandom,
+          ...(tuned === null ? {} : { training: { c: tuned.c } }),
+          onProgress: flags.json
+            ? undefined
+            : (done, total) => io.stderr.write(progressBar(r * total + done, runs * total)),
+        });
+        results.push(result);
+      }
+      if (!flags.json) io.stderr.write('\n');
+      for (const warning of results[0].warnings) io.stderr.write(`rehearse: warning: ${warning}\n`);
+      const summary = summarizeSeeds(results);
+      const inputSummary = {
+        format: input.format,
+        rows: input.rows,
+        used: input.items.length,
+        rejected: input.rejected.length,
+        duplicates: input.duplicates,
+      };
       if (flags.json) {
-        const inputSummary = {
-          format: input.format,
-          rows: input.rows,
-          used: input.items.length,
-          rejected: input.rejected.length,
-          duplicates: input.duplicates,
-        };
-        io.stdout.write(JSON.stringify({ ...result, input: inputSummary }) + '\n');
+        const tuningField = flags.tune ? { tuning: flags.multiSeed ? tuning : tuning[0] } : {};
+        io.stdout.write(
+          JSON.stringify(
+            flags.multiSeed
+              ? { runs: results, summary, ...tuningField, input: inputSummary }
+              : { ...results[0], sentence: summary.sentence, ...tuningField, input: inputSummary },
+          ) + '\n',
+        );
       } else {
-        io.stderr.write('\n');
-        io.stdout.write(formatRehearsal(result));
+        io.stdout.write(
+          flags.multiSeed ? formatSeeds(results, summary, tuning) : formatRehearsal(results[0], summary, tuning[0]),
+        );
       }
       return 0;
     } catch (error) {

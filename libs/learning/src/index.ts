@@ -35,6 +35,8 @@ export {
 } from './classifier/train-logistic.js';
 export type { ClassWeight, TrainOptions } from './classifier/train-logistic.js';
 export { minimizeLbfgs } from './classifier/lbfgs.js';
+export { DEFAULT_C_GRID, tuneC } from './classifier/tune-c.js';
+export type { TuneCOptions, TuneCResult } from './classifier/tune-c.js';
 export type { LbfgsOptions, LbfgsResult, Objective } from './classifier/lbfgs.js';
 
 export { assertAlpha, assertLabel, assertProbabilities, PROBABILITY_SUM_TOLERANCE } from './probability-checks.js';
@@ -84,8 +86,9 @@ export { normalizedTextHash, normalizeForDuplicates } from './text/normalized-te
 export { pickBatch } from './uncertainty/batch-picker.js';
 export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncertainty/batch-picker.js';
 
-export { prepareRehearsal, runRehearsal } from './rehearsal/rehearsal.js';
+export { prepareRehearsal, rehearsalWarnings, runRehearsal, tuneRehearsalC } from './rehearsal/rehearsal.js';
 export type {
+  CoverageFigures,
   CurvePoint,
   LabelledItem,
   RehearsalCurve,
@@ -93,6 +96,8 @@ export type {
   RehearsalOptions,
   RehearsalResult,
 } from './rehearsal/rehearsal.js';
+export { summarizeSeeds } from './rehearsal/multi-seed.js';
+export type { MultiSeedSummary, Spread } from './rehearsal/multi-seed.js';
 
 export { cohenKappa, cohenKappaFromMatrix } from './agreement/cohen-kappa.js';
 export type { CohenKappa } from './agreement/cohen-kappa.js';

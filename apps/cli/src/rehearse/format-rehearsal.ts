@@ -1,9 +1,21 @@
-import type { RehearsalResult } from '#learning';
+import type { MultiSeedSummary, RehearsalResult, Spread, TuneCResult } from '#learning';
 
 const pct = (x: number): string => `${(100 * x).toFixed(1)}%`;
 
+/** Why the two coverage figures differ, in one line. */
+export const COVERAGE_EXPLANATION =
+  'open: the items still without a verdict at each point, the population a desk shows sets on (primary); ' +
+  'hold-out: rows never drawn, which still hold the hard items uncertainty sampling takes out of the open pool, ' +
+  'so under uncertainty sampling it reads lower; under random draws both estimate the same coverage and differ by sampling noise only.';
+
+function tuningLine(t: TuneCResult): string {
+  return `C = ${t.c} by ${t.folds}-fold cross-validation (mean macro-F1: ${t.scores
+    .map((s) => `C ${s.c} ${s.macroF1.toFixed(3)}`)
+    .join(', ')})`;
+}
+
 /** A plain-text table of the learning curve and the summary lines. */
-export function formatRehearsal(result: RehearsalResult): string {
+export function formatRehearsal(result: RehearsalResult, summary?: MultiSeedSummary, tuning?: TuneCResult): string {
   const lines: string[] = [];
   lines.push(
     `classes: ${result.classes.join(', ')}   pool: ${result.pool}   test: ${result.test}   target coverage: ${pct(result.target)}`,
@@ -19,7 +31,9 @@ export function formatRehearsal(result: RehearsalResult): string {
     'set size',
     'sure',
     'unfamiliar',
-    ...result.classes.map((c) => `cov ${c}`),
+    'open',
+    ...result.classes.map((c) => `open ${c}`),
+    ...result.classes.map((c) => `hold-out ${c}`),
   ];
   const rows = result.curve.map((p, i) => [
     String(p.labels),
@@ -31,6 +45,11 @@ export function formatRehearsal(result: RehearsalResult): string {
     p.meanSetSize.toFixed(2),
     pct(p.sureShare),
     pct(p.unfamiliarShare),
+    Number.isNaN(p.open.coverage) ? '–' : pct(p.open.coverage),
+    ...result.classes.map((c) => {
+      const v = p.open.perCategoryCoverage[c];
+      return v === null ? '–' : pct(v);
+    }),
     ...result.classes.map((c) => {
       const v = p.perCategoryCoverage[c];
       return v === null ? '–' : pct(v);
@@ -50,6 +69,9 @@ export function formatRehearsal(result: RehearsalResult): string {
     `95% of full macro-F1 at ${r['0.95'] ?? 'not reached'}, 98% at ${r['0.98'] ?? 'not reached'}`;
   lines.push(`uncertainty run: ${reach(result.labelsToReach)}`);
   if (result.random) lines.push(`random run:      ${reach(result.random.labelsToReach)}`);
+  lines.push(`coverage columns: ${COVERAGE_EXPLANATION}`);
+  lines.push(`C = ${result.c}${tuning ? `, ${tuningLine(tuning)}` : ''}`);
+  if (summary) lines.push(summary.sentence);
   lines.push(
     `timings: featurise ${result.timings.featurizeMs.toFixed(0)} ms, train ${result.timings.trainMsMean.toFixed(0)} ms a model, score ${result.timings.scoreMsMean.toFixed(0)} ms a pass`,
   );
@@ -60,4 +82,75 @@ export function formatRehearsal(result: RehearsalResult): string {
 export function progressBar(done: number, total: number, width = 30): string {
   const filled = Math.round((width * done) / Math.max(1, total));
   return `\r[${'#'.repeat(filled)}${'-'.repeat(width - filled)}] ${done}/${total}`;
+}
+
+function range(s: Spread, digits: number, asPct = false): string {
+  const f = (x: number | null): string => (x === null ? '–' : asPct ? pct(x) : x.toFixed(digits));
+  const missing = s.missing > 0 ? `, ${s.missing} not reached` : '';
+  return `${f(s.median)} (${f(s.min)}–${f(s.max)}${missing})`;
+}
+
+/** Per-seed lines and the medians and ranges over the seeds (`rehearse --seeds`). */
+export function formatSeeds(
+  results: readonly RehearsalResult[],
+  summary: MultiSeedSummary,
+  tuning: readonly (TuneCResult & { seed: number })[],
+): string {
+  const first = results[0];
+  const classes = first.classes;
+  const lines: string[] = [];
+  lines.push(
+    `classes: ${classes.join(', ')}   pool: ${first.pool}   test: ${first.test}   target coverage: ${pct(first.target)}   seeds: ${summary.seeds.join(', ')}`,
+  );
+  lines.push('');
+  const header = [
+    'seed',
+    'C',
+    'full F1',
+    'to 95%',
+    ...(first.random ? ['random to 95%'] : []),
+    'random verdicts until informative',
+    ...classes.map((c) => `open ${c}`),
+    ...classes.map((c) => `hold-out ${c}`),
+  ];
+  const cov = (v: number | null): string => (v === null ? '–' : pct(v));
+  const rows = results.map((r) => {
+    const last = r.curve.at(-1)!;
+    return [
+      String(r.seed),
+      String(r.c),
+      r.full.macroF1.toFixed(3),
+      String(r.labelsToReach['0.95'] ?? '–'),
+      ...(first.random ? [String(r.random?.labelsToReach['0.95'] ?? '–')] : []),
+      String(r.randomVerdictsUntilInformative ?? '–'),
+      ...classes.map((c) => cov(last.open.perCategoryCoverage[c])),
+      ...classes.map((c) => cov(last.perCategoryCoverage[c])),
+    ];
+  });
+  const widths = header.map((h, j) => Math.max(h.length, ...rows.map((r) => r[j].length)));
+  const fmt = (cells: string[]): string => cells.map((c, j) => c.padStart(widths[j])).join('  ');
+  lines.push(fmt(header));
+  for (const r of rows) lines.push(fmt(r));
+  lines.push('');
+  lines.push('median (lowest–highest) over the seeds, at the last point for coverage:');
+  lines.push(`  full pool model macro-F1: ${range(summary.fullMacroF1, 3)}`);
+  lines.push(`  verdicts to reach 95% of it: ${range(summary.labelsToReach95, 0)}`);
+  if (summary.randomLabelsToReach95 && summary.ratioToRandom) {
+    lines.push(`  random draws to reach 95% of it: ${range(summary.randomLabelsToReach95, 0)}`);
+    lines.push(`  ratio to random, per seed: ${range(summary.ratioToRandom, 2)}`);
+  }
+  lines.push(
+    `  random verdicts before the sets can leave a category out: ${range(summary.randomVerdictsUntilInformative, 0)}`,
+  );
+  for (const c of classes) {
+    const mean = (x: number | null): string => (x === null ? '–' : pct(x));
+    lines.push(
+      `  coverage of ${c}: open ${range(summary.openCoverage[c], 3, true)}, mean ${mean(summary.openCoverage[c].mean)}; hold-out ${range(summary.holdOutCoverage[c], 3, true)}, mean ${mean(summary.holdOutCoverage[c].mean)}; fewest calibration verdicts ${summary.fewestCalibrationVerdicts[c]}`,
+    );
+  }
+  if (tuning.length > 0)
+    lines.push(`  C by cross-validation: ${tuning.map((t) => `seed ${t.seed} C ${t.c}`).join(', ')}`);
+  lines.push(`coverage: ${COVERAGE_EXPLANATION}`);
+  lines.push(summary.sentence);
+  return lines.join('\n') + '\n';
 }

@@ -64,7 +64,12 @@ describe('rehearse command', () => {
   it('prints one JSON object with the curve, the full model and labels to reach', async () => {
     const c = capture();
     const code = await rehearseCommand([...base, '--json', '--compare-random', '--calibration', 'per-category'], c.io);
-    expect(c.err()).toBe('');
+    // 80 verdicts, a fifth of them random after the 10 start ones: about 1 calibration verdict for the rare food
+    // class, where per-category coverage 0.9 needs ⌈1/0.1⌉ − 1 = 9 of each.
+    expect(c.err()).toMatch(
+      /^rehearse: warning: category food \(\d+ of 320 pool items\) gets about 1 random verdicts/m,
+    );
+    expect(c.err()).toMatch(/needs at least 9/);
     expect(code).toBe(0);
     const result = JSON.parse(c.out()) as RehearsalResult;
     expect(result.classes).toEqual(['food', 'sport', 'weather']);
@@ -88,6 +93,50 @@ describe('rehearse command', () => {
     expect(result.random!.curve.length).toBe(result.curve.length);
     expect(Object.keys(result.labelsToReach)).toEqual(['0.95', '0.98']);
     expect(Object.keys(result.timings).sort()).toEqual(['featurizeMs', 'scoreMsMean', 'trainMsMean']);
+    // Coverage on the items still open: the pool less the verdicts given so far.
+    result.curve.forEach((p) => {
+      expect(p.open.items).toBe(result.pool - p.labels);
+      expect(Object.keys(p.open.perCategoryCoverage).sort()).toEqual(['food', 'sport', 'weather']);
+    });
+    // Too few food calibration verdicts: the per-category sets never leave a category out.
+    expect(result.curve.every((p) => !p.setsInformative)).toBe(true);
+    expect(result.randomVerdictsUntilInformative).toBeNull();
+    expect(result.warnings.length).toBeGreaterThan(0);
+    expect((result as RehearsalResult & { sentence: string }).sentence).toMatch(
+      /^A desk like this needs .* verdicts to reach 95 % of the full model's macro-F1, and more than 80 random verdicts \(not reached within the budget\) before per-category sets at 0.9 stop holding every category/,
+    );
+  });
+
+  it('runs several seeds with --seeds, tunes C by cross-validation with --tune, and prints medians and ranges', async () => {
+    const c = capture();
+    const args = [...base.slice(0, -2), '--seeds', '1-2,5', '--tune', '--folds', '2'];
+    expect(await rehearseCommand([...args, '--json'], c.io)).toBe(0);
+    const out = JSON.parse(c.out()) as {
+      runs: RehearsalResult[];
+      summary: { seeds: number[]; labelsToReach95: { median: number | null }; sentence: string };
+      tuning: { seed: number; c: number; folds: number; scores: { c: number }[] }[];
+    };
+    expect(out.runs.map((r) => r.seed)).toEqual([1, 2, 5]);
+    expect(out.summary.seeds).toEqual([1, 2, 5]);
+    expect(out.summary.sentence).toMatch(/median over 3 seeds/);
+    expect(out.tuning.map((t) => t.seed)).toEqual([1, 2, 5]);
+    for (const [i, t] of out.tuning.entries()) {
+      expect(t.folds).toBe(2);
+      expect(t.scores.map((s) => s.c)).toEqual([0.1, 0.3, 1, 3, 10, 30]);
+      expect(out.runs[i].c).toBe(t.c);
+    }
+    const table = capture();
+    expect(await rehearseCommand([...base.slice(0, -2), '--seeds', '1,2'], table.io)).toBe(0);
+    expect(table.out()).toMatch(/median \(lowest–highest\) over the seeds/);
+    expect(table.out()).toMatch(/coverage of food: open /);
+    expect(table.out()).toMatch(/A desk like this needs/);
+  });
+
+  it('describes every option in --help', async () => {
+    const c = capture();
+    expect(await rehearseCommand(['--help'], c.io)).toBe(0);
+    for (const option of ['input', 'target', 'strategy', 'seed', 'seeds', 'tune', 'folds', 'compare-random', 'json'])
+      expect(c.out()).toMatch(new RegExp(`--${option}\\b`));
   });
 
   it('is reproducible for a seed', async () => {
@@ -194,6 +243,10 @@ describe('rehearse command', () => {
       [['--budget', '5'], /--budget \(5\) must be at least --start \(10\)/],
       [['--colour', 'red'], /unknown option --colour/],
       [['--text-field', 'body'], /unknown option --text-field/],
+      [['--seeds', '5-1'], /--seeds "5-1": the range 5-1 runs backwards/],
+      [['--seeds', 'a'], /--seeds "a": cannot read "a"/],
+      [['--folds', '1'], /--folds "1": expected a whole number from 2/],
+      [['--seeds', '1-3', '--seed', '2'], /--seed and --seeds cannot both be given/],
     ];
     const minimal = ['--input', file, '--start', '10'];
     for (const [extra, message] of cases) {

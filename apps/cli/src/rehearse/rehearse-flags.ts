@@ -62,7 +62,24 @@ export const REHEARSE_OPTIONS = {
     type: 'string',
     value: 'N',
     defaultText: '1',
-    description: 'seed of every random draw (same seed, same run)',
+    description: 'seed of every random draw: the hold-out split, the draws, the folds (same seed, same run)',
+  },
+  seeds: {
+    type: 'string',
+    value: 'LIST',
+    description:
+      'run once per seed (`1-10`, `1,4,7` or both mixed) and print the medians and ranges over the runs instead of one curve; replaces --seed',
+  },
+  tune: {
+    type: 'boolean',
+    description:
+      'pick the regularisation C by k-fold cross-validation (C among 0.1, 0.3, 1, 3, 10, 30; best mean macro-F1) on a uniform sample of --budget pool items, and report it; without it C = 1',
+  },
+  folds: {
+    type: 'string',
+    value: 'K',
+    defaultText: '5',
+    description: 'folds of the cross-validation of --tune, 2 or more',
   },
   'compare-random': {
     type: 'boolean',
@@ -85,8 +102,39 @@ export interface RehearseFlags {
   budget: number;
   testShare: number;
   seed: number;
+  /** The seeds to run: [seed] unless --seeds was given. */
+  seeds: number[];
+  /** True when --seeds asked for a summary over several runs. */
+  multiSeed: boolean;
+  tune: boolean;
+  folds: number;
   compareRandom: boolean;
   json: boolean;
+}
+
+/** Most seeds one `--seeds` list may name. */
+const MAX_SEEDS = 100;
+
+/** Parses `1-10`, `1,4,7` or a mix into distinct seeds in the given order. */
+export function parseSeeds(raw: string): number[] {
+  const seeds: number[] = [];
+  const bad = (why: string): never => {
+    throw new UsageError(
+      `--seeds ${JSON.stringify(raw)}: ${why} (expected whole numbers or ranges like 1-10, comma-separated)`,
+    );
+  };
+  for (const part of raw.split(',')) {
+    const m = /^\s*(-?\d+)\s*(?:-\s*(-?\d+)\s*)?$/.exec(part);
+    if (m === null) return bad(`cannot read ${JSON.stringify(part)}`);
+    const upper = m[2] as string | undefined;
+    const from = Number(m[1]);
+    const to = upper === undefined ? from : Number(upper);
+    if (!Number.isSafeInteger(from) || !Number.isSafeInteger(to)) bad('a seed is too large');
+    if (to < from) bad(`the range ${from}-${to} runs backwards`);
+    if (to - from + 1 + seeds.length > MAX_SEEDS) bad(`more than ${MAX_SEEDS} seeds`);
+    for (let s = from; s <= to; s++) if (!seeds.includes(s)) seeds.push(s);
+  }
+  return seeds;
 }
 
 /** Checks the parsed options and applies the defaults; throws UsageError naming the option. */
@@ -107,11 +155,18 @@ export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): Rehea
     budget: numberOption('budget', values.budget, 600, count),
     testShare: numberOption('test-share', values['test-share'], 0.2, fraction),
     seed: numberOption('seed', values.seed, 1, { integer: true }),
+    seeds: [],
+    multiSeed: values.seeds !== undefined,
+    tune: values.tune === true,
+    folds: numberOption('folds', values.folds, 5, { integer: true, min: 2 }),
     compareRandom: values['compare-random'] === true,
     json: values.json === true,
   };
   if (flags.input === '') throw new UsageError('--input must name a file');
   if (flags.labelField === '') throw new UsageError('--label-field must not be empty');
+  if (values.seeds !== undefined && values.seed !== undefined)
+    throw new UsageError('--seed and --seeds cannot both be given (--seeds runs each of its seeds)');
+  flags.seeds = values.seeds === undefined ? [flags.seed] : parseSeeds(values.seeds);
   if (flags.budget < flags.start)
     throw new UsageError(`--budget (${flags.budget}) must be at least --start (${flags.start})`);
   return flags;

@@ -2,7 +2,7 @@ import { createFeaturizer, type FeaturizerOptions } from '../features/hashed-fea
 import { IdfTable } from '../features/idf-table.js';
 import type { SparseVector } from '../features/sparse-vector.js';
 import { tfidf } from '../features/tfidf.js';
-import { trainLogisticModel, type TrainOptions } from '../classifier/train-logistic.js';
+import { DEFAULT_C, trainLogisticModel, type TrainOptions } from '../classifier/train-logistic.js';
 import type { LogisticModel } from '../classifier/logistic-model.js';
 import {
   ConformalCalibration,
@@ -10,9 +10,11 @@ import {
   type NonconformityScore,
 } from '../conformal/conformal-calibration.js';
 import { predictionSet } from '../conformal/prediction-set.js';
+import { calibrationSizeNeeded } from '../conformal/conformal-quantile.js';
 import { accuracy } from '../metrics/accuracy.js';
 import { macroF1 } from '../metrics/macro-f1.js';
 import { createRng, shuffleInPlace, type Rng } from '../random/rng.js';
+import { tuneC, type TuneCResult } from '../classifier/tune-c.js';
 import { pickBatch, type BatchCandidate } from '../uncertainty/batch-picker.js';
 import type { UncertaintyStrategy } from '../uncertainty/uncertainty-scores.js';
 
@@ -38,25 +40,51 @@ export interface RehearsalOptions {
   onProgress?: (done: number, total: number) => void;
 }
 
+/** Coverage of the prediction sets on one population of items. */
+export interface CoverageFigures {
+  items: number;
+  /** Share of the items whose true category is in their prediction set. */
+  coverage: number;
+  meanSetSize: number;
+  /** Coverage among the items of each category (null if it has none). */
+  perCategoryCoverage: Record<string, number | null>;
+}
+
 export interface CurvePoint {
   labels: number;
   trainLabels: number;
   calibrationLabels: number;
+  /** Calibration (random) verdicts of each category. */
+  calibrationPerCategory: Record<string, number>;
+  /**
+   * True when the sets can leave a category out: every category (per-category
+   * calibration) or the pool (marginal) has enough calibration verdicts for a
+   * finite threshold at the target; before that, sets hold every category.
+   */
+  setsInformative: boolean;
+  /** Measured on the hold-out test set. */
   accuracy: number;
   macroF1: number;
-  /** Share of test items whose true category is in their prediction set. */
+  /** Hold-out test set: share of items whose true category is in their prediction set. */
   coverage: number;
   meanSetSize: number;
   sureShare: number;
   unfamiliarShare: number;
-  /** Coverage among the test items of each category (null if it has none). */
+  /** Hold-out test set: coverage among the items of each category (null if it has none). */
   perCategoryCoverage: Record<string, number | null>;
+  /**
+   * The items still open at this point (pool items without a verdict): the
+   * population a desk shows sets on. The primary coverage figure.
+   */
+  open: CoverageFigures;
 }
 
 export interface RehearsalCurve {
   curve: CurvePoint[];
   /** First curve point whose macro-F1 reaches that share of the full-pool model's (null: never). */
   labelsToReach: { '0.95': number | null; '0.98': number | null };
+  /** Calibration (random) verdicts at the first point whose sets can leave a category out (null: never). */
+  randomVerdictsUntilInformative: number | null;
 }
 
 export interface RehearsalResult extends RehearsalCurve {
@@ -64,6 +92,12 @@ export interface RehearsalResult extends RehearsalCurve {
   pool: number;
   test: number;
   target: number;
+  seed: number;
+  calibration: CalibrationMode;
+  /** Inverse regularisation strength C the models were trained with. */
+  c: number;
+  /** Why the figures may not answer the question (input too small for the target, …). */
+  warnings: string[];
   full: { accuracy: number; macroF1: number };
   random?: RehearsalCurve;
   timings: { featurizeMs: number; trainMsMean: number; scoreMsMean: number };
@@ -176,10 +210,47 @@ function train(
   return model;
 }
 
+function coverageOn(
+  data: RehearsalData,
+  rows: readonly number[],
+  probabilities: Map<number, Float64Array>,
+  calibration: ConformalCalibration,
+  options: RehearsalOptions,
+  each?: (row: number, p: Float64Array, set: number[], call: string) => void,
+): CoverageFigures {
+  const alpha = 1 - options.target;
+  const k = data.classes.length;
+  let covered = 0;
+  let setSizes = 0;
+  const catCovered = new Float64Array(k);
+  const catTotal = new Float64Array(k);
+  for (const i of rows) {
+    const p = probabilities.get(i)!;
+    const y = data.labels[i];
+    const set = predictionSet(p, calibration, { alpha, score: options.score, mode: options.calibration });
+    const hit = set.categories.includes(y) ? 1 : 0;
+    covered += hit;
+    catCovered[y] += hit;
+    catTotal[y]++;
+    setSizes += set.categories.length;
+    each?.(i, p, set.categories, set.call);
+  }
+  const n = rows.length;
+  const perCategoryCoverage: Record<string, number | null> = {};
+  data.classes.forEach((c, j) => (perCategoryCoverage[c] = catTotal[j] > 0 ? catCovered[j] / catTotal[j] : null));
+  return {
+    items: n,
+    coverage: n > 0 ? covered / n : Number.NaN,
+    meanSetSize: n > 0 ? setSizes / n : Number.NaN,
+    perCategoryCoverage,
+  };
+}
+
 function measure(
   data: RehearsalData,
   trainRows: number[],
   calibrationRows: number[],
+  openRows: number[],
   probabilities: Map<number, Float64Array>,
   options: RehearsalOptions,
 ): CurvePoint {
@@ -188,46 +259,43 @@ function measure(
     calibrationRows.map((i) => probabilities.get(i)!),
     calibrationRows.map((i) => data.labels[i]),
   );
-  const alpha = 1 - options.target;
   const k = data.classes.length;
   const truth: number[] = [];
   const predicted: number[] = [];
-  let covered = 0;
-  let setSizes = 0;
   let sure = 0;
   let unfamiliar = 0;
-  const catCovered = new Float64Array(k);
-  const catTotal = new Float64Array(k);
-  for (const i of data.test) {
-    const p = probabilities.get(i)!;
-    const y = data.labels[i];
+  const holdOut = coverageOn(data, data.test, probabilities, calibration, options, (i, p, _set, call) => {
     let best = 0;
     for (let c = 1; c < k; c++) if (p[c] > p[best]) best = c;
-    truth.push(y);
+    truth.push(data.labels[i]);
     predicted.push(best);
-    const set = predictionSet(p, calibration, { alpha, score: options.score, mode: options.calibration });
-    const hit = set.categories.includes(y) ? 1 : 0;
-    covered += hit;
-    catCovered[y] += hit;
-    catTotal[y]++;
-    setSizes += set.categories.length;
-    if (set.call === 'sure') sure++;
-    if (set.call === 'unfamiliar') unfamiliar++;
-  }
+    if (call === 'sure') sure++;
+    if (call === 'unfamiliar') unfamiliar++;
+  });
+  const open = coverageOn(data, openRows, probabilities, calibration, options);
+  const needed = calibrationSizeNeeded(0, 1 - options.target);
+  const calibrationPerCategory: Record<string, number> = {};
+  data.classes.forEach((c) => (calibrationPerCategory[c] = 0));
+  for (const i of calibrationRows) calibrationPerCategory[data.classes[data.labels[i]]]++;
+  const setsInformative =
+    options.calibration === 'marginal'
+      ? calibrationRows.length >= needed
+      : Object.values(calibrationPerCategory).every((n) => n >= needed);
   const n = data.test.length;
-  const perCategoryCoverage: Record<string, number | null> = {};
-  data.classes.forEach((c, j) => (perCategoryCoverage[c] = catTotal[j] > 0 ? catCovered[j] / catTotal[j] : null));
   return {
     labels: trainRows.length + calibrationRows.length,
     trainLabels: trainRows.length,
     calibrationLabels: calibrationRows.length,
+    calibrationPerCategory,
+    setsInformative,
     accuracy: accuracy(truth, predicted, k),
     macroF1: macroF1(truth, predicted, k),
-    coverage: covered / n,
-    meanSetSize: setSizes / n,
+    coverage: holdOut.coverage,
+    meanSetSize: holdOut.meanSetSize,
     sureShare: sure / n,
     unfamiliarShare: unfamiliar / n,
-    perCategoryCoverage,
+    perCategoryCoverage: holdOut.perCategoryCoverage,
+    open,
   };
 }
 
@@ -255,16 +323,15 @@ function runCurve(
     model = train(data, trainRows, options, timing, model);
     const started = performance.now();
     const probabilities = new Map<number, Float64Array>();
-    // Score what the service scores: the unlabelled pool (for the next draw),
-    // the calibration items (the current model never trained on them), and here
-    // the test set.
-    // (The random baseline draws without looking at scores.)
-    if (strategy !== 'random')
-      for (const i of data.pool) if (!labelled.has(i)) probabilities.set(i, model.predictProba(data.vectors[i]));
+    // Score what the service scores: the open items (the next draw looks at
+    // them, and they are what the desk shows sets on), the calibration items
+    // (the current model never trained on them), and here the test set.
+    const openRows = data.pool.filter((i) => !labelled.has(i));
+    for (const i of openRows) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of calibrationRows) probabilities.set(i, model.predictProba(data.vectors[i]));
     for (const i of data.test) probabilities.set(i, model.predictProba(data.vectors[i]));
     timing.scoreMs.push(performance.now() - started);
-    curve.push(measure(data, trainRows, calibrationRows, probabilities, options));
+    curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, options));
     progress();
     const labels = trainRows.length + calibrationRows.length;
     if (labels >= budget) break;
@@ -318,6 +385,58 @@ function labelsToReach(curve: CurvePoint[], fullF1: number): RehearsalCurve['lab
   return { '0.95': first(0.95), '0.98': first(0.98) };
 }
 
+function curveSummary(curve: CurvePoint[], fullF1: number): RehearsalCurve {
+  return {
+    curve,
+    labelsToReach: labelsToReach(curve, fullF1),
+    randomVerdictsUntilInformative: curve.find((p) => p.setsInformative)?.calibrationLabels ?? null,
+  };
+}
+
+/**
+ * Reasons the rehearsal cannot answer what was asked of it, checked before
+ * it runs: a budget larger than the pool, or too few random verdicts
+ * expected for the target — with random share r and budget B the rarest
+ * category (share π of the pool) gets about r·(B − start)·π calibration
+ * verdicts, and a finite conformal threshold at 1 − α needs at least
+ * ⌈1/α⌉ − 1 of them (per category, or in all for marginal calibration).
+ */
+export function rehearsalWarnings(data: RehearsalData, options: RehearsalOptions): string[] {
+  const warnings: string[] = [];
+  if (options.budget > data.pool.length)
+    warnings.push(
+      `the budget (${options.budget}) exceeds the pool (${data.pool.length} items after holding out the test set): the run stops at ${data.pool.length} verdicts`,
+    );
+  const budget = Math.min(options.budget, data.pool.length);
+  const needed = calibrationSizeNeeded(0, 1 - options.target);
+  const expected = options.randomShare * Math.max(0, budget - options.start);
+  if (options.calibration === 'marginal') {
+    if (expected < needed)
+      warnings.push(
+        `about ${Math.floor(expected)} random verdicts expected in the budget; coverage ${options.target} needs at least ${needed}: sets will hold every category throughout (raise --budget or --random-share, or lower --target)`,
+      );
+  } else {
+    const counts = new Float64Array(data.classes.length);
+    for (const i of data.pool) counts[data.labels[i]]++;
+    data.classes.forEach((c, j) => {
+      const perCategory = (expected * counts[j]) / data.pool.length;
+      if (perCategory < needed)
+        warnings.push(
+          `category ${c} (${counts[j]} of ${data.pool.length} pool items) gets about ${Math.floor(perCategory)} random verdicts in the budget; per-category coverage ${options.target} needs at least ${needed}: its sets will always include it (raise --budget or --random-share, or lower --target)`,
+        );
+    });
+  }
+  const testCounts = new Float64Array(data.classes.length);
+  for (const i of data.test) testCounts[data.labels[i]]++;
+  data.classes.forEach((c, j) => {
+    if (testCounts[j] < 30)
+      warnings.push(
+        `the hold-out set holds ${testCounts[j]} items of ${c}: its hold-out coverage is a rough estimate (fewer than 30 items)`,
+      );
+  });
+  return warnings;
+}
+
 /**
  * Rehearses a desk on labelled data: after `start` uniform random verdicts
  * (the cold start: they train the first model, and it goes on until every
@@ -351,16 +470,19 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
   const k = data.classes.length;
   const full = { accuracy: accuracy(truth, predicted, k), macroF1: macroF1(truth, predicted, k) };
   progress();
-  if (randomCurve) random = { curve: randomCurve, labelsToReach: labelsToReach(randomCurve, full.macroF1) };
+  if (randomCurve) random = curveSummary(randomCurve, full.macroF1);
   const mean = (xs: number[]): number => (xs.length ? xs.reduce((s, x) => s + x, 0) / xs.length : 0);
   return {
     classes: data.classes,
     pool: data.pool.length,
     test: data.test.length,
     target: options.target,
-    curve,
+    seed: options.seed,
+    calibration: options.calibration,
+    c: 'c' in fullModel.training ? fullModel.training.c : (options.training?.c ?? DEFAULT_C),
+    warnings: rehearsalWarnings(data, options),
+    ...curveSummary(curve, full.macroF1),
     full,
-    labelsToReach: labelsToReach(curve, full.macroF1),
     ...(random ? { random } : {}),
     timings: {
       featurizeMs: data.featurizeMs,
@@ -368,4 +490,28 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
       scoreMsMean: mean(mainTiming.scoreMs),
     },
   };
+}
+
+/**
+ * `rehearse --tune`: picks C by k-fold cross-validation ({@link tuneC}) on
+ * the labels a desk of this budget would have, the first `budget` items of
+ * the seeded pool order (a uniform sample of the pool; the test set is not
+ * touched).
+ */
+export function tuneRehearsalC(
+  data: RehearsalData,
+  options: Pick<RehearsalOptions, 'budget' | 'seed'> & { folds?: number; grid?: readonly number[] },
+): TuneCResult {
+  const rows = data.pool.slice(0, Math.min(options.budget, data.pool.length));
+  return tuneC(
+    rows.map((i) => data.vectors[i]),
+    rows.map((i) => data.classes[data.labels[i]]),
+    {
+      categories: data.classes,
+      hashBits: data.hashBits,
+      seed: options.seed,
+      ...(options.folds === undefined ? {} : { folds: options.folds }),
+      ...(options.grid === undefined ? {} : { grid: options.grid }),
+    },
+  );
 }
