@@ -11,6 +11,8 @@ export const COMMANDS: Readonly<Record<string, () => Promise<CliEntry>>> = {
   member: async () => (await import('./member.command.js')).memberCommands,
   migrate: async () => (await import('./migrate.command.js')).migrateCommand,
   rehearse: async () => (await import('./rehearse.command.js')).rehearse,
+  backup: async () => (await import('./backup/backup.command.js')).backupCommand,
+  restore: async () => (await import('./backup/restore.command.js')).restoreCommand,
   retention: async () => (await import('./retention.command.js')).retentionCommands,
 };
 
