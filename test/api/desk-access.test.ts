@@ -120,6 +120,8 @@ const DESK_ROUTES: DeskRoute[] = [
     body: () => ({ category: 'ok', reason: 'desk access check' }),
   },
   { method: 'GET', template: '/api/desks/{deskId}/urgent', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/prevalence', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/prevalence.csv', allowed: [S, A] },
   // The set-up's item was never marked urgent: a supervisor gets the service's 404, which is not the guard's.
   { method: 'POST', template: '/api/items/{itemId}/acknowledge', allowed: [S] },
   { method: 'POST', template: '/api/verdicts/{verdictId}/undo', allowed: [R] },

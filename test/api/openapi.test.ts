@@ -362,6 +362,7 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
       urgentReason: 'names a place and a time',
     });
     await call('aud', 'GET', `/api/desks/${deskId}/urgent`);
+    await call('aud', 'GET', `/api/desks/${deskId}/prevalence?period=week&by=imported`);
     await call('sup', 'POST', `/api/items/${urgent.body.item.id}/acknowledge`);
     const live = (await s.call(tokens.aud, 'GET', `/api/desks/${deskId}/verdicts?limit=20`)).body.verdicts.find(
       (v: { undoneAt: string | null }) => v.undoneAt === null,

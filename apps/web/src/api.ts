@@ -54,6 +54,7 @@ export type TermSuggestions = Schemas['TermSuggestions'];
 export type TermSuggestion = TermSuggestions['similar'][number];
 export type TermDecision = Schemas['TermDecision'];
 export type UrgentList = Schemas['UrgentList'];
+export type Prevalence = Schemas['Prevalence'];
 export type UrgentItem = UrgentList['items'][number];
 export type Acknowledged = Schemas['Acknowledged'];
 export type User = Schemas['User'];

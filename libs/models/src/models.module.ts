@@ -8,6 +8,8 @@ import { PublishService } from './publish.service.js';
 import { RetrainScheduler } from './retrain-scheduler.service.js';
 import { ScoringService } from './scoring.service.js';
 import { ScreeningRepository } from './screening/screening.repository.js';
+import { PrevalenceController } from './screening/prevalence.controller.js';
+import { PrevalenceService } from './screening/prevalence.service.js';
 import { ScreenLaneService } from './screening/screen-lane.service.js';
 import { ScreeningService } from './screening/screening.service.js';
 import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
@@ -25,8 +27,8 @@ export class ModelsCoreModule {}
 /** The HTTP side: model versions, coverage, preview, items with predictions. */
 @Module({
   imports: [ModelsCoreModule],
-  controllers: [ModelsController, PredictionsExportController],
-  providers: [ScreeningRepository, ScreeningService],
+  controllers: [ModelsController, PredictionsExportController, PrevalenceController],
+  providers: [ScreeningRepository, ScreeningService, PrevalenceService],
   exports: [ModelsCoreModule],
 })
 export class ModelsModule {}

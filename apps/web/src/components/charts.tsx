@@ -80,6 +80,8 @@ export interface Series {
   name: string;
   className: string;
   points: Array<[number, number]>;
+  /** An interval around the line: [x, lower, upper] per point, drawn as a shaded band. */
+  band?: Array<[number, number, number]>;
 }
 
 /** Lines over a shared x axis, with an optional vertical marker (e.g. the chosen target). */
@@ -94,6 +96,15 @@ export function LineChart(props: Frame & { series: Series[]; marker?: number; su
         )}
         {props.series.map((s) => (
           <g class={`series ${s.className}`}>
+            {s.band && s.band.length > 0 && (
+              <polygon
+                class="band"
+                points={[
+                  ...s.band.map(([x, , hi]) => `${sx(x)},${sy(hi)}`),
+                  ...[...s.band].reverse().map(([x, lo]) => `${sx(x)},${sy(lo)}`),
+                ].join(' ')}
+              />
+            )}
             <polyline fill="none" points={s.points.map(([x, y]) => `${sx(x)},${sy(y)}`).join(' ')} />
             {s.points.length <= 30 && s.points.map(([x, y]) => <circle cx={sx(x)} cy={sy(y)} r={3.5} />)}
           </g>

@@ -6,6 +6,7 @@ import {
   type Desk,
   type ModelList,
   type Progress,
+  type Prevalence,
   type SimulationStatus,
   type UrgentList,
 } from '../api';
@@ -131,6 +132,7 @@ export function DeskOverview({ params }: PageProps) {
           )}
         </section>
       </div>
+      {desk && (desk.role === 'supervisor' || desk.role === 'auditor') && <PrevalenceChart deskId={deskId} />}
       {progress?.reviewers && (
         <section>
           <h2>Reviewers</h2>
@@ -249,6 +251,75 @@ function UrgentItems({ deskId, canAcknowledge }: { deskId: string; canAcknowledg
           </li>
         ))}
       </ul>
+    </section>
+  );
+}
+
+/** Each category's share of each week's posts (or of each week's imports), with its 95 % interval. */
+function PrevalenceChart({ deskId }: { deskId: string }) {
+  const [by, setBy] = useState<'posted' | 'imported'>('posted');
+  const [prev, error] = useData<Prevalence>(`/desks/${deskId}/prevalence?period=week&by=${by}`, [by]);
+  const periods = prev?.periods ?? [];
+  const withFigures = periods.filter((p) => prev!.categories.some((c) => p.perCategory[c].share !== null));
+  const last = Math.max(1, periods.length - 1);
+  const pct = (v: number) => `${Math.round(v * 100)} %`;
+  return (
+    <section class="prevalence">
+      <h2>Share of each category over time</h2>
+      <p>
+        <label>
+          Weeks of{' '}
+          <select value={by} onChange={(e) => setBy(e.currentTarget.value as 'posted' | 'imported')}>
+            <option value="posted">posting</option>
+            <option value="imported">import</option>
+          </select>
+        </label>{' '}
+        ·{' '}
+        <a href={`/api/desks/${deskId}/prevalence.csv?period=week&by=${by}&bom=1`} download>
+          CSV
+        </a>
+      </p>
+      {error && <p class="error">{error}</p>}
+      {prev && withFigures.length === 0 && (
+        <p class="muted">
+          The shares appear once weeks have verdicts on random draws
+          {prev.undated > 0 ? ` (${count(prev.undated)} items have no posting time and are left out)` : ''}.
+        </p>
+      )}
+      {prev && withFigures.length > 0 && (
+        <>
+          <LineChart
+            summary={`Share of each category per week: ${periods
+              .map(
+                (p) =>
+                  `${p.start}: ${prev.categories.map((c) => `${c} ${p.perCategory[c].share === null ? 'no estimate' : pct(p.perCategory[c].share)}`).join(', ')}`,
+              )
+              .join('; ')}.`}
+            xLabel={`week of ${by === 'posted' ? 'posting' : 'import'} (starting Monday)`}
+            yLabel="share of the week's items (%)"
+            x={[0, last]}
+            y={[0, 1]}
+            xTicks={niceTicks(0, last, Math.min(6, last)).filter((v) => Number.isInteger(v))}
+            xFormat={(v) => periods[v]?.start.slice(5) ?? ''}
+            yTicks={[0, 0.25, 0.5, 0.75, 1]}
+            yFormat={pct}
+            series={prev.categories.map((c, i) => {
+              const known = periods.map((p, x) => ({ x, f: p.perCategory[c] })).filter(({ f }) => f.share !== null);
+              return {
+                name: `${c} (band: 95 % interval)`,
+                className: `prev-${i % 5}`,
+                points: known.map(({ x, f }): [number, number] => [x, f.share!]),
+                band: known.map(({ x, f }): [number, number, number] => [x, f.lower, f.upper]),
+              };
+            })}
+          />
+          <p class="muted">
+            {prev.method} {prev.approximation} Random verdicts per week:{' '}
+            {periods.map((p) => `${p.start} ${p.randomVerdicts}`).join(', ')}.
+            {prev.undated > 0 ? ` ${count(prev.undated)} items without a posting time are left out.` : ''}
+          </p>
+        </>
+      )}
     </section>
   );
 }
