@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Queue } from 'bullmq';
@@ -38,7 +38,7 @@ async function waitFor(what: string, probe: () => boolean, timeoutMs = 60_000): 
   }
 }
 
-describe('npm start on an empty data folder', () => {
+describe('npm start on an empty data folder, its output not a terminal', () => {
   const dataDir = mkdtempSync(join(tmpdir(), 'cribra-demo-start-'));
   const prefix = `cribra-test-${randomBytes(4).toString('hex')}`;
   const running: ChildProcess[] = [];
@@ -56,14 +56,19 @@ describe('npm start on an empty data folder', () => {
     rmSync(dataDir, { recursive: true, force: true });
   });
 
-  it('prints the demo accounts once, with passwords that sign in; a second start prints none', async () => {
+  it('writes the demo accounts once to a file only its owner reads, with passwords that sign in; a second start makes none', async () => {
     const port = await freePort();
     const base = `http://127.0.0.1:${port}`;
     const first = start(dataDir, port, prefix);
     running.push(first.child);
-    await waitFor('the demo block', () => /shown only this once/.test(first.out()));
-    expect(first.out()).toContain(`Open ${base}/ and sign in as one of:`);
-    const accounts = accountsInBlock(first.out());
+    // Its output is a pipe, not a terminal: the passwords go to a file only its owner reads, and only the path is printed.
+    const file = join(dataDir, 'demo-accounts.txt');
+    await waitFor('the demo accounts file', () => first.out().includes(`are in ${file} (readable by you only)`));
+    expect(statSync(file).mode & 0o777).toBe(0o600);
+    const block = readFileSync(file, 'utf8');
+    expect(block).toContain(`Open ${base}/ and sign in as one of:`);
+    expect(first.out()).not.toMatch(/password:/);
+    const accounts = accountsInBlock(block);
     expect([...accounts.keys()].sort()).toEqual(['auditor', 'reviewer', 'supervisor']);
     await waitReady(base);
     for (const [name, password] of accounts) {
@@ -81,7 +86,7 @@ describe('npm start on an empty data folder', () => {
     running.push(second.child);
     await waitFor('the start line', () => /Cribra is starting at/.test(second.out()));
     await waitReady(base);
-    expect(second.out()).not.toMatch(/password/);
+    expect(second.out()).not.toMatch(/password|demo-accounts/);
     second.child.kill('SIGTERM');
     await exited(second.child);
   }, 180_000);

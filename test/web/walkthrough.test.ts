@@ -17,7 +17,7 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
 
   beforeAll(async () => {
     s = await startStack('sqlite');
-    seeded = (await seedDemo(s.config))!;
+    seeded = (await seedDemo({ ...s.config, demo: true }))!;
     accounts = accountsInBlock(formatDemoBlock(`${s.base}/`, seeded));
     b = await openBrowser(s.base);
   }, 180_000);

@@ -1,4 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
+import { chmodSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { configToEnv, loadConfig, nodeArgsFor, type AppConfig } from '#config';
 import type { DemoSeedResult } from '#demo';
@@ -117,7 +119,30 @@ async function start(workers: number): Promise<number> {
   await supervisor.run(processes);
   const url = `http://${config.host}:${config.port}/`;
   process.stdout.write(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)\n`);
-  if (seeded) process.stdout.write(`${formatDemoBlock(url, seeded)}\n`);
+  if (seeded) showDemoAccounts(config, formatDemoBlock(url, seeded));
   const code = await supervisor.done;
   process.exit(code);
 }
+
+/**
+ * The demo accounts' passwords go to the terminal. When standard output is not one (a service manager, a log file),
+ * they would end up in a log: they go to `DATA_DIR/demo-accounts.txt`, readable by its owner only, and only its path
+ * is printed.
+ */
+function showDemoAccounts(config: AppConfig, block: string): void {
+  if (process.stdout.isTTY) {
+    process.stdout.write(`${block}\n`);
+    return;
+  }
+  const file = join(config.dataDir, DEMO_ACCOUNTS_FILE);
+  writeFileSync(file, `${block}\n  Delete this file once the passwords are noted.\n`, { mode: 0o600 });
+  // `mode` applies only when the file is created; an older file keeps its own.
+  chmodSync(file, 0o600);
+  process.stdout.write(
+    `Demo desk created. Its three accounts and their passwords are in ${file} (readable by you only): ` +
+      'the output is not a terminal, so they are not printed.\n',
+  );
+}
+
+/** Where `start` writes the demo accounts when its output is not a terminal. */
+export const DEMO_ACCOUNTS_FILE = 'demo-accounts.txt';

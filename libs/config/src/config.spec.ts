@@ -21,6 +21,10 @@ describe('parseConfig', () => {
     expect(parseConfig({ DEMO: 'off' }).demo).toBe(false);
     expect(parseConfig({ DEMO: 'on' }).demo).toBe(true);
     expect(() => parseConfig({ DEMO: 'later' })).toThrow(/DEMO="later": expected on\/off/);
+    // The demo is for the embedded quick start: with a database of one's own it is off unless asked for.
+    expect(parseConfig({ DATABASE_URL: 'postgres://db/cribra' }).demo).toBe(false);
+    expect(parseConfig({ DATABASE_URL: 'sqlite:/srv/other.sqlite' }).demo).toBe(false);
+    expect(parseConfig({ DATABASE_URL: 'postgres://db/cribra', DEMO: 'on' }).demo).toBe(true);
   });
 
   it('reads URGENT_WEBHOOK_URL as an http(s) URL, off by default, and passes it on to child processes', () => {

@@ -36,7 +36,10 @@ export interface AppConfig {
    * (a share of the machine's memory) it lets garbage pile up to hundreds of MB while an export streams.
    */
   readonly apiHeapMb: number;
-  /** On an empty database, `start` creates the Mossbank Commons demo desk, its accounts and its generated posts (DEMO=off: start clean). */
+  /**
+   * On an empty database, `start` creates the Mossbank Commons demo desk, its accounts and its generated posts. On by
+   * default only for the embedded SQLite quick start (no DATABASE_URL); with DATABASE_URL only when DEMO=on.
+   */
   readonly demo: boolean;
   /** Default lifetime of a new API token, in days (`never` is for admins only, asked per token). */
   readonly tokenDays: number;
@@ -248,7 +251,7 @@ export function parseConfig(
     termsAfterSeconds: int('TERMS_AFTER_SECONDS', 30, 0, 86_400),
     retentionHour: int('RETENTION_HOUR', 3, 0, 23),
     apiHeapMb: int('API_HEAP_MB', 512, 128, 65_536),
-    demo: bool('DEMO', true),
+    demo: bool('DEMO', dbUrl === undefined),
     tokenDays: int('TOKEN_DAYS', 90, 1, 3650),
     signIn: {
       perNameAndAddress: int('SIGNIN_ATTEMPTS_PER_NAME_AND_ADDRESS', 5, 1, 100_000),
