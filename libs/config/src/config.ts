@@ -29,6 +29,8 @@ export interface AppConfig {
   readonly sweepSeconds: number;
   /** Hour of the day (UTC, 0–23) at which a worker applies every desk's retention periods. */
   readonly retentionHour: number;
+  /** Keep uploaded import files after their import has finished (off: deleted, since they hold the texts). */
+  readonly keepUploads: boolean;
   /** Seconds after an import or a seed-term change before a desk's words are counted again (a burst gives one count). */
   readonly termsAfterSeconds: number;
   /**
@@ -250,6 +252,7 @@ export function parseConfig(
     sweepSeconds: int('SWEEP_SECONDS', 60, 1, 86_400),
     termsAfterSeconds: int('TERMS_AFTER_SECONDS', 30, 0, 86_400),
     retentionHour: int('RETENTION_HOUR', 3, 0, 23),
+    keepUploads: bool('KEEP_UPLOADS', false),
     apiHeapMb: int('API_HEAP_MB', 512, 128, 65_536),
     demo: bool('DEMO', dbUrl === undefined),
     tokenDays: int('TOKEN_DAYS', 90, 1, 3650),
@@ -302,6 +305,7 @@ export function configToEnv(config: AppConfig): Record<string, string> {
     SWEEP_SECONDS: String(config.sweepSeconds),
     TERMS_AFTER_SECONDS: String(config.termsAfterSeconds),
     RETENTION_HOUR: String(config.retentionHour),
+    KEEP_UPLOADS: config.keepUploads ? 'on' : 'off',
     API_HEAP_MB: String(config.apiHeapMb),
     DEMO: config.demo ? 'on' : 'off',
     TOKEN_DAYS: String(config.tokenDays),

@@ -84,7 +84,7 @@ export class ImportRunner {
       } catch (e) {
         if (!(e instanceof ImportFileError)) throw e;
         await this.fail(importId, `row ${e.row}: ${e.message}; nothing was imported`);
-        rmSync(path, { force: true });
+        this.discard(path);
         throw new UnrecoverableError(e.message);
       }
     }
@@ -139,7 +139,7 @@ export class ImportRunner {
           `row ${e.row}: ${e.message}; ` +
             (kept ? `rows 1 to ${kept} were imported before it and stay` : 'nothing was imported'),
         );
-        rmSync(path, { force: true });
+        this.discard(path);
         throw new UnrecoverableError(e.message);
       }
       throw e;
@@ -156,12 +156,17 @@ export class ImportRunner {
     await this.jobs
       .add(JOBS.countTerms, { deskId: imp.deskId }, { delay: this.config.termsAfterSeconds * 1000 })
       .catch((e: unknown) => this.logger.warn(`term count request after import failed: ${(e as Error).message}`));
-    rmSync(path, { force: true });
+    this.discard(path);
     const done = (await this.db.manager.findOneBy(ImportEntity, { id: importId }))!;
     this.logger.log(
       `import ${importId}: ${done.imported} imported, ${done.duplicates} duplicates, ${done.rejected} rejected of ${done.rowsRead} rows`,
     );
     return done;
+  }
+
+  /** An upload holds the same texts as the items: it goes once its import has finished, unless KEEP_UPLOADS is on. */
+  private discard(path: string): void {
+    if (!this.config.keepUploads) rmSync(path, { force: true });
   }
 
   private async fail(importId: string, failure: string): Promise<void> {
