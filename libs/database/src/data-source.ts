@@ -90,6 +90,8 @@ export function createDataSource(db: DatabaseConfig, options: { poolSize?: numbe
           timeout: 15_000,
           prepareDatabase: (conn: { pragma: (s: string) => unknown }) => {
             conn.pragma('synchronous = NORMAL');
+            // Deleted and overwritten content is zeroed, so an erased text leaves no bytes behind in the file.
+            conn.pragma('secure_delete = ON');
           },
         };
   return new DataSource(opts);

@@ -88,6 +88,17 @@ export class Database {
     });
   }
 
+  /**
+   * After texts were erased: on SQLite, copies the write-ahead log into the file and truncates the log, so it holds no
+   * page written before the erasure (with `secure_delete` on, the file itself keeps no freed bytes). It waits for the
+   * write lock like a write; a reader in another process can keep the log from being truncated, and the next
+   * checkpoint then finishes the work. PostgreSQL: nothing to do here (the README says what its files keep).
+   */
+  async releaseErased(): Promise<void> {
+    if (this.pg) return;
+    await this.mutex.run(() => this.dataSource.query('PRAGMA wal_checkpoint(TRUNCATE)'));
+  }
+
   /** A query parameter for a timestamp, in the form the database compares correctly. */
   time(date: Date): Date | string {
     // TypeORM stores SQLite datetimes as UTC 'YYYY-MM-DD HH:MM:SS.SSS' text; compare like with like.

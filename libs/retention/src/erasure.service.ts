@@ -88,7 +88,7 @@ export class ErasureService {
       sources: sources.length,
       itemIds: itemIds.length,
     };
-    return this.db.write(async (m) => {
+    const view = await this.db.write(async (m) => {
       if (itemIds.length) {
         const found = await this.db.query<{ id: DbInt }>(
           m,
@@ -136,6 +136,8 @@ export class ErasureService {
         now,
       });
     });
+    if (view.erased > 0) await this.db.releaseErased();
+    return view;
   }
 
   /** The desk's erasures, newest first. */
@@ -193,6 +195,7 @@ export class ErasureService {
           });
         return c;
       });
+      if (counts.erased > 0) await this.db.releaseErased();
       total.erased += counts.erased;
       total.unlabelled += counts.unlabelled;
       for (const [k, n] of Object.entries(counts.byCategory)) total.byCategory[k] = (total.byCategory[k] ?? 0) + n;
@@ -234,6 +237,9 @@ export class ErasureService {
         `DELETE FROM second_opinions WHERE state <> 'done' AND item_id IN (${placeholders(ids.length)})`,
         ids,
       );
+      // The desk's word statistics counted these texts (their words, and items as examples): they go until the
+      // next count, which reads only texts that remain.
+      await this.db.query(m, 'DELETE FROM term_statistics WHERE desk_id = $1', [deskId]);
       for (const r of rows) {
         await this.db.query(
           m,

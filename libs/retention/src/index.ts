@@ -8,6 +8,7 @@ export {
 } from './erasure.service.js';
 export { RetentionService, type RetentionRun } from './retention.service.js';
 export { RetentionClock } from './retention-clock.js';
+export { askRecount } from './recount.js';
 export { SubjectService, type SubjectExport } from './subject.service.js';
 export { EraseItemsDto, ERASURE_SELECTOR_MAX } from './erasure.dto.js';
 export {

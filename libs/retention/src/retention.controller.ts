@@ -2,6 +2,9 @@ import { BadRequestException, Controller, HttpCode, Inject, Param, ParseIntPipe,
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
 import { CurrentUser, OnDesk, Roles, type Principal } from '#auth';
+import { APP_CONFIG, type AppConfig } from '#config';
+import { JobQueueService } from '#queues';
+import { askRecount } from './recount.js';
 import { RetentionRunAnswer } from './retention.responses.js';
 import { RetentionService } from './retention.service.js';
 
@@ -10,7 +13,11 @@ const FLAGS: Record<string, boolean> = { '1': true, true: true, '0': false, fals
 @ApiTags('retention')
 @Controller('api/desks/:deskId/retention')
 export class RetentionController {
-  constructor(@Inject(RetentionService) private readonly retention: RetentionService) {}
+  constructor(
+    @Inject(RetentionService) private readonly retention: RetentionService,
+    @Inject(JobQueueService) private readonly jobs: JobQueueService,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
+  ) {}
 
   /** Applies the desk's retention periods now (the daily job does the same for every desk), or counts in a dry run. */
   @Roles('supervisor')
@@ -33,6 +40,8 @@ export class RetentionController {
   ): Promise<Answer<typeof RetentionRunAnswer>> {
     if (dryRun !== undefined && !(dryRun in FLAGS))
       throw new BadRequestException(`dryRun: expected 1, 0, true or false, got ${JSON.stringify(dryRun)}`);
-    return { run: await this.retention.run(user, deskId, { dryRun: dryRun !== undefined && FLAGS[dryRun] }) };
+    const run = await this.retention.run(user, deskId, { dryRun: dryRun !== undefined && FLAGS[dryRun] });
+    if (!run.dryRun && run.items > 0) await askRecount(this.jobs, this.config, deskId);
+    return { run };
   }
 }

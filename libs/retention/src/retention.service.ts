@@ -111,6 +111,7 @@ export class RetentionService {
         count(due.values());
       });
     }
+    if (!result.dryRun && result.items > 0) await this.db.releaseErased();
     return result;
   }
 

@@ -40,7 +40,7 @@ export class TermStatisticsRepository {
     return Number(row?.top ?? 0);
   }
 
-  /** One page of the desk's items up to the watermark, by id: the whole pool, whatever the items' state. */
+  /** One page of the desk's items up to the watermark, by id: the whole pool, whatever the items' state, erased ones left out. */
   async itemPage(
     deskId: number,
     after: number,
@@ -49,18 +49,18 @@ export class TermStatisticsRepository {
   ): Promise<Array<{ id: number; text: string }>> {
     const rows = await this.db.query<{ id: DbInt; text: string }>(
       null,
-      `SELECT id, text FROM items WHERE desk_id = $1 AND id > $2 AND id <= $3 ORDER BY id LIMIT ${size}`,
+      `SELECT id, text FROM items WHERE desk_id = $1 AND id > $2 AND id <= $3 AND erased_at IS NULL ORDER BY id LIMIT ${size}`,
       [deskId, after, upTo],
     );
     return rows.map((r) => ({ id: Number(r.id), text: r.text }));
   }
 
-  /** Texts of some items of the desk, by id. */
+  /** Texts of some items of the desk, by id (erased ones have none). */
   async texts(deskId: number, ids: readonly number[]): Promise<Map<number, string>> {
     if (ids.length === 0) return new Map();
     const rows = await this.db.query<{ id: DbInt; text: string }>(
       null,
-      `SELECT id, text FROM items WHERE desk_id = $1 AND id IN (${ids.map((_, i) => `$${i + 2}`).join(', ')})`,
+      `SELECT id, text FROM items WHERE desk_id = $1 AND erased_at IS NULL AND id IN (${ids.map((_, i) => `$${i + 2}`).join(', ')})`,
       [deskId, ...ids],
     );
     return new Map(rows.map((r) => [Number(r.id), r.text]));
