@@ -8,7 +8,7 @@
  * own processes; a desk watching `threat`; a generated pool (three
  * categories with their own cue words, posted over eight weeks) imported
  * through the API; a reviewer answering from the generated labels until
- * BENCH_SCREENING_VERDICTS verdicts (default 800, half on random draws: enough random verdicts of `threat` for its 0.9 threshold, so a cleared pile exists); the
+ * BENCH_SCREENING_VERDICTS verdicts (default 800, about half on random draws; whether any item is cleared then depends on how the few random verdicts of `threat` spread: `flagged` and `cleared` in the output say); the
  * worker then trains, scores the pool and publishes, and is stopped once the
  * last version is published, so nothing competes with the measured calls.
  * Each call is made once cold (first after publishing) and then
