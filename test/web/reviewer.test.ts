@@ -32,8 +32,18 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     const item = page.locator('article.item');
     await item.waitFor();
     // The prediction set is the main signal, in words; the probabilities are on the same screen.
-    await expect(page.locator('.call .call-word').textContent()).resolves.toMatch(/^. (Sure|Ambiguous|Unfamiliar)/);
+    await expect(page.locator('.call .call-word').textContent()).resolves.toMatch(
+      /^. (Sure|Ambiguous|Unfamiliar|One category left)/,
+    );
     await expect(page.locator('table.probabilities tr').count()).resolves.toBe(3);
+    // The bars follow the keys' order; each category outside the set says why it is ruled out.
+    const rowNames = (await page.locator('table.probabilities th').allInnerTexts()).map((t) => t.split(' ')[0]);
+    expect(rowNames).toEqual(['threat', 'harassment', 'ok']);
+    const inSet = await page.locator('table.probabilities tr.in-set').count();
+    const ruledOut = await page.locator('.ruled-out li').allInnerTexts();
+    expect(ruledOut).toHaveLength(3 - inSet);
+    for (const line of ruledOut)
+      expect(line).toMatch(/^(\w+) is ruled out: fewer than 10 % of \1 posts look this little like \1\.$/);
     // The reviewer is never told why an item was served.
     const text = (await page.locator('main').innerText()).toLowerCase();
     for (const word of ['random', 'uncertainty', 'draw', 'second opinion', 'second-opinion'])

@@ -1,5 +1,32 @@
-import type { Prediction } from '../api';
+import type { Desk, Prediction } from '../api';
 import { pct } from '../format';
+
+/** What the call needs to know of the desk: its categories' targets and the calibration mode. */
+export type CallSettings = Pick<Desk, 'coverageTarget' | 'coverageTargets' | 'calibration'>;
+
+/**
+ * Why each category outside the set is ruled out, in plain words. Per category, a category's threshold lets
+ * through all but its α share of that category's calibration items (Vovk 2012), so a category is ruled out when
+ * fewer than α of its own items look this little like it.
+ */
+export function RuledOut({ prediction, settings }: { prediction: Prediction; settings: CallSettings }) {
+  const out = Object.keys(prediction.probabilities).filter((c) => !prediction.set.includes(c));
+  if (out.length === 0) return null;
+  return (
+    <ul class="ruled-out">
+      {out.map((c) => {
+        const alpha = 1 - (settings.coverageTargets[c] ?? settings.coverageTarget);
+        return (
+          <li>
+            {settings.calibration === 'per-category'
+              ? `${c} is ruled out: fewer than ${pct(alpha)} of ${c} posts look this little like ${c}.`
+              : `${c} is ruled out: at the ${pct(1 - alpha)} coverage target its probability is below what the set needs.`}
+          </li>
+        );
+      })}
+    </ul>
+  );
+}
 
 /**
  * The model's triage call in words first: the shape and the word carry the
@@ -16,9 +43,28 @@ export function CallStatement({ prediction, target }: { prediction: Prediction |
   }
   const level = pct(target);
   const { call, set } = prediction;
+  const probs = prediction.probabilities;
+  const ranked = Object.entries(probs).sort((a, b) => b[1] - a[1]);
+  const top = ranked.length > 0 ? ranked[0][0] : null;
+  // A set of one that is not the most probable category: say so rather than "Sure".
+  const leftNotTop = call === 'sure' && top !== null && top !== set[0];
   return (
     <div class={`call call-${call}`} data-call={call}>
-      {call === 'sure' && (
+      {leftNotTop && (
+        <>
+          <p class="call-word">
+            <span aria-hidden="true" class="call-icon">
+              ◑
+            </span>{' '}
+            One category left: <strong>{set[0]}</strong>
+          </p>
+          <p class="call-detail">
+            At {level} coverage the prediction set holds only {set[0]} (a “sure” call), yet the model finds {top} more
+            probable ({pct(probs[top], 1)} against {pct(probs[set[0]], 1)}). Read it with care.
+          </p>
+        </>
+      )}
+      {call === 'sure' && !leftNotTop && (
         <>
           <p class="call-word">
             <span aria-hidden="true" class="call-icon">
@@ -26,7 +72,9 @@ export function CallStatement({ prediction, target }: { prediction: Prediction |
             </span>{' '}
             Sure: <strong>{set[0]}</strong>
           </p>
-          <p class="call-detail">At {level} coverage the prediction set holds one category.</p>
+          <p class="call-detail">
+            Sure: at {level} coverage the prediction set holds one category (ambiguous: several; unfamiliar: none).
+          </p>
         </>
       )}
       {call === 'ambiguous' && (
@@ -63,9 +111,10 @@ export function CallStatement({ prediction, target }: { prediction: Prediction |
   );
 }
 
-/** Probabilities as labelled bars, highest first. */
-export function Probabilities({ prediction }: { prediction: Prediction }) {
-  const rows = Object.entries(prediction.probabilities).sort((a, b) => b[1] - a[1]);
+/** Probabilities as labelled bars, in the order of the desk's keys (`order`), else highest first. */
+export function Probabilities({ prediction, order }: { prediction: Prediction; order?: string[] }) {
+  const rank = (c: string) => (order ? order.indexOf(c) : -1);
+  const rows = Object.entries(prediction.probabilities).sort((a, b) => (order ? rank(a[0]) - rank(b[0]) : b[1] - a[1]));
   return (
     <table class="probabilities">
       <caption>Model probabilities (version {prediction.modelVersion})</caption>

@@ -15,7 +15,7 @@ import {
   type VerdictCount,
 } from '../api';
 import { useInterval, type PageProps } from '../app';
-import { CallStatement, Probabilities } from '../components/call';
+import { CallStatement, Probabilities, RuledOut } from '../components/call';
 import { HighlightedText } from '../components/highlighted-text';
 import { countHidden } from '../hidden-characters';
 import { clock, when } from '../format';
@@ -426,7 +426,8 @@ export function QueuePage({ params }: PageProps) {
       </div>
       <aside class="queue-side" aria-label="Decision">
         {grant && <CallStatement prediction={grant.prediction} target={desk?.coverageTarget ?? 0.9} />}
-        {grant?.prediction && <Probabilities prediction={grant.prediction} />}
+        {grant?.prediction && desk && <RuledOut prediction={grant.prediction} settings={desk} />}
+        {grant?.prediction && <Probabilities prediction={grant.prediction} order={desk ? categories : undefined} />}
         {grant && (
           <div class="decide">
             <h2 class="sr-only">Your verdict</h2>
