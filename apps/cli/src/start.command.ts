@@ -50,6 +50,9 @@ async function start(workers: number): Promise<number> {
   const { seedDemo } = await import('./demo-seed.js');
   const { RedisMissingError, startPrivateRedis } = await import('./redis-launcher.js');
   const { Supervisor } = await import('./supervisor.js');
+  const { createRootLogger } = await import('#logging');
+  // The launcher's own lines in the processes' format (LOG_FORMAT: JSON when the output is not a terminal).
+  const logger = createRootLogger(config, 'launcher');
   let redis: Awaited<ReturnType<typeof startPrivateRedis>> | null = null;
   if (!config.redisUrl) {
     try {
@@ -59,7 +62,7 @@ async function start(workers: number): Promise<number> {
       return e instanceof RedisMissingError ? 3 : 1;
     }
     config = { ...config, redisUrl: redis.url };
-    process.stdout.write(`private redis-server at ${redis.url} (files in ${config.dataDir}/redis)\n`);
+    logger.info(`private redis-server at ${redis.url} (files in ${config.dataDir}/redis)`);
   }
   const ds = await openDatabase(config.database);
   await ds.destroy();
@@ -68,7 +71,7 @@ async function start(workers: number): Promise<number> {
     seeded = await seedDemo(config);
   } catch (e) {
     // The service is still usable without its demo.
-    process.stderr.write(`the demo could not be set up: ${(e as Error).message}\n`);
+    logger.warn(`the demo could not be set up: ${(e as Error).message}`);
   }
 
   const env = { ...process.env, ...configToEnv(config) };
@@ -76,7 +79,8 @@ async function start(workers: number): Promise<number> {
     restartLimit: config.restartLimit,
     windowMs: config.restartWindowMinutes * 60_000,
     dataDir: config.dataDir,
-    log: (line) => process.stderr.write(`launcher: ${line}\n`),
+    // Every line of the supervisor's is about a process that died or could not be kept running.
+    log: (line) => logger.warn(line),
   });
   // Signals end the launcher whatever state its processes are in (a second one kills them at once).
   process.on('SIGINT', () => supervisor.signal());
@@ -118,8 +122,8 @@ async function start(workers: number): Promise<number> {
   }
   await supervisor.run(processes);
   const url = `http://${config.host}:${config.port}/`;
-  process.stdout.write(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)\n`);
-  if (seeded) showDemoAccounts(config, formatDemoBlock(url, seeded));
+  logger.info(`Cribra is starting at ${url} (API document: /api/docs; Ctrl+C stops)`);
+  if (seeded) showDemoAccounts(config, formatDemoBlock(url, seeded), (line) => logger.info(line));
   const code = await supervisor.done;
   process.exit(code);
 }
@@ -129,7 +133,7 @@ async function start(workers: number): Promise<number> {
  * they would end up in a log: they go to `DATA_DIR/demo-accounts.txt`, readable by its owner only, and only its path
  * is printed.
  */
-function showDemoAccounts(config: AppConfig, block: string): void {
+function showDemoAccounts(config: AppConfig, block: string, log: (line: string) => void): void {
   if (process.stdout.isTTY) {
     process.stdout.write(`${block}\n`);
     return;
@@ -138,9 +142,9 @@ function showDemoAccounts(config: AppConfig, block: string): void {
   writeFileSync(file, `${block}\n  Delete this file once the passwords are noted.\n`, { mode: 0o600 });
   // `mode` applies only when the file is created; an older file keeps its own.
   chmodSync(file, 0o600);
-  process.stdout.write(
+  log(
     `Demo desk created. Its three accounts and their passwords are in ${file} (readable by you only): ` +
-      'the output is not a terminal, so they are not printed.\n',
+      'the output is not a terminal, so they are not printed.',
   );
 }
 
