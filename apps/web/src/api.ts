@@ -63,6 +63,7 @@ export type NewUser = Schemas['NewUser'];
 export type Member = Schemas['Member'];
 export type MemberList = Schemas['MemberList'];
 export type MemberRole = Member['role'];
+export type RetentionRun = Schemas['RetentionRun'];
 
 export class ApiError extends Error {
   constructor(

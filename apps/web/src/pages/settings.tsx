@@ -2,6 +2,7 @@ import { useState } from 'preact/hooks';
 import { patch, type Desk } from '../api';
 import { useData, type PageProps } from '../app';
 import { DeskForm } from '../components/desk-form';
+import { RetentionPanel } from '../components/retention-panel';
 import { TermSuggestionsPanel } from '../components/term-suggestions';
 
 export function SettingsPage({ params }: PageProps) {
@@ -32,6 +33,7 @@ export function SettingsPage({ params }: PageProps) {
           }}
         />
       )}
+      {desk && <RetentionPanel key={desk.updatedAt} desk={desk} onSaved={reload} />}
       {desk && <TermSuggestionsPanel desk={desk} onSeedTermsChanged={reload} />}
     </section>
   );
