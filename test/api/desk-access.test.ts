@@ -89,6 +89,7 @@ const DESK_ROUTES: DeskRoute[] = [
   { method: 'GET', template: '/api/desks/{deskId}/simulation', allowed: [S] },
   { method: 'POST', template: '/api/desks/{deskId}/simulation', allowed: [S], body: () => ({ minutes: 1 }) },
   { method: 'DELETE', template: '/api/desks/{deskId}/simulation', allowed: [S] },
+  { method: 'GET', template: '/api/desks/{deskId}/keyword-counts', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/term-suggestions', allowed: [S], query: '?category=ok' },
   {
     method: 'POST',

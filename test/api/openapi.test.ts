@@ -341,6 +341,7 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('aud', 'GET', `/api/desks/${deskId}/verdicts?limit=20&category=ok`);
     await call('sup', 'GET', `/api/desks/${deskId}/models`);
     await call('sup', 'GET', `/api/desks/${deskId}/term-suggestions?category=threat&limit=5`);
+    await call('aud', 'GET', `/api/desks/${deskId}/keyword-counts?period=week`);
     await call('sup', 'POST', `/api/desks/${deskId}/term-suggestions/dismiss`, { category: 'threat', term: 'tonight' });
     await call('sup', 'POST', `/api/desks/${deskId}/term-suggestions/accept`, { category: 'threat', term: 'burn' });
     await call('aud', 'GET', `/api/desks/${deskId}/models/1`);

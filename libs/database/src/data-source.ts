@@ -28,6 +28,7 @@ import { ScreeningSettings1766400000000 } from './migrations/1766400000000-scree
 import { ScreenLane1766410000000 } from './migrations/1766410000000-screen-lane.js';
 import { Escalations1766420000000 } from './migrations/1766420000000-escalations.js';
 import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-suggestions.js';
+import { KeywordCounts1766510000000 } from './migrations/1766510000000-keyword-counts.js';
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
 
@@ -65,6 +66,7 @@ export const MIGRATIONS = [
   ScreenLane1766410000000,
   Escalations1766420000000,
   TermSuggestions1766500000000,
+  KeywordCounts1766510000000,
   Erasure1766700000000,
   Retention1766700000001,
 ];

@@ -1,6 +1,7 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { Database, type DbInt } from '#database';
+import type { KeywordDays, LabelledDraw } from './keyword-days.js';
 
 export interface StoredTermStatistics {
   deskId: number;
@@ -12,6 +13,8 @@ export interface StoredTermStatistics {
   vocabularySize: number;
   figures: Record<string, number>;
   data: Uint8Array;
+  /** Keyword counts per day, counted with the same seed terms; null for statistics stored before they were kept. */
+  keywordDays: KeywordDays | null;
 }
 
 interface StatisticsRow {
@@ -23,6 +26,7 @@ interface StatisticsRow {
   vocabulary_size: DbInt;
   figures: string;
   data: Uint8Array;
+  keyword_days: string | null;
 }
 
 /** All SQL of the seed-term suggestions: the pool read in pages, the stored statistics, the dismissals. */
@@ -46,13 +50,57 @@ export class TermStatisticsRepository {
     after: number,
     upTo: number,
     size: number,
-  ): Promise<Array<{ id: number; text: string }>> {
-    const rows = await this.db.query<{ id: DbInt; text: string }>(
+  ): Promise<Array<{ id: number; text: string; postedAt: Date | null; importedAt: Date }>> {
+    const rows = await this.db.query<{ id: DbInt; text: string; posted_at: unknown; imported_at: unknown }>(
       null,
-      `SELECT id, text FROM items WHERE desk_id = $1 AND id > $2 AND id <= $3 AND erased_at IS NULL ORDER BY id LIMIT ${size}`,
+      `SELECT id, text, posted_at, imported_at FROM items WHERE desk_id = $1 AND id > $2 AND id <= $3 AND erased_at IS NULL ORDER BY id LIMIT ${size}`,
       [deskId, after, upTo],
     );
-    return rows.map((r) => ({ id: Number(r.id), text: r.text }));
+    return rows.map((r) => ({
+      id: Number(r.id),
+      text: r.text,
+      postedAt: this.db.parseTime(r.posted_at),
+      importedAt: this.db.parseTime(r.imported_at)!,
+    }));
+  }
+
+  /**
+   * The desk's random-draw items that still hold their text, each with the
+   * category of its latest random-draw verdict (a settlement overrides it;
+   * abstentions and undone verdicts left out) and its dates.
+   */
+  async randomDraws(deskId: number): Promise<LabelledDraw[]> {
+    const rows = await this.db.query<{
+      item_id: DbInt;
+      category: string | null;
+      text: string;
+      posted_at: unknown;
+      imported_at: unknown;
+    }>(
+      null,
+      `SELECT v.item_id, COALESCE(
+           (SELECT c2.name FROM settlements s JOIN categories c2 ON c2.id = s.category_id
+             WHERE s.item_id = v.item_id ORDER BY s.id DESC LIMIT 1),
+           c.name) AS category,
+         i.text, i.posted_at, i.imported_at
+       FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id JOIN items i ON i.id = v.item_id
+       WHERE v.desk_id = $1 AND v.draw = 'random' AND v.undone_at IS NULL AND i.erased_at IS NULL ORDER BY v.id`,
+      [deskId],
+    );
+    const byItem = new Map<number, LabelledDraw>();
+    for (const r of rows) {
+      if (r.category === null) {
+        byItem.delete(Number(r.item_id));
+        continue;
+      }
+      byItem.set(Number(r.item_id), {
+        text: r.text,
+        label: r.category,
+        postedAt: this.db.parseTime(r.posted_at),
+        importedAt: this.db.parseTime(r.imported_at)!,
+      });
+    }
+    return [...byItem.values()];
   }
 
   /** Texts of some items of the desk, by id (erased ones have none). */
@@ -70,11 +118,12 @@ export class TermStatisticsRepository {
     await this.db.write(async (m) => {
       await this.db.query(
         m,
-        `INSERT INTO term_statistics (desk_id, computed_at, item_watermark, items_counted, seed_terms_key, model_version, vocabulary_size, figures, data)
-         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)
+        `INSERT INTO term_statistics (desk_id, computed_at, item_watermark, items_counted, seed_terms_key, model_version, vocabulary_size, figures, data, keyword_days)
+         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10)
          ON CONFLICT (desk_id) DO UPDATE SET computed_at = excluded.computed_at, item_watermark = excluded.item_watermark,
            items_counted = excluded.items_counted, seed_terms_key = excluded.seed_terms_key, model_version = excluded.model_version,
-           vocabulary_size = excluded.vocabulary_size, figures = excluded.figures, data = excluded.data`,
+           vocabulary_size = excluded.vocabulary_size, figures = excluded.figures, data = excluded.data,
+           keyword_days = excluded.keyword_days`,
         [
           s.deskId,
           this.db.time(s.computedAt),
@@ -85,6 +134,7 @@ export class TermStatisticsRepository {
           s.vocabularySize,
           JSON.stringify(s.figures),
           Buffer.from(s.data.buffer, s.data.byteOffset, s.data.byteLength),
+          s.keywordDays === null ? null : JSON.stringify(s.keywordDays),
         ],
       );
     });
@@ -103,7 +153,7 @@ export class TermStatisticsRepository {
   async load(deskId: number): Promise<StoredTermStatistics | undefined> {
     const row = await this.db.queryOne<StatisticsRow>(
       null,
-      'SELECT computed_at, item_watermark, items_counted, seed_terms_key, model_version, vocabulary_size, figures, data FROM term_statistics WHERE desk_id = $1',
+      'SELECT computed_at, item_watermark, items_counted, seed_terms_key, model_version, vocabulary_size, figures, data, keyword_days FROM term_statistics WHERE desk_id = $1',
       [deskId],
     );
     if (!row) return undefined;
@@ -117,6 +167,7 @@ export class TermStatisticsRepository {
       vocabularySize: Number(row.vocabulary_size),
       figures: JSON.parse(row.figures) as Record<string, number>,
       data: row.data,
+      keywordDays: row.keyword_days === null ? null : (JSON.parse(row.keyword_days) as KeywordDays),
     };
   }
 

@@ -11,6 +11,7 @@ import {
   type Featurizer,
 } from '#learning';
 import { DeskFeaturesService, ModelStore } from '#models';
+import { KeywordDayCounter } from './keyword-days.js';
 import { EXAMPLES_PER_WORD, encodeTermStatistics } from './term-statistics.codec.js';
 import { TermStatisticsRepository } from './term-statistics.repository.js';
 import { termLeanings } from './term-leaning.js';
@@ -79,9 +80,16 @@ export class TermStatisticsService {
     const tokensOf = (text: string) => join(featurizer.tokens(text));
 
     const words = new VocabularyCounter({ maxTracked: TERM_TRACKED_WORDS });
+    const keywordDays = new KeywordDayCounter(
+      desk.seedTerms,
+      categories.map((c) => c.name),
+    );
     let items = 0;
     for await (const page of this.pages(deskId, watermark)) {
-      for (const item of page) words.add(tokensOf(item.text));
+      for (const item of page) {
+        words.add(tokensOf(item.text));
+        keywordDays.add(item);
+      }
       items += page.length;
     }
     const vocabulary = words.vocabulary({ size: TERM_VOCABULARY_SIZE, minCount: TERM_MIN_COUNT, keep: seedKeys });
@@ -140,6 +148,7 @@ export class TermStatisticsService {
       vocabularySize: vocabulary.length,
       figures,
       data,
+      keywordDays: keywordDays.result(),
     });
     this.logger.log(
       `desk ${deskId}: term statistics of ${items} items, ${vocabulary.length} words in ${figures.totalMs} ms`,
@@ -147,7 +156,10 @@ export class TermStatisticsService {
     return figures;
   }
 
-  private async *pages(deskId: number, watermark: number): AsyncGenerator<Array<{ id: number; text: string }>> {
+  private async *pages(
+    deskId: number,
+    watermark: number,
+  ): AsyncGenerator<Array<{ id: number; text: string; postedAt: Date | null; importedAt: Date }>> {
     let after = 0;
     for (;;) {
       const page = await this.repository.itemPage(deskId, after, watermark, PAGE);
