@@ -194,6 +194,16 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     );
     await expect(page.locator('table.data').innerText()).resolves.toContain('robin');
     await page.locator('svg.chart').first().waitFor();
+    // Keyword counts: what the API says, in words and a table (the worker counts the pool some seconds after an import).
+    const kc = (await s.call(sup, 'GET', `/api/desks/${deskId}/keyword-counts?period=week`)).body;
+    const section = page.locator('section.keyword-counts');
+    await expect(section.getByRole('heading', { name: 'Keyword counts over time' }).isVisible()).resolves.toBe(true);
+    if (kc.categories.length === 0) {
+      await expect(section.innerText()).resolves.toMatch(/appear once the desk has seed terms/);
+    } else {
+      const threat = section.getByRole('row').filter({ has: page.getByRole('rowheader', { name: 'threat' }) });
+      await expect(threat.innerText()).resolves.toContain(String(kc.total.perCategory.threat.matches));
+    }
     expect(b.foreign).toEqual([]);
   });
 });

@@ -55,6 +55,7 @@ export type TermSuggestion = TermSuggestions['similar'][number];
 export type TermDecision = Schemas['TermDecision'];
 export type UrgentList = Schemas['UrgentList'];
 export type Prevalence = Schemas['Prevalence'];
+export type KeywordCounts = Schemas['KeywordCounts'];
 export type UrgentItem = UrgentList['items'][number];
 export type Acknowledged = Schemas['Acknowledged'];
 export type User = Schemas['User'];

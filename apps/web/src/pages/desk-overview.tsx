@@ -7,6 +7,7 @@ import {
   type ModelList,
   type Progress,
   type Prevalence,
+  type KeywordCounts,
   type SimulationStatus,
   type UrgentList,
 } from '../api';
@@ -133,6 +134,7 @@ export function DeskOverview({ params }: PageProps) {
         </section>
       </div>
       {desk && (desk.role === 'supervisor' || desk.role === 'auditor') && <PrevalenceChart deskId={deskId} />}
+      {desk && (desk.role === 'supervisor' || desk.role === 'auditor') && <KeywordCountsChart deskId={deskId} />}
       {progress?.reviewers && (
         <section>
           <h2>Reviewers</h2>
@@ -317,6 +319,80 @@ function PrevalenceChart({ deskId }: { deskId: string }) {
             {prev.method} {prev.approximation} Random verdicts per week:{' '}
             {periods.map((p) => `${p.start} ${p.randomVerdicts}`).join(', ')}.
             {prev.undated > 0 ? ` ${count(prev.undated)} items without a posting time are left out.` : ''}
+          </p>
+        </>
+      )}
+    </section>
+  );
+}
+
+/** Items matching each category's seed terms per week, and how far that count is off on the random draws. */
+function KeywordCountsChart({ deskId }: { deskId: string }) {
+  const [kc, error] = useData<KeywordCounts>(`/desks/${deskId}/keyword-counts?period=week&by=posted`);
+  const periods = kc?.periods ?? [];
+  const last = Math.max(1, periods.length - 1);
+  const top = Math.max(1, ...periods.flatMap((p) => Object.values(p.perCategory).map((f) => f.matches)));
+  const share = (s: { estimate: number | null; lower: number; upper: number; n: number }) =>
+    s.estimate === null
+      ? 'no random draw yet'
+      : `${Math.round(s.estimate * 100)} % (${Math.round(s.lower * 100)}–${Math.round(s.upper * 100)} %, ${count(s.n)} draws)`;
+  return (
+    <section class="keyword-counts">
+      <h2>Keyword counts over time</h2>
+      {error && <p class="error">{error}</p>}
+      {kc && kc.categories.length === 0 && (
+        <p class="muted">Keyword counts appear once the desk has seed terms and its texts have been counted.</p>
+      )}
+      {kc && kc.categories.length > 0 && (
+        <>
+          {periods.length > 0 && (
+            <LineChart
+              summary={`Items matching the seed terms per week: ${periods
+                .map((p) => `${p.start}: ${kc.categories.map((c) => `${c} ${p.perCategory[c].matches}`).join(', ')}`)
+                .join('; ')}.`}
+              xLabel="week of posting (starting Monday)"
+              yLabel="items matching the seed terms"
+              x={[0, last]}
+              y={[0, top]}
+              xTicks={niceTicks(0, last, Math.min(6, last)).filter((v) => Number.isInteger(v))}
+              xFormat={(v) => periods[v]?.start.slice(5) ?? ''}
+              yTicks={niceTicks(0, top, 4)}
+              yFormat={(v) => count(v)}
+              series={kc.categories.map((c, i) => ({
+                name: c,
+                className: `prev-${i % 5}`,
+                points: periods.map((p, x): [number, number] => [x, p.perCategory[c].matches]),
+              }))}
+            />
+          )}
+          <TableBox label="Keyword counts against the random draws">
+            <table>
+              <caption>How far the keyword count is off, on the random draws of every week</caption>
+              <thead>
+                <tr>
+                  <th scope="col">category</th>
+                  <th scope="col">items matching</th>
+                  <th scope="col">precision: matches that are the category</th>
+                  <th scope="col">recall: the category's items that match</th>
+                </tr>
+              </thead>
+              <tbody>
+                {kc.categories.map((c) => (
+                  <tr key={c}>
+                    <th scope="row">{c}</th>
+                    <td>{count(kc.total.perCategory[c].matches)}</td>
+                    <td>{share(kc.total.perCategory[c].precision)}</td>
+                    <td>{share(kc.total.perCategory[c].recall)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </TableBox>
+          <p class="muted">
+            Precision below 100 % means the keyword list over-counts (a word with several senses); recall below 100 %
+            means it under-counts (the category said in other words). Intervals are 95 %.
+            {kc.stale ? ' The seed terms changed after the last count; the counts follow within a minute or so.' : ''}
+            {kc.undated > 0 ? ` ${count(kc.undated)} items without a posting time are left out.` : ''}
           </p>
         </>
       )}
