@@ -9,4 +9,5 @@ export { PublishService } from './publish.service.js';
 export { priorityOf } from './priority.js';
 export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';
 export { ScreenLaneService } from './screening/screen-lane.service.js';
+export { periodStart } from './screening/prevalence.service.js';
 export { setOptionsOf, targetsOf, type SetSettings } from './set-options.js';

@@ -1,17 +1,18 @@
 import { describe, expect, it } from 'vitest';
-import { KeywordDayCounter, keywordFigures, periodStart } from './keyword-days.js';
+import { periodStart } from '#models';
+import { KeywordDayCounter, keywordFigures } from './keyword-days.js';
 
 describe('periodStart', () => {
   it('starts weeks on Monday as ISO 8601 does, across month and year ends', () => {
     // ISO 8601 weeks start on Monday (week 1 holds the year's first Thursday): Friday 1 January 2021 lies in
     // week 53 of 2020, which began on Monday 28 December 2020.
-    expect(periodStart('2021-01-01', 'week')).toBe('2020-12-28');
-    expect(periodStart('2021-01-03', 'week')).toBe('2020-12-28');
-    expect(periodStart('2021-01-04', 'week')).toBe('2021-01-04');
-    expect(periodStart('2026-11-15', 'week')).toBe('2026-11-09');
-    expect(periodStart('2024-02-29', 'month')).toBe('2024-02-01');
-    expect(periodStart('2024-02-29', 'day')).toBe('2024-02-29');
-    expect(() => periodStart('29/02/2024', 'day')).toThrow(/not a day/);
+    const at = (iso: string) => new Date(iso);
+    expect(periodStart(at('2021-01-01T12:00:00Z'), 'week')).toBe('2020-12-28');
+    expect(periodStart(at('2021-01-03T23:59:59Z'), 'week')).toBe('2020-12-28');
+    expect(periodStart(at('2021-01-04T00:00:00Z'), 'week')).toBe('2021-01-04');
+    expect(periodStart(at('2026-11-15T23:30:00Z'), 'week')).toBe('2026-11-09');
+    expect(periodStart(at('2024-02-29T10:00:00Z'), 'month')).toBe('2024-02-01');
+    expect(periodStart(at('2024-02-29T10:00:00Z'), 'day')).toBe('2024-02-29');
   });
 });
 

@@ -1,4 +1,5 @@
 import { compileSeedTerms, wilsonInterval, type SeedTermMatcher } from '#learning';
+import { periodStart } from '#models';
 
 /** The periods keyword counts are summed over. */
 export const KEYWORD_PERIODS = ['day', 'week', 'month'] as const;
@@ -65,19 +66,6 @@ export class KeywordDayCounter {
       undated: this.undated,
     };
   }
-}
-
-/**
- * The first day of the period holding `isoDay` (`YYYY-MM-DD`, UTC): the day
- * itself, the Monday of its ISO 8601 week, or the first of its month.
- */
-export function periodStart(isoDay: string, period: KeywordPeriod): string {
-  if (!/^\d{4}-\d{2}-\d{2}$/.test(isoDay)) throw new TypeError(`periodStart: not a day: ${isoDay}`);
-  if (period === 'day') return isoDay;
-  if (period === 'month') return `${isoDay.slice(0, 7)}-01`;
-  const d = new Date(`${isoDay}T00:00:00Z`);
-  const sinceMonday = (d.getUTCDay() + 6) % 7;
-  return day(new Date(d.getTime() - sinceMonday * 86_400_000));
 }
 
 /** A share with its Wilson 95 % interval; `estimate` null (and the interval 0–1) when nothing was counted. */
@@ -164,7 +152,7 @@ export function keywordFigures(
     return t;
   };
   for (const [d, counts] of Object.entries(by === 'posted' ? days.posted : days.imported)) {
-    const t = at(periodStart(d, period));
+    const t = at(periodStart(new Date(`${d}T00:00:00Z`), period));
     t.items += counts[0];
     total.items += counts[0];
     for (let c = 0; c < k; c++) {
@@ -175,7 +163,7 @@ export function keywordFigures(
   for (const draw of draws) {
     const date = by === 'posted' ? draw.postedAt : draw.importedAt;
     if (date === null) continue;
-    for (const t of [at(periodStart(day(date), period)), total]) {
+    for (const t of [at(periodStart(date, period)), total]) {
       t.draws++;
       matchers.forEach(({ category, matcher }, c) => {
         const hit = matcher.count(draw.text) > 0;
