@@ -149,6 +149,12 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
     { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/models/1/report.json`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/models/1/report.html`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/keyword-counts`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/urgent`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/prevalence`, allowed: ['supervisor', 'auditor'] },
+    { method: 'GET', path: `/api/desks/${deskId}/prevalence.csv`, allowed: ['supervisor', 'auditor'] },
+    // The item was never marked urgent: a supervisor gets the service's 404, not the guard's 403.
+    { method: 'POST', path: `/api/items/${itemId}/acknowledge`, allowed: ['supervisor'] },
     { method: 'GET', path: `/api/desks/${deskId}/term-suggestions`, allowed: ['supervisor'] },
     {
       method: 'POST',
