@@ -190,9 +190,10 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     );
     expect(audited).toHaveLength(rows.length);
     expect(audited.every((a) => (JSON.parse(a.after) as { simulated?: boolean }).simulated === true)).toBe(true);
-    // It answers from the hidden categories: with a 5 % error rate and 1 % abstentions, at most a few of 20+ differ.
-    const right = rows.filter((r) => r.category === truth.get(r.external_id)).length;
-    expect(right / rows.length).toBeGreaterThanOrEqual(0.8);
+    // It answers from the hidden categories, wrong 1 time in 20 and abstaining 1 in 100: the answers that differ
+    // are Binomial(n, 0.06). Allow up to the count that a correct simulator exceeds less than once in 1 000 runs.
+    const differ = rows.filter((r) => r.category !== truth.get(r.external_id)).length;
+    expect(differ).toBeLessThanOrEqual(binomialUpperQuantile(rows.length, 0.06, 0.001));
     const actions = (
       await s.db.query<{ action: string }>(
         null,
@@ -249,3 +250,15 @@ describe.each(DATABASE_KINDS)('the Mossbank Commons demo on %s', (kind) => {
     });
   }, 120_000);
 });
+
+/** The smallest k with P(X > k) < tail for X ~ Binomial(n, p), summing the probability mass directly. */
+function binomialUpperQuantile(n: number, p: number, tail: number): number {
+  let mass = (1 - p) ** n;
+  let below = mass;
+  for (let k = 0; k < n; k++) {
+    if (1 - below < tail) return k;
+    mass *= ((n - k) / (k + 1)) * (p / (1 - p));
+    below += mass;
+  }
+  return n;
+}

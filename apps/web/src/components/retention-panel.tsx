@@ -12,7 +12,16 @@ const show = (d: number | null | undefined) => (d === null || d === undefined ? 
  * The desk's retention periods: how long texts are kept, per category for decided items, and a dry run that says how
  * many items the periods would erase now, by category. The daily run erases them.
  */
-export function RetentionPanel({ desk, onSaved }: { desk: Desk; onSaved: () => void }) {
+export function RetentionPanel({
+  desk,
+  saved,
+  onSaved,
+}: {
+  desk: Desk;
+  /** The notice of the last save, kept by the page: the panel is drawn afresh once the saved desk comes back. */
+  saved: string | null;
+  onSaved: (notice: string | null) => void;
+}) {
   const [decided, setDecided] = useState(show(desk.retention.decidedAfterDays));
   const [open, setOpen] = useState(show(desk.retention.openAfterDays));
   const [perCategory, setPerCategory] = useState<Record<string, string>>(
@@ -20,7 +29,7 @@ export function RetentionPanel({ desk, onSaved }: { desk: Desk; onSaved: () => v
   );
   const [busy, setBusy] = useState(false);
   const [failure, setFailure] = useState<string | null>(null);
-  const [notice, setNotice] = useState<string | null>(null);
+  const [notice, setNotice] = useState<string | null>(saved);
   const [dry, setDry] = useState<RetentionRun['run'] | null>(null);
 
   const act = async (what: () => Promise<void>) => {
@@ -47,8 +56,9 @@ export function RetentionPanel({ desk, onSaved }: { desk: Desk; onSaved: () => v
         retention: { decidedAfterDays: days(decided), openAfterDays: days(open), categories },
       });
       setDry(null);
-      setNotice('Retention periods saved. The change is kept in the audit trail.');
-      onSaved();
+      const message = 'Retention periods saved. The change is kept in the audit trail.';
+      setNotice(message);
+      onSaved(message);
     });
   };
   const dryRun = () =>

@@ -8,6 +8,8 @@ import { TermSuggestionsPanel } from '../components/term-suggestions';
 export function SettingsPage({ params }: PageProps) {
   const [desk, error, reload] = useData<Desk>(`/desks/${params.deskId}`);
   const [saved, setSaved] = useState<string | null>(null);
+  // Kept here: the retention panel is drawn afresh (its key) once the saved desk comes back.
+  const [retentionSaved, setRetentionSaved] = useState<string | null>(null);
   return (
     <section class="page narrow">
       <h1>Settings</h1>
@@ -33,7 +35,17 @@ export function SettingsPage({ params }: PageProps) {
           }}
         />
       )}
-      {desk && <RetentionPanel key={desk.updatedAt} desk={desk} onSaved={reload} />}
+      {desk && (
+        <RetentionPanel
+          key={desk.updatedAt}
+          desk={desk}
+          saved={retentionSaved}
+          onSaved={(message) => {
+            setRetentionSaved(message);
+            reload();
+          }}
+        />
+      )}
       {desk && <TermSuggestionsPanel desk={desk} onSeedTermsChanged={reload} />}
     </section>
   );
