@@ -46,8 +46,7 @@ describe.each(DATABASE_KINDS)('uploaded files on %s', (kind) => {
     expect(existsSync(failed.file)).toBe(false);
   });
 
-  // The setting only decides whether a file is removed; one database is enough to show that it is kept.
-  it.runIf(kind === 'sqlite')('are kept with KEEP_UPLOADS=on', async () => {
+  it('are kept with KEEP_UPLOADS=on', async () => {
     const s = await startStack(kind, { env: { KEEP_UPLOADS: 'on' } });
     stacks.push(s);
     const sup = await s.user('up-sup', 'supervisor');
