@@ -56,7 +56,14 @@ export class AuthService {
         throw new AuthConflict(`a user named ${JSON.stringify(name)} exists already`);
       const user = await m.save(
         UserEntity,
-        m.create(UserEntity, { name, role: input.role, passwordHash, disabled: false, createdAt: new Date() }),
+        m.create(UserEntity, {
+          name,
+          role: input.role,
+          passwordHash,
+          disabled: false,
+          isSystem: false,
+          createdAt: new Date(),
+        }),
       );
       const token = newSecret('token');
       await m.insert(CredentialEntity, {
@@ -80,7 +87,8 @@ export class AuthService {
   }
 
   async listUsers(): Promise<UserEntity[]> {
-    return this.db.manager.find(UserEntity, { order: { id: 'ASC' } });
+    // System accounts (the archive's) are nobody's to manage: they hold imported labels and never sign in.
+    return this.db.manager.find(UserEntity, { where: { isSystem: false }, order: { id: 'ASC' } });
   }
 
   /**
@@ -95,7 +103,7 @@ export class AuthService {
     const passwordHash = change.password !== undefined ? await this.newPasswordHash(id, change.password) : undefined;
     return this.db.write(async (m) => {
       const user = await m.findOneBy(UserEntity, { id });
-      if (!user) throw new AuthNotFound(`no user ${id}`);
+      if (!user || user.isSystem) throw new AuthNotFound(`no user ${id}`);
       const before = { role: user.role, disabled: user.disabled };
       if (change.role !== undefined) user.role = change.role;
       if (change.disabled !== undefined) user.disabled = change.disabled;

@@ -31,6 +31,7 @@ import { TermSuggestions1766500000000 } from './migrations/1766500000000-term-su
 import { KeywordCounts1766510000000 } from './migrations/1766510000000-keyword-counts.js';
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
+import { LabelledArchives1766800000000 } from './migrations/1766800000000-labelled-archives.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -69,6 +70,7 @@ export const MIGRATIONS = [
   KeywordCounts1766510000000,
   Erasure1766700000000,
   Retention1766700000001,
+  LabelledArchives1766800000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

@@ -4,7 +4,7 @@ export { DeskDirectory, DESK_CACHE_MS, type DeskEntry } from './desk-directory.s
 export { createDataSource, openDatabase, entitySchemas, MIGRATIONS } from './data-source.js';
 export type { Dialect } from './dialect.js';
 export { Mutex } from './mutex.js';
-export { UserEntity, ROLES, type Role } from './entities/user.entity.js';
+export { UserEntity, ROLES, ARCHIVE_ACCOUNT, type Role } from './entities/user.entity.js';
 export { CredentialEntity } from './entities/credential.entity.js';
 export { DeskMemberEntity, MEMBER_ROLES, type MemberRole } from './entities/desk-member.entity.js';
 export { DeskMembers1766210000000 } from './migrations/1766210000000-desk-members.js';
@@ -28,8 +28,10 @@ export { URGENT_REASON_MAX } from './migrations/1766420000000-escalations.js';
 export {
   LeaseEntity,
   DRAW_KINDS,
+  VERDICT_DRAW_KINDS,
   TRIAGE_CALLS,
   type DrawKind,
+  type VerdictDrawKind,
   type TriageCall,
   type ShownPrediction,
 } from './entities/lease.entity.js';

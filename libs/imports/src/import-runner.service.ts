@@ -3,12 +3,35 @@ import { Inject, Injectable, Logger } from '@nestjs/common';
 import { UnrecoverableError } from 'bullmq';
 import type { EntityManager } from 'typeorm';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, DeskEntity, ImportEntity, type DbInt, type ImportRowError } from '#database';
+import { AuditService } from '#audit';
+import {
+  CategoryEntity,
+  Database,
+  DeskEntity,
+  ImportEntity,
+  UserEntity,
+  type DbInt,
+  type ImportRowError,
+} from '#database';
 import { compileSeedTerms, type SeedTermMatcher } from '#learning';
 import { DeskFeaturesService, RetrainScheduler } from '#models';
 import { JOBS, JobQueueService } from '#queues';
 import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } from './parsing/index.js';
 import { uploadPath } from './imports.service.js';
+import { ArchiveAccountTaken, ensureArchiveAccount } from './archive-account.js';
+import { takeLabel } from './label-options.js';
+
+/** What a batch's labelled rows need: the archive account, the desk's categories by name, the import's draw. */
+interface LabelContext {
+  field: string;
+  draw: 'archive' | 'random';
+  account: { id: number; name: string };
+  categoryIds: Map<string, number>;
+  importedBy: string;
+}
+
+/** A parsed row and its label, if it has one. */
+type LabelledRecord = ImportRecord & { label: string | null };
 
 const MAX_STORED_ERRORS = 1000;
 const ITEM_COLUMNS = [
@@ -44,6 +67,7 @@ export class ImportRunner {
     @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
+    @Inject(AuditService) private readonly audit: AuditService,
   ) {}
 
   async run(
@@ -68,6 +92,12 @@ export class ImportRunner {
       ),
     );
     const matcher = compileSeedTerms(desk.seedTerms);
+    const labels = await this.labelContext(imp).catch(async (e: unknown) => {
+      if (!(e instanceof ArchiveAccountTaken)) throw e;
+      await this.fail(importId, `${e.message}; nothing was imported`);
+      this.discard(path);
+      throw new UnrecoverableError(e.message);
+    });
     const resumeAfter = imp.rowsCommitted;
     const open = () =>
       parseImport(createReadStream(path, { highWaterMark: 256 * 1024 }), imp.format, {
@@ -88,7 +118,7 @@ export class ImportRunner {
         throw new UnrecoverableError(e.message);
       }
     }
-    let records: ImportRecord[] = [];
+    let records: LabelledRecord[] = [];
     let rejected: RejectedRow[] = [];
     let lastRow = resumeAfter;
     const flush = async () => {
@@ -99,7 +129,9 @@ export class ImportRunner {
       records = [];
       rejected = [];
       await this.db.write(async (m) => {
-        const inserted = batch.length ? await this.insertItems(m, desk.id, importId, batch, matcher) : 0;
+        const { inserted, labelled } = batch.length
+          ? await this.insertItems(m, desk.id, importId, batch, matcher, labels)
+          : { inserted: 0, labelled: 0 };
         const cur = (await m.findOneBy(ImportEntity, { id: importId }))!;
         const room = Math.max(0, MAX_STORED_ERRORS - cur.errors.length);
         const errors: ImportRowError[] = room > 0 ? [...cur.errors, ...bad.slice(0, room)] : cur.errors;
@@ -111,6 +143,7 @@ export class ImportRunner {
             imported: cur.imported + inserted,
             duplicates: cur.duplicates + batch.length - inserted,
             rejected: cur.rejected + bad.length,
+            labelled: cur.labelled + labelled,
             errors: errors,
             rowsCommitted: upTo,
           },
@@ -124,8 +157,14 @@ export class ImportRunner {
         const n = row.ok ? row.record.row : row.rejected.row;
         if (n <= resumeAfter) continue;
         lastRow = n;
-        if (row.ok) records.push(row.record);
-        else rejected.push(row.rejected);
+        if (!row.ok) rejected.push(row.rejected);
+        else if (!labels) records.push({ ...row.record, label: null });
+        else {
+          // A row whose label is not a category is rejected whole: neither an open item nor a decided one.
+          const taken = takeLabel(row.record.meta, labels.field, [...labels.categoryIds.keys()]);
+          if ('reason' in taken) rejected.push({ row: n, reason: taken.reason });
+          else records.push({ ...row.record, label: taken.category });
+        }
         if (records.length + rejected.length >= this.config.importBatchSize) await flush();
       }
       await flush();
@@ -175,14 +214,38 @@ export class ImportRunner {
     );
   }
 
-  /** Inserts a batch; rows that collide with an existing external id or text are skipped and counted as duplicates. */
+  /** The label column's context, or null for an import without one. */
+  private async labelContext(imp: ImportEntity): Promise<LabelContext | null> {
+    if (imp.labelField === null) return null;
+    // Made when the import was stored (the upload's transaction); an import queued before that still gets it here.
+    const account = await this.db.write((m) => ensureArchiveAccount(this.db, m));
+    const categories = await this.db.manager.find(CategoryEntity, {
+      where: { deskId: imp.deskId },
+      order: { position: 'ASC' },
+    });
+    const uploader = await this.db.manager.findOneBy(UserEntity, { id: imp.createdBy });
+    return {
+      field: imp.labelField,
+      draw: imp.labelDraw ?? 'archive',
+      account: { id: account.id, name: account.name },
+      categoryIds: new Map(categories.map((c) => [c.name, c.id])),
+      importedBy: uploader?.name ?? `user ${imp.createdBy}`,
+    };
+  }
+
+  /**
+   * Inserts a batch; rows that collide with an existing external id or text are skipped and counted as duplicates
+   * (a duplicate's label is not applied: the item already in the pool keeps its state). A labelled row is inserted
+   * decided, with its verdict by the archive account and that verdict's audit event, in the batch's transaction.
+   */
   private async insertItems(
     m: EntityManager,
     deskId: number,
     importId: string,
-    batch: ImportRecord[],
+    batch: LabelledRecord[],
     matcher: SeedTermMatcher,
-  ): Promise<number> {
+    labels: LabelContext | null,
+  ): Promise<{ inserted: number; labelled: number }> {
     const now = this.db.time(new Date());
     const params: unknown[] = [];
     const tuples: string[] = [];
@@ -199,7 +262,7 @@ export class ImportRunner {
         JSON.stringify(r.meta),
         r.createdAt ? this.db.time(r.createdAt) : null,
         now,
-        'open',
+        r.label === null ? 'open' : 'decided',
         hits,
         hits,
         Math.random(),
@@ -221,13 +284,80 @@ export class ImportRunner {
     // The pool's document frequencies grow with exactly the items that landed; their term counts are kept for scoring.
     const landed = new Map(rows.map((r) => [r.normalized_hash, Number(r.id)]));
     const added: Array<{ id: number; text: string }> = [];
+    const decided: Array<{ itemId: number; row: number; category: string }> = [];
     for (const r of batch) {
       const id = landed.get(r.textHash);
       if (id === undefined) continue;
       landed.delete(r.textHash);
       added.push({ id, text: r.text });
+      if (r.label !== null) decided.push({ itemId: id, row: r.row, category: r.label });
     }
     await this.features.addItems(m, deskId, added);
-    return rows.length;
+    if (labels && decided.length) await this.insertArchiveVerdicts(m, deskId, importId, decided, labels);
+    return { inserted: rows.length, labelled: decided.length };
+  }
+
+  /**
+   * The verdicts of an archive's labelled rows: by the system account, no lease and no model shown, draw `archive`
+   * (trains, never calibrates) or `random` (the uploader stated a uniform sample), client id `import:<id>:<row>`,
+   * each with its `verdict.create` audit event naming the import, the row and who imported it. A verdict row is part
+   * of these items' insertion (they are never open), so it is written here rather than through a lease's verdict.
+   */
+  private async insertArchiveVerdicts(
+    m: EntityManager,
+    deskId: number,
+    importId: string,
+    decided: Array<{ itemId: number; row: number; category: string }>,
+    labels: LabelContext,
+  ): Promise<void> {
+    const now = this.db.time(new Date());
+    const params: unknown[] = [];
+    const tuples: string[] = [];
+    for (const d of decided) {
+      const values = [
+        deskId,
+        d.itemId,
+        labels.account.id,
+        `import:${importId}:${d.row}`,
+        labels.categoryIds.get(d.category),
+        false,
+        labels.draw,
+        false,
+        now,
+      ];
+      tuples.push(
+        `(${values
+          .map((v) => {
+            params.push(v);
+            return `$${params.length}`;
+          })
+          .join(', ')})`,
+      );
+    }
+    const ins = await this.db.query<{ id: DbInt; item_id: DbInt }>(
+      m,
+      `INSERT INTO verdicts (desk_id, item_id, reviewer_id, client_id, category_id, abstain, draw, simulated, created_at)
+       VALUES ${tuples.join(', ')} RETURNING id, item_id`,
+      params,
+    );
+    const byItem = new Map(decided.map((d) => [d.itemId, d]));
+    for (const v of ins) {
+      const d = byItem.get(Number(v.item_id))!;
+      await this.audit.record(m, labels.account, {
+        action: 'verdict.create',
+        entityType: 'verdict',
+        entityId: Number(v.id),
+        deskId,
+        after: {
+          itemId: d.itemId,
+          category: d.category,
+          abstain: false,
+          draw: labels.draw,
+          importId,
+          row: d.row,
+          importedBy: labels.importedBy,
+        },
+      });
+    }
   }
 }

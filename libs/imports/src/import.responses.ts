@@ -23,6 +23,20 @@ export const ImportAnswer = named(
       .array(z.strictObject({ row: z.int(), reason: z.string() }))
       .describe('rejected rows with their row numbers and reasons (the first ones)'),
     failure: z.string().nullable(),
+    labels: z
+      .strictObject({
+        field: z.string().describe('the column or key that holds the labels'),
+        draw: z
+          .enum(['archive', 'random'])
+          .describe('archive: the labels train and never calibrate; random: they calibrate (a stated uniform sample)'),
+        labelled: z.int().describe('rows that became decided items with a verdict by the archive account'),
+        uniformSample: z
+          .strictObject({ statedBy: z.string(), statedAt: isoTime })
+          .nullable()
+          .describe('who stated that the archive is a uniform random sample of the same stream, and when'),
+      })
+      .nullable()
+      .describe('null when the import names no label column'),
     createdAt: isoTime,
     startedAt: isoTime.nullable(),
     finishedAt: isoTime.nullable(),

@@ -8,6 +8,8 @@ export interface ReceivedUpload {
   format: ImportFormat;
   fileName: string | null;
   bytes: number;
+  /** The multipart form's text fields (first value of each name); empty for a raw body. */
+  fields: Record<string, string>;
 }
 
 export class UploadError extends Error {
@@ -34,7 +36,7 @@ function counter(onBytes: (n: number) => void): Transform {
 /**
  * Streams a request body to a file, without holding it in memory: either the
  * raw body (format from Content-Type) or the first file of a multipart form
- * (format from the part's type or file name). `onFormat` is called before any
+ * (format from the part's type or file name) with the form's text fields. `onFormat` is called before any
  * byte is written, so the caller can record the import first.
  */
 export async function receiveUpload(
@@ -61,7 +63,7 @@ export async function receiveUpload(
       }),
       createWriteStream(path),
     );
-    return { format, fileName: null, bytes };
+    return { format, fileName: null, bytes, fields: {} };
   }
 
   return new Promise<ReceivedUpload>((resolve, reject) => {
@@ -74,6 +76,11 @@ export async function receiveUpload(
     }
     let started = false;
     let done: Promise<ReceivedUpload> | null = null;
+    // Fields may come before or after the file; every one is in by 'close'.
+    const fields: Record<string, string> = {};
+    bb.on('field', (name, value) => {
+      if (!Object.hasOwn(fields, name)) fields[name] = value;
+    });
     bb.on('file', (_field, file, info) => {
       if (started) {
         file.resume();
@@ -102,7 +109,7 @@ export async function receiveUpload(
           }),
           createWriteStream(path),
         );
-        return { format, fileName: info.filename ?? null, bytes };
+        return { format, fileName: info.filename ?? null, bytes, fields };
       })();
       done.catch(reject);
     });

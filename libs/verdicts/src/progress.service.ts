@@ -47,7 +47,8 @@ export class ProgressService {
         deskId,
       ]),
       q<{ n: number | string }>(
-        `SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = $1 AND created_at > $2`,
+        `SELECT COUNT(DISTINCT reviewer_id) AS n FROM verdicts WHERE desk_id = $1 AND created_at > $2
+           AND reviewer_id NOT IN (SELECT id FROM users WHERE is_system)`,
         [deskId, this.db.time(new Date(Date.now() - 3600_000))],
       ),
     ]);
@@ -78,8 +79,9 @@ export class ProgressService {
       currentModelVersion: desk.currentModelVersion,
     };
     if (withReviewers) {
+      // People only: the archive account's imported labels count in `verdicts` (by draw), not as a reviewer's work.
       const rows = await q<{ name: string; n: number | string; last_at: unknown }>(
-        `SELECT u.name, COUNT(*) AS n, MAX(v.created_at) AS last_at FROM verdicts v JOIN users u ON u.id = v.reviewer_id WHERE v.desk_id = $1 AND v.undone_at IS NULL GROUP BY u.name ORDER BY u.name`,
+        `SELECT u.name, COUNT(*) AS n, MAX(v.created_at) AS last_at FROM verdicts v JOIN users u ON u.id = v.reviewer_id WHERE v.desk_id = $1 AND v.undone_at IS NULL AND NOT u.is_system GROUP BY u.name ORDER BY u.name`,
         [deskId],
       );
       out.reviewers = rows.map((r) => ({ name: r.name, verdicts: Number(r.n), lastAt: this.db.parseTime(r.last_at) }));

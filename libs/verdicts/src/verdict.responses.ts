@@ -1,7 +1,7 @@
 import { applyDecorators } from '@nestjs/common';
 import { ApiQuery } from '@nestjs/swagger';
 import { isoTime, named, z } from '#api-docs';
-import { DRAW_KINDS, TRIAGE_CALLS } from '#database';
+import { VERDICT_DRAW_KINDS, TRIAGE_CALLS } from '#database';
 import { LeaseGrantAnswer } from '#leases';
 
 /** A verdict with the model version and the set that were shown when it was given. */
@@ -152,7 +152,7 @@ export const DisagreementListAnswer = named(
             reviewer: z.string(),
             category: z.string().nullable(),
             abstain: z.boolean(),
-            draw: z.enum(DRAW_KINDS),
+            draw: z.enum(VERDICT_DRAW_KINDS),
             createdAt: isoTime,
             undoneAt: isoTime.nullable(),
             modelVersion: z.int().nullable(),

@@ -375,6 +375,8 @@ export class VerdictsService {
         order: { createdAt: 'DESC', id: 'DESC' },
       });
       if (!last || last.id !== v.id) throw new ConflictException('only your last verdict can be undone');
+      // Only the archive account gives such verdicts, and it never signs in; this narrows the draw for the lease below.
+      if (v.draw === 'archive') throw new ConflictException('an imported archive label cannot be undone');
       const now = new Date();
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
       const [{ n }] = await this.db.query<{ n: DbInt }>(

@@ -131,7 +131,10 @@ export class MembershipService {
   async put(actor: AuditActor, deskId: number, userId: number, role: MemberRole): Promise<MemberView> {
     await this.db.write(async (m) => {
       await this.lockDesk(m, deskId);
-      const user = await this.db.queryOne<{ id: DbInt }>(m, 'SELECT id FROM users WHERE id = $1', [userId]);
+      // A system account (the archive's) is never a member: it holds labels, it does not review.
+      const user = await this.db.queryOne<{ id: DbInt }>(m, 'SELECT id FROM users WHERE id = $1 AND NOT is_system', [
+        userId,
+      ]);
       if (!user) throw new AuthNotFound(`no user ${userId}`);
       const before = await this.roleIn(m, deskId, userId);
       if (before === 'supervisor' && role !== 'supervisor') await this.keepASupervisor(m, deskId);

@@ -28,6 +28,15 @@ export class ImportEntity {
   /** The last row whose batch is committed: a retried job resumes after it. */
   rowsCommitted!: number;
   createdBy!: number;
+  /** The column or key that holds a label, when the import has one. */
+  labelField!: string | null;
+  /** The draw of the labels' verdicts: `archive` (train only) or `random` (calibrate; stated a uniform sample). */
+  labelDraw!: 'archive' | 'random' | null;
+  /** Rows that became decided items with a verdict by the archive account. */
+  labelled!: number;
+  /** Who stated that the archive was a uniform sample of the same stream, and when (with `labelDraw` `random`). */
+  uniformSampleBy!: number | null;
+  uniformSampleAt!: Date | null;
   createdAt!: Date;
   startedAt!: Date | null;
   finishedAt!: Date | null;
@@ -58,6 +67,11 @@ export const importSchema = (d: Dialect) => {
       failure: c.text('failure', true),
       rowsCommitted: c.int('rows_committed'),
       createdBy: c.int('created_by'),
+      labelField: c.varchar('label_field', 100, true),
+      labelDraw: c.varchar('label_draw', 10, true),
+      labelled: c.int('labelled'),
+      uniformSampleBy: c.int('uniform_sample_by', true),
+      uniformSampleAt: c.time('uniform_sample_at', true),
       createdAt: c.time('created_at'),
       startedAt: c.time('started_at', true),
       finishedAt: c.time('finished_at', true),

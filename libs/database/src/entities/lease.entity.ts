@@ -5,6 +5,12 @@ import { columns } from './columns.js';
 /** Why an item was served. Recorded on the lease and the verdict; never shown to the reviewer. */
 export const DRAW_KINDS = ['seed', 'uncertainty', 'random', 'second-opinion', 'screen'] as const;
 export type DrawKind = (typeof DRAW_KINDS)[number];
+/**
+ * A verdict's draw: a lease's, or `archive` for a label imported from an archive (trains, never calibrates). An
+ * archive stated to be a uniform sample of the same stream gives `random` verdicts instead.
+ */
+export const VERDICT_DRAW_KINDS = [...DRAW_KINDS, 'archive'] as const;
+export type VerdictDrawKind = (typeof VERDICT_DRAW_KINDS)[number];
 
 export const TRIAGE_CALLS = ['sure', 'ambiguous', 'unfamiliar'] as const;
 export type TriageCall = (typeof TRIAGE_CALLS)[number];

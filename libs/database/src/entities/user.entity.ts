@@ -5,6 +5,9 @@ import { columns } from './columns.js';
 export const ROLES = ['reviewer', 'supervisor', 'auditor', 'admin'] as const;
 export type Role = (typeof ROLES)[number];
 
+/** The name of the system account that holds the labels of archive imports. */
+export const ARCHIVE_ACCOUNT = 'archive';
+
 export class UserEntity {
   id!: number;
   name!: string;
@@ -12,6 +15,8 @@ export class UserEntity {
   /** scrypt hash in the form `scrypt$N$r$p$salt$hash`; null when the user signs in with tokens only. */
   passwordHash!: string | null;
   disabled!: boolean;
+  /** A system account (`archive`, the holder of imported labels): it cannot sign in, is not listed, cannot be changed. */
+  isSystem!: boolean;
   createdAt!: Date;
 }
 
@@ -27,6 +32,7 @@ export const userSchema = (d: Dialect) => {
       role: c.varchar('role', 20),
       passwordHash: c.varchar('password_hash', 200, true),
       disabled: c.bool('disabled'),
+      isSystem: c.bool('is_system'),
       createdAt: c.time('created_at'),
     },
   });

@@ -1,7 +1,7 @@
 import { EntitySchema } from 'typeorm';
 import type { Dialect } from '../dialect.js';
 import { columns } from './columns.js';
-import type { DrawKind, TriageCall } from './lease.entity.js';
+import type { VerdictDrawKind, TriageCall } from './lease.entity.js';
 
 export class VerdictEntity {
   id!: number;
@@ -13,7 +13,7 @@ export class VerdictEntity {
   clientId!: string;
   categoryId!: number | null;
   abstain!: boolean;
-  draw!: DrawKind;
+  draw!: VerdictDrawKind;
   /** What was shown with the item; all null when no model existed yet. */
   modelVersion!: number | null;
   shownSet!: string[] | null;

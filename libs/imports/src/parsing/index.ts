@@ -18,4 +18,5 @@ export type { ImportInput } from './byte-source.js';
 export { hashNormalizedText, normalizeText } from './normalize-text.js';
 export { parseImport } from './parse-import.js';
 export { MAX_META_DEPTH, MAX_SHORT_FIELD_LENGTH } from './record-builder.js';
+export { classifyName } from './field-names.js';
 export { parseIsoDateTime } from './iso-date.js';

@@ -85,12 +85,14 @@ export class AgreementService {
     const categories = entry.categories.map((c) => c.name);
     const live = (v: string) =>
       asOf ? `${v}created_at <= $3 AND (${v}undone_at IS NULL OR ${v}undone_at > $3)` : `${v}undone_at IS NULL`;
+    // The archive account is no reviewer: its imported labels never enter agreement (nor does it pair with anyone).
+    const person = (v: string) => `${v}reviewer_id NOT IN (SELECT id FROM users WHERE is_system)`;
     const rows = await this.db.query<{ item_id: DbInt; reviewer: string; category: string | null }>(
       null,
       `SELECT v.item_id, u.name AS reviewer, c.name AS category
        FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id
-       WHERE v.desk_id = $1 AND ${live('v.')}
-         AND v.item_id IN (SELECT item_id FROM verdicts WHERE desk_id = $1 AND ${live('')} AND abstain = $2 GROUP BY item_id HAVING COUNT(*) >= 2)
+       WHERE v.desk_id = $1 AND ${live('v.')} AND ${person('v.')}
+         AND v.item_id IN (SELECT item_id FROM verdicts WHERE desk_id = $1 AND ${live('')} AND ${person('')} AND abstain = $2 GROUP BY item_id HAVING COUNT(*) >= 2)
        ORDER BY v.item_id, u.name`,
       asOf ? [deskId, false, this.db.time(asOf)] : [deskId, false],
     );
