@@ -140,6 +140,8 @@ const UNSCOPED = [
   'POST /api/auth/login',
   'POST /api/auth/logout',
   'GET /api/auth/me',
+  'GET /api/me/preferences',
+  'PUT /api/me/preferences',
   'POST /api/auth/tokens',
   'GET /api/auth/tokens',
   'DELETE /api/auth/tokens/{tokenId}',

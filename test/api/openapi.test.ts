@@ -250,6 +250,8 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call(null, 'GET', '/readyz');
     await call(null, 'POST', '/api/auth/login', { name: 'sup', password: 'a-long-password' });
     await call('sup', 'GET', '/api/auth/me');
+    await call('sup', 'GET', '/api/me/preferences');
+    await call('sup', 'PUT', '/api/me/preferences', { blurText: true, breakReminderMinutes: 50 });
     const token = await call('sup', 'POST', '/api/auth/tokens', { name: 'scripts' });
     await call('sup', 'GET', '/api/auth/tokens');
     await call('sup', 'DELETE', `/api/auth/tokens/${token.body.id}`);

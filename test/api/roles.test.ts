@@ -67,6 +67,13 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
   // auditors read but cannot decide; admins manage accounts and memberships and read no texts.
   const routes = (): Route[] => [
     { method: 'GET', path: '/api/auth/me', allowed: ALL },
+    { method: 'GET', path: '/api/me/preferences', allowed: ALL },
+    {
+      method: 'PUT',
+      path: '/api/me/preferences',
+      allowed: ALL,
+      body: () => ({ blurText: true, breakReminderMinutes: null }),
+    },
     { method: 'POST', path: '/api/auth/tokens', allowed: ALL, body: () => ({ name: 'matrix' }) },
     { method: 'POST', path: '/api/auth/logout', allowed: ALL, ownToken: true },
     { method: 'GET', path: '/api/auth/tokens', allowed: ALL },

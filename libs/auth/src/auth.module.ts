@@ -7,12 +7,20 @@ import { SignInLimiter } from './sign-in-limiter.js';
 import { SignInService } from './sign-in.service.js';
 import { MembersController } from './members/members.controller.js';
 import { MembershipModule } from './members/membership.module.js';
+import { PreferencesController } from './preferences/preferences.controller.js';
+import { PreferencesService } from './preferences/preferences.service.js';
 
 /** Accounts, sign-in and the global guard; the HTTP app imports it. */
 @Module({
   imports: [MembershipModule],
-  controllers: [AuthController, UsersController, MembersController],
-  providers: [AuthService, SignInLimiter, SignInService, { provide: APP_GUARD, useClass: AuthGuard }],
+  controllers: [AuthController, UsersController, MembersController, PreferencesController],
+  providers: [
+    AuthService,
+    PreferencesService,
+    SignInLimiter,
+    SignInService,
+    { provide: APP_GUARD, useClass: AuthGuard },
+  ],
   exports: [AuthService, MembershipModule],
 })
 export class AuthModule {}

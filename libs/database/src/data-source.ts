@@ -32,6 +32,7 @@ import { KeywordCounts1766510000000 } from './migrations/1766510000000-keyword-c
 import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
 import { LabelledArchives1766800000000 } from './migrations/1766800000000-labelled-archives.js';
+import { QueueComfort1766810000000 } from './migrations/1766810000000-queue-comfort.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -71,6 +72,7 @@ export const MIGRATIONS = [
   Erasure1766700000000,
   Retention1766700000001,
   LabelledArchives1766800000000,
+  QueueComfort1766810000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

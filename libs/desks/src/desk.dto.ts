@@ -1,6 +1,7 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
 import { Transform } from 'class-transformer';
 import {
+  IsBoolean,
   ArrayMaxSize,
   ArrayMinSize,
   ArrayUnique,
@@ -103,6 +104,14 @@ export class CreateDeskDto {
   @Min(0)
   @Max(1)
   secondOpinionShare?: number;
+  /**
+   * Whether second opinions of the demo's simulated verdicts are served to people. Off by default: a person asking
+   * for work gets first draws and second opinions of people's verdicts.
+   */
+  @ApiPropertyOptional({ default: false })
+  @IsOptional()
+  @IsBoolean()
+  serveSimulatedSecondOpinions?: boolean;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400, default: 600 })
   @IsOptional()
   @IsInt()
@@ -211,6 +220,14 @@ export class UpdateDeskDto {
   @Min(0)
   @Max(1)
   secondOpinionShare?: number;
+  /**
+   * Whether second opinions of the demo's simulated verdicts are served to people. Off by default: a person asking
+   * for work gets first draws and second opinions of people's verdicts.
+   */
+  @ApiPropertyOptional({ default: false })
+  @IsOptional()
+  @IsBoolean()
+  serveSimulatedSecondOpinions?: boolean;
   @ApiPropertyOptional({ minimum: 30, maximum: 86400 })
   @IsOptional()
   @IsInt()

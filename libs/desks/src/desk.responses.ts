@@ -27,6 +27,9 @@ export const DeskAnswer = named(
       .number()
       .describe('share of leases from the review lane (flagged items) once a version exists and a category is watched'),
     secondOpinionShare: z.number(),
+    serveSimulatedSecondOpinions: z
+      .boolean()
+      .describe('whether second opinions of the demo’s simulated verdicts are served to people'),
     leaseSeconds: z.int(),
     strategy: z.enum(STRATEGIES),
     score: z.enum(SCORES),

@@ -33,6 +33,7 @@ export interface DeskView {
   randomShare: number;
   screenShare: number;
   secondOpinionShare: number;
+  serveSimulatedSecondOpinions: boolean;
   leaseSeconds: number;
   strategy: DeskEntity['strategy'];
   score: DeskEntity['score'];
@@ -228,6 +229,7 @@ export class DesksService {
           randomShare,
           screenShare,
           secondOpinionShare: dto.secondOpinionShare ?? 0.1,
+          serveSimulatedSecondOpinions: dto.serveSimulatedSecondOpinions ?? false,
           leaseSeconds: dto.leaseSeconds ?? 600,
           currentModelVersion: null,
           strategy: dto.strategy ?? 'entropy',
@@ -314,6 +316,22 @@ export class DesksService {
               `category ${JSON.stringify(c.name)} is used by ${uses.join(' and ')}: categories can be added, but one in use cannot be removed or renamed`,
             );
         }
+        // The number keys of the queue follow the order: once reviewers have used them, moving a category would
+        // silently give a key another meaning. New categories may still be added at the end.
+        const keptOrder = dto.categories.filter((n) => before.categories.some((c) => c.name === n));
+        const beforeOrder = before.categories.map((c) => c.name).filter((n) => keptOrder.includes(n));
+        if (keptOrder.join('\n') !== beforeOrder.join('\n')) {
+          const used = await this.db.queryOne<{ n: DbInt }>(
+            m,
+            `SELECT (SELECT COUNT(*) FROM verdicts WHERE desk_id = $1 AND undone_at IS NULL)
+                  + (SELECT COUNT(*) FROM settlements WHERE desk_id = $1) AS n`,
+            [deskId],
+          );
+          if (Number(used?.n ?? 0) > 0)
+            throw new ConflictException(
+              `categories: the order cannot change once the desk has verdicts, because the number keys of the queue follow it (key 1 is ${JSON.stringify(before.categories[0].name)}); keep the order and add new categories at the end`,
+            );
+        }
         if (removed.length)
           await m.delete(
             CategoryEntity,
@@ -362,6 +380,8 @@ export class DesksService {
       if (dto.screenShare !== undefined) desk.screenShare = dto.screenShare;
       checkShares(desk.randomShare, desk.screenShare);
       if (dto.secondOpinionShare !== undefined) desk.secondOpinionShare = dto.secondOpinionShare;
+      if (dto.serveSimulatedSecondOpinions !== undefined)
+        desk.serveSimulatedSecondOpinions = dto.serveSimulatedSecondOpinions;
       if (dto.leaseSeconds !== undefined) desk.leaseSeconds = dto.leaseSeconds;
       if (dto.strategy !== undefined) desk.strategy = dto.strategy;
       if (dto.score !== undefined) desk.score = dto.score;
@@ -420,6 +440,7 @@ function toView(d: DeskEntity, cats: CategoryEntity[]): DeskView {
     randomShare: d.randomShare,
     screenShare: d.screenShare,
     secondOpinionShare: d.secondOpinionShare,
+    serveSimulatedSecondOpinions: d.serveSimulatedSecondOpinions,
     leaseSeconds: d.leaseSeconds,
     strategy: d.strategy,
     score: d.score,
@@ -445,6 +466,7 @@ function settingsOf(v: DeskView): Record<string, unknown> {
     randomShare: v.randomShare,
     screenShare: v.screenShare,
     secondOpinionShare: v.secondOpinionShare,
+    serveSimulatedSecondOpinions: v.serveSimulatedSecondOpinions,
     leaseSeconds: v.leaseSeconds,
     strategy: v.strategy,
     score: v.score,

@@ -1,4 +1,5 @@
 import {
+  BadRequestException,
   Controller,
   Delete,
   Get,
@@ -8,9 +9,10 @@ import {
   ParseIntPipe,
   ParseUUIDPipe,
   Post,
+  Query,
   Res,
 } from '@nestjs/common';
-import { ApiTags } from '@nestjs/swagger';
+import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiNoContent, type Answer } from '#api-docs';
 import { CurrentUser, Roles, type Principal, OnDesk } from '#auth';
@@ -58,10 +60,20 @@ export class LeasesController {
   @Delete('leases/:leaseId')
   @HttpCode(204)
   @ApiNoContent('the item is back in the pool')
+  @ApiQuery({
+    name: 'skip',
+    required: false,
+    enum: ['true', 'false'],
+    description:
+      'true: skip the item: it goes back to the pool for others and is not served to this reviewer again for one sign-in session (SESSION_HOURS)',
+  })
   async giveBack(
     @CurrentUser() user: Principal,
     @Param('leaseId', new ParseUUIDPipe()) leaseId: string,
+    @Query('skip') skip?: string,
   ): Promise<void> {
-    await this.leases.giveBack(user, leaseId);
+    if (skip !== undefined && skip !== 'true' && skip !== 'false')
+      throw new BadRequestException(`skip: expected true or false, got ${JSON.stringify(skip)}`);
+    await this.leases.giveBack(user, leaseId, { skip: skip === 'true' });
   }
 }

@@ -3,6 +3,7 @@ import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nest
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
+import { APP_CONFIG, type AppConfig } from '#config';
 import {
   Database,
   dbErrorCode,
@@ -72,6 +73,7 @@ export class LeasesService {
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(ScreenLaneService) private readonly lane: ScreenLaneService,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
   ) {}
 
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
@@ -92,8 +94,10 @@ export class LeasesService {
     const now = new Date();
     const expiresAt = new Date(now.getTime() + desk.leaseSeconds * 1000);
     const picked = await this.db.write(async (m) => {
+      const skipped = await this.skippedBy(m, reviewer, deskId, now);
+      const notSkipped = skipped.length ? ` AND id NOT IN (${skipped.join(', ')})` : '';
       const claim = (where: string, order: string, params: unknown[]) =>
-        this.claim(m, leaseId, expiresAt, deskId, where, order, params);
+        this.claim(m, leaseId, expiresAt, deskId, where + notSkipped, order, params);
       let draw: DrawKind = wantRandom ? 'random' : coldStart ? 'seed' : 'uncertainty';
       // An item whose lease expired goes out again first, under the draw it was first served by;
       // the uniform draws below stay uniform over the open items.
@@ -105,18 +109,18 @@ export class LeasesService {
           [row.id],
         );
         draw = prev?.draw ?? 'random';
-      } else if ((row = await this.claimSecondOpinion(m, reviewer, deskId, leaseId, expiresAt, now))) {
+      } else if ((row = await this.claimSecondOpinion(m, reviewer, desk, leaseId, expiresAt, now))) {
         draw = 'second-opinion';
       } else if (draw !== 'random') {
         if (
           draw === 'uncertainty' &&
           screenOrder &&
-          (row = await this.claimScreen(m, desk, leaseId, expiresAt, screenOrder))
+          (row = await this.claimScreen(m, desk, leaseId, expiresAt, screenOrder, skipped))
         ) {
           draw = 'screen';
         } else if (draw === 'uncertainty') {
           // Also when the lane is empty: every flagged item is decided or held.
-          row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt);
+          row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt, notSkipped);
         } else if (hasSeeds) {
           // Cold start: most seed-term matches first.
           row = await claim(`state = 'open' AND seed_hits > 0`, 'priority DESC, id DESC', []);
@@ -291,12 +295,15 @@ export class LeasesService {
    * LOCKED`), on SQLite the write transaction is serialised. A lease that
    * expired without a verdict makes the item available again (to anyone but
    * the reviewers who held it). The item stays `decided`: it never re-enters
-   * the open pool of first draws. Nothing about the earlier verdict is read.
+   * the open pool of first draws. Nothing about the earlier verdict is read,
+   * except whether the demo's simulated reviewer gave it: such items go to
+   * people only when the desk asks for it (`serveSimulatedSecondOpinions`),
+   * so a person's queue is not filled with checks of the simulator's work.
    */
   private async claimSecondOpinion(
     m: EntityManager,
     reviewer: Principal,
-    deskId: number,
+    desk: DeskEntity,
     leaseId: string,
     expiresAt: Date,
     now: Date,
@@ -309,10 +316,15 @@ export class LeasesService {
          SELECT so.item_id FROM second_opinions so
          WHERE so.desk_id = $3 AND (so.state = 'due' OR (so.state = 'leased' AND so.leased_until < $4))
            AND NOT EXISTS (SELECT 1 FROM leases l WHERE l.item_id = so.item_id AND l.reviewer_id = $5)
-           AND NOT EXISTS (SELECT 1 FROM verdicts v WHERE v.item_id = so.item_id AND v.reviewer_id = $5)
+           AND NOT EXISTS (SELECT 1 FROM verdicts v WHERE v.item_id = so.item_id AND v.reviewer_id = $5)${
+             desk.serveSimulatedSecondOpinions
+               ? ''
+               : `
+           AND NOT EXISTS (SELECT 1 FROM verdicts sv WHERE sv.item_id = so.item_id AND sv.simulated AND sv.undone_at IS NULL)`
+           }
          ORDER BY so.created_at, so.item_id LIMIT 1${lock})
        RETURNING item_id`,
-      [leaseId, this.db.time(expiresAt), deskId, this.db.time(now), reviewer.id],
+      [leaseId, this.db.time(expiresAt), desk.id, this.db.time(now), reviewer.id],
     );
     if (!due) return null;
     const row = await this.db.queryOne<PickedRow>(m, `SELECT ${PICK_COLUMNS} FROM items WHERE id = $1`, [due.item_id]);
@@ -330,11 +342,12 @@ export class LeasesService {
     desk: DeskEntity,
     leaseId: string,
     expiresAt: Date,
+    notSkipped: string,
   ): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
     const candidates = await this.db.query<{ id: number; text: string }>(
       m,
-      `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open' ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`,
+      `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open'${notSkipped} ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`,
       [desk.id],
     );
     if (candidates.length === 0) return null;
@@ -373,10 +386,13 @@ export class LeasesService {
     desk: DeskEntity,
     leaseId: string,
     expiresAt: Date,
-    order: number[],
+    fullOrder: number[],
+    skipped: number[],
   ): Promise<PickedRow | null> {
     const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
     const decided = new Set<number>();
+    const skip = new Set(skipped);
+    const order = skip.size ? fullOrder.filter((id) => !skip.has(id)) : fullOrder;
     let chosen: number | undefined;
     for (let from = 0; from < order.length && chosen === undefined; from += SCREEN_PAGE) {
       const page = order.slice(from, from + SCREEN_PAGE);
@@ -414,14 +430,42 @@ export class LeasesService {
    * calibration needs (exchangeability).
    */
 
-  /** Hands a leased item back to the queue. */
-  async giveBack(reviewer: Principal, leaseId: string): Promise<void> {
+  /**
+   * The items this reviewer skipped on the desk whose skip has not run out,
+   * read inside the lease's transaction (integers from the database, so they
+   * can stand in the SQL as literals).
+   */
+  private async skippedBy(m: EntityManager, reviewer: Principal, deskId: number, now: Date): Promise<number[]> {
+    const rows = await this.db.query<{ item_id: DbInt }>(
+      m,
+      'SELECT item_id FROM lease_skips WHERE reviewer_id = $1 AND desk_id = $2 AND expires_at > $3',
+      [reviewer.id, deskId, this.db.time(now)],
+    );
+    return rows.map((r) => Number(r.item_id)).filter((id) => Number.isSafeInteger(id));
+  }
+
+  /**
+   * Hands a leased item back to the queue. With `skip`, the item is also
+   * kept from this reviewer (not from others) for one sign-in session's
+   * length (SESSION_HOURS): written in the same transaction as the return,
+   * so no lease can see the item open and not yet skipped.
+   */
+  async giveBack(reviewer: Principal, leaseId: string, options: { skip?: boolean } = {}): Promise<void> {
     await this.db.write(async (m) => {
       const lease = await m.findOneBy(LeaseEntity, { id: leaseId });
       if (!lease) throw new NotFoundException(`no lease ${leaseId}`);
       if (lease.reviewerId !== reviewer.id) throw new ForbiddenException('this lease belongs to another reviewer');
-      if (lease.closedAt) return;
       const now = new Date();
+      if (options.skip && lease.closedReason !== 'verdict') {
+        const until = new Date(now.getTime() + this.config.sessionHours * 3_600_000);
+        await this.db.query(
+          m,
+          `INSERT INTO lease_skips (reviewer_id, item_id, desk_id, skipped_at, expires_at) VALUES ($1, $2, $3, $4, $5)
+           ON CONFLICT (reviewer_id, item_id) DO UPDATE SET skipped_at = excluded.skipped_at, expires_at = excluded.expires_at`,
+          [reviewer.id, lease.itemId, lease.deskId, this.db.time(now), this.db.time(until)],
+        );
+      }
+      if (lease.closedAt) return;
       await m.update(LeaseEntity, { id: leaseId }, { closedAt: now, closedReason: 'returned' });
       await this.db.query(
         m,
@@ -438,7 +482,7 @@ export class LeasesService {
         entityType: 'lease',
         entityId: leaseId,
         deskId: lease.deskId,
-        after: { itemId: lease.itemId },
+        after: { itemId: lease.itemId, ...(options.skip ? { skip: true } : {}) },
       });
     });
   }

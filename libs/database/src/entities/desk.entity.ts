@@ -42,6 +42,8 @@ export class DeskEntity {
   screenShare!: number;
   /** Share of decided items served again, to a different reviewer, for a second opinion. */
   secondOpinionShare!: number;
+  /** Whether second opinions of the demo's simulated verdicts are served to people (off unless a supervisor asks). */
+  serveSimulatedSecondOpinions!: boolean;
   leaseSeconds!: number;
   /** The model version reviewers are served from; null until the first model is published. */
   currentModelVersion!: number | null;
@@ -83,6 +85,7 @@ export const deskSchema = (d: Dialect) => {
       randomShare: c.double('random_share'),
       screenShare: c.double('screen_share'),
       secondOpinionShare: c.double('second_opinion_share'),
+      serveSimulatedSecondOpinions: c.bool('serve_simulated_second_opinions'),
       leaseSeconds: c.int('lease_seconds'),
       currentModelVersion: c.int('current_model_version', true),
       retrainEvery: c.int('retrain_every'),

@@ -1,0 +1,53 @@
+import { Inject, Injectable } from '@nestjs/common';
+import { Database } from '#database';
+import type { Principal } from '../principal.js';
+
+/** One account's own screen preferences; the same on every browser it signs in from. */
+export interface Preferences {
+  /** Blur each text on the queue until the reviewer reveals it. */
+  blurText: boolean;
+  /** Remind the reviewer to take a break after this many minutes on the queue; null: never. */
+  breakReminderMinutes: number | null;
+}
+
+export const DEFAULT_PREFERENCES: Preferences = { blurText: false, breakReminderMinutes: null };
+export const BREAK_MINUTES_MIN = 5;
+export const BREAK_MINUTES_MAX = 480;
+
+/** Reads and replaces the signed-in account's preferences (`user_preferences`, one JSON row per account). */
+@Injectable()
+export class PreferencesService {
+  constructor(@Inject(Database) private readonly db: Database) {}
+
+  async get(user: Principal): Promise<Preferences> {
+    const row = await this.db.queryOne<{ preferences: string }>(
+      null,
+      'SELECT preferences FROM user_preferences WHERE user_id = $1',
+      [user.id],
+    );
+    if (!row) return { ...DEFAULT_PREFERENCES };
+    // Members added later read their default until the account saves again.
+    return { ...DEFAULT_PREFERENCES, ...pick(JSON.parse(row.preferences) as Partial<Preferences>) };
+  }
+
+  async put(user: Principal, preferences: Preferences): Promise<Preferences> {
+    const clean = { ...DEFAULT_PREFERENCES, ...pick(preferences) };
+    await this.db.write(async (m) => {
+      await this.db.query(
+        m,
+        `INSERT INTO user_preferences (user_id, preferences, updated_at) VALUES ($1, $2, $3)
+         ON CONFLICT (user_id) DO UPDATE SET preferences = excluded.preferences, updated_at = excluded.updated_at`,
+        [user.id, JSON.stringify(clean), this.db.time(new Date())],
+      );
+    });
+    return clean;
+  }
+}
+
+function pick(p: Partial<Preferences>): Partial<Preferences> {
+  const out: Partial<Preferences> = {};
+  if (typeof p.blurText === 'boolean') out.blurText = p.blurText;
+  if (p.breakReminderMinutes === null || typeof p.breakReminderMinutes === 'number')
+    out.breakReminderMinutes = p.breakReminderMinutes;
+  return out;
+}
