@@ -65,6 +65,7 @@ export type Member = Schemas['Member'];
 export type MemberList = Schemas['MemberList'];
 export type MemberRole = Member['role'];
 export type RetentionRun = Schemas['RetentionRun'];
+export type Preferences = Schemas['Preferences'];
 
 export class ApiError extends Error {
   constructor(

@@ -2,9 +2,20 @@ import type { Coverage } from '../api';
 import { useData } from '../app';
 import { pct } from '../format';
 
-/** The coverage alert in plain words, when the realized coverage of recent random checks falls clearly below the promise. */
-export function CoverageAlert({ deskId, coverage }: { deskId: string; coverage?: Coverage | null }) {
-  const [loaded] = useData<Coverage>(coverage === undefined ? `/desks/${deskId}/coverage` : null);
+/**
+ * The coverage alert in plain words, when the realized coverage of recent random checks falls clearly below the
+ * promise. `refresh`: read again whenever it changes (the target in force, so the promise follows an applied target).
+ */
+export function CoverageAlert({
+  deskId,
+  coverage,
+  refresh,
+}: {
+  deskId: string;
+  coverage?: Coverage | null;
+  refresh?: unknown;
+}) {
+  const [loaded] = useData<Coverage>(coverage === undefined ? `/desks/${deskId}/coverage` : null, [refresh]);
   const c = coverage ?? loaded;
   if (!c) return null;
   if (c.alert.raised) {

@@ -10,6 +10,8 @@ export type DeskFormValue = Pick<
   | 'calibration'
   | 'randomShare'
   | 'screenShare'
+  | 'secondOpinionShare'
+  | 'serveSimulatedSecondOpinions'
   | 'leaseSeconds'
   | 'strategy'
   | 'retrainEvery'
@@ -29,6 +31,17 @@ const terms = (s: string) =>
     .map((x) => x.trim())
     .filter(Boolean);
 
+/** A share as the percentage typed in the form (0.9 → "90"; 0.999 → "99.9"). */
+const asPercent = (share: number) => String(Math.round(share * 1000) / 10);
+/** A percentage typed in the form as the share the API takes ("99.9" → 0.999), rounded to undo float noise. */
+const fromPercent = (text: string) => Math.round(Number(text) * 100) / 10_000;
+
+/** The category names kept from `before`, in their new order, differ from their old order. */
+export function reordered(before: string[], after: string[]): boolean {
+  const kept = after.filter((n) => before.includes(n));
+  return kept.join('\n') !== before.filter((n) => kept.includes(n)).join('\n');
+}
+
 export const CALIBRATION_TRADE_OFF = {
   'per-category':
     'Per category: every category, rare ones included, is covered at the target, at the price of larger sets (more ambiguous calls).',
@@ -38,27 +51,33 @@ export const CALIBRATION_TRADE_OFF = {
 
 /**
  * The desk's categories, seed terms and settings, for creating a desk and
- * for changing one. Categories already used by verdicts cannot be removed;
- * the server says so when it happens.
+ * for changing one. Targets and shares are typed as percentages. Categories
+ * already used by verdicts cannot be removed or renamed, and once the desk
+ * has verdicts their order is fixed (`orderFixed`: the number keys follow
+ * it); the server refuses both too, and its reason is shown.
  */
 export function DeskForm({
   initial,
   submitLabel,
   onSubmit,
+  orderFixed = false,
 }: {
   initial?: Desk;
   submitLabel: string;
   onSubmit: (v: DeskFormValue) => Promise<void>;
+  orderFixed?: boolean;
 }) {
   const [name, setName] = useState(initial?.name ?? '');
   const [cats, setCats] = useState(initial ? initial.categories.map((c) => c.name).join('\n') : '');
   const [seeds, setSeeds] = useState<Record<string, string>>(() =>
     Object.fromEntries(Object.entries(initial?.seedTerms ?? {}).map(([c, t]) => [c, t.join(', ')])),
   );
-  const [target, setTarget] = useState(String(initial?.coverageTarget ?? 0.9));
+  const [target, setTarget] = useState(asPercent(initial?.coverageTarget ?? 0.9));
   const [calibration, setCalibration] = useState<DeskFormValue['calibration']>(initial?.calibration ?? 'per-category');
-  const [randomShare, setRandomShare] = useState(String(initial?.randomShare ?? 0.2));
-  const [screenShare, setScreenShare] = useState(String(initial?.screenShare ?? 0.5));
+  const [randomShare, setRandomShare] = useState(asPercent(initial?.randomShare ?? 0.2));
+  const [screenShare, setScreenShare] = useState(asPercent(initial?.screenShare ?? 0.5));
+  const [secondShare, setSecondShare] = useState(asPercent(initial?.secondOpinionShare ?? 0.1));
+  const [serveSimulated, setServeSimulated] = useState(initial?.serveSimulatedSecondOpinions ?? false);
   const [leaseSeconds, setLeaseSeconds] = useState(String(initial?.leaseSeconds ?? 600));
   const [strategy, setStrategy] = useState(initial?.strategy ?? 'entropy');
   const [retrainEvery, setRetrainEvery] = useState(String(initial?.retrainEvery ?? 10));
@@ -78,6 +97,19 @@ export function DeskForm({
       setError('Two categories have the same name.');
       return;
     }
+    if (
+      orderFixed &&
+      initial &&
+      reordered(
+        initial.categories.map((c) => c.name),
+        categories,
+      )
+    ) {
+      setError(
+        `The order of the categories cannot change once the desk has verdicts: the number keys of the queue follow it (key 1 is “${initial.categories[0].name}”). Keep the order and add new categories at the end.`,
+      );
+      return;
+    }
     setBusy(true);
     try {
       await onSubmit({
@@ -86,10 +118,12 @@ export function DeskForm({
         seedTerms: Object.fromEntries(
           categories.map((c): [string, string[]] => [c, terms(seeds[c] ?? '')]).filter(([, t]) => t.length > 0),
         ),
-        coverageTarget: Number(target),
+        coverageTarget: fromPercent(target),
         calibration,
-        randomShare: Number(randomShare),
-        screenShare: Number(screenShare),
+        randomShare: fromPercent(randomShare),
+        screenShare: fromPercent(screenShare),
+        secondOpinionShare: fromPercent(secondShare),
+        serveSimulatedSecondOpinions: serveSimulated,
         leaseSeconds: Number(leaseSeconds),
         strategy,
         retrainEvery: Number(retrainEvery),
@@ -111,7 +145,9 @@ export function DeskForm({
           <input required maxLength={200} value={name} onInput={(e) => setName(e.currentTarget.value)} />
         </label>
         <label>
-          Categories, one per line (2 to 20; the order gives the number keys)
+          Categories, one per line (2 to 20; the order gives the number keys
+          {orderFixed ? ', and is fixed now that the desk has verdicts: add new ones at the end' : ''}; a category used
+          by verdicts can be neither removed nor retitled)
           <textarea
             required
             rows={4}
@@ -139,12 +175,12 @@ export function DeskForm({
       <fieldset>
         <legend>Coverage and learning</legend>
         <label>
-          Coverage target (0.50 to 0.999)
+          Coverage target (%, 50 to 99.9)
           <input
             type="number"
-            min="0.5"
-            max="0.999"
-            step="0.01"
+            min="50"
+            max="99.9"
+            step="0.1"
             required
             value={target}
             onInput={(e) => setTarget(e.currentTarget.value)}
@@ -165,12 +201,12 @@ export function DeskForm({
           ))}
         </div>
         <label>
-          Share of random draws (they calibrate and check coverage; 0 to 1)
+          Share of random draws (%; they calibrate and check coverage)
           <input
             type="number"
             min="0"
-            max="1"
-            step="0.01"
+            max="100"
+            step="0.1"
             required
             value={randomShare}
             onInput={(e) => setRandomShare(e.currentTarget.value)}
@@ -178,16 +214,37 @@ export function DeskForm({
         </label>
         <label>
           Share of the review lane (flagged items, likeliest watched category first, once a model exists and a category
-          is watched; with the random share at most 1)
+          is watched; %, with the random share at most 100)
           <input
             type="number"
             min="0"
-            max="1"
-            step="0.01"
+            max="100"
+            step="0.1"
             required
             value={screenShare}
             onInput={(e) => setScreenShare(e.currentTarget.value)}
           />
+        </label>
+        <label>
+          Share of decided items served again to another reviewer for a second opinion (%; they measure agreement)
+          <input
+            type="number"
+            min="0"
+            max="100"
+            step="0.1"
+            required
+            value={secondShare}
+            onInput={(e) => setSecondShare(e.currentTarget.value)}
+          />
+        </label>
+        <label class="check">
+          <input
+            type="checkbox"
+            checked={serveSimulated}
+            onChange={(e) => setServeSimulated(e.currentTarget.checked)}
+          />{' '}
+          Serve second opinions of the demo's simulated verdicts to people (off: people get real work and second
+          opinions of each other's verdicts only)
         </label>
         <label>
           Uncertainty measure for the queue order

@@ -34,7 +34,9 @@ export function CoveragePage({ params }: PageProps) {
     if (desk && target === null) setTarget(Math.min(0.99, Math.round(desk.coverageTarget * 100) / 100));
   }, [desk]);
 
-  const points = preview?.points ?? [];
+  // Open items that no set describes (none left, or none scored yet) would draw an all-zero preview: say so instead.
+  const described = (preview?.points ?? []).some((p) => p.sureShare + p.ambiguousShare + p.unfamiliarShare > 0);
+  const points = described ? (preview?.points ?? []) : [];
   const t = target ?? 0.9;
   const at = points.find((p) => Math.abs(p.target - t) < 1e-9) ?? null;
 
@@ -61,7 +63,7 @@ export function CoveragePage({ params }: PageProps) {
           {deskError ?? previewError}
         </p>
       )}
-      <CoverageAlert deskId={deskId} />
+      <CoverageAlert deskId={deskId} refresh={desk?.coverageTarget} />
       <p class="lead">
         The coverage target is how often the prediction set must hold the right category, over items drawn at random
         from the pool. A higher target gives fewer <em>sure</em> calls and larger sets; a lower one more sure calls that
@@ -88,7 +90,14 @@ export function CoveragePage({ params }: PageProps) {
             {!preview?.modelVersion && (
               <p>No model version yet: the preview appears once the first model is published.</p>
             )}
-            {at && (
+            {preview?.modelVersion != null && !described && (
+              <p class="not-enough">
+                Not enough data yet: version {preview.modelVersion} describes no open item
+                {preview.items === 0 ? ' (every item is decided or held)' : ''}, so there is nothing to preview. The
+                preview appears once open items have been scored.
+              </p>
+            )}
+            {at && described && (
               <p>
                 At {pct(t)}: <strong class="sure-share">{pct(at.sureShare)}</strong> of open items would be sure,{' '}
                 {pct(at.ambiguousShare)} ambiguous and {pct(at.unfamiliarShare)} unfamiliar; the mean set size would be{' '}

@@ -5,10 +5,12 @@ import {
   clientId,
   get,
   post,
+  put,
   type Desk,
   type LeaseGrant,
   type MyLeases,
   type OneVerdict,
+  type Preferences,
   type Progress,
   type UndoneVerdict,
   type Verdict,
@@ -86,6 +88,10 @@ export function QueuePage({ params }: PageProps) {
   const urgentRef = useRef<HTMLInputElement>(null);
   const [help, setHelp] = useState(false);
   const [today, setToday] = useState<number | null>(null);
+  // Wellbeing: the account's own preferences (kept by the server, so they follow the reviewer to any browser).
+  const [prefs, setPrefs] = useState<Preferences | null>(null);
+  const [revealed, setRevealed] = useState(false);
+  const [workingSince, setWorkingSince] = useState(() => Date.now());
 
   useInterval(() => setNow(Date.now()), 1000);
   useInterval(
@@ -101,6 +107,7 @@ export function QueuePage({ params }: PageProps) {
     setNote('');
     setUrgent(false);
     setUrgentReason('');
+    setRevealed(false);
     shownAt.current = performance.now();
     setEmpty(g ? null : emptyReason(why ?? null));
   };
@@ -119,6 +126,7 @@ export function QueuePage({ params }: PageProps) {
     void (async () => {
       try {
         setDesk(await get<Desk>(`/desks/${deskId}`));
+        void get<Preferences>('/me/preferences').then(setPrefs, () => setPrefs(null));
         void get<VerdictCount>(
           `/desks/${deskId}/verdicts/mine/count?since=${encodeURIComponent(localMidnight().toISOString())}`,
         ).then(
@@ -256,23 +264,42 @@ export function QueuePage({ params }: PageProps) {
     }
   }
 
-  /** Hands the item back: the next one is leased first, so the queue cannot serve the same item straight back. */
-  async function handBack(): Promise<void> {
+  /**
+   * Hands the item back (`h`) or skips it (`s`: handed back, and not served to this reviewer again for the session).
+   * The next one is leased first, so the queue cannot serve the same item straight back.
+   */
+  async function handBack(skip = false): Promise<void> {
     if (!grant || sending.current) return;
     sending.current = true;
     setBusy(true);
     const old = grant;
     try {
       const g = await post<LeaseGrant | null>(`/desks/${deskId}/leases`);
-      await api('DELETE', `/leases/${old.lease.id}`);
+      await api('DELETE', `/leases/${old.lease.id}${skip ? '?skip=true' : ''}`);
       show(g, g ? undefined : await get<Progress>(`/desks/${deskId}/progress`).catch(() => undefined));
-      setNotice(`Item ${old.item.id} is handed back to the queue for another reviewer.`);
+      setNotice(
+        skip
+          ? `Item ${old.item.id} is skipped: it goes to another reviewer and will not be shown to you again in this session.`
+          : `Item ${old.item.id} is handed back to the queue for another reviewer.`,
+      );
       setError(null);
     } catch (e) {
-      setError(`Handing back failed: ${(e as Error).message}`);
+      setError(`${skip ? 'Skipping' : 'Handing back'} failed: ${(e as Error).message}`);
     } finally {
       sending.current = false;
       setBusy(false);
+    }
+  }
+
+  /** Saves the wellbeing preferences for this account; the screen follows at once. */
+  async function savePrefs(next: Preferences): Promise<void> {
+    const before = prefs;
+    setPrefs(next);
+    try {
+      setPrefs(await put<Preferences>('/me/preferences', next));
+    } catch (e) {
+      setPrefs(before);
+      setError(`Your preference was not saved: ${(e as Error).message}`);
     }
   }
 
@@ -321,6 +348,8 @@ export function QueuePage({ params }: PageProps) {
       n: () => noteRef.current?.focus(),
       e: () => toggleUrgent(),
       h: () => void handBack(),
+      s: () => void handBack(true),
+      r: () => setRevealed((r) => !r),
       '?': () => setHelp(true),
     };
     const run = command[e.key];
@@ -338,6 +367,10 @@ export function QueuePage({ params }: PageProps) {
   const leaseLeft = grant ? new Date(grant.lease.expiresAt).getTime() - now : 0;
   const onItem = grant ? performance.now() - shownAt.current : 0;
   const undoLeft = last ? UNDO_WINDOW_MS - (now - last.at) : 0;
+  const blurred = prefs?.blurText === true && !revealed;
+  const breakMinutes = prefs?.breakReminderMinutes ?? null;
+  const workedMinutes = Math.floor((now - workingSince) / 60_000);
+  const breakDue = breakMinutes !== null && workedMinutes >= breakMinutes;
 
   return (
     <section class="queue" aria-busy={busy}>
@@ -357,6 +390,17 @@ export function QueuePage({ params }: PageProps) {
             {notice}
           </p>
         )}
+        {breakDue && (
+          <div class="break-reminder" role="status">
+            <p>
+              <strong>Time for a break.</strong> You have been on the queue for {workedMinutes} minutes. Step away from
+              the screen for a few minutes, then carry on.
+            </p>
+            <button type="button" onClick={() => setWorkingSince(Date.now())}>
+              I am back from a break
+            </button>
+          </div>
+        )}
         {grant && leaseLeft <= 0 && (
           <p class="warning" role="alert">
             Your hold on this item ended at {new Date(grant.lease.expiresAt).toLocaleTimeString('en-GB')}. Another
@@ -374,7 +418,17 @@ export function QueuePage({ params }: PageProps) {
               {grant.item.source && <span>{grant.item.source}</span>}
               {grant.item.postedAt && <span>posted {when(grant.item.postedAt)}</span>}
             </header>
-            <HighlightedText text={grant.item.text} highlights={grant.highlights} categories={categories} />
+            <div class={blurred ? 'item-shield blurred' : 'item-shield'} aria-hidden={blurred ? 'true' : undefined}>
+              <HighlightedText text={grant.item.text} highlights={grant.highlights} categories={categories} />
+            </div>
+            {prefs?.blurText && (
+              <p class="reveal-hint">
+                <button type="button" class="quiet" onClick={() => setRevealed((r) => !r)}>
+                  <kbd>r</kbd> {blurred ? 'Reveal the text' : 'Blur the text again'}
+                </button>{' '}
+                {blurred && <span class="muted">The text is blurred until you reveal it (your choice below).</span>}
+              </p>
+            )}
             {countHidden(grant.item.text) > 0 && (
               <p class="hidden-legend warning">
                 This text holds {countHidden(grant.item.text)} hidden character(s): controls that change the direction
@@ -398,7 +452,8 @@ export function QueuePage({ params }: PageProps) {
                 <kbd>{k.key}</kbd> {k.text}{' '}
               </span>
             ))}
-            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note · <kbd>e</kbd> urgent · <kbd>h</kbd> hand back
+            · <kbd>u</kbd> undo the last verdict · <kbd>n</kbd> note · <kbd>e</kbd> urgent · <kbd>h</kbd> hand back ·{' '}
+            <kbd>s</kbd> skip · <kbd>r</kbd> reveal
             {confirm ? (
               <>
                 {' '}
@@ -408,7 +463,9 @@ export function QueuePage({ params }: PageProps) {
             · <kbd>?</kbd> every key
           </p>
         )}
-        {help && <KeyHelp keyed={keyed} confirm={confirm} onClose={() => setHelp(false)} />}
+        {help && (
+          <KeyHelp keyed={keyed} confirm={confirm} blur={prefs?.blurText === true} onClose={() => setHelp(false)} />
+        )}
         {!grant && empty && (
           <div class="empty-queue" role="status">
             <h1>Nothing to decide right now</h1>
@@ -512,6 +569,7 @@ export function QueuePage({ params }: PageProps) {
             Today: <strong>{today}</strong> {today === 1 ? 'verdict' : 'verdicts'} on this desk
           </p>
         )}
+        {prefs && <Wellbeing prefs={prefs} onChange={(p) => void savePrefs(p)} />}
         <dl class="timers">
           {grant && (
             <>
@@ -544,10 +602,12 @@ export function QueuePage({ params }: PageProps) {
 function KeyHelp({
   keyed,
   confirm,
+  blur,
   onClose,
 }: {
   keyed: Array<{ key: string; text: string }>;
   confirm: boolean;
+  blur: boolean;
   onClose: () => void;
 }) {
   const close = useRef<HTMLButtonElement>(null);
@@ -569,6 +629,13 @@ function KeyHelp({
     ['n', 'write a note with the verdict'],
     ['e', 'mark the item urgent: type a short reason, leave the field, then press the verdict key'],
     ['h', 'hand the item back to the queue for another reviewer'],
+    ['s', 'skip the item: it goes to another reviewer and is not shown to you again in this session'],
+    [
+      'r',
+      blur
+        ? 'reveal the blurred text, or blur it again'
+        : 'reveal the text (when “Blur each text until I reveal it” is on)',
+    ],
     ['?', 'show or hide this list'],
   ];
   return (
@@ -594,6 +661,69 @@ function KeyHelp({
   );
 }
 
+/**
+ * The reviewer's own protections, kept per account by the server: a blur over each text until it is revealed
+ * (`r`), and a reminder to take a break after a set time on the queue.
+ */
+function Wellbeing({ prefs, onChange }: { prefs: Preferences; onChange: (p: Preferences) => void }) {
+  const [minutes, setMinutes] = useState(prefs.breakReminderMinutes === null ? '' : String(prefs.breakReminderMinutes));
+  const [problem, setProblem] = useState<string | null>(null);
+  const saveMinutes = () => {
+    const text = minutes.trim();
+    if (text === '') {
+      setProblem(null);
+      if (prefs.breakReminderMinutes !== null) onChange({ ...prefs, breakReminderMinutes: null });
+      return;
+    }
+    const n = Number(text);
+    if (!Number.isInteger(n) || n < 5 || n > 480) {
+      setProblem('A break reminder needs a whole number of minutes from 5 to 480, or nothing for no reminder.');
+      return;
+    }
+    setProblem(null);
+    if (n !== prefs.breakReminderMinutes) onChange({ ...prefs, breakReminderMinutes: n });
+  };
+  return (
+    <details class="wellbeing">
+      <summary>Your protections</summary>
+      <label class="check">
+        <input
+          type="checkbox"
+          checked={prefs.blurText}
+          onChange={(e) => onChange({ ...prefs, blurText: e.currentTarget.checked })}
+        />{' '}
+        Blur each text until I reveal it (<kbd>r</kbd>)
+      </label>
+      <label>
+        Remind me to take a break after this many minutes (5 to 480; empty: never)
+        <input
+          type="number"
+          min="5"
+          max="480"
+          step="1"
+          inputMode="numeric"
+          value={minutes}
+          onInput={(e) => setMinutes(e.currentTarget.value)}
+          onBlur={saveMinutes}
+          onKeyDown={(e) => {
+            if (e.key === 'Enter') {
+              e.preventDefault();
+              saveMinutes();
+              e.currentTarget.blur();
+            }
+          }}
+        />
+      </label>
+      {problem && (
+        <p class="error" role="alert">
+          {problem}
+        </p>
+      )}
+      <p class="muted">Kept with your account, on every browser you sign in from.</p>
+    </details>
+  );
+}
+
 function emptyReason(p: Progress | null): string {
   if (!p) return 'The queue gave no item.';
   if (p.items.total === 0) return 'This desk has no items yet: it is waiting for a supervisor to import texts.';
@@ -601,5 +731,5 @@ function emptyReason(p: Progress | null): string {
     return `Every one of the ${p.items.total} items on this desk has a verdict. New items appear here once a supervisor imports more.`;
   if (p.items.open === 0)
     return `The remaining ${p.items.leased} items are with other reviewers right now. This screen looks again every 15 seconds.`;
-  return 'No item could be handed to you just now. This screen looks again every 15 seconds.';
+  return 'No item could be handed to you just now (items you skipped in this session are not shown to you again). This screen looks again every 15 seconds.';
 }

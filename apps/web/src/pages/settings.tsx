@@ -1,5 +1,5 @@
 import { useState } from 'preact/hooks';
-import { patch, type Desk } from '../api';
+import { patch, type Desk, type Progress } from '../api';
 import { useData, type PageProps } from '../app';
 import { DeskForm } from '../components/desk-form';
 import { RetentionPanel } from '../components/retention-panel';
@@ -7,6 +7,8 @@ import { TermSuggestionsPanel } from '../components/term-suggestions';
 
 export function SettingsPage({ params }: PageProps) {
   const [desk, error, reload] = useData<Desk>(`/desks/${params.deskId}`);
+  // Once verdicts exist the number keys have a meaning for reviewers: the categories' order is fixed.
+  const [progress] = useData<Progress>(`/desks/${params.deskId}/progress`);
   const [saved, setSaved] = useState<string | null>(null);
   // Kept here: the retention panel is drawn afresh (its key) once the saved desk comes back.
   const [retentionSaved, setRetentionSaved] = useState<string | null>(null);
@@ -27,6 +29,7 @@ export function SettingsPage({ params }: PageProps) {
         <DeskForm
           key={desk.updatedAt}
           initial={desk}
+          orderFixed={(progress?.verdicts.total ?? 0) > 0}
           submitLabel="Save the settings"
           onSubmit={async (v) => {
             await patch(`/desks/${desk.id}`, v);
