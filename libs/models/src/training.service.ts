@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { Inject, Injectable, Logger } from '@nestjs/common';
 import { UnrecoverableError } from 'bullmq';
 import {
@@ -139,6 +140,28 @@ export class TrainingService {
     if (new Set(train.map(([, e]) => e.label)).size < 2)
       return { version: null, reason: 'training verdicts cover fewer than two categories' };
 
+    const digest = (rows: typeof train) =>
+      createHash('sha256')
+        .update(rows.map(([id, e]) => `${id}\t${e.label}`).join('\n'))
+        .digest('hex');
+    if (!row && hasModel) {
+      // Nothing new to learn from: the same labels would give the same classifier and calibration again (the warm
+      // start aside), so a new version would only add a copy to the list and a report to read.
+      const current = await this.db.manager.findOneBy(ModelVersionEntity, {
+        deskId,
+        version: desk.currentModelVersion!,
+      });
+      if (
+        current?.training.labelsDigest !== undefined &&
+        current.training.labelsDigest === digest(train) &&
+        current.calibration.labelsDigest === digest(calib)
+      ) {
+        const reason = `no new version: version ${current.version} was trained and calibrated on the same verdicts (${train.length} training, ${calib.length} calibration)`;
+        this.logger.log(`desk ${deskId}: ${reason}`);
+        return { version: null, reason };
+      }
+    }
+
     const version = row?.version ?? (await this.nextVersion(deskId));
     const summary = (rows: typeof train): VerdictSetSummary => {
       const draws: Record<string, number> = {};
@@ -148,6 +171,7 @@ export class TrainingService {
         draws,
         itemIds: rows.map(([id]) => id),
         settledItemIds: rows.filter(([, e]) => e.settled).map(([id]) => id),
+        labelsDigest: digest(rows),
       };
     };
     if (!row) {

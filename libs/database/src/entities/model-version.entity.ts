@@ -15,6 +15,11 @@ export interface VerdictSetSummary {
   itemIds: number[];
   /** The items whose label is a supervisor's settlement, ascending (absent in versions trained before settlements existed). */
   settledItemIds?: number[];
+  /**
+   * SHA-256 of the items with their labels (`id<TAB>label` lines, ascending ids): two versions with the same digest
+   * learned from the same labels. Absent in versions trained before it was recorded.
+   */
+  labelsDigest?: string;
 }
 
 /**
