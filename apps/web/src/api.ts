@@ -123,6 +123,7 @@ export function uploadFile(
   path: string,
   file: File,
   onProgress: (sent: number, total: number) => void,
+  fields: Record<string, string> = {},
 ): Promise<ImportStarted> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
@@ -135,6 +136,7 @@ export function uploadFile(
       else reject(new ApiError(xhr.status, messageOf(parsed, xhr.status)));
     };
     const form = new FormData();
+    for (const [name, value] of Object.entries(fields)) form.append(name, value);
     form.append('file', file, file.name);
     xhr.send(form);
   });

@@ -13,6 +13,11 @@ export function ImportPage({ params }: PageProps) {
   const [sent, setSent] = useState<{ sent: number; total: number } | null>(null);
   const [current, setCurrent] = useState<ImportView | null>(null);
   const [error, setError] = useState<string | null>(null);
+  const [labelField, setLabelField] = useState('');
+  const [labelDraw, setLabelDraw] = useState<'archive' | 'random'>('archive');
+  const [uniformSample, setUniformSample] = useState(false);
+  const labelled = labelField.trim() !== '';
+  const needsStatement = labelled && labelDraw === 'random' && !uniformSample;
   const [history, , reloadHistory] = useData<ImportList>(`/desks/${deskId}/imports`);
 
   const poll = async () => {
@@ -34,7 +39,19 @@ export function ImportPage({ params }: PageProps) {
     setCurrent(null);
     setSent({ sent: 0, total: file.size });
     try {
-      const { importId } = await uploadFile(`/desks/${deskId}/imports`, file, (s, t) => setSent({ sent: s, total: t }));
+      const fields: Record<string, string> = labelled
+        ? {
+            labelField: labelField.trim(),
+            labelDraw,
+            ...(labelDraw === 'random' ? { uniformSample: String(uniformSample) } : {}),
+          }
+        : {};
+      const { importId } = await uploadFile(
+        `/desks/${deskId}/imports`,
+        file,
+        (s, t) => setSent({ sent: s, total: t }),
+        fields,
+      );
       setCurrent(await get<ImportView>(`/imports/${importId}`));
     } catch (err) {
       setError((err as Error).message);
@@ -69,10 +86,67 @@ export function ImportPage({ params }: PageProps) {
             onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)}
           />
         </label>
+        <fieldset class="label-options">
+          <legend>Labels already given (optional)</legend>
+          <label>
+            Label column
+            <input
+              type="text"
+              name="labelField"
+              value={labelField}
+              placeholder="e.g. label"
+              aria-describedby="label-field-help"
+              onInput={(e) => setLabelField(e.currentTarget.value)}
+            />
+          </label>
+          <p id="label-field-help" class="muted">
+            A row whose label names one of the desk's categories becomes a decided item, recorded as decided by the
+            account <code>archive</code>; a row without a label stays open for review; any other label rejects its row.
+          </p>
+          {labelled && (
+            <div role="radiogroup" aria-label="How the labelled texts were chosen">
+              <label class="inline">
+                <input
+                  type="radio"
+                  name="labelDraw"
+                  value="archive"
+                  checked={labelDraw === 'archive'}
+                  onChange={() => setLabelDraw('archive')}
+                />
+                Archive: the labels train the model and never calibrate its prediction sets
+              </label>
+              <label class="inline">
+                <input
+                  type="radio"
+                  name="labelDraw"
+                  value="random"
+                  checked={labelDraw === 'random'}
+                  onChange={() => setLabelDraw('random')}
+                />
+                Random: the labels calibrate the prediction sets
+              </label>
+            </div>
+          )}
+          {labelled && labelDraw === 'random' && (
+            <label class="inline">
+              <input
+                type="checkbox"
+                name="uniformSample"
+                checked={uniformSample}
+                onChange={(e) => setUniformSample(e.currentTarget.checked)}
+              />
+              I state that these texts are a uniform random sample of the same stream this desk screens. Only such a
+              sample may calibrate: texts picked by keyword, by escalation or by an earlier model would make the
+              promised coverage untrue. The desk records who stated it and when.
+            </label>
+          )}
+        </fieldset>
         <button
           type="submit"
           class="primary"
-          disabled={!file || (sent !== null && !current) || (current !== null && !FINISHED.has(current.state))}
+          disabled={
+            !file || needsStatement || (sent !== null && !current) || (current !== null && !FINISHED.has(current.state))
+          }
         >
           Import
         </button>
@@ -104,6 +178,7 @@ export function ImportPage({ params }: PageProps) {
                 <th class="num">Imported</th>
                 <th class="num">Duplicates</th>
                 <th class="num">Rejected</th>
+                <th class="num">Labelled</th>
               </tr>
             </thead>
             <tbody>
@@ -115,6 +190,7 @@ export function ImportPage({ params }: PageProps) {
                   <td class="num">{count(i.imported)}</td>
                   <td class="num">{count(i.duplicates)}</td>
                   <td class="num">{count(i.rejected)}</td>
+                  <td class="num">{i.labels ? `${count(i.labels.labelled)} (${i.labels.draw})` : ''}</td>
                 </tr>
               ))}
             </tbody>
@@ -172,7 +248,19 @@ function ImportProgress({ v }: { v: ImportView }) {
           <dt>Rejected</dt>
           <dd class={v.rejected ? 'bad' : ''}>{count(v.rejected)}</dd>
         </div>
+        {v.labels && (
+          <div>
+            <dt>Labelled ({v.labels.draw})</dt>
+            <dd>{count(v.labels.labelled)}</dd>
+          </div>
+        )}
       </dl>
+      {v.labels?.uniformSample && (
+        <p class="muted">
+          {v.labels.uniformSample.statedBy} stated on {when(v.labels.uniformSample.statedAt)} that this file is a
+          uniform random sample of the same stream.
+        </p>
+      )}
       {v.failure && (
         <p class="error" role="alert">
           The import stopped: {v.failure}
