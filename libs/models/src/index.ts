@@ -11,3 +11,6 @@ export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js'
 export { ScreenLaneService } from './screening/screen-lane.service.js';
 export { periodStart } from './screening/prevalence.service.js';
 export { setOptionsOf, targetsOf, type SetSettings } from './set-options.js';
+export { ScreeningCache, SCREENING_CACHE_BYTES, SCREENING_CACHE_DESKS } from './screening/screening-cache.service.js';
+export { ScreeningService } from './screening/screening.service.js';
+export { PrevalenceService, type Prevalence } from './screening/prevalence.service.js';

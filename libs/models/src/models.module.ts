@@ -7,6 +7,7 @@ import { PredictionsService } from './predictions.service.js';
 import { PublishService } from './publish.service.js';
 import { RetrainScheduler } from './retrain-scheduler.service.js';
 import { ScoringService } from './scoring.service.js';
+import { ScreeningCache } from './screening/screening-cache.service.js';
 import { ScreeningRepository } from './screening/screening.repository.js';
 import { PrevalenceController } from './screening/prevalence.controller.js';
 import { PrevalenceService } from './screening/prevalence.service.js';
@@ -18,7 +19,16 @@ import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.
 @Module({ providers: [DeskFeaturesService], exports: [DeskFeaturesService] })
 export class DeskFeaturesModule {}
 
-const shared = [ModelStore, PredictionsService, RetrainScheduler, ScreenLaneService];
+// The screening cache and the prevalence are shared: the API serves them, the worker's reports state the prevalence.
+const shared = [
+  ModelStore,
+  PredictionsService,
+  RetrainScheduler,
+  ScreenLaneService,
+  ScreeningRepository,
+  ScreeningCache,
+  PrevalenceService,
+];
 
 /** Reading models and predictions (and asking for retrains): no training here. */
 @Module({ imports: [DeskFeaturesModule], providers: shared, exports: [DeskFeaturesModule, ...shared] })
@@ -28,7 +38,7 @@ export class ModelsCoreModule {}
 @Module({
   imports: [ModelsCoreModule],
   controllers: [ModelsController, PredictionsExportController, PrevalenceController],
-  providers: [ScreeningRepository, ScreeningService, PrevalenceService],
+  providers: [ScreeningService],
   exports: [ModelsCoreModule],
 })
 export class ModelsModule {}

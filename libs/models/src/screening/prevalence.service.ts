@@ -1,9 +1,8 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database, type DeskEntity } from '#database';
+import type { DeskEntity } from '#database';
 import { addScore, emptyScoreSummary, estimatePrevalence, type CountMethod, type ScoreSummary } from '#learning';
-import type { LoadedModel } from '../model-store.service.js';
-import { PredictionsService } from '../predictions.service.js';
-import { ScreeningRepository, type PeriodBasis } from './screening.repository.js';
+import { ScreeningCache, type PoolSnapshot } from './screening-cache.service.js';
+import type { PeriodBasis } from './screening.repository.js';
 
 export const PERIODS = ['day', 'week', 'month'] as const;
 export type Period = (typeof PERIODS)[number];
@@ -77,71 +76,65 @@ interface Bucket {
  */
 @Injectable()
 export class PrevalenceService {
-  /** Probabilities of decided random-draw items under a version (decided items have no stored prediction). */
-  private readonly cache = new Map<string, Map<number, Float64Array>>();
-
-  constructor(
-    @Inject(Database) private readonly db: Database,
-    @Inject(PredictionsService) private readonly predictions: PredictionsService,
-    @Inject(ScreeningRepository) private readonly repo: ScreeningRepository,
-  ) {}
+  constructor(@Inject(ScreeningCache) private readonly cache: ScreeningCache) {}
 
   async prevalence(desk: DeskEntity, categories: string[], period: Period, by: PeriodBasis): Promise<Prevalence> {
-    const model = await this.predictions.current(desk);
+    const pool = await this.cache.snapshot(desk);
+    // The figures depend on the snapshot and these alone (not on targets or watched categories).
+    return pool.memo(`prevalence:${JSON.stringify([categories, period, by])}`, () =>
+      this.compute(pool, categories, period, by),
+    );
+  }
+
+  private async compute(
+    pool: PoolSnapshot,
+    categories: string[],
+    period: Period,
+    by: PeriodBasis,
+  ): Promise<Prevalence> {
+    const model = pool.model;
     // The model's order of categories (probability vectors) may differ from the desk's display order.
     const modelIndex = categories.map((c) => model?.categories.indexOf(c) ?? -1);
-    const buckets = new Map<string, Bucket>();
     const k = categories.length;
+    const at = pool.periods(by, (t) => periodStart(t, period), period);
+    const buckets: Bucket[] = at.starts.map(() => ({
+      items: 0,
+      decided: 0,
+      decidedBy: Array<number>(k).fill(0),
+      randomLabels: categories.map(() => []),
+      randomScores: categories.map(() => []),
+      scored: categories.map(() => emptyScoreSummary()),
+      unscored: 0,
+    }));
     let undated = 0;
-    const bucketAt = (at: unknown): Bucket | null => {
-      const t = this.db.parseTime(at);
-      if (!t) {
+    const bucketAt = (index: number): Bucket | null => {
+      if (index < 0) {
         undated++;
         return null;
       }
-      const key = periodStart(t, period);
-      let b = buckets.get(key);
-      if (!b) {
-        b = {
-          items: 0,
-          decided: 0,
-          decidedBy: Array<number>(k).fill(0),
-          randomLabels: categories.map(() => []),
-          randomScores: categories.map(() => []),
-          scored: categories.map(() => emptyScoreSummary()),
-          unscored: 0,
-        };
-        buckets.set(key, b);
-      }
+      const b = buckets[index];
       b.items++;
       return b;
     };
 
-    for await (const page of this.repo.openAt(desk.id, model?.version ?? null, by)) {
-      for (const o of page) {
-        const b = bucketAt(o.at);
-        if (!b) continue;
-        if (o.probabilities === null || !model) {
-          b.unscored++;
-          continue;
-        }
-        const p = JSON.parse(o.probabilities) as number[];
-        for (let c = 0; c < k; c++) addScore(b.scored[c], modelIndex[c] >= 0 ? p[modelIndex[c]] : 0);
-      }
+    const { k: modelK, probs: all } = pool.scored;
+    for (let i = 0; i < pool.scored.count; i++) {
+      const b = bucketAt(at.scored[i]);
+      if (!b) continue;
+      for (let c = 0; c < k; c++) addScore(b.scored[c], modelIndex[c] >= 0 ? all[i * modelK + modelIndex[c]] : 0);
+    }
+    for (let i = 0; i < pool.unscored.count; i++) {
+      const b = bucketAt(at.unscored[i]);
+      if (b) b.unscored++;
     }
 
-    const decided = await this.repo.decidedAt(desk.id, by);
+    const decided = pool.decided;
     // Random draws of items whose text is gone cannot be scored: they count with their labels like other decided items.
     const randoms = decided.filter((d) => d.random && d.label !== null && !d.erased);
-    const probs = model
-      ? await this.randomProbabilities(
-          model,
-          randoms.map((r) => r.id),
-        )
-      : null;
-    for (const d of decided) {
-      const b = bucketAt(d.at);
-      if (!b) continue;
+    const probs = model ? await pool.textProbabilities(randoms.map((r) => r.id)) : null;
+    decided.forEach((d, i) => {
+      const b = bucketAt(at.decided[i]);
+      if (!b) return;
       if (d.label === null) {
         // An abstention: decided, but with no label to count; it stays among the items estimated.
         b.unscored++;
@@ -156,9 +149,11 @@ export class PrevalenceService {
         const j = categories.indexOf(d.label);
         if (j >= 0) b.decidedBy[j]++;
       }
-    }
+    });
 
-    const periods = [...buckets.entries()]
+    const periods = at.starts
+      .map((start, i) => [start, buckets[i]] as const)
+      .filter(([, b]) => b.items > 0)
       .sort(([a], [b]) => a.localeCompare(b))
       .map(([start, b]): PeriodPrevalence => {
         const perCategory: Record<string, CategoryShare> = {};
@@ -198,21 +193,5 @@ export class PrevalenceService {
       undated,
       periods,
     };
-  }
-
-  private async randomProbabilities(model: LoadedModel, ids: number[]): Promise<Map<number, Float64Array>> {
-    const key = `${model.deskId}:${model.version}`;
-    let cache = this.cache.get(key);
-    if (!cache) {
-      for (const old of this.cache.keys()) if (old.startsWith(`${model.deskId}:`)) this.cache.delete(old);
-      cache = new Map();
-      this.cache.set(key, cache);
-    }
-    const missing = ids.filter((id) => !cache.has(id));
-    if (missing.length > 0) {
-      const texts = await this.repo.texts(missing);
-      for (const [id, text] of texts) cache.set(id, model.classifier.predictProba(model.vectorize(text)));
-    }
-    return cache;
   }
 }

@@ -11,17 +11,27 @@ export interface RandomLabel {
 /** When an item was posted or imported, as the database returns it. */
 export type PeriodBasis = 'posted' | 'imported';
 
-/** An open item with its time and the current version's stored probabilities (null when it has none). */
-export interface OpenAt {
+/** An item a version scored: its stored probabilities (JSON text) and its times (ms since 1970, NaN when unknown). */
+export interface ScoredRow {
   id: number;
-  at: unknown;
-  probabilities: string | null;
+  probabilities: string;
+  postedAt: number;
+  importedAt: number;
 }
 
-/** A decided item with its time, its label (null for an abstention), whether a uniform random draw decided it. */
+/** An open item: whether the version scored it, and its times when it did not (NaN otherwise or when unknown). */
+export interface OpenRow {
+  id: number;
+  scored: boolean;
+  postedAt: number;
+  importedAt: number;
+}
+
+/** A decided item with its times (ms since 1970, NaN when unknown), its label (null for an abstention), whether a uniform random draw decided it. */
 export interface DecidedAt {
   id: number;
-  at: unknown;
+  postedAt: number;
+  importedAt: number;
   label: string | null;
   random: boolean;
   erased: boolean;
@@ -32,29 +42,19 @@ export interface DecidedAt {
 export class ScreeningRepository {
   constructor(@Inject(Database) private readonly db: Database) {}
 
-  /** Open items (not decided; leased ones included) and, of them, those that match a seed term. */
-  async openCounts(deskId: number): Promise<{ open: number; seedMatches: number }> {
-    const [r] = await this.db.query<{ open: DbInt; seeded: DbInt | null }>(
-      null,
-      `SELECT COUNT(*) AS open, SUM(CASE WHEN seed_hits > 0 THEN 1 ELSE 0 END) AS seeded
-       FROM items WHERE desk_id = $1 AND state <> 'decided'`,
-      [deskId],
-    );
-    return { open: Number(r.open), seedMatches: Number(r.seeded ?? 0) };
-  }
-
   /**
    * Every item first served by a uniform random draw and decided with a
    * category, with its label: the supervisor's latest settlement, else the
    * latest live verdict of the random draw (second opinions never count, as
-   * in training). Abstentions give no label.
+   * in training). Abstentions give no label. Erased items are left out:
+   * their text is gone, so the model cannot score them.
    */
   async randomLabels(deskId: number): Promise<RandomLabel[]> {
     const verdicts = await this.db.query<{ item_id: DbInt; category: string | null; text: string }>(
       null,
       `SELECT v.item_id, c.name AS category, i.text FROM verdicts v LEFT JOIN categories c ON c.id = v.category_id
        JOIN items i ON i.id = v.item_id
-       WHERE v.desk_id = $1 AND v.draw = 'random' AND v.undone_at IS NULL ORDER BY v.id`,
+       WHERE v.desk_id = $1 AND v.draw = 'random' AND v.undone_at IS NULL AND i.erased_at IS NULL ORDER BY v.id`,
       [deskId],
     );
     const settled = await this.db.query<{ item_id: DbInt; category: string }>(
@@ -74,18 +74,81 @@ export class ScreeningRepository {
       .map(([itemId, e]) => ({ itemId, label: e.label, text: e.text }));
   }
 
-  /** The open items of a desk with their time and stored probabilities under `version`, page by page. */
-  async *openAt(deskId: number, version: number | null, by: PeriodBasis, pageSize = 10_000): AsyncGenerator<OpenAt[]> {
-    const column = by === 'posted' ? 'i.posted_at' : 'i.imported_at';
+  /**
+   * Everything the cached screening figures of a desk depend on besides its
+   * version and settings, read in one statement: counts and largest ids of
+   * its items, verdicts and settlements, open and erased items. Every change
+   * that decides, reopens, erases, imports or relabels an item changes one of
+   * them (verdicts and settlements are only added; an undo sets `undone_at`
+   * once; an erasure sets `erased_at` once), so an unchanged marker means the
+   * open pool and the labels are as they were. The open count and its seed
+   * matches come with it.
+   */
+  async changeMarker(deskId: number): Promise<{ marker: string; open: number; seedMatches: number }> {
+    const [r] = await this.db.query<Record<string, DbInt | null>>(
+      null,
+      `SELECT it.n AS items, it.max_id AS item_max, it.open, it.seeded, it.erased,
+              v.n AS verdicts, v.undone, v.max_id AS verdict_max, s.n AS settlements, s.max_id AS settlement_max
+       FROM (SELECT COUNT(*) AS n, MAX(id) AS max_id, SUM(CASE WHEN state <> 'decided' THEN 1 ELSE 0 END) AS open,
+                    SUM(CASE WHEN state <> 'decided' AND seed_hits > 0 THEN 1 ELSE 0 END) AS seeded,
+                    COUNT(erased_at) AS erased FROM items WHERE desk_id = $1) it,
+            (SELECT COUNT(*) AS n, COUNT(undone_at) AS undone, MAX(id) AS max_id FROM verdicts WHERE desk_id = $1) v,
+            (SELECT COUNT(*) AS n, MAX(id) AS max_id FROM settlements WHERE desk_id = $1) s`,
+      [deskId],
+    );
+    const n = (x: DbInt | null | undefined) => Number(x ?? 0);
+    const keys = ['items', 'item_max', 'open', 'seeded', 'erased', 'verdicts', 'undone', 'verdict_max'] as const;
+    const marker = [...keys, 'settlements', 'settlement_max'].map((k) => n(r[k])).join(':');
+    return { marker, open: n(r.open), seedMatches: n(r.seeded) };
+  }
+
+  /**
+   * Every item a version scored (open or not), in id order, page by page:
+   * its stored probabilities (JSON text) and its times. A published
+   * version's predictions do not change, so this is read once per version.
+   */
+  async *scoredItems(deskId: number, version: number, pageSize = 10_000): AsyncGenerator<ScoredRow[]> {
     for (let after = 0; ;) {
-      const rows = await this.db.query<{ id: DbInt; at: unknown; probabilities: string | null }>(
+      const rows = await this.db.query<{ id: DbInt; probabilities: string; posted_at: unknown; imported_at: unknown }>(
         null,
-        `SELECT i.id, ${column} AS at, p.probabilities FROM items i
-         LEFT JOIN predictions p ON p.item_id = i.id AND p.model_version = $2
+        `SELECT p.item_id AS id, p.probabilities, i.posted_at, i.imported_at FROM predictions p JOIN items i ON i.id = p.item_id
+         WHERE p.desk_id = $1 AND p.model_version = $2 AND p.item_id > $3 ORDER BY p.item_id LIMIT ${pageSize}`,
+        [deskId, version, after],
+      );
+      if (rows.length > 0)
+        yield rows.map((r) => ({
+          id: Number(r.id),
+          probabilities: r.probabilities,
+          postedAt: this.time(r.posted_at),
+          importedAt: this.time(r.imported_at),
+        }));
+      if (rows.length < pageSize) return;
+      after = Number(rows[rows.length - 1].id);
+    }
+  }
+
+  /**
+   * The open items of a desk in id order, page by page: whether `version`
+   * scored them and, for those it did not, their times (the scored ones'
+   * come with {@link scoredItems}).
+   */
+  async *openItems(deskId: number, version: number | null, pageSize = 20_000): AsyncGenerator<OpenRow[]> {
+    for (let after = 0; ;) {
+      const rows = await this.db.query<{ id: DbInt; scored: DbInt | null; posted_at: unknown; imported_at: unknown }>(
+        null,
+        `SELECT i.id, p.item_id AS scored, CASE WHEN p.item_id IS NULL THEN i.posted_at END AS posted_at,
+                CASE WHEN p.item_id IS NULL THEN i.imported_at END AS imported_at
+         FROM items i LEFT JOIN predictions p ON p.item_id = i.id AND p.model_version = $2
          WHERE i.desk_id = $1 AND i.state <> 'decided' AND i.id > $3 ORDER BY i.id LIMIT ${pageSize}`,
         [deskId, version ?? -1, after],
       );
-      if (rows.length > 0) yield rows.map((r) => ({ id: Number(r.id), at: r.at, probabilities: r.probabilities }));
+      if (rows.length > 0)
+        yield rows.map((r) => ({
+          id: Number(r.id),
+          scored: r.scored !== null,
+          postedAt: this.time(r.posted_at),
+          importedAt: this.time(r.imported_at),
+        }));
       if (rows.length < pageSize) return;
       after = Number(rows[rows.length - 1].id);
     }
@@ -97,11 +160,10 @@ export class ScreeningRepository {
    * opinions never give the label, as in training); `random` when a live
    * verdict on a uniform random draw decided it.
    */
-  async decidedAt(deskId: number, by: PeriodBasis): Promise<DecidedAt[]> {
-    const column = by === 'posted' ? 'i.posted_at' : 'i.imported_at';
-    const items = await this.db.query<{ id: DbInt; at: unknown; erased_at: unknown }>(
+  async decidedAt(deskId: number): Promise<DecidedAt[]> {
+    const items = await this.db.query<{ id: DbInt; posted_at: unknown; imported_at: unknown; erased_at: unknown }>(
       null,
-      `SELECT i.id, ${column} AS at, i.erased_at FROM items i WHERE i.desk_id = $1 AND i.state = 'decided' ORDER BY i.id`,
+      `SELECT i.id, i.posted_at, i.imported_at, i.erased_at FROM items i WHERE i.desk_id = $1 AND i.state = 'decided' ORDER BY i.id`,
       [deskId],
     );
     const verdicts = await this.db.query<{ item_id: DbInt; draw: string; category: string | null }>(
@@ -129,7 +191,8 @@ export class ScreeningRepository {
       const l = label.get(Number(i.id));
       return {
         id: Number(i.id),
-        at: i.at,
+        postedAt: this.time(i.posted_at),
+        importedAt: this.time(i.imported_at),
         label: l?.label ?? null,
         random: l?.random ?? false,
         erased: i.erased_at !== null,
@@ -150,5 +213,9 @@ export class ScreeningRepository {
       for (const r of rows) out.set(Number(r.id), r.text);
     }
     return out;
+  }
+
+  private time(value: unknown): number {
+    return this.db.parseTime(value)?.getTime() ?? Number.NaN;
   }
 }

@@ -13,10 +13,9 @@ import {
   type CountEstimate,
   type ScoreSummary,
 } from '#learning';
-import type { LoadedModel } from '../model-store.service.js';
-import { PredictionsService } from '../predictions.service.js';
 import { setOptionsOf, targetsOf } from '../set-options.js';
-import { ScreeningRepository, type RandomLabel } from './screening.repository.js';
+import { ScreeningCache, type PoolSnapshot } from './screening-cache.service.js';
+import type { RandomLabel } from './screening.repository.js';
 
 /** What the cleared pile still holds of one watched category. */
 export interface ClearedMisses {
@@ -96,19 +95,26 @@ export function guaranteeSentence(category: string, c: Omit<CategoryScreening, '
  */
 @Injectable()
 export class ScreeningService {
-  /** Probabilities of the estimation fold's items under a version (decided items have no stored prediction). */
-  private readonly probabilityCache = new Map<string, Map<number, Float64Array>>();
-
-  constructor(
-    @Inject(PredictionsService) private readonly predictions: PredictionsService,
-    @Inject(ScreeningRepository) private readonly repo: ScreeningRepository,
-  ) {}
+  constructor(@Inject(ScreeningCache) private readonly cache: ScreeningCache) {}
 
   async screening(desk: DeskEntity): Promise<Screening> {
-    const model = await this.predictions.current(desk);
-    const { open, seedMatches } = await this.repo.openCounts(desk.id);
-    const randoms = await this.repo.randomLabels(desk.id);
-    const keywordBaseline = this.keywordBaseline(desk, randoms, seedMatches);
+    const pool = await this.cache.snapshot(desk);
+    // Everything of the desk the answer depends on besides the snapshot.
+    const settings = JSON.stringify([
+      desk.watch,
+      desk.coverageTarget,
+      desk.coverageTargets,
+      desk.calibration,
+      desk.confidence,
+      desk.score,
+      desk.seedTerms,
+    ]);
+    return pool.memo(`screening:${settings}`, () => this.compute(desk, pool));
+  }
+
+  private async compute(desk: DeskEntity, pool: PoolSnapshot): Promise<Screening> {
+    const { model, open, randoms } = pool;
+    const keywordBaseline = this.keywordBaseline(desk, randoms, pool.seedMatches);
     if (!model) return this.beforeFirstModel(desk, open, keywordBaseline);
 
     const categories = model.categories;
@@ -123,7 +129,9 @@ export class ScreeningService {
     let cleared = 0;
     const flaggedBy = watched.map(() => 0);
     const pile: ScoreSummary[] = watched.map(() => emptyScoreSummary());
-    for await (const { probs } of this.predictions.probabilities(desk, model)) {
+    const { k, probs: all } = pool.scored;
+    for (let i = 0; i < pool.scored.count; i++) {
+      const probs = all.subarray(i * k, i * k + k);
       const set = rule(probs).categories;
       watched.forEach((c, j) => {
         if (set.includes(c)) flaggedBy[j]++;
@@ -137,8 +145,8 @@ export class ScreeningService {
 
     // The estimation fold's random verdicts whose items the current sets clear: a sample of the cleared pile.
     const fold = randoms.filter((r) => inEstimationFold(r.itemId));
-    const probsOf = this.foldProbabilities(model, fold);
-    const sample = fold.filter((r) => !isFlagged(rule(probsOf.get(r.itemId)!).categories));
+    const probsOf = await pool.textProbabilities(fold.map((r) => r.itemId));
+    const sample = fold.filter((r) => probsOf.has(r.itemId) && !isFlagged(rule(probsOf.get(r.itemId)!).categories));
     const targets = targetsOf(desk, categories);
     const perCategory: Record<string, CategoryScreening> = {};
     watched.forEach((c, j) => {
@@ -223,20 +231,5 @@ export class ScreeningService {
       flagged: seedMatches,
       recall: { estimate: n > 0 ? hits / n : null, lower: ci?.lower ?? 0, upper: ci?.upper ?? 1, randomVerdicts: n },
     };
-  }
-
-  private foldProbabilities(model: LoadedModel, fold: RandomLabel[]): Map<number, Float64Array> {
-    const key = `${model.deskId}:${model.version}`;
-    let cache = this.probabilityCache.get(key);
-    if (!cache) {
-      // One version per desk is current: drop the desk's older entries.
-      for (const k of this.probabilityCache.keys())
-        if (k.startsWith(`${model.deskId}:`)) this.probabilityCache.delete(k);
-      cache = new Map();
-      this.probabilityCache.set(key, cache);
-    }
-    for (const r of fold)
-      if (!cache.has(r.itemId)) cache.set(r.itemId, model.classifier.predictProba(model.vectorize(r.text)));
-    return cache;
   }
 }
