@@ -1,12 +1,20 @@
 import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskEntity, ModelVersionEntity, type DbInt, type VerdictSetSummary } from '#database';
-import { ModelStore } from '#models';
+import { ModelStore, PrevalenceService } from '#models';
 import { AgreementService } from '#verdicts';
 import { activityFigures } from './figures/activity-figures.js';
 import { alertEpisodes, coverageFigure, type RandomCheck } from './figures/coverage-figures.js';
 import { poolFigures } from './figures/pool-figures.js';
+import { prevalenceSection } from './figures/prevalence-figures.js';
 import { SettingsHistory } from './figures/settings-history.js';
-import type { LearningPoint, PoolSection, QualitySection, ReportFigures, VerdictCounts } from './report-figures.js';
+import type {
+  LearningPoint,
+  PoolSection,
+  PrevalenceSection,
+  QualitySection,
+  ReportFigures,
+  VerdictCounts,
+} from './report-figures.js';
 
 /** Why a report cannot be made (yet): the version is missing or not published. */
 export class ReportNotPossible extends Error {}
@@ -26,13 +34,20 @@ export class ReportData {
     @Inject(Database) private readonly db: Database,
     @Inject(ModelStore) private readonly store: ModelStore,
     @Inject(AgreementService) private readonly agreement: AgreementService,
+    @Inject(PrevalenceService) private readonly prevalenceService: PrevalenceService,
   ) {}
 
   /**
    * @param keptPool the pool figures of an earlier run, used when this
    *   version's predictions are gone (they are dropped once a newer version is published)
+   * @param keptPrevalence the prevalence of an earlier run: kept as it was first computed
    */
-  async figures(deskId: number, version: number, keptPool: PoolSection | null = null): Promise<ReportFigures> {
+  async figures(
+    deskId: number,
+    version: number,
+    keptPool: PoolSection | null = null,
+    keptPrevalence: PrevalenceSection | null = null,
+  ): Promise<ReportFigures> {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     if (!desk || !row) throw new ReportNotPossible(`desk ${deskId} has no model version ${version}`);
@@ -98,7 +113,20 @@ export class ReportData {
       settingsChanges: history
         .between(from, to)
         .map((e) => ({ at: e.at.toISOString(), actor: e.actor, before: e.before ?? {}, after: e.after ?? {} })),
+      prevalence: keptPrevalence ?? (await this.prevalence(desk, version, categories)),
     };
+  }
+
+  /**
+   * The prevalence by week of posting under this version, as the desk stands
+   * now: only while this version is current (its stored probabilities are
+   * what the estimate uses); null otherwise.
+   */
+  private async prevalence(desk: DeskEntity, version: number, categories: string[]): Promise<PrevalenceSection | null> {
+    if (desk.currentModelVersion !== version) return null;
+    const asOf = new Date();
+    const p = await this.prevalenceService.prevalence(desk, categories, 'week', 'posted');
+    return p.modelVersion === version ? prevalenceSection(p, asOf) : null;
   }
 
   private async settingsHistory(desk: DeskEntity): Promise<SettingsHistory> {

@@ -128,6 +128,29 @@ export function sampleFigures(over: Partial<ReportFigures> = {}): ReportFigures 
         after: { coverageTarget: 0.9 },
       },
     ],
+    prevalence: {
+      asOf: '2026-03-01T10:00:06.000Z',
+      modelVersion: 3,
+      period: 'week',
+      by: 'posted',
+      method: 'PPI++ from the random verdicts and the model’s probabilities.',
+      approximation: 'Random draws are uniform over the open items.',
+      undated: 0,
+      periods: [
+        { start: '2026-02-16', items: 80, randomVerdicts: 12, decided: 5 },
+        { start: '2026-02-23', items: 95, randomVerdicts: 0, decided: 2 },
+      ].map((p, i) => ({
+        ...p,
+        perCategory: categories.map((category, j) => ({
+          category,
+          share: i === 1 ? null : [0.05, 0.2, 0.75][j],
+          lower: i === 1 ? 0 : [0.01, 0.12, 0.64][j],
+          upper: i === 1 ? 1 : [0.12, 0.3, 0.84][j],
+          method: i === 1 ? ('none' as const) : ('clopper-pearson' as const),
+          randomVerdicts: p.randomVerdicts,
+        })),
+      })),
+    },
     ...over,
   };
 }

@@ -37,6 +37,40 @@ export interface ReportFigures {
   activity: ActivitySection;
   alerts: AlertSection;
   settingsChanges: SettingsChange[];
+  /**
+   * Each category's share of the items posted each week, with its 95 %
+   * interval, as computed when the report was first written under this
+   * version (kept on later writings); null when another version was current
+   * by then.
+   */
+  prevalence: PrevalenceSection | null;
+}
+
+/** Prevalence by week of posting (the figures of `GET /prevalence?period=week`). */
+export interface PrevalenceSection {
+  /** When the figures were computed: the desk's items and verdicts as they stood then. */
+  asOf: string;
+  modelVersion: number | null;
+  period: 'day' | 'week' | 'month';
+  by: 'posted' | 'imported';
+  method: string;
+  approximation: string;
+  /** Items without a posted time, left out. */
+  undated: number;
+  periods: Array<{
+    start: string;
+    items: number;
+    randomVerdicts: number;
+    decided: number;
+    perCategory: Array<{
+      category: string;
+      share: number | null;
+      lower: number;
+      upper: number;
+      method: 'ppi++' | 'clopper-pearson' | 'none' | 'exact';
+      randomVerdicts: number;
+    }>;
+  }>;
 }
 
 export interface VerdictCounts {

@@ -50,8 +50,8 @@ export class ReportWriter {
     }
     let figures: ReportFigures;
     try {
-      const kept = existing?.figures ? (JSON.parse(existing.figures) as ReportFigures).pool : null;
-      figures = await this.data.figures(p.deskId, p.version, kept);
+      const kept = existing?.figures ? (JSON.parse(existing.figures) as Partial<ReportFigures>) : null;
+      figures = await this.data.figures(p.deskId, p.version, kept?.pool ?? null, kept?.prevalence ?? null);
     } catch (e) {
       await this.fail(p, e);
       if (e instanceof ReportNotPossible) throw new UnrecoverableError(e.message);

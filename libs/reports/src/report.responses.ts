@@ -143,5 +143,34 @@ export const ReportAnswer = named(
         after: z.record(z.string(), z.unknown()),
       }),
     ),
+    prevalence: z
+      .strictObject({
+        asOf: z.string(),
+        modelVersion: z.int().nullable(),
+        period: z.enum(['day', 'week', 'month']),
+        by: z.enum(['posted', 'imported']),
+        method: z.string(),
+        approximation: z.string(),
+        undated: z.int(),
+        periods: z.array(
+          z.strictObject({
+            start: z.string(),
+            items: z.int(),
+            randomVerdicts: z.int(),
+            decided: z.int(),
+            perCategory: z.array(
+              z.strictObject({
+                category: z.string(),
+                share: z.number().nullable(),
+                lower: z.number(),
+                upper: z.number(),
+                method: z.enum(['ppi++', 'clopper-pearson', 'none', 'exact']),
+                randomVerdicts: z.int(),
+              }),
+            ),
+          }),
+        ),
+      })
+      .nullable(),
   }),
 );

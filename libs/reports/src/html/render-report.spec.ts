@@ -32,18 +32,34 @@ describe('renderReport', () => {
     expect(page.match(/https?:\/\/[^\s"']+/g) ?? []).toEqual([
       'http://www.w3.org/2000/svg',
       'http://www.w3.org/2000/svg',
+      'http://www.w3.org/2000/svg',
     ]);
     expect(page).toContain(`content="default-src 'none'; style-src 'unsafe-inline'; img-src data:"`);
     expect(page).toMatch(/@page \{ size: A4;/);
   });
 
-  it('draws both charts with axes, axis titles and the reliability diagonal', () => {
+  it('draws its three charts with axes, axis titles and the reliability diagonal', () => {
     const page = renderReport(sampleFigures(), 'c'.repeat(64));
-    expect(page.match(/<svg class="chart /g)).toHaveLength(2);
+    expect(page.match(/<svg class="chart /g)).toHaveLength(3);
     expect(page).toContain('class="diagonal"');
     expect(page).toContain('confidence: top-category probability (0–1)');
     expect(page).toContain('macro-F1 (0–1)');
-    expect(page.match(/class="axis x-axis"/g)).toHaveLength(2);
+    expect(page.match(/class="axis x-axis"/g)).toHaveLength(3);
+  });
+
+  it('states the prevalence of each week with its interval and method, and says when it is missing', () => {
+    const f = sampleFigures();
+    const page = renderReport(f, 'f'.repeat(64));
+    expect(page).toContain('<h2>Prevalence by week</h2>');
+    // One band and one line per category with an estimate (the second week has none).
+    expect(page.match(/<polygon class="band"/g)).toHaveLength(f.desk.categories.length);
+    expect(page).toContain('<td>2026-02-16</td><td class="num">80</td><td class="num">12</td><td class="num">5</td>');
+    expect(page).toContain('5.0 %<br>1.0–12.0 %<br>random verdicts alone');
+    expect(page).toContain('–<br>0.0–100.0 %<br>not estimated');
+    expect(page).toContain(f.prevalence!.approximation);
+    const none = renderReport(sampleFigures({ prevalence: null }), 'f'.repeat(64));
+    expect(none).toContain('another version was current when this report was written');
+    expect(none.match(/<svg class="chart /g)).toHaveLength(2);
   });
 
   it('gives the same page for the same figures', () => {

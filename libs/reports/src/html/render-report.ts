@@ -1,5 +1,6 @@
 import type { ReportFigures } from '../report-figures.js';
 import { html, trusted } from './escape-html.js';
+import { prevalenceSection } from './prevalence-section.js';
 import {
   activitySection,
   agreementSection,
@@ -41,6 +42,7 @@ ${countsSection(f)}
 ${poolSection(f)}
 ${qualitySection(f)}
 ${learningCurveSection(f)}
+${prevalenceSection(f)}
 ${agreementSection(f)}
 ${activitySection(f)}
 ${alertsSection(f)}
