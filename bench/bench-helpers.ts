@@ -13,6 +13,25 @@ import {
 } from '../libs/learning/src/index.js';
 import type { LabelledText } from './spam-assassin.js';
 
+/**
+ * An integer setting read from the environment: `def` when unset or empty;
+ * a RangeError naming the variable when it is not an integer from `min` to `max`.
+ */
+export function envInt(
+  name: string,
+  def: number,
+  min: number,
+  max: number,
+  env: NodeJS.ProcessEnv = process.env,
+): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return def;
+  const v = Number(raw);
+  if (!Number.isInteger(v) || v < min || v > max)
+    throw new RangeError(`${name}=${JSON.stringify(raw)}: expected an integer from ${min} to ${max}`);
+  return v;
+}
+
 /** Median of a list of numbers. */
 export function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);

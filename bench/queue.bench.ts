@@ -36,19 +36,13 @@ import pg from 'pg';
 import { api, importPool, ndjsonPool } from './queue/fixture.js';
 import { runLoad } from './queue/load.js';
 import { freePort, runCli, startService, stopService, waitReady, type Service } from './queue/processes.js';
+import { envInt } from './bench-helpers.js';
 import { round2 } from './queue/stats.js';
 
 type DatabaseKind = 'sqlite' | 'postgres';
 
 const env = process.env;
-const int = (name: string, def: number, min: number, max: number): number => {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return def;
-  const v = Number(raw);
-  if (!Number.isInteger(v) || v < min || v > max)
-    throw new RangeError(`${name}=${JSON.stringify(raw)}: expected an integer from ${min} to ${max}`);
-  return v;
-};
+const int = (name: string, def: number, min: number, max: number) => envInt(name, def, min, max, env);
 
 const SETTINGS = {
   databases: (env.BENCH_QUEUE_DATABASES ?? 'sqlite,postgres')

@@ -29,17 +29,11 @@ import { fileURLToPath } from 'node:url';
 import pg from 'pg';
 import { api, importPool } from './queue/fixture.js';
 import { freePort, runCli, startService, stopService, waitReady, type Service } from './queue/processes.js';
-import { median } from './bench-helpers.js';
+import { envInt, median } from './bench-helpers.js';
+import { SYNTHETIC_CATEGORIES, SYNTHETIC_CUES, SYNTHETIC_FILLER } from './synthetic-words.js';
 
 const env = process.env;
-const int = (name: string, def: number, min: number, max: number): number => {
-  const raw = env[name];
-  if (raw === undefined || raw === '') return def;
-  const v = Number(raw);
-  if (!Number.isInteger(v) || v < min || v > max)
-    throw new RangeError(`${name}=${JSON.stringify(raw)}: expected an integer from ${min} to ${max}`);
-  return v;
-};
+const int = (name: string, def: number, min: number, max: number) => envInt(name, def, min, max, env);
 const SETTINGS = {
   items: int('BENCH_SCREENING_ITEMS', 50_000, 100, 5_000_000),
   verdicts: int('BENCH_SCREENING_VERDICTS', 800, 20, 100_000),
@@ -49,7 +43,7 @@ const SETTINGS = {
 };
 /** The issue's targets on the reference two-core machine. */
 const TARGET_MS = { screening: 300, prevalenceWeek: 300, targetChange: 2000 };
-const CATEGORIES = ['threat', 'harassment', 'ok'] as const;
+const CATEGORIES = SYNTHETIC_CATEGORIES;
 
 const ROOT = resolve(fileURLToPath(new URL('.', import.meta.url)), '..', '..');
 const SCRIPTS = {
@@ -72,23 +66,8 @@ function mulberry32(seed: number): () => number {
   };
 }
 
-const CUES: Record<(typeof CATEGORIES)[number], string[]> = {
-  threat: [
-    'hurt',
-    'find you',
-    'regret',
-    'waiting outside',
-    'burn',
-    'pay for this',
-    'coming for',
-    'know where you live',
-  ],
-  harassment: ['idiot', 'pathetic', 'loser', 'nobody likes you', 'shut up', 'clown', 'ugly', 'worthless'],
-  ok: ['market', 'garden', 'meeting', 'thanks', 'recipe', 'bus route', 'library', 'weekend'],
-};
-const FILLER = 'the a near park street today tonight neighbour post again really about square corner bakery rain'.split(
-  ' ',
-);
+const CUES = SYNTHETIC_CUES;
+const FILLER = SYNTHETIC_FILLER;
 
 /** `count` labelled posts (few threats, some harassment, mostly ok), posted over eight weeks from 2026-01-05. */
 function generatePool(count: number): { ndjson: Buffer; labels: string[] } {

@@ -1,4 +1,5 @@
 import { createRng } from '#learning';
+import { SYNTHETIC_CATEGORIES, SYNTHETIC_CUES, SYNTHETIC_FILLER } from '../../bench/synthetic-words.js';
 
 /**
  * A labelled synthetic pool for end-to-end tests of the learning loop: three
@@ -12,39 +13,9 @@ export function syntheticPool(
   const g = createRng(seed);
   const rng = () => g.next();
   const pick = <T>(xs: readonly T[]): T => xs[Math.floor(rng() * xs.length)];
-  const cues = {
-    threat: [
-      'hurt',
-      'find you',
-      'regret',
-      'waiting outside',
-      'burn',
-      'pay for this',
-      'coming for',
-      'know where you live',
-    ],
-    harassment: ['idiot', 'pathetic', 'loser', 'nobody likes you', 'shut up', 'clown', 'ugly', 'worthless'],
-    ok: ['market', 'garden', 'meeting', 'thanks', 'recipe', 'bus route', 'library', 'weekend'],
-  } as const;
-  const filler = [
-    'the',
-    'a',
-    'near',
-    'park',
-    'street',
-    'today',
-    'tonight',
-    'neighbour',
-    'post',
-    'again',
-    'really',
-    'about',
-    'square',
-    'corner',
-    'bakery',
-    'rain',
-  ];
-  const labels = ['threat', 'harassment', 'ok'] as const;
+  const cues = SYNTHETIC_CUES;
+  const filler = SYNTHETIC_FILLER;
+  const labels = SYNTHETIC_CATEGORIES;
   const out: Array<{ externalId: string; text: string; label: 'threat' | 'harassment' | 'ok' }> = [];
   for (let i = 0; i < n; i++) {
     // Shares like a reported-posts queue: mostly ok, some harassment, few threats.
