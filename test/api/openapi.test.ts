@@ -372,6 +372,9 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     );
     const item = live.itemId as number;
     await call('sup', 'POST', `/api/items/${item}/settle`, { category: 'ok', reason: 'checked by hand' });
+    await call('aud', 'GET', `/api/items/${item}`);
+    await call('aud', 'POST', `/api/items/${item}/read`);
+    await call('aud', 'GET', `/api/desks/${deskId}/verdicts?limit=5&reviewerMatch=REV`);
     await call('aud', 'GET', `/api/desks/${deskId}/disagreements?limit=10`);
     await call('sup', 'GET', `/api/desks/${deskId}/simulation`);
     await call('aud', 'GET', `/api/audit?limit=50`);
@@ -386,6 +389,9 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
     await call('aud', 'GET', `/api/desks/${deskId}/models/${ready.version}/report.json`);
     await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { itemIds: [item], reason: 'a request to erase' });
     await call('aud', 'GET', `/api/desks/${deskId}/erasures`);
+    // The erased item's page: the tombstone's record and an empty read.
+    await call('aud', 'GET', `/api/items/${item}`);
+    await call('aud', 'POST', `/api/items/${item}/read`);
     await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { reason: 'no selector' });
     await call('sup', 'PATCH', `/api/desks/${deskId}`, {
       retention: { decidedAfterDays: 3650, categories: { ok: 365 } },

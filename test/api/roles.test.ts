@@ -151,6 +151,8 @@ describe.each(DATABASE_KINDS)('the role matrix on %s', (kind) => {
       allowed: ['supervisor'],
       body: () => ({ category: 'ok', reason: 'matrix check' }),
     },
+    { method: 'GET', path: `/api/items/${itemId}`, allowed: ['supervisor', 'auditor'] },
+    { method: 'POST', path: `/api/items/${itemId}/read`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/trail.csv`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/trail.ndjson`, allowed: ['supervisor', 'auditor'] },
     { method: 'GET', path: `/api/desks/${deskId}/reports`, allowed: ['supervisor', 'auditor'] },

@@ -1,7 +1,7 @@
 import { applyDecorators } from '@nestjs/common';
 import { ApiQuery } from '@nestjs/swagger';
 import { isoTime, named, z } from '#api-docs';
-import { VERDICT_DRAW_KINDS, TRIAGE_CALLS } from '#database';
+import { ERASED_BY, TRIAGE_CALLS, VERDICT_DRAW_KINDS } from '#database';
 import { LeaseGrantAnswer } from '#leases';
 
 /** A verdict with the model version and the set that were shown when it was given. */
@@ -44,6 +44,84 @@ export const VerdictCountAnswer = named(
   }),
 );
 export const VerdictListAnswer = named('VerdictList', z.strictObject({ verdicts: z.array(VerdictAnswer) }));
+
+/** A verdict in a desk's list for supervisors and auditors: with the draw that served the item (never shown to reviewers). */
+export const DeskVerdictAnswer = named(
+  'DeskVerdict',
+  z.strictObject({
+    ...VerdictAnswer.shape,
+    draw: z.enum(VERDICT_DRAW_KINDS).describe('why the item was served to this reviewer'),
+    itemErasedAt: isoTime.nullable().describe('when the item was erased; null while it holds its text'),
+  }),
+);
+export const DeskVerdictListAnswer = named('DeskVerdictList', z.strictObject({ verdicts: z.array(DeskVerdictAnswer) }));
+
+/** One item for oversight, without its text: verdicts with their draws, settlements, and each version's call. */
+export const ItemRecordAnswer = named(
+  'ItemRecord',
+  z.strictObject({
+    id: z.int(),
+    deskId: z.int(),
+    externalId: z.string().nullable().describe('null once erased'),
+    source: z.string().nullable().describe('null once erased'),
+    postedAt: isoTime.nullable(),
+    importedAt: isoTime,
+    state: z.string(),
+    erasedAt: isoTime.nullable(),
+    erasedBy: z.enum(ERASED_BY).nullable(),
+    verdicts: z.array(
+      z.strictObject({
+        id: z.int(),
+        reviewer: z.string(),
+        category: z.string().nullable(),
+        abstain: z.boolean(),
+        draw: z.enum(VERDICT_DRAW_KINDS),
+        modelVersion: z.int().nullable(),
+        shownSet: z.array(z.string()).nullable(),
+        shownCall: z.enum(TRIAGE_CALLS).nullable(),
+        elapsedMs: z.int().nullable(),
+        note: z.string().nullable(),
+        simulated: z.boolean(),
+        createdAt: isoTime,
+        undoneAt: isoTime.nullable(),
+      }),
+    ),
+    settlements: z.array(
+      z.strictObject({
+        id: z.int(),
+        category: z.string(),
+        reason: z.string(),
+        settledBy: z.string(),
+        createdAt: isoTime,
+      }),
+    ),
+    calls: z
+      .array(
+        z.strictObject({
+          modelVersion: z.int(),
+          current: z.boolean().describe('the version in service'),
+          computed: z.boolean().describe('true: the version never scored the item; its call is computed now'),
+          probabilities: z.record(z.string(), z.number()),
+          set: z.array(z.string()).describe('the prediction set at the desk’s coverage target and mode now'),
+          call: z.enum(TRIAGE_CALLS),
+        }),
+      )
+      .describe('each version that holds the item’s probabilities, and the version in service'),
+  }),
+);
+
+/** An item's text, handed out on request and recorded as a read in the audit trail. */
+export const ItemTextAnswer = named(
+  'ItemText',
+  z.strictObject({
+    itemId: z.int(),
+    text: z.string().nullable().describe('null once erased (nothing is then recorded)'),
+    highlights: z
+      .array(z.strictObject({ start: z.int(), end: z.int(), category: z.string() }))
+      .describe('seed-term matches: UTF-16 offsets [start, end) into the text'),
+    erasedAt: isoTime.nullable(),
+  }),
+);
 
 export const ProgressAnswer = named(
   'Progress',
@@ -183,6 +261,12 @@ export const DisagreementListAnswer = named(
 export function ApiVerdictFilters() {
   return applyDecorators(
     ApiQuery({ name: 'reviewer', required: false, type: String, description: 'a reviewer’s account name' }),
+    ApiQuery({
+      name: 'reviewerMatch',
+      required: false,
+      type: String,
+      description: 'part of a reviewer’s name, any case: verdicts of every reviewer whose name holds it',
+    }),
     ApiQuery({ name: 'category', required: false, type: String, description: 'a category name, or `abstain`' }),
     ApiQuery({
       name: 'from',

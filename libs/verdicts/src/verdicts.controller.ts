@@ -20,6 +20,7 @@ import { ProgressService } from './progress.service.js';
 import { TrailService, trailQuery } from './trail/trail.service.js';
 import {
   ApiVerdictFilters,
+  DeskVerdictListAnswer,
   OneVerdictAnswer,
   ProgressAnswer,
   UndoneVerdictAnswer,
@@ -115,7 +116,7 @@ export class VerdictsController {
   @Roles('supervisor', 'auditor')
   @OnDesk()
   @Get('desks/:deskId/verdicts')
-  @ApiAnswer(VerdictListAnswer)
+  @ApiAnswer(DeskVerdictListAnswer)
   @ApiVerdictFilters()
   @ApiQuery({ name: 'before', required: false, type: Number, description: 'a verdict id: the page before it' })
   @ApiQuery({ name: 'limit', required: false, type: Number, description: 'verdicts per page, 1–1000 (default 100)' })
@@ -125,17 +126,18 @@ export class VerdictsController {
     @Query('before') before: string | undefined,
     @Query('limit') limit: string | undefined,
     @Query('reviewer') reviewer: string | undefined,
+    @Query('reviewerMatch') reviewerMatch: string | undefined,
     @Query('category') category: string | undefined,
     @Query('from') from: string | undefined,
     @Query('to') to: string | undefined,
-  ): Promise<Answer<typeof VerdictListAnswer>> {
+  ): Promise<Answer<typeof DeskVerdictListAnswer>> {
     // The trail's filters, checked the same way (400 on an unknown category, a bad or repeated one); `from`
     // inclusive, `to` exclusive. A reviewer that does not exist matches nothing, as in the trail.
     const pageBefore = intOrUndefined('before', before);
     const pageLimit = intOrUndefined('limit', limit, 1000) ?? 100;
-    const filter = await this.trail.filter(deskId, trailQuery({ reviewer, category, from, to }));
+    const filter = await this.trail.filter(deskId, trailQuery({ reviewer, reviewerMatch, category, from, to }));
     if (filter.reviewerId === null) return { verdicts: [] };
-    return { verdicts: await this.verdicts.listForDesk(filter, { before: pageBefore, limit: pageLimit }) };
+    return { verdicts: await this.verdicts.listForOversight(filter, { before: pageBefore, limit: pageLimit }) };
   }
 
   /** The signed-in reviewer's own verdicts on a desk, newest first. */

@@ -8,6 +8,8 @@ import { EscalationsService } from './escalation/escalations.service.js';
 import { DisagreementsService } from './settling/disagreements.service.js';
 import { SettlementsService } from './settling/settlements.service.js';
 import { SettlingController } from './settling/settling.controller.js';
+import { ItemRecordController } from './trail/item-record.controller.js';
+import { ItemRecordService } from './trail/item-record.service.js';
 import { TrailController } from './trail/trail.controller.js';
 import { TrailService } from './trail/trail.service.js';
 import { ProgressService } from './progress.service.js';
@@ -16,7 +18,14 @@ import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
 
 @Module({
   imports: [ModelsCoreModule, LeasesModule],
-  controllers: [VerdictsController, AgreementController, SettlingController, TrailController, EscalationsController],
+  controllers: [
+    VerdictsController,
+    AgreementController,
+    SettlingController,
+    TrailController,
+    EscalationsController,
+    ItemRecordController,
+  ],
   providers: [
     VerdictsService,
     ProgressService,
@@ -24,6 +33,7 @@ import { SECOND_OPINION_RANDOM, VerdictsService } from './verdicts.service.js';
     SettlementsService,
     DisagreementsService,
     TrailService,
+    ItemRecordService,
     EscalationsService,
     { provide: SECOND_OPINION_RANDOM, useValue: Math.random },
   ],

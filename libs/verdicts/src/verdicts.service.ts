@@ -18,6 +18,7 @@ import {
   URGENT_REASON_MAX,
   VerdictEntity,
   type DrawKind,
+  type VerdictDrawKind,
   type ShownPrediction,
 } from '#database';
 import { LeasesService, type LeaseGrant } from '#leases';
@@ -83,6 +84,12 @@ interface LeaseAndItem {
   so_leased_until: unknown;
 }
 
+/** A verdict in a desk's list for supervisors and auditors: with its draw and whether the item was erased. */
+export interface DeskVerdictView extends VerdictView {
+  draw: VerdictDrawKind;
+  itemErasedAt: Date | null;
+}
+
 /** A row of {@link VerdictsService.listWhere}'s query. */
 interface VerdictRow {
   id: DbInt;
@@ -100,6 +107,8 @@ interface VerdictRow {
   simulated: boolean | number;
   created_at: unknown;
   undone_at: unknown;
+  draw?: VerdictDrawKind;
+  item_erased_at?: unknown;
 }
 
 /** Source of uniform numbers in [0, 1) that decides which decided items get a second opinion; injectable for tests. */
@@ -435,6 +444,22 @@ export class VerdictsService {
 
   /** Verdicts of a desk, newest first, paged by id. */
   async listForDesk(filter: TrailFilter, page: { before?: number; limit: number }): Promise<VerdictView[]> {
+    const [where, params] = this.deskWhere(filter, page);
+    return this.listWhere(where, params, page.limit);
+  }
+
+  /** The same list for supervisors and auditors, with each verdict's draw and its item's erasure. */
+  async listForOversight(filter: TrailFilter, page: { before?: number; limit: number }): Promise<DeskVerdictView[]> {
+    const [where, params] = this.deskWhere(filter, page);
+    const rows = await this.query(where, params, page.limit, true);
+    return rows.map((r) => ({
+      ...this.toView(r),
+      draw: r.draw!,
+      itemErasedAt: this.db.parseTime(r.item_erased_at),
+    }));
+  }
+
+  private deskWhere(filter: TrailFilter, page: { before?: number }): [string, unknown[]] {
     const params: unknown[] = [filter.deskId];
     let where = `v.desk_id = $1`;
     const and = (sql: string, value: unknown) => {
@@ -443,23 +468,34 @@ export class VerdictsService {
     };
     if (page.before) and('v.id < ', page.before);
     if (filter.reviewerId) and('v.reviewer_id = ', filter.reviewerId);
+    if (filter.reviewerIds) {
+      // Whole numbers from the database: safe to write into the statement. An empty list matches nothing.
+      where += filter.reviewerIds.length ? ` AND v.reviewer_id IN (${filter.reviewerIds.join(', ')})` : ' AND 1 = 0';
+    }
     if (filter.abstain) where += ' AND v.category_id IS NULL';
     else if (filter.categoryId) and('v.category_id = ', filter.categoryId);
     if (filter.from) and('v.created_at >= ', this.db.time(filter.from));
     if (filter.to) and('v.created_at < ', this.db.time(filter.to));
-    return this.listWhere(where, params, page.limit);
+    return [where, params];
   }
 
   private async listWhere(where: string, params: unknown[], limit: number): Promise<VerdictView[]> {
-    const rows = await this.db.query<VerdictRow>(
+    return (await this.query(where, params, limit, false)).map((r) => this.toView(r));
+  }
+
+  private query(where: string, params: unknown[], limit: number, oversight: boolean): Promise<VerdictRow[]> {
+    return this.db.query<VerdictRow>(
       null,
       `SELECT v.id, v.desk_id, v.item_id, u.name AS reviewer, c.name AS category, v.abstain, v.client_id, v.model_version, v.shown_set, v.shown_call,
-              v.elapsed_ms, v.note, v.simulated, v.created_at, v.undone_at
-       FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id
+              v.elapsed_ms, v.note, v.simulated, v.created_at, v.undone_at${oversight ? ', v.draw, i.erased_at AS item_erased_at' : ''}
+       FROM verdicts v JOIN users u ON u.id = v.reviewer_id LEFT JOIN categories c ON c.id = v.category_id${oversight ? ' JOIN items i ON i.id = v.item_id' : ''}
        WHERE ${where} ORDER BY v.id DESC LIMIT ${Math.max(1, Math.min(1000, Math.floor(limit)))}`,
       params,
     );
-    return rows.map((r) => ({
+  }
+
+  private toView(r: VerdictRow): VerdictView {
+    return {
       id: Number(r.id),
       deskId: Number(r.desk_id),
       itemId: Number(r.item_id),
@@ -475,6 +511,6 @@ export class VerdictsService {
       simulated: r.simulated === true || r.simulated === 1,
       createdAt: this.db.parseTime(r.created_at)!,
       undoneAt: this.db.parseTime(r.undone_at),
-    }));
+    };
   }
 }

@@ -30,6 +30,7 @@ export class TrailController {
   async csv(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('reviewer') reviewer: string | undefined,
+    @Query('reviewerMatch') reviewerMatch: string | undefined,
     @Query('category') category: string | undefined,
     @Query('from') from: string | undefined,
     @Query('to') to: string | undefined,
@@ -38,7 +39,7 @@ export class TrailController {
     @Res() res: Response,
   ): Promise<void> {
     const how = csvRequest({ raw, bom });
-    const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
+    const filter = await this.trail.filter(deskId, pick({ reviewer, reviewerMatch, category, from, to }));
     await this.stream(
       res,
       filter,
@@ -58,12 +59,13 @@ export class TrailController {
   async ndjson(
     @Param('deskId', ParseIntPipe) deskId: number,
     @Query('reviewer') reviewer: string | undefined,
+    @Query('reviewerMatch') reviewerMatch: string | undefined,
     @Query('category') category: string | undefined,
     @Query('from') from: string | undefined,
     @Query('to') to: string | undefined,
     @Res() res: Response,
   ): Promise<void> {
-    const filter = await this.trail.filter(deskId, pick({ reviewer, category, from, to }));
+    const filter = await this.trail.filter(deskId, pick({ reviewer, reviewerMatch, category, from, to }));
     await this.stream(
       res,
       filter,

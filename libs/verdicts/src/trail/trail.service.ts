@@ -1,11 +1,13 @@
 import { BadRequestException, Inject, Injectable, NotFoundException } from '@nestjs/common';
-import { Database, DeskDirectory, UserEntity } from '#database';
+import { Database, DeskDirectory, UserEntity, type DbInt } from '#database';
 import { parseIsoDateTime } from '#imports';
 import type { TrailRow } from './trail-format.js';
 
 /** Filters of the decision trail, as given in the query string. */
 export interface TrailQuery {
   reviewer?: string;
+  /** A part of a reviewer's name, any case: every reviewer of the desk whose name holds it. */
+  reviewerMatch?: string;
   category?: string;
   from?: string;
   to?: string;
@@ -21,13 +23,21 @@ export function trailQuery(q: Record<string, unknown>): TrailQuery {
     if (v !== undefined && typeof v !== 'string') throw new BadRequestException(`${key}: give it at most once`);
     return v;
   };
-  return { reviewer: s('reviewer'), category: s('category'), from: s('from'), to: s('to') };
+  return {
+    reviewer: s('reviewer'),
+    reviewerMatch: s('reviewerMatch'),
+    category: s('category'),
+    from: s('from'),
+    to: s('to'),
+  };
 }
 
 /** Checked filters: a reviewer that does not exist matches nothing. */
 export interface TrailFilter {
   deskId: number;
   reviewerId?: number | null;
+  /** The reviewers whose names hold `reviewerMatch`; empty matches nothing. */
+  reviewerIds?: number[];
   categoryId?: number | null;
   abstain?: boolean;
   from?: Date;
@@ -84,7 +94,19 @@ export class TrailService {
         else f.categoryId = cat.id;
       }
     }
+    if (q.reviewerMatch !== undefined && q.reviewerMatch.length > 100)
+      problems.push(`reviewerMatch: at most 100 characters, got ${q.reviewerMatch.length}`);
     if (problems.length) throw new BadRequestException(problems);
+    if (q.reviewerMatch !== undefined && q.reviewerMatch.trim() !== '') {
+      // Matched here rather than in SQL: LOWER() folds only ASCII on SQLite, and a desk has few reviewers.
+      const part = q.reviewerMatch.trim().toLocaleLowerCase();
+      const names = await this.db.query<{ id: DbInt; name: string }>(
+        null,
+        'SELECT u.id, u.name FROM users u WHERE u.id IN (SELECT DISTINCT v.reviewer_id FROM verdicts v WHERE v.desk_id = $1)',
+        [deskId],
+      );
+      f.reviewerIds = names.filter((u) => u.name.toLocaleLowerCase().includes(part)).map((u) => Number(u.id));
+    }
     if (q.reviewer !== undefined && q.reviewer !== '')
       f.reviewerId = (await this.db.manager.findOneBy(UserEntity, { name: q.reviewer }))?.id ?? null;
     return f;
@@ -100,6 +122,11 @@ export class TrailService {
       where += ` AND ${sql.replace('?', `$${params.length}`)}`;
     };
     if (f.reviewerId !== undefined) add('v.reviewer_id = ?', f.reviewerId);
+    if (f.reviewerIds) {
+      if (f.reviewerIds.length === 0) return;
+      // Whole numbers from the database: safe to write into the statement.
+      where += ` AND v.reviewer_id IN (${f.reviewerIds.join(', ')})`;
+    }
     if (f.categoryId !== undefined && f.categoryId !== null) add('v.category_id = ?', f.categoryId);
     if (f.abstain) add('v.abstain = ?', true);
     if (f.from) add('v.created_at >= ?', this.db.time(f.from));
