@@ -17,7 +17,9 @@ async function writeControls(page: Page): Promise<string[]> {
     for (const b of Array.from(document.querySelectorAll('button'))) {
       const t = b.textContent.trim();
       // Menu opens the navigation on narrow screens (hidden on wide ones); it changes no data.
-      if (!['Sign out', 'Menu', 'Filter', 'Older verdicts', 'More'].includes(t)) found.push(`button “${t}”`);
+      // Show text reads an item's text (recorded in the audit trail as a read); it changes no data.
+      if (!['Sign out', 'Menu', 'Filter', 'Older verdicts', 'More', 'Show text'].includes(t))
+        found.push(`button “${t}”`);
     }
     for (const f of Array.from(document.querySelectorAll('form')))
       if (f.getAttribute('role') !== 'search') found.push('a form that is not a search');

@@ -53,6 +53,7 @@ describe.each(['sqlite'] as const)('every screen at phone and laptop size on %s'
   let s: Stack;
   let desk: WebDesk;
   let version: number;
+  let itemId: number;
   let b: Browser;
 
   beforeAll(async () => {
@@ -60,6 +61,8 @@ describe.each(['sqlite'] as const)('every screen at phone and laptop size on %s'
     desk = await webDesk(s, { pool: 200, verdicts: 60 });
     await s.user(ACCOUNTS.admin, 'admin', PASSWORD);
     version = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}`)).body.currentModelVersion as number;
+    itemId = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?limit=1`)).body.verdicts[0]
+      .itemId as number;
     b = await openBrowser(s.base);
   }, 180_000);
   afterAll(async () => {
@@ -71,6 +74,7 @@ describe.each(['sqlite'] as const)('every screen at phone and laptop size on %s'
     pattern.replace(/:(\w+)/g, (_, p: string) => {
       if (p === 'deskId') return String(desk.deskId);
       if (p === 'version') return String(version);
+      if (p === 'itemId') return String(itemId);
       throw new Error(`the layout test has no value for :${p} in ${pattern}: add one`);
     });
 

@@ -13,10 +13,12 @@ import { SettingsPage } from './pages/settings';
 import { ModelsPage } from './pages/models';
 import { ModelVersionPage } from './pages/model-version';
 import { TrailPage } from './pages/trail';
+import { ItemPage } from './pages/item';
 import { DisagreementsPage } from './pages/disagreements';
 import { QueuePage } from './pages/queue';
 import { SignIn } from './pages/sign-in';
 import { AccountsPage } from './pages/accounts';
+import { GlossaryPage } from './pages/glossary';
 
 export interface PageProps {
   me: Me;
@@ -34,6 +36,7 @@ const PAGES: Record<ScreenPattern, ComponentType<PageProps>> = {
   '/': DeskHome,
   '/desks/new': DeskNew,
   '/accounts': AccountsPage,
+  '/glossary': GlossaryPage,
   '/desks/:deskId/queue': QueuePage,
   '/desks/:deskId': DeskOverview,
   '/desks/:deskId/import': ImportPage,
@@ -42,6 +45,7 @@ const PAGES: Record<ScreenPattern, ComponentType<PageProps>> = {
   '/desks/:deskId/models': ModelsPage,
   '/desks/:deskId/models/:version': ModelVersionPage,
   '/desks/:deskId/trail': TrailPage,
+  '/desks/:deskId/items/:itemId': ItemPage,
   '/desks/:deskId/disagreements': DisagreementsPage,
 };
 
@@ -202,6 +206,9 @@ export function App() {
         )}
       </main>
       <footer class="footer">
+        <p class="footer-links">
+          <a href="/glossary">Glossary: what the words and figures mean</a>
+        </p>
         <Cautions compact />
       </footer>
     </div>

@@ -17,6 +17,16 @@ export function when(iso: string | null | undefined): string {
   });
 }
 
+/**
+ * An instant in ISO 8601, UTC, to the second (`2026-01-31T12:00:05Z`): the trail's one format, the same as its date
+ * filters (`2026-01-31`, read as UTC days) and the exports.
+ */
+export function isoWhen(iso: string | null | undefined): string {
+  if (!iso) return '–';
+  const d = new Date(iso);
+  return Number.isNaN(d.getTime()) ? iso : `${d.toISOString().slice(0, 19)}Z`;
+}
+
 /** m:ss for the timers on the queue screen. */
 export function clock(ms: number): string {
   const s = Math.max(0, Math.round(ms / 1000));

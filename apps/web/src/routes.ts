@@ -21,6 +21,7 @@ export const SCREENS = [
   { pattern: '/', roles: ['reviewer', 'supervisor', 'auditor', 'admin'], title: 'Desks' },
   { pattern: '/desks/new', roles: SUPERVISOR, title: 'New desk' },
   { pattern: '/accounts', roles: ['admin'], title: 'Accounts' },
+  { pattern: '/glossary', roles: ['reviewer', 'supervisor', 'auditor', 'admin'], title: 'Glossary' },
   { pattern: '/desks/:deskId/queue', roles: ['reviewer'], title: 'Queue' },
   { pattern: '/desks/:deskId', roles: SUPERVISOR, title: 'Desk' },
   { pattern: '/desks/:deskId/import', roles: SUPERVISOR, title: 'Import' },
@@ -29,6 +30,7 @@ export const SCREENS = [
   { pattern: '/desks/:deskId/models', roles: READERS, title: 'Model versions' },
   { pattern: '/desks/:deskId/models/:version', roles: READERS, title: 'Model version' },
   { pattern: '/desks/:deskId/trail', roles: READERS, title: 'Decision trail' },
+  { pattern: '/desks/:deskId/items/:itemId', roles: READERS, title: 'Item' },
   { pattern: '/desks/:deskId/disagreements', roles: READERS, title: 'Agreement' },
 ] as const satisfies readonly ScreenRoute[];
 

@@ -1,6 +1,8 @@
 import type { Coverage } from '../api';
 import { useData } from '../app';
 import { pct } from '../format';
+import { coverageReading } from '../readings';
+import { Reading } from './reading';
 
 /**
  * The coverage alert in plain words, when the realized coverage of recent random checks falls clearly below the
@@ -35,7 +37,7 @@ export function CoverageAlert({
     <p class="coverage-ok">
       Realized coverage over the last {c.window.n} random checks: <strong>{pct(c.window.coverage, 1)}</strong> (95 %
       interval {pct(c.window.interval?.lower ?? null, 1)} to {pct(c.window.interval?.upper ?? null, 1)}), promised{' '}
-      {pct(c.target, 1)}.
+      {pct(c.target, 1)}. <Reading text={`Read: ${coverageReading(c.window.coverage, c.target)}.`} />
     </p>
   );
 }

@@ -12,6 +12,8 @@ import { LineChart } from '../components/charts';
 import { CALIBRATION_TRADE_OFF } from '../components/desk-form';
 import { CoverageAlert } from '../components/coverage-alert';
 import { num, pct } from '../format';
+import { Reading } from '../components/reading';
+import { CALL_READINGS, meanSetSizeReading, targetReading } from '../readings';
 
 const TICKS_X = [0.5, 0.6, 0.7, 0.8, 0.9, 0.99];
 const pctTick = (v: number) => `${Math.round(v * 100)}`;
@@ -104,6 +106,21 @@ export function CoveragePage({ params }: PageProps) {
                 <strong class="mean-size">{num(at.meanSetSize)}</strong>. {calibrationLine(at)}
               </p>
             )}
+            {at && (
+              <ul class="readings-list">
+                <li>
+                  <Reading text={`Target: ${targetReading(t)}.`} />
+                </li>
+                <li>
+                  <Reading
+                    text={`${capital(CALL_READINGS.sure)}; ${CALL_READINGS.ambiguous}; ${CALL_READINGS.unfamiliar}.`}
+                  />
+                </li>
+                <li>
+                  <Reading text={`Mean set size: ${meanSetSizeReading(at.meanSetSize)}.`} />
+                </li>
+              </ul>
+            )}
           </div>
           <button
             type="button"
@@ -193,3 +210,5 @@ function calibrationLine(p: PreviewPoint): string {
     ? `${base} That is too few for this target: ${p.needMore} more random verdicts are needed.`
     : base;
 }
+
+const capital = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);

@@ -16,6 +16,8 @@ import { BarChart, LineChart, niceTicks } from '../components/charts';
 import { CoverageAlert } from '../components/coverage-alert';
 import { count, num, when } from '../format';
 import { TableBox } from '../components/table-box';
+import { Reading } from '../components/reading';
+import { macroF1Reading } from '../readings';
 
 /** The supervisor's desk: progress, the learning curve, the coverage alert, exports, and the simulated reviewer. */
 export function DeskOverview({ params }: PageProps) {
@@ -130,6 +132,13 @@ export function DeskOverview({ params }: PageProps) {
                 },
               ]}
             />
+          )}
+          {published.length > 0 && (
+            <p>
+              <Reading
+                text={`Macro-F1 of version ${published[published.length - 1].version}: ${num(published[published.length - 1].metrics!.macroF1)}, ${macroF1Reading(published[published.length - 1].metrics!.macroF1)}.`}
+              />
+            </p>
           )}
         </section>
       </div>

@@ -3,6 +3,8 @@ import { get, post, type Agreement, type Desk, type Disagreement, type Disagreem
 import { useData, type PageProps } from '../app';
 import { num, when } from '../format';
 import { TableBox } from '../components/table-box';
+import { Reading } from '../components/reading';
+import { alphaReading, kappaReading } from '../readings';
 
 function why(r: Disagreement['reasons'][number]): string {
   return r.kind === 'reviewers-differ'
@@ -42,7 +44,9 @@ export function DisagreementsPage({ role, params }: PageProps) {
               <dl class="figures">
                 <div>
                   <dt>Krippendorff's alpha (nominal)</dt>
-                  <dd>{num(agreement.krippendorff.alpha, 3)}</dd>
+                  <dd>
+                    {num(agreement.krippendorff.alpha, 3)} <Reading text={alphaReading(agreement.krippendorff.alpha)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>95 % bootstrap interval</dt>
@@ -52,7 +56,9 @@ export function DisagreementsPage({ role, params }: PageProps) {
                 </div>
                 <div>
                   <dt>Fleiss' kappa</dt>
-                  <dd>{num(agreement.fleiss.kappa, 3)}</dd>
+                  <dd>
+                    {num(agreement.fleiss.kappa, 3)} <Reading text={kappaReading(agreement.fleiss.kappa)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>Items with two or more verdicts</dt>
@@ -69,6 +75,7 @@ export function DisagreementsPage({ role, params }: PageProps) {
                         <th>Category</th>
                         <th class="num">Verdicts</th>
                         <th class="num">Kappa</th>
+                        <th>Reading</th>
                       </tr>
                     </thead>
                     <tbody>
@@ -77,6 +84,7 @@ export function DisagreementsPage({ role, params }: PageProps) {
                           <td>{c.category}</td>
                           <td class="num">{c.verdicts}</td>
                           <td class="num">{num(c.fleissKappa, 3)}</td>
+                          <td>{kappaReading(c.fleissKappa)}</td>
                         </tr>
                       ))}
                     </tbody>
@@ -90,6 +98,7 @@ export function DisagreementsPage({ role, params }: PageProps) {
                         <th>Reviewers</th>
                         <th class="num">Shared items</th>
                         <th class="num">Kappa</th>
+                        <th>Reading</th>
                       </tr>
                     </thead>
                     <tbody>
@@ -98,6 +107,7 @@ export function DisagreementsPage({ role, params }: PageProps) {
                           <td>{c.reviewers.join(' and ')}</td>
                           <td class="num">{c.items}</td>
                           <td class="num">{num(c.kappa, 3)}</td>
+                          <td>{kappaReading(c.kappa)}</td>
                         </tr>
                       ))}
                     </tbody>

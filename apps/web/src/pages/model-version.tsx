@@ -3,6 +3,16 @@ import { useData, type PageProps } from '../app';
 import { BarChart, IntervalChart, LineChart } from '../components/charts';
 import { count, num, pct, when } from '../format';
 import { TableBox } from '../components/table-box';
+import { Reading } from '../components/reading';
+import {
+  accuracyReading,
+  brierReading,
+  coverageReading,
+  eceReading,
+  logLossReading,
+  macroF1Reading,
+  targetReading,
+} from '../readings';
 
 /** One model version for oversight: what it promised, what it achieved on random checks, its set sizes and its calibration quality. */
 export function ModelVersionPage({ params }: PageProps) {
@@ -40,6 +50,12 @@ export function ModelVersionPage({ params }: PageProps) {
             {m.parentVersion ? `, after version ${m.parentVersion}` : ', the first version'}.
             {coverage &&
               ` Promised coverage now: ${pct(coverage.target, 1)} (${coverage.mode === 'per-category' ? 'per category' : 'over the pool'}).`}
+            {coverage && (
+              <>
+                {' '}
+                <Reading text={`Read: ${targetReading(coverage.target)}.`} />
+              </>
+            )}
           </p>
           <section>
             <h2>Verdicts behind it</h2>
@@ -74,6 +90,11 @@ export function ModelVersionPage({ params }: PageProps) {
                 </tbody>
               </table>
             </TableBox>
+            {m.thresholds?.mode === 'per-category' && (
+              <p>
+                <Reading text="Threshold at target: the highest nonconformity score (how little an item looks like the category) still let into the set; a category whose score is above it is ruled out." />
+              </p>
+            )}
             {m.thresholds && m.thresholds.needMore > 0 && (
               <p class="warning">
                 At the current target the calibration set is too small: {m.thresholds.needMore} more random verdicts are
@@ -89,7 +110,8 @@ export function ModelVersionPage({ params }: PageProps) {
                 <p>
                   Over the {count(realized.n)} random check{realized.n === 1 ? '' : 's'} decided under this version the
                   set held the reviewer's answer {pct(realized.coverage, 1)} of the time (95 % Wilson interval{' '}
-                  {pct(realized.interval?.lower, 1)} to {pct(realized.interval?.upper, 1)}).
+                  {pct(realized.interval?.lower, 1)} to {pct(realized.interval?.upper, 1)}).{' '}
+                  <Reading text={`Read: ${coverageReading(realized.coverage, coverage.target)}.`} />
                 </p>
                 <IntervalChart
                   target={coverage.target}
@@ -139,23 +161,33 @@ export function ModelVersionPage({ params }: PageProps) {
               <dl class="figures">
                 <div>
                   <dt>Accuracy</dt>
-                  <dd>{num(m.metrics.accuracy, 3)}</dd>
+                  <dd>
+                    {num(m.metrics.accuracy, 3)} <Reading text={accuracyReading(m.metrics.accuracy)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>Macro-F1</dt>
-                  <dd>{num(m.metrics.macroF1, 3)}</dd>
+                  <dd>
+                    {num(m.metrics.macroF1, 3)} <Reading text={macroF1Reading(m.metrics.macroF1)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>Log loss</dt>
-                  <dd>{num(m.metrics.logLoss, 3)}</dd>
+                  <dd>
+                    {num(m.metrics.logLoss, 3)} <Reading text={logLossReading(m.metrics.logLoss, categories.length)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>Brier score</dt>
-                  <dd>{num(m.metrics.brier, 3)}</dd>
+                  <dd>
+                    {num(m.metrics.brier, 3)} <Reading text={brierReading(m.metrics.brier)} />
+                  </dd>
                 </div>
                 <div>
                   <dt>Expected calibration error</dt>
-                  <dd>{num(m.metrics.ece, 3)}</dd>
+                  <dd>
+                    {num(m.metrics.ece, 3)} <Reading text={eceReading(m.metrics.ece)} />
+                  </dd>
                 </div>
               </dl>
               {reliability.length > 0 && (

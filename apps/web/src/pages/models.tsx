@@ -2,6 +2,7 @@ import type { ModelList, ReportList } from '../api';
 import { useData, type PageProps } from '../app';
 import { count, num, when } from '../format';
 import { TableBox } from '../components/table-box';
+import { accuracyReading, brierReading, eceReading, logLossReading, macroF1Reading } from '../readings';
 
 const sum = (r: Record<string, number>) => Object.values(r).reduce((a, b) => a + b, 0);
 
@@ -71,6 +72,42 @@ export function ModelsPage({ params }: PageProps) {
           </table>
         </TableBox>
       )}
+      {data && data.models.length > 0 && <MetricReadings data={data} />}
+    </section>
+  );
+}
+
+/** The columns in words, read on the current version's figures (the newest measured one when none is current). */
+function MetricReadings({ data }: { data: ModelList }) {
+  const m =
+    data.models.find((x) => x.version === data.currentModelVersion && x.metrics) ?? data.models.find((x) => x.metrics);
+  if (!m?.metrics) return null;
+  const k = Object.keys(m.calibrationCounts).length;
+  return (
+    <section class="metric-readings">
+      <h2>How to read the figures (version {m.version})</h2>
+      <dl class="readings">
+        <div>
+          <dt>Accuracy {num(m.metrics.accuracy, 3)}</dt>
+          <dd>{accuracyReading(m.metrics.accuracy)}.</dd>
+        </div>
+        <div>
+          <dt>Macro-F1 {num(m.metrics.macroF1, 3)}</dt>
+          <dd>{macroF1Reading(m.metrics.macroF1)}.</dd>
+        </div>
+        <div>
+          <dt>Log loss {num(m.metrics.logLoss, 3)}</dt>
+          <dd>{logLossReading(m.metrics.logLoss, k)}.</dd>
+        </div>
+        <div>
+          <dt>Brier {num(m.metrics.brier, 3)}</dt>
+          <dd>{brierReading(m.metrics.brier)}.</dd>
+        </div>
+        <div>
+          <dt>ECE {num(m.metrics.ece, 3)}</dt>
+          <dd>{eceReading(m.metrics.ece)}.</dd>
+        </div>
+      </dl>
     </section>
   );
 }

@@ -1,13 +1,22 @@
 import { useState } from 'preact/hooks';
-import { get, type Desk, type Verdict, type VerdictList } from '../api';
+import { get, type Desk, type DeskVerdict, type DeskVerdictList, type Progress } from '../api';
 import { useData, type PageProps } from '../app';
 import { navigate } from '../router';
-import { when } from '../format';
+import { isoWhen } from '../format';
 import { TableBox } from '../components/table-box';
+import { ItemTextOnDemand } from '../components/item-text';
+import { DRAW_WORDS } from '../readings';
 
 const PAGE = 100;
 
-/** The decision trail: every verdict, newest first, filterable by reviewer, category and date. Read-only. */
+/** A day as the filters take it: ISO 8601, `YYYY-MM-DD`. */
+const DAY = '\\d{4}-\\d{2}-\\d{2}';
+
+/**
+ * The decision trail: every verdict, newest first, filterable by part of a reviewer's name, category and date (ISO
+ * 8601 days, UTC, like the times in the table). Each item id opens the item's page; its text shows on request (the
+ * button, or `t` on a row), and each reading is recorded in the audit trail. Read-only.
+ */
 export function TrailPage({ params, query }: PageProps) {
   const deskId = params.deskId;
   const [desk] = useData<Desk>(`/desks/${deskId}`);
@@ -17,14 +26,21 @@ export function TrailPage({ params, query }: PageProps) {
     from: query.get('from') ?? '',
     to: query.get('to') ?? '',
   };
-  // The screen's "to" is a day, inclusive; the API's `to` is an instant, exclusive: the next day's start.
+  // The screen's "to" is a day, inclusive; the API's `to` is an instant, exclusive: the next day's start. The
+  // reviewer box takes part of a name (the API's reviewerMatch).
+  const { reviewer, ...rest } = filters;
   const qs = new URLSearchParams(
-    Object.entries({ ...filters, to: filters.to ? nextDay(filters.to) : '' }).filter(([, v]) => v),
+    Object.entries({ ...rest, reviewerMatch: reviewer, to: filters.to ? nextDay(filters.to) : '' }).filter(
+      ([, v]) => v,
+    ),
   );
-  const [first, error] = useData<VerdictList>(
+  const [progress] = useData<Progress>(`/desks/${deskId}/progress`);
+  const reviewers = (progress?.reviewers ?? []).map((r) => r.name).sort((a, b) => a.localeCompare(b));
+  const categories = desk?.categories.map((c) => c.name) ?? [];
+  const [first, error] = useData<DeskVerdictList>(
     `/desks/${deskId}/verdicts?limit=${PAGE}${qs.toString() ? `&${qs}` : ''}`,
   );
-  const [more, setMore] = useState<Verdict[]>([]);
+  const [more, setMore] = useState<DeskVerdict[]>([]);
   const [moreError, setMoreError] = useState<string | null>(null);
   const [form, setForm] = useState(filters);
   const rows = [...(first?.verdicts ?? []), ...more];
@@ -39,7 +55,7 @@ export function TrailPage({ params, query }: PageProps) {
     const last = rows.at(-1);
     if (!last) return;
     try {
-      const page = await get<VerdictList>(
+      const page = await get<DeskVerdictList>(
         `/desks/${deskId}/verdicts?limit=${PAGE}&before=${last.id}${qs.toString() ? `&${qs}` : ''}`,
       );
       setMore([...more, ...page.verdicts]);
@@ -57,26 +73,50 @@ export function TrailPage({ params, query }: PageProps) {
       </p>
       <form class="filters" onSubmit={apply} role="search">
         <label>
-          Reviewer
-          <input value={form.reviewer} onInput={(e) => setForm({ ...form, reviewer: e.currentTarget.value })} />
+          Reviewer (part of the name)
+          <input
+            list="trail-reviewers"
+            autocomplete="off"
+            value={form.reviewer}
+            onInput={(e) => setForm({ ...form, reviewer: e.currentTarget.value })}
+          />
+          <datalist id="trail-reviewers">
+            {reviewers.map((n) => (
+              <option value={n} />
+            ))}
+          </datalist>
         </label>
         <label>
           Category
           <select value={form.category} onChange={(e) => setForm({ ...form, category: e.currentTarget.value })}>
             <option value="">any</option>
-            {desk?.categories.map((c) => (
-              <option value={c.name}>{c.name}</option>
+            {categories.map((c) => (
+              <option value={c}>{c}</option>
             ))}
             <option value="abstain">abstain</option>
           </select>
         </label>
         <label>
-          From
-          <input type="date" value={form.from} onInput={(e) => setForm({ ...form, from: e.currentTarget.value })} />
+          From (YYYY-MM-DD, UTC)
+          <input
+            class="day"
+            inputMode="numeric"
+            pattern={DAY}
+            placeholder="YYYY-MM-DD"
+            value={form.from}
+            onInput={(e) => setForm({ ...form, from: e.currentTarget.value })}
+          />
         </label>
         <label>
-          To (inclusive)
-          <input type="date" value={form.to} onInput={(e) => setForm({ ...form, to: e.currentTarget.value })} />
+          To, inclusive (YYYY-MM-DD, UTC)
+          <input
+            class="day"
+            inputMode="numeric"
+            pattern={DAY}
+            placeholder="YYYY-MM-DD"
+            value={form.to}
+            onInput={(e) => setForm({ ...form, to: e.currentTarget.value })}
+          />
         </label>
         <button type="submit">Filter</button>
       </form>
@@ -89,30 +129,38 @@ export function TrailPage({ params, query }: PageProps) {
       {rows.length > 0 && (
         <TableBox label="Decision trail">
           <table class="data trail">
+            <caption>
+              Times in ISO 8601, UTC. Focus a row and press <kbd>t</kbd> to show its text.
+            </caption>
             <thead>
               <tr>
-                <th>Time</th>
+                <th>Time (UTC)</th>
                 <th>Reviewer</th>
                 <th>Item</th>
                 <th>Verdict</th>
+                <th>Draw</th>
                 <th>Model showed</th>
                 <th class="num">Time taken</th>
                 <th>Note</th>
+                <th>Text</th>
               </tr>
             </thead>
-            <tbody>
+            <tbody onKeyDown={readOnKey}>
               {rows.map((v) => (
-                <tr class={v.undoneAt ? 'undone' : ''}>
-                  <td>{when(v.createdAt)}</td>
+                <tr class={v.undoneAt ? 'undone' : ''} key={v.id}>
+                  <td class="time">{isoWhen(v.createdAt)}</td>
                   <td>
                     {v.reviewer}
                     {v.simulated && <span class="tag">simulated</span>}
                   </td>
-                  <td class="num">{v.itemId}</td>
+                  <td class="num">
+                    <a href={`/desks/${deskId}/items/${v.itemId}`}>{v.itemId}</a>
+                  </td>
                   <td>
                     {v.abstain ? 'abstain' : v.category}
-                    {v.undoneAt && <span class="tag">undone {when(v.undoneAt)}</span>}
+                    {v.undoneAt && <span class="tag">undone {isoWhen(v.undoneAt)}</span>}
                   </td>
+                  <td title={DRAW_WORDS[v.draw]}>{v.draw}</td>
                   <td>
                     {v.modelVersion
                       ? `v${v.modelVersion}: ${v.shownCall} {${(v.shownSet ?? []).join(', ')}}`
@@ -120,6 +168,9 @@ export function TrailPage({ params, query }: PageProps) {
                   </td>
                   <td class="num">{v.elapsedMs === null ? '–' : `${Math.round(v.elapsedMs / 1000)} s`}</td>
                   <td>{v.note ?? ''}</td>
+                  <td class="text-cell">
+                    <ItemTextOnDemand itemId={v.itemId} categories={categories} erasedAt={v.itemErasedAt} />
+                  </td>
                 </tr>
               ))}
             </tbody>
@@ -139,4 +190,15 @@ export function TrailPage({ params, query }: PageProps) {
 function nextDay(day: string): string {
   const d = new Date(`${day}T00:00:00Z`);
   return Number.isNaN(d.getTime()) ? day : new Date(d.getTime() + 86_400_000).toISOString().slice(0, 10);
+}
+
+/** `t` on a row (its link or button focused) shows that row's text, as its button would. */
+function readOnKey(e: KeyboardEvent): void {
+  if (e.key !== 't' || e.ctrlKey || e.metaKey || e.altKey) return;
+  const target = e.target instanceof HTMLElement ? e.target : null;
+  if (!target || target.closest('input, textarea, select')) return;
+  const button = target.closest('tr')?.querySelector<HTMLButtonElement>('button.show-text');
+  if (!button) return;
+  e.preventDefault();
+  button.click();
 }
