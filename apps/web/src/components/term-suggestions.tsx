@@ -75,7 +75,7 @@ function SuggestionTable({
                   type="button"
                   class="quiet"
                   disabled={busy}
-                  aria-label={`Do not suggest “${s.term}” for ${category} again`}
+                  aria-label={`Not this one: do not suggest “${s.term}” for ${category} again`}
                   onClick={() => onDecide(s.term, 'dismiss')}
                 >
                   Not this one

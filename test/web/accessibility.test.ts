@@ -1,0 +1,120 @@
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { SCREENS, type Role } from '../../apps/web/src/routes.js';
+import { openBrowser, signIn, type Browser } from '../support/browser.js';
+import { startStack, type Stack } from '../support/stack.js';
+import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
+
+/** axe-core from node_modules (a development dependency), run inside the page: nothing is fetched. */
+const AXE_SOURCE = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
+
+const ACCOUNTS: Record<Role, string> = { reviewer: 'robin', supervisor: 'sasha', auditor: 'ada', admin: 'root' };
+
+/** The role each screen is checked as: the first of these that may open it, so every screen is visited once. */
+const ORDER: Role[] = ['supervisor', 'auditor', 'reviewer', 'admin'];
+
+interface Finding {
+  id: string;
+  impact: string | null;
+  help: string;
+  targets: string[];
+}
+
+/**
+ * Runs axe's WCAG 2.x A and AA rules on the page and returns the serious and critical violations. The script is
+ * evaluated through the debugging protocol, which the page's Content-Security-Policy does not govern; the page
+ * itself still cannot load anything.
+ */
+async function axeFindings(page: Page): Promise<Finding[]> {
+  await page.evaluate(AXE_SOURCE);
+  return page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run: (ctx: Document, o: object) => Promise<any> } }).axe;
+    const result = await axe.run(document, {
+      runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] },
+      resultTypes: ['violations'],
+    });
+    return (result.violations as any[])
+      .filter((v) => v.impact === 'serious' || v.impact === 'critical')
+      .map((v) => ({
+        id: v.id as string,
+        impact: v.impact as string,
+        help: v.help as string,
+        targets: (v.nodes as any[]).slice(0, 5).map((n) => `${String(n.target)}: ${n.failureSummary ?? ''}`),
+      }));
+  });
+}
+
+async function ready(page: Page): Promise<void> {
+  await page.locator('main h1, main article.item').first().waitFor();
+  await page.waitForLoadState('networkidle', { timeout: 3000 }).catch(() => undefined);
+}
+
+// Colours and structure do not depend on the database: SQLite only, each screen once per colour scheme.
+describe.each(['sqlite'] as const)('axe on every screen, light and dark, on %s', (kind) => {
+  let s: Stack;
+  let desk: WebDesk;
+  let version: number;
+  let itemId: number;
+  let b: Browser;
+
+  beforeAll(async () => {
+    s = await startStack(kind);
+    desk = await webDesk(s, { pool: 200, verdicts: 60 });
+    await s.user(ACCOUNTS.admin, 'admin', PASSWORD);
+    version = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}`)).body.currentModelVersion as number;
+    itemId = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?limit=1`)).body.verdicts[0]
+      .itemId as number;
+    b = await openBrowser(s.base);
+  }, 180_000);
+  afterAll(async () => {
+    await (b as Browser | undefined)?.close();
+    await (s as Stack | undefined)?.stop();
+  });
+
+  const path = (pattern: string): string =>
+    pattern.replace(/:(\w+)/g, (_, p: string) => {
+      if (p === 'deskId') return String(desk.deskId);
+      if (p === 'version') return String(version);
+      if (p === 'itemId') return String(itemId);
+      throw new Error(`the accessibility test has no value for :${p} in ${pattern}: add one`);
+    });
+
+  for (const scheme of ['light', 'dark'] as const) {
+    it(`${scheme}: no serious or critical finding on any screen`, async () => {
+      const { page } = b;
+      await page.setViewportSize({ width: 1280, height: 800 });
+      await page.emulateMedia({ colorScheme: scheme });
+      const findings: string[] = [];
+      const record = (where: string, list: Finding[]) => {
+        for (const f of list)
+          findings.push(`${where}: ${f.id} (${f.impact}) ${f.help}\n    ${f.targets.join('\n    ')}`);
+      };
+      await page.context().clearCookies();
+      await page.goto(`${s.base}/signin`);
+      await page.getByLabel('Name').waitFor();
+      // The scheme really applies: the page's background follows it.
+      const background = await page.evaluate(() => getComputedStyle(document.documentElement).backgroundColor);
+      expect(background).toBe(scheme === 'dark' ? 'rgb(20, 24, 27)' : 'rgb(247, 245, 240)');
+      record('/signin', await axeFindings(page));
+      let visited = 0;
+      for (const role of ORDER) {
+        const screens = SCREENS.filter((r) => ORDER.find((o) => (r.roles as readonly Role[]).includes(o)) === role);
+        if (screens.length === 0) continue;
+        await page.context().clearCookies();
+        await signIn(page, s.base, ACCOUNTS[role], PASSWORD);
+        for (const screen of screens) {
+          const url = path(screen.pattern);
+          await page.goto(`${s.base}${url}`);
+          await ready(page);
+          record(`${url} as ${role}`, await axeFindings(page));
+          visited++;
+        }
+      }
+      expect(visited).toBe(SCREENS.length);
+      expect(findings).toEqual([]);
+      expect(b.foreign).toEqual([]);
+    }, 240_000);
+  }
+});
