@@ -268,4 +268,5 @@ export const DRAW_WORDS: Record<string, string> = {
   random: 'drawn at random from the pool: it calibrates and checks coverage',
   'second-opinion': 'served to a second reviewer, to measure agreement',
   screen: 'flagged for a watched category and served for review',
+  archive: 'a label imported from an archive: it trains and never calibrates',
 };
