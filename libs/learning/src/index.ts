@@ -35,6 +35,15 @@ export {
 } from './classifier/train-logistic.js';
 export type { ClassWeight, TrainOptions } from './classifier/train-logistic.js';
 export { minimizeLbfgs } from './classifier/lbfgs.js';
+export {
+  featurizerSettings,
+  MODEL_EXPORT_VERSION,
+  modelExport,
+  readModelExport,
+  remapCategories,
+  sameFeaturizer,
+} from './classifier/model-export.js';
+export type { FeaturizerSettings, ModelExport, ModelExportJson } from './classifier/model-export.js';
 export { DEFAULT_C_GRID, tuneC } from './classifier/tune-c.js';
 export type { TuneCOptions, TuneCResult } from './classifier/tune-c.js';
 export type { LbfgsOptions, LbfgsResult, Objective } from './classifier/lbfgs.js';
@@ -86,7 +95,13 @@ export { normalizedTextHash, normalizeForDuplicates } from './text/normalized-te
 export { pickBatch } from './uncertainty/batch-picker.js';
 export type { BatchCandidate, BatchDraw, BatchOptions, BatchPick } from './uncertainty/batch-picker.js';
 
-export { prepareRehearsal, rehearsalWarnings, runRehearsal, tuneRehearsalC } from './rehearsal/rehearsal.js';
+export {
+  prepareRehearsal,
+  rehearsalWarnings,
+  runRehearsal,
+  TRANSFER_MIN_PER_CATEGORY,
+  tuneRehearsalC,
+} from './rehearsal/rehearsal.js';
 export type {
   CoverageFigures,
   CurvePoint,
@@ -95,6 +110,7 @@ export type {
   RehearsalData,
   RehearsalOptions,
   RehearsalResult,
+  TransferCurve,
 } from './rehearsal/rehearsal.js';
 export { summarizeSeeds } from './rehearsal/multi-seed.js';
 export type { MultiSeedSummary, Spread } from './rehearsal/multi-seed.js';

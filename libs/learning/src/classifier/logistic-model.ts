@@ -28,6 +28,8 @@ export interface SoftmaxTrainingSummary {
   converged: boolean;
   /** True when training started from a previous model's weights. */
   warmStart: boolean;
+  /** Present (true) when the weights were pulled towards a prior model's instead of zero (see trainLogisticModel). */
+  prior?: boolean;
 }
 
 /**

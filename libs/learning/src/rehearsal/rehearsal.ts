@@ -4,6 +4,7 @@ import type { SparseVector } from '../features/sparse-vector.js';
 import { tfidf } from '../features/tfidf.js';
 import { DEFAULT_C, trainLogisticModel, type TrainOptions } from '../classifier/train-logistic.js';
 import type { LogisticModel } from '../classifier/logistic-model.js';
+import { remapCategories, type ModelExport } from '../classifier/model-export.js';
 import {
   ConformalCalibration,
   type CalibrationMode,
@@ -36,6 +37,12 @@ export interface RehearsalOptions {
   compareRandom: boolean;
   featurizer?: FeaturizerOptions;
   training?: Omit<TrainOptions, 'categories' | 'hashBits'>;
+  /**
+   * A model exported from another desk (`model.json`): also run the loop
+   * started from it, as a desk created with `startFrom` is (see
+   * {@link runRehearsal}). The data must be featurised with its featuriser.
+   */
+  startFrom?: ModelExport;
   /** Called after each curve point: points done, points expected. */
   onProgress?: (done: number, total: number) => void;
 }
@@ -100,8 +107,31 @@ export interface RehearsalResult extends RehearsalCurve {
   warnings: string[];
   full: { accuracy: number; macroF1: number };
   random?: RehearsalCurve;
+  /** The loop started from another desk's model (with `startFrom`). */
+  startFrom?: TransferCurve;
   timings: { featurizeMs: number; trainMsMean: number; scoreMsMean: number };
 }
+
+/** The loop started from an exported model, beside the one that starts cold. */
+export interface TransferCurve extends RehearsalCurve {
+  source: { deskId: number; deskName: string; version: number };
+  /** Categories of the data the model never trained (probability 0 until the desk's own verdicts train them). */
+  untrained: string[];
+  /** Categories of the model the data does not have. */
+  dropped: string[];
+  /**
+   * Verdicts to reach that share of the full model's macro-F1 without the start minus with it; null when the run
+   * with the start never reaches it, or the one without does not (then more than `budget` minus the verdicts with it).
+   */
+  verdictsSaved: { '0.95': number | null; '0.98': number | null };
+}
+
+/**
+ * Training verdicts of each category the transferred model knows that a desk started from it needs before it trains
+ * on its own verdicts (with the model as prior); until then it serves the transferred model. The service's rule
+ * (`FIRST_MODEL_MIN_PER_CATEGORY` in libs/models) is the same number.
+ */
+export const TRANSFER_MIN_PER_CATEGORY = 2;
 
 export interface LabelledItem {
   text: string;
@@ -117,6 +147,8 @@ export interface RehearsalData {
   pool: number[];
   test: number[];
   hashBits: number;
+  /** Hashed term counts of every item (tf-idf under another idf table needs them). */
+  counts: readonly SparseVector[];
   featurizeMs: number;
 }
 
@@ -183,6 +215,7 @@ export function prepareRehearsal(
     pool,
     test,
     hashBits: featurizer.hashBits,
+    counts,
     featurizeMs: performance.now() - started,
   };
 }
@@ -199,12 +232,13 @@ function train(
   options: RehearsalOptions,
   timing: Timing,
   previous: LogisticModel | null = null,
+  prior: LogisticModel | null = null,
 ): LogisticModel {
   const started = performance.now();
   const model = trainLogisticModel(
     rows.map((i) => data.vectors[i]),
     rows.map((i) => data.classes[data.labels[i]]),
-    { categories: data.classes, hashBits: data.hashBits, warmStart: previous, ...options.training },
+    { categories: data.classes, hashBits: data.hashBits, warmStart: previous, prior, ...options.training },
   );
   timing.trainMs.push(performance.now() - started);
   return model;
@@ -299,10 +333,35 @@ function measure(
   };
 }
 
-/** Number of curve points a run produces. */
-function pointsOf(data: RehearsalData, options: RehearsalOptions): number {
+/** Number of curve points a run produces (started from a transferred model: no cold start). */
+function pointsOf(data: RehearsalData, options: RehearsalOptions, transferred = false): number {
   const budget = Math.min(options.budget, data.pool.length);
-  return 1 + Math.ceil((budget - coldStart(data, options.start, budget).length) / options.batch);
+  const cold = transferred ? 0 : coldStart(data, options.start, budget).length;
+  return 1 + Math.ceil((budget - cold) / options.batch);
+}
+
+/** A transferred model, mapped onto the data's categories, with the data weighed by the idf it was trained with. */
+interface Transfer {
+  model: LogisticModel;
+  vectors: SparseVector[];
+  /** Class indices the model trained. */
+  known: number[];
+}
+
+function transferOf(
+  data: RehearsalData,
+  start: ModelExport,
+): { transfer: Transfer; untrained: string[]; dropped: string[] } {
+  if (start.featurizer.hashBits !== data.hashBits)
+    throw new RangeError(
+      `the model hashes into ${start.featurizer.hashBits} bits and the data into ${data.hashBits}: featurise with the model's settings`,
+    );
+  const { model, untrained, dropped } = remapCategories(start.classifier, data.classes);
+  return {
+    transfer: { model, vectors: data.counts.map((c) => tfidf(c, start.idf)), known: [...model.trained] },
+    untrained,
+    dropped,
+  };
 }
 
 function runCurve(
@@ -312,24 +371,36 @@ function runCurve(
   rng: Rng,
   timing: Timing,
   progress: () => void,
+  transfer: Transfer | null = null,
 ): CurvePoint[] {
   const budget = Math.min(options.budget, data.pool.length);
-  const trainRows = coldStart(data, options.start, budget);
+  // A desk started from a transferred model has a model at once: no cold start.
+  const trainRows = transfer === null ? coldStart(data, options.start, budget) : [];
   const calibrationRows: number[] = [];
   const labelled = new Set(trainRows);
   const curve: CurvePoint[] = [];
   let model: LogisticModel | null = null;
   for (;;) {
-    model = train(data, trainRows, options, timing, model);
+    // Started from a transfer, the desk serves the transferred model until its own training verdicts hold every
+    // category the model knows, then trains on them with the transferred weights as prior (as the service does).
+    const counts = new Int32Array(data.classes.length);
+    for (const i of trainRows) counts[data.labels[i]]++;
+    const own = transfer === null || transfer.known.every((c) => counts[c] >= TRANSFER_MIN_PER_CATEGORY);
+    if (own) model = train(data, trainRows, options, timing, model, transfer?.model ?? null);
+    const current = model;
+    const score =
+      current !== null
+        ? (i: number) => current.predictProba(data.vectors[i])
+        : (i: number) => transfer!.model.predictProba(transfer!.vectors[i]);
     const started = performance.now();
     const probabilities = new Map<number, Float64Array>();
     // Score what the service scores: the open items (the next draw looks at
     // them, and they are what the desk shows sets on), the calibration items
     // (the current model never trained on them), and here the test set.
     const openRows = data.pool.filter((i) => !labelled.has(i));
-    for (const i of openRows) probabilities.set(i, model.predictProba(data.vectors[i]));
-    for (const i of calibrationRows) probabilities.set(i, model.predictProba(data.vectors[i]));
-    for (const i of data.test) probabilities.set(i, model.predictProba(data.vectors[i]));
+    for (const i of openRows) probabilities.set(i, score(i));
+    for (const i of calibrationRows) probabilities.set(i, score(i));
+    for (const i of data.test) probabilities.set(i, score(i));
     timing.scoreMs.push(performance.now() - started);
     curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, options));
     progress();
@@ -450,7 +521,9 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
   checkOptions(options);
   const timing: Timing = { trainMs: [], scoreMs: [] };
   const perCurve = pointsOf(data, options);
-  const total = perCurve * (options.compareRandom ? 2 : 1) + 1;
+  const transferred = options.startFrom === undefined ? null : transferOf(data, options.startFrom);
+  const total =
+    perCurve * (options.compareRandom ? 2 : 1) + (transferred === null ? 0 : pointsOf(data, options, true)) + 1;
   let done = 0;
   const progress = (): void => options.onProgress?.(++done, total);
   const curve = runCurve(data, options, options.strategy, createRng(options.seed * 31 + 7), timing, progress);
@@ -459,6 +532,18 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
   let randomCurve: CurvePoint[] | undefined;
   if (options.compareRandom)
     randomCurve = runCurve(data, options, 'random', createRng(options.seed * 31 + 8), timing, progress);
+  const transferCurve =
+    transferred === null
+      ? null
+      : runCurve(
+          data,
+          options,
+          options.strategy,
+          createRng(options.seed * 31 + 9),
+          { trainMs: [], scoreMs: [] },
+          progress,
+          transferred.transfer,
+        );
   const fullModel = train(data, data.pool, options, { trainMs: [], scoreMs: [] });
   const truth = data.test.map((i) => data.labels[i]);
   const predicted = data.test.map((i) => {
@@ -471,6 +556,24 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
   const full = { accuracy: accuracy(truth, predicted, k), macroF1: macroF1(truth, predicted, k) };
   progress();
   if (randomCurve) random = curveSummary(randomCurve, full.macroF1);
+  const cold = curveSummary(curve, full.macroF1);
+  let startFrom: TransferCurve | undefined;
+  if (transferCurve !== null && options.startFrom !== undefined && transferred !== null) {
+    const warm = curveSummary(transferCurve, full.macroF1);
+    const saved = (share: '0.95' | '0.98'): number | null => {
+      const without = cold.labelsToReach[share];
+      const withStart = warm.labelsToReach[share];
+      return without === null || withStart === null ? null : without - withStart;
+    };
+    const { deskId, deskName, version } = options.startFrom.json.source;
+    startFrom = {
+      ...warm,
+      source: { deskId, deskName, version },
+      untrained: transferred.untrained,
+      dropped: transferred.dropped,
+      verdictsSaved: { '0.95': saved('0.95'), '0.98': saved('0.98') },
+    };
+  }
   const mean = (xs: number[]): number => (xs.length ? xs.reduce((s, x) => s + x, 0) / xs.length : 0);
   return {
     classes: data.classes,
@@ -481,9 +584,10 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
     calibration: options.calibration,
     c: 'c' in fullModel.training ? fullModel.training.c : (options.training?.c ?? DEFAULT_C),
     warnings: rehearsalWarnings(data, options),
-    ...curveSummary(curve, full.macroF1),
+    ...cold,
     full,
     ...(random ? { random } : {}),
+    ...(startFrom ? { startFrom } : {}),
     timings: {
       featurizeMs: data.featurizeMs,
       trainMsMean: mean(mainTiming.trainMs),
