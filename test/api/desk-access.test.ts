@@ -133,6 +133,7 @@ const DESK_ROUTES: DeskRoute[] = [
   { method: 'GET', template: '/api/desks/{deskId}/reports', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/models/{version}/report.json', allowed: [S, A] },
   { method: 'GET', template: '/api/desks/{deskId}/models/{version}/report.html', allowed: [S, A] },
+  { method: 'GET', template: '/api/desks/{deskId}/models/{version}/model.json', allowed: [S, A] },
 ];
 
 /** Routes that act on no single desk; `test/api/roles.test.ts` checks them by account role. */

@@ -387,6 +387,13 @@ describe.each(DATABASE_KINDS)('answers on %s match the document', (kind) => {
       'a written report',
     );
     await call('aud', 'GET', `/api/desks/${deskId}/models/${ready.version}/report.json`);
+    await call('aud', 'GET', `/api/desks/${deskId}/models/${ready.version}/model.json`);
+    const started = await call('sup', 'POST', '/api/desks', {
+      name: 'started from another desk',
+      categories: ['ok', 'threat', 'doxxing'],
+      startFrom: { deskId, version: ready.version },
+    });
+    expect(started.status).toBe(201);
     await call('sup', 'POST', `/api/desks/${deskId}/erasures`, { itemIds: [item], reason: 'a request to erase' });
     await call('aud', 'GET', `/api/desks/${deskId}/erasures`);
     // The erased item's page: the tombstone's record and an empty read.

@@ -40,6 +40,7 @@ export { AuditEventEntity } from './entities/audit-event.entity.js';
 export {
   ModelVersionEntity,
   MODEL_STATES,
+  type ModelOrigin,
   type ModelState,
   type VerdictSetSummary,
 } from './entities/model-version.entity.js';

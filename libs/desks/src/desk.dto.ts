@@ -1,5 +1,5 @@
 import { ApiProperty, ApiPropertyOptional } from '@nestjs/swagger';
-import { Transform } from 'class-transformer';
+import { Transform, Type } from 'class-transformer';
 import {
   IsBoolean,
   ArrayMaxSize,
@@ -16,11 +16,18 @@ import {
   Max,
   Min,
   NotContains,
+  ValidateNested,
 } from 'class-validator';
 import { CALIBRATION_MODES, SCORES, STRATEGIES, type CalibrationMode, type ScoreKind, type Strategy } from '#database';
 
 const trimAll = ({ value }: { value: unknown }) =>
   Array.isArray(value) ? value.map((v: unknown) => (typeof v === 'string' ? v.trim() : v)) : value;
+
+/** Another desk's model version to start from (the caller must be its supervisor or auditor). */
+export class StartFromDto {
+  @ApiProperty({ example: 1 }) @IsInt() @Min(1) deskId!: number;
+  @ApiProperty({ example: 3 }) @IsInt() @Min(1) version!: number;
+}
 
 export class CreateDeskDto {
   @ApiProperty({ example: 'Mossbank Commons reports' }) @IsString() @Length(1, 200) name!: string;
@@ -138,6 +145,16 @@ export class CreateDeskDto {
   @Min(1)
   @Max(86400)
   retrainAfterSeconds?: number;
+  /**
+   * Start from another desk's model version: the new desk's first version is its classifier (categories matched by
+   * name), scored over the pool as items arrive, with no calibration until the desk's own random verdicts come.
+   */
+  @ApiPropertyOptional({ type: StartFromDto })
+  @IsOptional()
+  @IsObject()
+  @ValidateNested()
+  @Type(() => StartFromDto)
+  startFrom?: StartFromDto;
 }
 
 export class UpdateDeskDto {

@@ -64,4 +64,25 @@ export const UpdatedDeskAnswer = named(
   }),
 );
 
+/** A new desk; one started from another desk's version says what the transfer carried. */
+export const CreatedDeskAnswer = named(
+  'CreatedDesk',
+  DeskAnswer.extend({
+    startedFrom: z
+      .strictObject({
+        deskId: z.int(),
+        deskName: z.string(),
+        version: z.int(),
+        untrained: z
+          .array(z.string())
+          .describe(
+            'categories of the new desk the classifier never trained: probability 0 until own verdicts train them',
+          ),
+        dropped: z.array(z.string()).describe('trained categories of the source that the new desk does not have'),
+      })
+      .optional()
+      .describe('present when the desk started from another desk’s model version'),
+  }),
+);
+
 export const DeskListAnswer = named('DeskList', z.strictObject({ desks: z.array(DeskAnswer) }));

@@ -1,9 +1,20 @@
-import { Body, Controller, Get, Inject, Param, ParseIntPipe, Patch, Post } from '@nestjs/common';
+import {
+  Body,
+  Controller,
+  ForbiddenException,
+  Get,
+  Inject,
+  NotFoundException,
+  Param,
+  ParseIntPipe,
+  Patch,
+  Post,
+} from '@nestjs/common';
 import { ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { CurrentDesk, CurrentUser, MembershipService, OnDesk, Roles, type DeskAccess, type Principal } from '#auth';
 import { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
-import { DeskAnswer, DeskListAnswer, UpdatedDeskAnswer } from './desk.responses.js';
+import { CreatedDeskAnswer, DeskAnswer, DeskListAnswer, UpdatedDeskAnswer } from './desk.responses.js';
 import { DesksService } from './desks.service.js';
 
 @ApiTags('desks')
@@ -16,9 +27,19 @@ export class DesksController {
 
   @Roles('supervisor')
   @Post()
-  @ApiAnswer(DeskAnswer, { status: 201, description: 'the new desk' })
+  @ApiAnswer(CreatedDeskAnswer, { status: 201, description: 'the new desk' })
   @ApiErrors({ 409: 'a desk of that name exists already' })
-  async create(@CurrentUser() user: Principal, @Body() body: CreateDeskDto): Promise<Answer<typeof DeskAnswer>> {
+  async create(@CurrentUser() user: Principal, @Body() body: CreateDeskDto): Promise<Answer<typeof CreatedDeskAnswer>> {
+    if (body.startFrom) {
+      // The source desk is named in the body, not the path: membership is checked here, with the guard's answers
+      // (not a member: the same 404 as no such desk; a reviewer: 403, models are for supervisors and auditors).
+      const role = (await this.members.rolesOf(user.id)).get(body.startFrom.deskId);
+      if (role === undefined) throw new NotFoundException(`startFrom: no desk ${body.startFrom.deskId}`);
+      if (role === 'reviewer')
+        throw new ForbiddenException(
+          `startFrom: a reviewer of desk ${body.startFrom.deskId} cannot read its models (supervisors and auditors can)`,
+        );
+    }
     return { ...(await this.desks.create(user, body)), role: 'supervisor' };
   }
 

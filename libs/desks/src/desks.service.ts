@@ -15,7 +15,7 @@ import {
   type RetentionSettings,
 } from '#database';
 import { JOBS, JobQueueService } from '#queues';
-import { PredictionsService, type CalibrationStatus } from '#models';
+import { ModelTransferService, PredictionsService, type CalibrationStatus, type PreparedTransfer } from '#models';
 import { parseSeedTerm } from '#learning';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
 
@@ -198,9 +198,18 @@ export class DesksService {
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
     @Inject(MembershipService) private readonly members: MembershipService,
+    @Inject(ModelTransferService) private readonly transfers: ModelTransferService,
   ) {}
 
-  async create(actor: AuditActor, dto: CreateDeskDto): Promise<DeskView> {
+  /**
+   * Creates a desk. With `startFrom` (the caller's right to read that desk is the controller's check), the source
+   * version is checked first and becomes the desk's version 1 in the same transaction; its scoring starts after the
+   * commit.
+   */
+  async create(
+    actor: AuditActor,
+    dto: CreateDeskDto,
+  ): Promise<DeskView & { startedFrom?: PreparedTransfer['model']['origin'] }> {
     checkCategoryNames(dto.categories);
     const seedTerms = validateSeedTerms(dto.seedTerms, dto.categories);
     const screening = validateScreening(
@@ -212,6 +221,9 @@ export class DesksService {
     const randomShare = dto.randomShare ?? 0.2;
     const screenShare = dto.screenShare ?? Math.min(0.5, 1 - randomShare);
     checkShares(randomShare, screenShare);
+    const transfer = dto.startFrom
+      ? await this.transfers.prepare(dto.startFrom.deskId, dto.startFrom.version, dto.categories)
+      : null;
     const deskId = await this.db.write(async (m) => {
       if (await m.findOneBy(DeskEntity, { name: dto.name }))
         throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
@@ -256,9 +268,22 @@ export class DesksService {
         deskId: desk.id,
         after: settingsOf(view),
       });
+      if (transfer) {
+        await this.transfers.install(m, desk.id, dto.categories, transfer);
+        const { deskId: fromDesk, version, untrained, dropped } = transfer.model.origin;
+        await this.audit.record(m, actor, {
+          action: 'desk.start-from',
+          entityType: 'desk',
+          entityId: desk.id,
+          deskId: desk.id,
+          after: { fromDesk, version, untrained, dropped },
+        });
+      }
       return desk.id;
     });
-    return this.get(deskId);
+    if (!transfer) return this.get(deskId);
+    await this.transfers.start(deskId);
+    return { ...(await this.get(deskId)), startedFrom: transfer.model.origin };
   }
 
   /** The desks with these ids, or every desk when `ids` is `'all'`. */

@@ -8,6 +8,7 @@ export { ScoringService } from './scoring.service.js';
 export { PublishService } from './publish.service.js';
 export { priorityOf } from './priority.js';
 export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';
+export { ModelTransferService, type PreparedTransfer } from './transfer/model-transfer.service.js';
 export { ScreenLaneService } from './screening/screen-lane.service.js';
 export { periodStart } from './screening/prevalence.service.js';
 export { setOptionsOf, targetsOf, type SetSettings } from './set-options.js';

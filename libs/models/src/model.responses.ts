@@ -160,3 +160,50 @@ export const PredictedItemsAnswer = named(
     nextCursor: z.string().nullable().describe('the same as `next` (for clients that page with `cursor`)'),
   }),
 );
+
+/** A version's classifier as a file: see `ModelExportJson` in libs/learning (`model-export.ts`). */
+export const ModelFileAnswer = named(
+  'ModelFile',
+  z.strictObject({
+    type: z.literal('cribra.model-export'),
+    version: z.literal(1).describe('format version'),
+    source: z.strictObject({
+      deskId: z.int(),
+      deskName: z.string(),
+      version: z.int(),
+      publishedAt: z.string().nullable(),
+    }),
+    exportedAt: z.string(),
+    categories: z.array(z.string()).describe('the desk’s categories, in its order'),
+    featurizer: z
+      .strictObject({
+        hashBits: z.int(),
+        maxWordNgram: z.union([z.literal(1), z.literal(2)]),
+        charNgrams: z.tuple([z.int(), z.int()]).readonly().nullable(),
+      })
+      .describe('hashed featuriser settings (MurmurHash3 x86 32-bit)'),
+    idf: z
+      .strictObject({
+        type: z.literal('cribra.idf-table'),
+        version: z.literal(1),
+        hashBits: z.int(),
+        documentCount: z.int(),
+        indices: z.array(z.int()).describe('buckets with a non-zero document frequency, ascending'),
+        df: z.array(z.int()),
+      })
+      .describe('document frequencies of the pool the version was trained on'),
+    classifier: z
+      .strictObject({
+        type: z.literal('cribra.logistic-model'),
+        version: z.union([z.literal(1), z.literal(2)]).describe('2: multinomial (softmax); 1: one-vs-rest'),
+        categories: z.array(z.string()),
+        trained: z.array(z.int()).describe('positions in categories of the trained categories'),
+        hashBits: z.int(),
+        features: z.array(z.int()).describe('buckets that carry weights, ascending'),
+        weights: z.array(z.array(z.number())).describe('weights[c][j]: class trained[c] on bucket features[j]'),
+        biases: z.array(z.number()).describe('intercept of each trained class'),
+        training: z.record(z.string(), z.unknown()).describe('the solver’s summary (method, C, iterations, …)'),
+      })
+      .describe('the classifier'),
+  }),
+);

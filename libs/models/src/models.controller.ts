@@ -7,7 +7,9 @@ import {
   Param,
   ParseIntPipe,
   Query,
+  Res,
 } from '@nestjs/common';
+import type { Response } from 'express';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
 import { Roles, OnDesk } from '#auth';
@@ -15,6 +17,7 @@ import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS, 
 import {
   CoverageAnswer,
   CoveragePreviewAnswer,
+  ModelFileAnswer,
   ModelListAnswer,
   ModelVersionAnswer,
   PredictedItemsAnswer,
@@ -24,6 +27,7 @@ import { ModelStore } from './model-store.service.js';
 import { PredictionsService } from './predictions.service.js';
 import { ScreeningAnswer } from './screening/screening.responses.js';
 import { ScreeningService } from './screening/screening.service.js';
+import { ModelTransferService } from './transfer/model-transfer.service.js';
 
 const LANES = ['flagged', 'cleared'] as const;
 
@@ -38,6 +42,7 @@ export class ModelsController {
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(ModelStore) private readonly store: ModelStore,
     @Inject(ScreeningService) private readonly screeningService: ScreeningService,
+    @Inject(ModelTransferService) private readonly transfers: ModelTransferService,
   ) {}
 
   /**
@@ -111,6 +116,26 @@ export class ModelsController {
       calibration: { counts: row.calibration.counts, draws: row.calibration.draws, items: row.calibration.itemIds },
       thresholds: loaded ? this.predictions.calibrationStatus(desk, loaded) : null,
     };
+  }
+
+  /**
+   * The version's classifier as a download (`cribra.model-export`, format version 1): categories, featuriser
+   * settings, the idf table and the weights, sparse; no texts. It starts another desk (`POST /api/desks` with
+   * `startFrom`) or a rehearsal (`cribra rehearse --start-from`).
+   */
+  @Roles(...READERS)
+  @OnDesk()
+  @Get('models/:version/model.json')
+  @ApiAnswer(ModelFileAnswer, { description: 'the model file, as an attachment' })
+  async modelFile(
+    @Param('deskId', ParseIntPipe) deskId: number,
+    @Param('version', ParseIntPipe) version: number,
+    @Res({ passthrough: true }) res: Response,
+  ): Promise<Answer<typeof ModelFileAnswer>> {
+    const file = await this.transfers.exportOf(deskId, version);
+    res.setHeader('Content-Disposition', `attachment; filename="desk-${deskId}-v${version}.model.json"`);
+    // The solver's summary is an interface; the schema reads it as a record.
+    return { ...file, classifier: { ...file.classifier, training: { ...file.classifier.training } } };
   }
 
   private summary(r: ModelVersionEntity) {

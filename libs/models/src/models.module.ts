@@ -13,6 +13,7 @@ import { PrevalenceController } from './screening/prevalence.controller.js';
 import { PrevalenceService } from './screening/prevalence.service.js';
 import { ScreenLaneService } from './screening/screen-lane.service.js';
 import { ScreeningService } from './screening/screening.service.js';
+import { ModelTransferService } from './transfer/model-transfer.service.js';
 import { PAUSE_HOOK, TrainingService, type PauseHook } from './training.service.js';
 
 /** The desk's document frequencies alone: needs the database only (no Redis), so operator commands can use it. */
@@ -28,6 +29,7 @@ const shared = [
   ScreeningRepository,
   ScreeningCache,
   PrevalenceService,
+  ModelTransferService,
 ];
 
 /** Reading models and predictions (and asking for retrains): no training here. */

@@ -12,6 +12,8 @@ export interface TrainRequest {
   hashBits: number;
   /** The model to start from (the desk's current version), or null for a cold start. */
   warmStart: LogisticModelJson | null;
+  /** The model the weights are pulled towards instead of zero (see trainLogisticModel's prior), or null. */
+  prior: LogisticModelJson | null;
 }
 
 export type TrainReply = { ok: true; model: LogisticModelJson } | { ok: false; error: string };
@@ -49,6 +51,7 @@ export async function trainInThread(
   categories: string[],
   hashBits: number,
   warmStart: LogisticModelJson | null = null,
+  prior: LogisticModelJson | null = null,
 ): Promise<LogisticModelJson> {
   const req: TrainRequest = {
     indices: vectors.map((v) => Int32Array.from(v.indices)),
@@ -57,6 +60,7 @@ export async function trainInThread(
     categories,
     hashBits,
     warmStart,
+    prior,
   };
   const reply = await turns.run(() => {
     const worker = trainingThread();

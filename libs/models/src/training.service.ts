@@ -18,15 +18,19 @@ import {
   inEstimationFold,
   LogisticModel,
   logLoss,
+  remapCategories,
+  type FeaturizerOptions,
+  type IdfTableJson,
   type LogisticModelJson,
   macroF1,
   reliabilityBins,
   tfidf,
   topLabelConfidence,
 } from '#learning';
-import { JOBS, JobQueueService, type RetrainDeskPayload } from '#queues';
+import { JobQueueService, type RetrainDeskPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-scheduler.service.js';
+import { enqueueScoring } from './scoring-flow.js';
 import { trainInThread } from './training-protocol.js';
 
 /** Items per scoring chunk: each chunk is its own job, taken by any worker process. */
@@ -135,9 +139,15 @@ export class TrainingService {
     const hasModel = desk.currentModelVersion !== null;
     const perCategory = (rows: typeof train) =>
       Object.fromEntries(categories.map((c) => [c, rows.filter(([, e]) => e.label === c).length]));
-    if (!hasModel && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY))
+    // A desk started from another desk's version serves that classifier (recalibrated on its own random verdicts,
+    // scoring items imported since) until its own training verdicts hold every category the classifier knows; from
+    // then on it trains on them with the transferred weights as prior.
+    const transfer = await this.transferOrigin(deskId, categories);
+    const reissue =
+      transfer !== null && transfer.known.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY);
+    if (!hasModel && !reissue && categories.some((c) => (perCategory(train)[c] ?? 0) < FIRST_MODEL_MIN_PER_CATEGORY))
       return { version: null, reason: 'not enough training verdicts for a first model' };
-    if (new Set(train.map(([, e]) => e.label)).size < 2)
+    if (!reissue && new Set(train.map(([, e]) => e.label)).size < 2)
       return { version: null, reason: 'training verdicts cover fewer than two categories' };
 
     const digest = (rows: typeof train) =>
@@ -196,8 +206,8 @@ export class TrainingService {
     }
     await this.pause('training');
 
-    const idf: IdfTable = await this.features.table(deskId);
-    const featurizer = this.features.featurizer(idf.hashBits);
+    const idf: IdfTable = reissue ? transfer.idf : await this.features.table(deskId);
+    const featurizer = reissue ? this.features.featurizer(transfer.featurizer) : this.features.featurizer(idf.hashBits);
     const vectorize = (text: string) => tfidf(featurizer.counts(text), idf);
     const tFeat = performance.now();
     const trainVectors = train.map(([, e]) => vectorize(e.text));
@@ -209,13 +219,16 @@ export class TrainingService {
         : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: desk.currentModelVersion });
     const parentClassifier = (parent?.model?.classifier ?? null) as LogisticModelJson | null;
     const tTrain = performance.now();
-    const classifierJson = await trainInThread(
-      trainVectors,
-      train.map(([, e]) => e.label),
-      categories,
-      idf.hashBits,
-      parentClassifier,
-    );
+    const classifierJson = reissue
+      ? transfer.classifier
+      : await trainInThread(
+          trainVectors,
+          train.map(([, e]) => e.label),
+          categories,
+          idf.hashBits,
+          parentClassifier,
+          transfer?.classifier ?? null,
+        );
     const classifier = LogisticModel.fromJSON(classifierJson);
     const tCal = performance.now();
     const probs = calibVectors.map((v) => classifier.predictProba(v));
@@ -259,6 +272,22 @@ export class TrainingService {
     return { version };
   }
 
+  /**
+   * The classifier a desk's first version was transferred from (mapped onto the desk's categories as they are now),
+   * with its idf and featuriser; null for a desk that started cold.
+   */
+  private async transferOrigin(deskId: number, categories: string[]) {
+    const first = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: 1 });
+    if (!first?.model?.origin) return null;
+    const { model } = remapCategories(LogisticModel.fromJSON(first.model.classifier as LogisticModelJson), categories);
+    return {
+      classifier: model.toJSON(),
+      known: model.trained.map((p) => categories[p]),
+      idf: IdfTable.fromJSON(first.model.idf as IdfTableJson),
+      featurizer: first.model.featurizer as FeaturizerOptions,
+    };
+  }
+
   private async nextVersion(deskId: number): Promise<number> {
     // MAX answers one row, null over no rows.
     const [r] = await this.db.query<{ v: DbInt | null }>(
@@ -269,23 +298,8 @@ export class TrainingService {
     return Number(r.v ?? 0) + 1;
   }
 
-  /** The scoring flow: one child job per chunk of open items, and the publish job as their parent. */
   private async startScoring(deskId: number, version: number, chunkSize: number): Promise<void> {
-    const ids = await this.db.query<{ id: DbInt }>(
-      null,
-      `SELECT id FROM items WHERE desk_id = $1 AND state <> 'decided' ORDER BY id`,
-      [deskId],
-    );
-    const chunks: Array<{ fromId: number; toId: number }> = [];
-    for (let i = 0; i < ids.length; i += chunkSize) {
-      const fromId = Number(ids[i].id);
-      const toId = i + chunkSize < ids.length ? Number(ids[i + chunkSize].id) : Number(ids[ids.length - 1].id) + 1;
-      chunks.push({ fromId, toId });
-    }
-    await this.jobs.flow(
-      { name: JOBS.publishVersion, payload: { deskId, version } },
-      chunks.map((c) => ({ name: JOBS.scoreChunk, payload: { deskId, version, ...c } })),
-    );
+    await enqueueScoring(this.db, this.jobs, deskId, version, chunkSize);
   }
 }
 

@@ -18,6 +18,8 @@ parentPort?.on('message', (req: TrainRequest) => {
       categories: req.categories,
       hashBits: req.hashBits,
       warmStart,
+      // The transferred model of a desk started from another desk's version: the weights are pulled towards it.
+      prior: req.prior === null ? null : LogisticModel.fromJSON(req.prior),
     });
     reply = { ok: true, model: model.toJSON() };
   } catch (e) {

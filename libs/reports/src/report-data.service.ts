@@ -62,6 +62,9 @@ export class ReportData {
         ? null
         : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: row.parentVersion });
     const from = parent?.publishedAt ?? desk.createdAt;
+    // A desk started from another desk's version keeps that origin on its first version.
+    const first = version === 1 ? row : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: 1 });
+    const origin = first?.model?.origin;
     const history = await this.settingsHistory(desk);
     const inForce = history.at(to);
     const settings: Settings = {
@@ -85,6 +88,16 @@ export class ReportData {
         createdAt: row.createdAt.toISOString(),
         publishedAt: to.toISOString(),
         verdictWatermark: row.verdictWatermark,
+        ...(origin
+          ? {
+              startedFrom: {
+                deskId: origin.deskId,
+                deskName: origin.deskName,
+                version: origin.version,
+                untrained: origin.untrained,
+              },
+            }
+          : {}),
       },
       period: {
         from: from.toISOString(),

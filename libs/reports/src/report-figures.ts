@@ -14,6 +14,8 @@ export interface ReportFigures {
     createdAt: string;
     publishedAt: string;
     verdictWatermark: number;
+    /** Present when the desk's first version was another desk's version (POST /api/desks with startFrom). */
+    startedFrom?: { deskId: number; deskName: string; version: number; untrained: string[] };
   };
   /** Verdict times covered: after the parent version was published (or from the desk's creation) up to this version's publication. */
   period: { from: string; to: string; startsAt: 'parent-published' | 'desk-created' };

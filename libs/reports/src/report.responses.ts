@@ -49,6 +49,15 @@ export const ReportAnswer = named(
       createdAt: z.string(),
       publishedAt: z.string(),
       verdictWatermark: z.int(),
+      startedFrom: z
+        .strictObject({
+          deskId: z.int(),
+          deskName: z.string(),
+          version: z.int(),
+          untrained: z.array(z.string()),
+        })
+        .optional()
+        .describe('the other desk’s version this desk started from, when it did'),
     }),
     period: z.strictObject({
       from: z.string(),

@@ -27,6 +27,17 @@ export interface VerdictSetSummary {
  * published: later changes of the coverage target only re-read the stored
  * calibration scores.
  */
+/** Where a desk's transferred first version came from (another desk's version), and what it could not carry. */
+export interface ModelOrigin {
+  deskId: number;
+  deskName: string;
+  version: number;
+  /** Categories of this desk the transferred classifier never trained. */
+  untrained: string[];
+  /** Categories of the source the desk does not have (left out). */
+  dropped: string[];
+}
+
 export class ModelVersionEntity {
   id!: number;
   deskId!: number;
@@ -40,8 +51,8 @@ export class ModelVersionEntity {
   training!: VerdictSetSummary;
   /** Calibration items and the sorted nonconformity scores (ConformalCalibrationJson). */
   calibration!: VerdictSetSummary & { scores: unknown };
-  /** The classifier and the idf table it was trained with. */
-  model!: { classifier: unknown; idf: unknown; featurizer: unknown } | null;
+  /** The classifier and the idf table it was trained with; `origin` on a desk's first version when it came from another desk. */
+  model!: { classifier: unknown; idf: unknown; featurizer: unknown; origin?: ModelOrigin } | null;
   metrics!: Record<string, unknown> | null;
   timings!: Record<string, number>;
   failure!: string | null;

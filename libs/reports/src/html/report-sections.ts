@@ -22,13 +22,23 @@ export function headerSection(f: F): Html {
 <dt>Desk</dt><dd>${f.desk.name} (id ${f.desk.id})</dd>
 <dt>Categories</dt><dd>${f.desk.categories.join(', ')}</dd>
 <dt>Model version</dt><dd>${f.version.version}${f.version.parentVersion === null ? ' (the first)' : html` (follows version ${f.version.parentVersion})`}</dd>
-<dt>Created</dt><dd>${utc(f.version.createdAt)}</dd>
+${startedFromFact(f)}<dt>Created</dt><dd>${utc(f.version.createdAt)}</dd>
 <dt>Published</dt><dd>${utc(f.version.publishedAt)}</dd>
 <dt>Period covered</dt><dd>verdicts after ${utc(f.period.from)} (${f.period.startsAt === 'parent-published' ? 'publication of the previous version' : 'creation of the desk'}) up to ${utc(f.period.to)}</dd>
 <dt>Coverage target</dt><dd>${percent(f.settings.coverageTarget)}, calibrated ${MODE_TEXT[f.settings.calibration]}, score ${SCORE_TEXT[f.settings.score]}</dd>
 <dt>Queue</dt><dd>${percent(f.settings.randomShare)} of the items drawn uniformly at random, the rest by ${f.settings.strategy}; ${percent(f.settings.secondOpinionShare)} of decided items served again to a second reviewer</dd>
 </dl>
 </header>`;
+}
+
+function startedFromFact(f: F): Html {
+  const s = f.version.startedFrom;
+  if (!s) return html``;
+  const untrained = s.untrained.length
+    ? html`; not trained there, so starting untrained: ${s.untrained.join(', ')}`
+    : html``;
+  return html`<dt>Started from</dt><dd>version ${s.version} of desk ${s.deskName} (id ${s.deskId}): this desk's first version was that classifier, and later versions train on this desk's own verdicts with its weights as prior${untrained}</dd>
+`;
 }
 
 export function coverageSection(f: F): Html {
