@@ -36,21 +36,28 @@ export const rehearse = defineCommand({
     const flags = rehearseFlags(values);
     // Loaded here so that `--help` does not load the learning core and the import parser.
     const { prepareRehearsal, runRehearsal } = await import('#learning');
-    const { formatRehearsal, formatSeeds, progressBar } = await import('./rehearse/format-rehearsal.js');
+    const { formatRehearsal, formatSeeds, formatTransfer, progressBar } =
+      await import('./rehearse/format-rehearsal.js');
     const { checkUsable, InputError, readLabelledFile } = await import('./rehearse/read-labelled-file.js');
     try {
+      const startFrom = flags.startFrom === undefined ? undefined : await readModelFile(flags.startFrom);
       const input = await readLabelledFile(flags.input, flags.labelField, flags.format);
       reportInput(input, io);
       checkUsable(input, flags.input, flags.labelField);
       const { createFeaturizer, summarizeSeeds, tuneRehearsalC } = await import('#learning');
-      // Hashed counts do not depend on the seed: computed once for every run.
-      const featurizer = createFeaturizer();
+      // Hashed counts do not depend on the seed: computed once for every run (with the model's featuriser, if any).
+      const featurizer = createFeaturizer(startFrom?.featurizer);
       const counts = input.items.map((item) => featurizer.counts(item.text));
       const results = [];
       const tuning = [];
       const runs = flags.seeds.length;
       for (const [r, seed] of flags.seeds.entries()) {
-        const data = prepareRehearsal(input.items, { testShare: flags.testShare, seed, counts });
+        const data = prepareRehearsal(input.items, {
+          testShare: flags.testShare,
+          seed,
+          counts,
+          ...(startFrom ? { featurizer: startFrom.featurizer } : {}),
+        });
         const tuned = flags.tune ? tuneRehearsalC(data, { budget: flags.budget, seed, folds: flags.folds }) : null;
         if (tuned !== null) tuning.push({ seed, ...tuned });
         const result = runRehearsal(data, {
@@ -65,6 +72,7 @@ export const rehearse = defineCommand({
           testShare: flags.testShare,
           seed,
           compareRandom: flags.compareRandom,
+          ...(startFrom ? { startFrom } : {}),
           ...(tuned === null ? {} : { training: { c: tuned.c } }),
           onProgress: flags.json
             ? undefined
@@ -93,7 +101,8 @@ export const rehearse = defineCommand({
         );
       } else {
         io.stdout.write(
-          flags.multiSeed ? formatSeeds(results, summary, tuning) : formatRehearsal(results[0], summary, tuning[0]),
+          (flags.multiSeed ? formatSeeds(results, summary, tuning) : formatRehearsal(results[0], summary, tuning[0])) +
+            formatTransfer(results),
         );
       }
       return 0;
@@ -106,6 +115,24 @@ export const rehearse = defineCommand({
     }
   },
 });
+
+/** Reads and checks a model file for `--start-from`; an unreadable or foreign file is an input error (exit 1). */
+async function readModelFile(path: string) {
+  const { readFile } = await import('node:fs/promises');
+  const { readModelExport } = await import('#learning');
+  const { InputError } = await import('./rehearse/read-labelled-file.js');
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (e) {
+    throw new InputError(`--start-from ${path}: cannot read it (${(e as Error).message})`);
+  }
+  try {
+    return readModelExport(JSON.parse(text));
+  } catch (e) {
+    throw new InputError(`--start-from ${path}: ${(e as Error).message}`);
+  }
+}
 
 /** Runs `rehearse` with its arguments (the command line and the tests). */
 export function rehearseCommand(argv: string[], io: CliIo = process): Promise<number> {

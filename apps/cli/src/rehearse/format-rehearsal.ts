@@ -78,6 +78,35 @@ export function formatRehearsal(result: RehearsalResult, summary?: MultiSeedSumm
   return lines.join('\n') + '\n';
 }
 
+/**
+ * `rehearse --start-from`: the run started from the exported model beside the one started cold (one line each per
+ * seed), and the verdicts the start saved.
+ */
+export function formatTransfer(results: readonly RehearsalResult[]): string {
+  const lines: string[] = [];
+  for (const r of results) {
+    const t = r.startFrom;
+    if (!t) continue;
+    const seed = results.length > 1 ? `seed ${r.seed}: ` : '';
+    const at = (n: number | null): string => (n === null ? 'not reached' : `${n} verdicts`);
+    const saved = t.verdictsSaved['0.95'];
+    lines.push(
+      `${seed}started from version ${t.source.version} of desk ${t.source.deskName} (id ${t.source.deskId}): macro-F1 ${t.curve[0].macroF1.toFixed(3)} before the first verdict`,
+    );
+    if (t.untrained.length) lines.push(`  untrained at the start (not in the model): ${t.untrained.join(', ')}`);
+    if (t.dropped.length) lines.push(`  left out (not in the data): ${t.dropped.join(', ')}`);
+    lines.push(
+      `  95% of the full model's macro-F1 (${(0.95 * r.full.macroF1).toFixed(3)}): with the start ${at(t.labelsToReach['0.95'])}, without ${at(r.labelsToReach['0.95'])}`,
+    );
+    lines.push(
+      saved === null
+        ? `  verdicts saved: unknown (${t.labelsToReach['0.95'] === null ? 'the run with the start' : 'the run without it'} did not reach it within the budget)`
+        : `  verdicts saved: ${saved}`,
+    );
+  }
+  return lines.length ? lines.join('\n') + '\n' : '';
+}
+
 /** A one-line progress bar for stderr. */
 export function progressBar(done: number, total: number, width = 30): string {
   const filled = Math.round((width * done) / Math.max(1, total));
