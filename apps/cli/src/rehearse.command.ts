@@ -25,7 +25,8 @@ export const rehearse = defineCommand({
   summary: 'replay a labelled archive offline: how many verdicts a desk needs, what sets to expect',
   description:
     'Runs the learning loop offline on texts that are already labelled, as if reviewers worked a desk: a cold ' +
-    'start, then batches chosen by the strategy with a random share that calibrates. Prints the learning curve, ' +
+    "start, then leases served by the service's sampling policy under the strategy, with a random share that " +
+    'calibrates and a retrain every batch. Prints the learning curve, ' +
     'the coverage of the prediction sets on the items still open at each point (what a desk shows sets on) and on ' +
     'held-out rows, how many verdicts the model needed, and the answer in one sentence. With --seeds it runs once ' +
     'per seed and prints medians and ranges. The file is read like an import (same formats, row rules and ' +

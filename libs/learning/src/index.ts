@@ -161,3 +161,24 @@ export { CooccurrenceCounter, DEFAULT_CONTEXT_WINDOW } from './vocabulary/cooccu
 export type { CooccurrenceOptions, CooccurrenceTable } from './vocabulary/cooccurrence-counter.js';
 export { rankBySimilarity, rowNorms } from './vocabulary/term-similarity.js';
 export type { SimilarityOptions, SimilarRow } from './vocabulary/term-similarity.js';
+
+export {
+  avoidNearDuplicate,
+  byPriority,
+  drawKindOf,
+  drawPlan,
+  NEAR_DUPLICATE_CANDIDATES,
+  NEAR_DUPLICATE_COSINE,
+  priorityOf,
+  SAMPLING_STRATEGIES,
+  screenPriority,
+  uniformPick,
+} from './sampling/sampling-policy.js';
+export type {
+  DeskState,
+  DrawSource,
+  DrawStep,
+  LaneShares,
+  PolicyDraw,
+  SamplingStrategy,
+} from './sampling/sampling-policy.js';

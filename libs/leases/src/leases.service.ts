@@ -14,7 +14,7 @@ import {
   type DrawKind,
   type ShownPrediction,
 } from '#database';
-import { cosineSimilarity } from '#learning';
+import { avoidNearDuplicate, drawKindOf, drawPlan, NEAR_DUPLICATE_CANDIDATES, type DrawSource } from '#learning';
 import { PredictionsService, ScreenLaneService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
 
@@ -51,9 +51,6 @@ const POOL_LOCK_RETRIES = 2;
 const POOL_LOCK_WAIT_MS = 15_000;
 
 const PICK_COLUMNS = 'id, text, meta, external_id, source, posted_at, seed_hits';
-/** Near-duplicates: cosine of tf-idf vectors at or above this (the batch picker's rule in the learning core). */
-const NEAR_DUPLICATE_COSINE = 0.95;
-const NEAR_DUPLICATE_CANDIDATES = 5;
 /** Items of the review lane's order looked up at a time. */
 const SCREEN_PAGE = 100;
 
@@ -81,15 +78,17 @@ export class LeasesService {
     const entry = await this.directory.get(deskId);
     if (!entry) throw new NotFoundException(`no desk ${deskId}`);
     const { desk } = entry;
-    // One uniform number chooses the kind: random below randomShare, the review lane up to randomShare + screenShare
-    // (once a version exists and a category is watched), uncertainty above.
+    // The sampling policy (see the learning core's sampling-policy): one uniform number chooses the kind of
+    // draw, and each kind's sources are tried in order until one has an item.
     const u = this.random();
-    const wantRandom = u < desk.randomShare;
     const r = this.random();
-    const coldStart = desk.currentModelVersion === null;
-    const screenOrder =
-      !wantRandom && !coldStart && u < desk.randomShare + desk.screenShare ? await this.lane.order(desk) : null;
+    const kind = drawKindOf(u, desk, {
+      hasModel: desk.currentModelVersion !== null,
+      laneOpen: desk.currentModelVersion !== null && desk.watch.length > 0,
+    });
+    const screenOrder = kind === 'screen' ? await this.lane.order(desk) : null;
     const hasSeeds = Object.values(desk.seedTerms).some((t) => t.length > 0);
+    const plan = drawPlan(kind, hasSeeds);
     const leaseId = randomUUID();
     const now = new Date();
     const expiresAt = new Date(now.getTime() + desk.leaseSeconds * 1000);
@@ -98,7 +97,7 @@ export class LeasesService {
       const notSkipped = skipped.length ? ` AND id NOT IN (${skipped.join(', ')})` : '';
       const claim = (where: string, order: string, params: unknown[]) =>
         this.claim(m, leaseId, expiresAt, deskId, where + notSkipped, order, params);
-      let draw: DrawKind = wantRandom ? 'random' : coldStart ? 'seed' : 'uncertainty';
+      let draw: DrawKind = kind;
       // An item whose lease expired goes out again first, under the draw it was first served by;
       // the uniform draws below stay uniform over the open items.
       let row = await claim(`state = 'leased' AND leased_until < $4`, 'leased_until', [this.db.time(now)]);
@@ -111,28 +110,17 @@ export class LeasesService {
         draw = prev?.draw ?? 'random';
       } else if ((row = await this.claimSecondOpinion(m, reviewer, desk, leaseId, expiresAt, now))) {
         draw = 'second-opinion';
-      } else if (draw !== 'random') {
-        if (
-          draw === 'uncertainty' &&
-          screenOrder &&
-          (row = await this.claimScreen(m, desk, leaseId, expiresAt, screenOrder, skipped))
-        ) {
-          draw = 'screen';
-        } else if (draw === 'uncertainty') {
-          // Also when the lane is empty: every flagged item is decided or held.
-          row = await this.claimUncertain(m, reviewer, desk, leaseId, expiresAt, notSkipped);
-        } else if (hasSeeds) {
-          // Cold start: most seed-term matches first.
-          row = await claim(`state = 'open' AND seed_hits > 0`, 'priority DESC, id DESC', []);
+      } else {
+        for (const step of plan) {
+          row = await this.fromSource(m, step.source, reviewer, desk, leaseId, expiresAt, screenOrder, r, claim, {
+            skipped,
+            notSkipped,
+          });
+          if (row) {
+            draw = step.records;
+            break;
+          }
         }
-      }
-      // Uniform picks: the random share (recorded as `random`, the only draws that calibrate), and the
-      // cold start once no open item matches a seed term (still recorded as `seed`: such verdicts train
-      // the first model, which otherwise could never appear on a desk without seed terms).
-      if (!row) {
-        row =
-          (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ??
-          (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]));
       }
       if (!row) return null;
       const prediction = await this.record(m, reviewer, desk, leaseId, now, expiresAt, row, draw);
@@ -289,6 +277,41 @@ export class LeasesService {
   }
 
   /**
+   * One source of the sampling policy's plan, read with SQL: the review lane,
+   * the most uncertain items (the policy skips a near-duplicate), the cold
+   * start's seed-term matches (most matches first), or a uniform draw (the
+   * first open item whose random key is at or after r, wrapping around; keys
+   * are assigned at import independently of content, so the drawn text is
+   * distributed as the pool is, which is what calibration needs).
+   */
+  private async fromSource(
+    m: EntityManager,
+    source: DrawSource,
+    reviewer: Principal,
+    desk: DeskEntity,
+    leaseId: string,
+    expiresAt: Date,
+    screenOrder: number[] | null,
+    r: number,
+    claim: (where: string, order: string, params: unknown[]) => Promise<PickedRow | null>,
+    skips: { skipped: number[]; notSkipped: string },
+  ): Promise<PickedRow | null> {
+    switch (source) {
+      case 'screen':
+        return screenOrder ? this.claimScreen(m, desk, leaseId, expiresAt, screenOrder, skips.skipped) : null;
+      case 'uncertainty':
+        return this.claimUncertain(m, reviewer, desk, leaseId, expiresAt, skips.notSkipped);
+      case 'seed':
+        return claim(`state = 'open' AND seed_hits > 0`, 'priority DESC, id DESC', []);
+      case 'uniform':
+        return (
+          (await claim(`state = 'open' AND rand_key >= $4`, 'rand_key', [r])) ??
+          (await claim(`state = 'open' AND rand_key < $4`, 'rand_key', [r]))
+        );
+    }
+  }
+
+  /**
    * The oldest item due for a second opinion that this reviewer has never
    * been served nor decided, leased like an open item is: on PostgreSQL the
    * inner select skips rows other transactions hold (`FOR UPDATE SKIP
@@ -360,11 +383,8 @@ export class LeasesService {
         [desk.id, reviewer.id],
       );
       // An erased item's text is gone: there is no near-duplicate of it to avoid.
-      if (last && last.erased_at === null) {
-        const previous = model.vectorize(last.text);
-        chosen =
-          candidates.find((c) => cosineSimilarity(model.vectorize(c.text), previous) < NEAR_DUPLICATE_COSINE) ?? chosen;
-      }
+      if (last && last.erased_at === null)
+        chosen = avoidNearDuplicate(candidates, (c) => model.vectorize(c.text), model.vectorize(last.text)) ?? chosen;
     }
     const rows = await this.db.query<PickedRow>(
       m,
@@ -422,13 +442,6 @@ export class LeasesService {
     );
     return row ?? null;
   }
-
-  /*
-   * Uniform draws take the first open item whose random key is at or after
-   * r, wrapping around. Keys are assigned at import independently of content,
-   * so the drawn text is distributed as the pool is — which is what
-   * calibration needs (exchangeability).
-   */
 
   /**
    * The items this reviewer skipped on the desk whose skip has not run out,

@@ -6,7 +6,7 @@ export { RetrainScheduler, FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-schedu
 export { TrainingService, PAUSE_HOOK, DEFAULT_CHUNK_SIZE, qualityFigures, type PauseHook } from './training.service.js';
 export { ScoringService } from './scoring.service.js';
 export { PublishService } from './publish.service.js';
-export { priorityOf } from './priority.js';
+export { priorityOf } from '#learning';
 export { CalibrationStatusAnswer, PredictionAnswer } from './model.responses.js';
 export { ModelTransferService, type PreparedTransfer } from './transfer/model-transfer.service.js';
 export { ScreenLaneService } from './screening/screen-lane.service.js';

@@ -4,7 +4,7 @@ import { predictionSet, uncertainty, type SparseVector } from '#learning';
 import type { ScoreChunkPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { ModelStore } from './model-store.service.js';
-import { priorityOf } from './priority.js';
+import { priorityOf } from '#learning';
 import { setOptionsOf } from './set-options.js';
 import { decodeTermCounts, encodeTermCounts } from './term-counts.js';
 import { PAUSE_HOOK, type PauseHook } from './training.service.js';

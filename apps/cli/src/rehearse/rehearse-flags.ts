@@ -3,7 +3,7 @@ import { numberOption, UsageError, type CliValues } from '../cli-command.js';
 
 const CALIBRATIONS = ['marginal', 'per-category'] as const;
 const SCORES = ['lac', 'aps'] as const;
-const STRATEGIES = ['entropy', 'margin', 'least-confidence', 'random'] as const;
+const STRATEGIES = ['entropy', 'margin', 'least-confidence', 'set-size', 'random'] as const;
 const FORMATS = ['ndjson', 'csv', 'json'] as const;
 
 /** The options table of `cribra rehearse`. */
@@ -41,7 +41,7 @@ export const REHEARSE_OPTIONS = {
     value: 'STRATEGY',
     choices: STRATEGIES,
     defaultText: 'entropy',
-    description: 'how the simulated queue picks the items it asks about',
+    description: "the desk strategy the simulated queue serves by (the service's sampling policy), or random",
   },
   'random-share': {
     type: 'string',

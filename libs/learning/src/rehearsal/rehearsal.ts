@@ -16,16 +16,32 @@ import { accuracy } from '../metrics/accuracy.js';
 import { macroF1 } from '../metrics/macro-f1.js';
 import { createRng, shuffleInPlace, type Rng } from '../random/rng.js';
 import { tuneC, type TuneCResult } from '../classifier/tune-c.js';
-import { pickBatch, type BatchCandidate } from '../uncertainty/batch-picker.js';
-import type { UncertaintyStrategy } from '../uncertainty/uncertainty-scores.js';
+import {
+  avoidNearDuplicate,
+  byPriority,
+  drawKindOf,
+  drawPlan,
+  NEAR_DUPLICATE_CANDIDATES,
+  priorityOf,
+  SAMPLING_STRATEGIES,
+  screenPriority,
+  uniformPick,
+  type DrawSource,
+  type SamplingStrategy,
+} from '../sampling/sampling-policy.js';
 
 export interface RehearsalOptions {
   /** Target coverage 1 − α. */
   target: number;
   calibration: CalibrationMode;
   score: NonconformityScore;
-  strategy: UncertaintyStrategy | 'random';
+  /** The desk's strategy (see the sampling policy), or `random`: every draw uniform (the baseline). */
+  strategy: SamplingStrategy | 'random';
   randomShare: number;
+  /** Share of the review lane (default 0); it serves only when `watch` names a category. */
+  screenShare?: number;
+  /** Watched categories (default none): the review lane serves items whose set holds one. */
+  watch?: readonly string[];
   /** Uniform random verdicts before the first model (they train it). */
   start: number;
   batch: number;
@@ -160,10 +176,13 @@ function checkOptions(o: RehearsalOptions): void {
   if (!['marginal', 'per-category'].includes(o.calibration))
     fail('calibration', o.calibration, 'must be marginal or per-category');
   if (!['lac', 'aps'].includes(o.score)) fail('score', o.score, 'must be lac or aps');
-  if (!['entropy', 'margin', 'least-confidence', 'random'].includes(o.strategy)) {
-    fail('strategy', o.strategy, 'must be entropy, margin, least-confidence or random');
+  if (![...SAMPLING_STRATEGIES, 'random'].includes(o.strategy)) {
+    fail('strategy', o.strategy, `must be ${SAMPLING_STRATEGIES.join(', ')} or random`);
   }
   if (!(o.randomShare >= 0 && o.randomShare <= 1)) fail('randomShare', o.randomShare, 'must be in [0, 1]');
+  const screenShare = o.screenShare ?? 0;
+  if (!(screenShare >= 0 && screenShare <= 1 - o.randomShare))
+    fail('screenShare', screenShare, 'must be in [0, 1 − randomShare]');
   if (!Number.isInteger(o.start) || o.start < 1) fail('start', o.start, 'must be a positive integer');
   if (!Number.isInteger(o.batch) || o.batch < 1) fail('batch', o.batch, 'must be a positive integer');
   if (!Number.isInteger(o.budget) || o.budget < o.start)
@@ -286,13 +305,9 @@ function measure(
   calibrationRows: number[],
   openRows: number[],
   probabilities: Map<number, Float64Array>,
+  calibration: ConformalCalibration,
   options: RehearsalOptions,
 ): CurvePoint {
-  const calibration = ConformalCalibration.fromScores(
-    data.classes,
-    calibrationRows.map((i) => probabilities.get(i)!),
-    calibrationRows.map((i) => data.labels[i]),
-  );
   const k = data.classes.length;
   const truth: number[] = [];
   const predicted: number[] = [];
@@ -367,7 +382,7 @@ function transferOf(
 function runCurve(
   data: RehearsalData,
   options: RehearsalOptions,
-  strategy: UncertaintyStrategy | 'random',
+  strategy: SamplingStrategy | 'random',
   rng: Rng,
   timing: Timing,
   progress: () => void,
@@ -379,6 +394,7 @@ function runCurve(
   const calibrationRows: number[] = [];
   const labelled = new Set(trainRows);
   const curve: CurvePoint[] = [];
+  const desk = strategy === 'random' ? null : simulatedDesk(data, options, strategy, rng);
   let model: LogisticModel | null = null;
   for (;;) {
     // Started from a transfer, the desk serves the transferred model until its own training verdicts hold every
@@ -402,33 +418,122 @@ function runCurve(
     for (const i of calibrationRows) probabilities.set(i, score(i));
     for (const i of data.test) probabilities.set(i, score(i));
     timing.scoreMs.push(performance.now() - started);
-    curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, options));
+    const calibration = ConformalCalibration.fromScores(
+      data.classes,
+      calibrationRows.map((i) => probabilities.get(i)!),
+      calibrationRows.map((i) => data.labels[i]),
+    );
+    curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, calibration, options));
     progress();
     const labels = trainRows.length + calibrationRows.length;
     if (labels >= budget) break;
     const size = Math.min(options.batch, budget - labels);
-    const unlabelled = data.pool.filter((i) => !labelled.has(i));
-    if (strategy === 'random') {
+    if (desk === null) {
       // Baseline: the same random share calibrates; the rest trains, drawn uniformly too.
       const exact = size * options.randomShare;
       let nCal = Math.floor(exact);
       if (rng.next() < exact - nCal) nCal++;
-      const drawn = shuffleInPlace(unlabelled, rng).slice(0, size);
+      const drawn = shuffleInPlace(openRows, rng).slice(0, size);
       drawn.forEach((i, j) => (j < nCal ? calibrationRows : trainRows).push(i));
       drawn.forEach((i) => labelled.add(i));
     } else {
-      const candidates: BatchCandidate[] = unlabelled.map((i) => ({
-        id: i,
-        probabilities: probabilities.get(i)!,
-        vector: data.vectors[i],
-      }));
-      for (const pick of pickBatch(candidates, { size, randomShare: options.randomShare, strategy, rng })) {
-        (pick.draw === 'random' ? calibrationRows : trainRows).push(pick.id);
-        labelled.add(pick.id);
+      // The desk between two versions: `size` leases under this version's priorities.
+      for (const pick of desk.serve(openRows, probabilities, calibration, size)) {
+        (pick.draw === 'random' ? calibrationRows : trainRows).push(pick.row);
+        labelled.add(pick.row);
       }
     }
   }
   return curve;
+}
+
+/**
+ * A desk with one reviewer, served by the sampling policy as the lease
+ * service serves it: per lease one uniform number chooses the draw, its
+ * sources are tried in order, the uncertainty order is fixed per version
+ * (as the service stores priorities when it publishes), and a near-duplicate
+ * of the item served last is skipped among the top candidates. Random draws
+ * calibrate; every other verdict trains (review-lane verdicts too).
+ */
+function simulatedDesk(
+  data: RehearsalData,
+  options: RehearsalOptions,
+  strategy: SamplingStrategy,
+  rng: Rng,
+): {
+  serve: (
+    open: readonly number[],
+    probabilities: ReadonlyMap<number, Float64Array>,
+    calibration: ConformalCalibration,
+    size: number,
+  ) => Array<{ row: number; draw: string }>;
+} {
+  const watched = (options.watch ?? []).map((c) => data.classes.indexOf(c)).filter((c) => c >= 0);
+  const shares = { randomShare: options.randomShare, screenShare: options.screenShare ?? 0 };
+  const setOptions = { alpha: 1 - options.target, score: options.score, mode: options.calibration };
+  // The desk's random keys, given once to every pool item independently of its content (as at import).
+  const randKey = new Map(data.pool.map((i) => [i, rng.next()]));
+  let previous: number | null = null;
+  return {
+    serve(open, probabilities, calibration, size) {
+      const setOf = (i: number): number[] => predictionSet(probabilities.get(i)!, calibration, setOptions).categories;
+      const ranked = open
+        .map((i) => ({
+          id: i,
+          priority: priorityOf(probabilities.get(i)!, strategy, strategy === 'set-size' ? setOf(i).length : 0),
+        }))
+        .sort(byPriority);
+      const lane: Array<{ id: number; priority: number }> = [];
+      if (watched.length > 0)
+        for (const i of open) {
+          const priority = screenPriority(probabilities.get(i)!, setOf(i), watched);
+          if (priority !== null) lane.push({ id: i, priority });
+        }
+      lane.sort(byPriority);
+      const taken = new Set<number>();
+      const firstFree = (order: Array<{ id: number }>, count: number): number[] => {
+        const out: number[] = [];
+        for (const { id } of order) {
+          if (out.length >= count) break;
+          if (!taken.has(id)) out.push(id);
+        }
+        return out;
+      };
+      const from = (source: DrawSource, r: number): number | undefined => {
+        switch (source) {
+          case 'screen':
+            return firstFree(lane, 1)[0];
+          case 'uncertainty':
+            return avoidNearDuplicate(
+              firstFree(ranked, NEAR_DUPLICATE_CANDIDATES),
+              (i) => data.vectors[i],
+              previous === null ? null : data.vectors[previous],
+            );
+          case 'seed':
+            return undefined;
+          case 'uniform':
+            return uniformPick(
+              open.filter((i) => !taken.has(i)).map((i) => ({ id: i, randKey: randKey.get(i)! })),
+              r,
+            )?.id;
+        }
+      };
+      const picks: Array<{ row: number; draw: string }> = [];
+      while (picks.length < size && taken.size < open.length) {
+        const kind = drawKindOf(rng.next(), shares, { hasModel: true, laneOpen: watched.length > 0 });
+        const r = rng.next();
+        for (const step of drawPlan(kind, false)) {
+          const row = from(step.source, r);
+          if (row === undefined) continue;
+          taken.add(row);
+          previous = row;
+          picks.push({ row, draw: step.records });
+          break;
+        }
+      }
+      return picks;
+    },
+  };
 }
 
 /**
@@ -511,11 +616,14 @@ export function rehearsalWarnings(data: RehearsalData, options: RehearsalOptions
 /**
  * Rehearses a desk on labelled data: after `start` uniform random verdicts
  * (the cold start: they train the first model, and it goes on until every
- * category has a training example, see {@link coldStart}), batches are drawn as the
- * service draws them — a `randomShare` of each batch uniformly at random
- * (these calibrate and never train), the rest by uncertainty (these train) —
- * until `budget` verdicts. After each batch the model is retrained, the
- * calibration recomputed and the test set measured.
+ * category has a training example, see {@link coldStart}), the desk is
+ * simulated through the service's sampling policy (see `sampling-policy.ts`
+ * and {@link simulatedDesk}): each lease a uniform draw with probability
+ * `randomShare` (these calibrate and never train), the review lane with
+ * probability `screenShare` when categories are watched, uncertainty
+ * otherwise (these train), until `budget` verdicts. After every `batch`
+ * verdicts the model is retrained (a new version), the calibration
+ * recomputed and the test set measured.
  */
 export function runRehearsal(data: RehearsalData, options: RehearsalOptions): RehearsalResult {
   checkOptions(options);

@@ -1,6 +1,6 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { DeskEntity } from '#database';
-import { predictionSetRule } from '#learning';
+import { byPriority, predictionSetRule, screenPriority } from '#learning';
 import { PredictionsService } from '../predictions.service.js';
 import { setOptionsOf } from '../set-options.js';
 
@@ -64,14 +64,13 @@ export class ScreenLaneService {
     if (!model) return { key, ids: [] };
     const watched = desk.watch.map((c) => model.categories.indexOf(c)).filter((i) => i >= 0);
     const rule = predictionSetRule(model.calibration, setOptionsOf(desk, model.categories));
-    const scored: Array<{ id: number; p: number }> = [];
+    const scored: Array<{ id: number; priority: number }> = [];
     for await (const { itemId, probs } of this.predictions.probabilities(desk, model)) {
-      const set = rule(probs).categories;
-      if (!set.some((c) => watched.includes(c))) continue;
-      scored.push({ id: itemId, p: Math.max(...watched.map((c) => probs[c])) });
+      const priority = screenPriority(probs, rule(probs).categories, watched);
+      if (priority !== null) scored.push({ id: itemId, priority });
     }
-    // Highest probability first; ties by newest item, as the uncertainty order breaks its ties.
-    scored.sort((a, b) => b.p - a.p || b.id - a.id);
+    // The sampling policy's order: highest probability of a watched category first, ties by newest item.
+    scored.sort(byPriority);
     return { key, ids: scored.map((s) => s.id) };
   }
 }
