@@ -3,7 +3,8 @@ import { assertSparseVector, type SparseVector } from '../features/sparse-vector
 
 /** How a multinomial model was trained (for reports; not needed to score). */
 export interface SoftmaxTrainingSummary {
-  method: 'l-bfgs';
+  /** The solver (models trained before Newton-CG existed all say `l-bfgs`). */
+  method: 'l-bfgs' | 'newton-cg';
   /** Training rows. */
   rows: number;
   /** Hashed buckets that occur in the training rows (the model's columns). */
@@ -14,8 +15,10 @@ export interface SoftmaxTrainingSummary {
   classWeights: number[];
   /** Relative gradient tolerance: stop at ‖∇f‖₂ ≤ tolerance · ‖∇f(0)‖₂. */
   tolerance: number;
-  /** L-BFGS iterations. */
+  /** Solver iterations (L-BFGS steps, or Newton steps of Newton-CG). */
   iterations: number;
+  /** Newton-CG only: Hessian-vector products (conjugate-gradient iterations). */
+  hessianProducts?: number;
   /** Objective-and-gradient evaluations (passes over the training rows). */
   evaluations: number;
   /** Final objective value f. */

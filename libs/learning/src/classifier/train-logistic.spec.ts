@@ -215,6 +215,54 @@ describe('trainLogisticModel (L2-regularised multinomial logistic regression by 
     expect(summaryOf(trainLogisticModel(train.x, train.y, { ...options, warmStart: other })).warmStart).toBe(false);
   });
 
+  it('trains by trust-region Newton-CG (Lin, Weng & Keerthi 2008) to the first-order conditions, as L-BFGS does', () => {
+    for (const [c, tolerance] of [
+      [1, 1e-6],
+      [10, 1e-8],
+    ] as const) {
+      const m = trainLogisticModel(train.x, train.y, {
+        ...options,
+        c,
+        tolerance,
+        classWeight: 'none',
+        method: 'newton-cg',
+      });
+      const { norm, atZero } = gradientNorms(m, train.x, train.y, c, () => 1);
+      expect(summaryOf(m)).toMatchObject({ method: 'newton-cg', converged: true, warmStart: false });
+      expect(summaryOf(m).hessianProducts).toBeGreaterThan(0);
+      expect(norm).toBeLessThanOrEqual(tolerance * atZero * (1 + 1e-6));
+      // The objective is strictly convex in W with Σ_c b_c fixed at 0: both solvers reach the one optimum.
+      const l = trainLogisticModel(train.x, train.y, { ...options, c, tolerance, classWeight: 'none' });
+      for (const v of test.x) {
+        const a = m.predictProba(v);
+        const b = l.predictProba(v);
+        a.forEach((q, i) => expect(Math.abs(q - b[i])).toBeLessThan(1e-5));
+      }
+    }
+  });
+
+  it('warm-starts by Newton-CG after a few more rows: the cold optimum in a Newton step or two, deterministically', () => {
+    const before = trainLogisticModel(train.x.slice(0, 140), train.y.slice(0, 140), options);
+    const warm = trainLogisticModel(train.x, train.y, { ...options, warmStart: before });
+    const cold = trainLogisticModel(train.x, train.y, options);
+    expect(summaryOf(warm)).toMatchObject({ method: 'newton-cg', converged: true, warmStart: true });
+    expect(summaryOf(warm).iterations).toBeLessThanOrEqual(3);
+    expect(summaryOf(warm).evaluations).toBeLessThan(summaryOf(cold).evaluations / 2);
+    // Both stop at ‖∇f‖ ≤ 1e-3·‖∇f(0)‖, so they agree to about that accuracy, not to the last digit.
+    for (const v of test.x) {
+      const a = cold.predictProba(v);
+      const b = warm.predictProba(v);
+      a.forEach((q, i) => expect(Math.abs(q - b[i])).toBeLessThan(1e-2));
+    }
+    const again = trainLogisticModel(train.x, train.y, { ...options, warmStart: before });
+    expect(Array.from(again.weights)).toEqual(Array.from(warm.weights));
+    expect(Array.from(again.biases)).toEqual(Array.from(warm.biases));
+    // L-BFGS can still be asked for from a warm start.
+    expect(
+      summaryOf(trainLogisticModel(train.x, train.y, { ...options, warmStart: before, method: 'l-bfgs' })).method,
+    ).toBe('l-bfgs');
+  });
+
   it('is deterministic and round-trips through JSON (format version 2) with the same scores', () => {
     const again = trainLogisticModel(train.x, train.y, options);
     expect(Array.from(again.weights)).toEqual(Array.from(model.weights));

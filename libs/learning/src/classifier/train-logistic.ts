@@ -1,5 +1,6 @@
 import { assertSparseVector, type SparseVector } from '../features/sparse-vector.js';
 import { minimizeLbfgs } from './lbfgs.js';
+import { minimizeNewtonCg } from './newton-cg.js';
 import { LogisticModel, type SoftmaxTrainingSummary } from './logistic-model.js';
 
 /**
@@ -49,6 +50,13 @@ export interface TrainOptions {
   maxIterations?: number;
   /** L-BFGS correction pairs (default 10). */
   memory?: number;
+  /**
+   * The solver: `l-bfgs` (Nocedal 1980) or `newton-cg`, trust-region Newton
+   * with conjugate gradients (Lin, Weng & Keerthi 2008). Default: L-BFGS
+   * from zero or from a prior, Newton-CG from a warm start (near the optimum it needs one or
+   * two Newton steps where L-BFGS rebuilds its curvature pairs first).
+   */
+  method?: 'l-bfgs' | 'newton-cg';
   /**
    * A previous model to start from (warm start): its weights on the buckets
    * and categories the new training shares with it, zero elsewhere. Only a
@@ -151,7 +159,7 @@ function softmaxObjective(
   k: number,
   c: number,
   center: Float64Array | null = null,
-): (theta: Float64Array, gradient: Float64Array) => number {
+): (theta: Float64Array, gradient: Float64Array, probs?: Float64Array) => number {
   const { rowPtr, colBase, values } = csr;
   const m = csr.features.length;
   const rows = y.length;
@@ -161,7 +169,7 @@ function softmaxObjective(
   const bOffset = m * k;
   const bias = new Float64Array(k);
   const biasGradient = new Float64Array(k);
-  return (theta, gradient) => {
+  return (theta, gradient, probs) => {
     for (let j = 0, o = 0, t = 0; j < m; j++, o += stride) {
       for (let a = 0; a < k; a++) {
         buffer[o + a] = theta[t++];
@@ -194,6 +202,10 @@ function softmaxObjective(
         loss += weight * (Math.log(total) - ((label === 0 ? s0 : s1) - max));
         const r0 = (weight * e0) / total - (label === 0 ? weight : 0);
         const r1 = (weight * e1) / total - (label === 1 ? weight : 0);
+        if (probs) {
+          probs[2 * i] = e0 / total;
+          probs[2 * i + 1] = e1 / total;
+        }
         biasGradient[0] += r0;
         biasGradient[1] += r1;
         for (let p = start; p < end; p++) {
@@ -223,6 +235,11 @@ function softmaxObjective(
         const r0 = (weight * e0) / total - (label === 0 ? weight : 0);
         const r1 = (weight * e1) / total - (label === 1 ? weight : 0);
         const r2 = (weight * e2) / total - (label === 2 ? weight : 0);
+        if (probs) {
+          probs[3 * i] = e0 / total;
+          probs[3 * i + 1] = e1 / total;
+          probs[3 * i + 2] = e2 / total;
+        }
         biasGradient[0] += r0;
         biasGradient[1] += r1;
         biasGradient[2] += r2;
@@ -250,6 +267,7 @@ function softmaxObjective(
         }
         // −log p_y = log Σ_a exp(s_a − max) − (s_y − max).
         loss += weight * (Math.log(total) - shiftedLabelScore);
+        if (probs) for (let a = 0; a < k; a++) probs[k * i + a] = s[a] / total;
         // Residuals ω(p − y), scaled by C, into s.
         for (let a = 0; a < k; a++) s[a] = (weight * s[a]) / total;
         s[label] -= weight;
@@ -272,6 +290,70 @@ function softmaxObjective(
     }
     for (let a = 0; a < k; a++) gradient[bOffset + a] = biasGradient[a];
     return loss + 0.5 * penalty;
+  };
+}
+
+/**
+ * The Hessian of {@link softmaxObjective} times a vector v = (V, v_b), at the
+ * point whose class probabilities P (rows × k) the objective recorded:
+ *
+ *   ∇²f·v = (V + Xᵀ·Z, Σ_i Z_i),  Z_i = C·ω_i·(diag(p_i) − p_i·p_iᵀ)·(V·x_i + v_b),
+ *
+ * the softmax loss's Hessian (Lin, Weng & Keerthi 2008, §4 for the binary
+ * case; the multinomial Jacobian of the softmax p ↦ diag(p) − ppᵀ), plus the
+ * identity on the weights (the L2 term; the intercepts are not penalised).
+ * One pass over the rows, in the objective's interleaved layout.
+ */
+function softmaxHessianTimes(
+  csr: Csr,
+  rowWeight: Float64Array,
+  k: number,
+  c: number,
+): (probs: Float64Array, v: Float64Array, out: Float64Array) => void {
+  const { rowPtr, colBase, values } = csr;
+  const m = csr.features.length;
+  const rows = rowWeight.length;
+  const stride = 2 * k;
+  const buffer = new Float64Array(m * stride);
+  const u = new Float64Array(k);
+  const bOffset = m * k;
+  const outBias = new Float64Array(k);
+  return (probs, v, out) => {
+    for (let j = 0, o = 0, t = 0; j < m; j++, o += stride) {
+      for (let a = 0; a < k; a++) {
+        buffer[o + a] = v[t++];
+        buffer[o + k + a] = 0;
+      }
+    }
+    outBias.fill(0);
+    for (let i = 0; i < rows; i++) {
+      const start = rowPtr[i];
+      const end = rowPtr[i + 1];
+      const weight = c * rowWeight[i];
+      const pi = k * i;
+      for (let a = 0; a < k; a++) u[a] = v[bOffset + a];
+      for (let p = start; p < end; p++) {
+        const o = colBase[p];
+        const x = values[p];
+        for (let a = 0; a < k; a++) u[a] += x * buffer[o + a];
+      }
+      let pu = 0;
+      for (let a = 0; a < k; a++) pu += probs[pi + a] * u[a];
+      for (let a = 0; a < k; a++) u[a] = weight * probs[pi + a] * (u[a] - pu);
+      for (let a = 0; a < k; a++) outBias[a] += u[a];
+      for (let p = start; p < end; p++) {
+        const o = colBase[p] + k;
+        const x = values[p];
+        for (let a = 0; a < k; a++) buffer[o + a] += x * u[a];
+      }
+    }
+    for (let j = 0, o = 0, t = 0; j < m; j++, o += stride) {
+      for (let a = 0; a < k; a++) {
+        out[t] = buffer[o + k + a] + v[t];
+        t++;
+      }
+    }
+    for (let a = 0; a < k; a++) out[bOffset + a] = outBias[a];
   };
 }
 
@@ -377,8 +459,9 @@ export function trainLogisticModel(
 
   const summary = (
     s: Omit<SoftmaxTrainingSummary, 'method' | 'rows' | 'features' | 'c' | 'classWeights' | 'tolerance'>,
+    method: SoftmaxTrainingSummary['method'] = 'l-bfgs',
   ) => ({
-    method: 'l-bfgs' as const,
+    method,
     rows,
     features: m,
     c,
@@ -410,12 +493,13 @@ export function trainLogisticModel(
   const objective = softmaxObjective(csr, y, rowWeight, k, c, priorTheta);
   const size = m * k + k;
   const zero = new Float64Array(size);
-  const start =
-    warmStartWeights(options.warmStart ?? null, categories, trained, hashBits, csr.columnOf, m) ?? priorTheta;
+  const warm = warmStartWeights(options.warmStart ?? null, categories, trained, hashBits, csr.columnOf, m);
+  const start = warm ?? priorTheta;
+  const method = options.method ?? (warm === null ? 'l-bfgs' : 'newton-cg');
   let gradientNormAtZero: number;
   let atZero: { value: number; gradient: Float64Array } | undefined;
   let evaluations = 0;
-  if (start === null) {
+  if (start === null && method === 'l-bfgs') {
     // Cold: the evaluation at zero is L-BFGS's first one too.
     const gradient = new Float64Array(size);
     atZero = { value: objective(zero, gradient), gradient };
@@ -424,12 +508,23 @@ export function trainLogisticModel(
   } else {
     gradientNormAtZero = gradientNormAtZeroOf(csr, y, rowWeight, k, c);
   }
-  const result = minimizeLbfgs(objective, start ?? zero, {
-    gradientTolerance: tolerance * gradientNormAtZero,
-    maxIterations,
-    memory,
-    start: atZero,
-  });
+  const result =
+    method === 'l-bfgs'
+      ? minimizeLbfgs(objective, start ?? zero, {
+          gradientTolerance: tolerance * gradientNormAtZero,
+          maxIterations,
+          memory,
+          start: atZero,
+        })
+      : minimizeNewtonCg(
+          {
+            evaluate: objective,
+            hessianTimes: softmaxHessianTimes(csr, rowWeight, k, c),
+            stateSize: rows * k,
+          },
+          start ?? zero,
+          { gradientTolerance: tolerance * gradientNormAtZero, maxIterations },
+        );
   evaluations += result.evaluations;
   // Back to buckets in ascending order, weights feature-major; with a prior, its buckets that no row has keep its weights
   // (their gradient is w − w₀ alone, zero at w₀).
@@ -458,16 +553,20 @@ export function trainLogisticModel(
     features,
     modelWeights,
     theta.slice(m * k),
-    summary({
-      iterations: result.iterations,
-      evaluations,
-      objective: result.value,
-      gradientNorm: result.gradientNorm,
-      gradientNormAtZero,
-      converged: result.converged,
-      warmStart: start !== null,
-      ...(priorTheta === null ? {} : { prior: true }),
-    }),
+    summary(
+      {
+        iterations: result.iterations,
+        evaluations,
+        objective: result.value,
+        gradientNorm: result.gradientNorm,
+        gradientNormAtZero,
+        converged: result.converged,
+        warmStart: start !== null,
+        ...(priorTheta === null ? {} : { prior: true }),
+        ...('hessianProducts' in result ? { hessianProducts: result.hessianProducts } : {}),
+      },
+      method,
+    ),
   );
 }
 
