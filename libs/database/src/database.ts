@@ -16,6 +16,33 @@ export interface InsertColumn {
  */
 export type DbInt = number | string;
 
+/** A boolean column of a row read by {@link Database.query}: `pg` gives a boolean, better-sqlite3 0 or 1. Read it with {@link Database.bool}. */
+export type DbBool = boolean | number;
+
+/** How {@link Database.lockRows} locks the rows a `SELECT` reads. */
+export interface RowLock {
+  /** Lock only the rows of this table alias (PostgreSQL `FOR UPDATE OF alias`), not those of every joined table. */
+  of?: string;
+  /** Leave rows another transaction holds out of the answer instead of waiting for them. */
+  skipLocked?: boolean;
+}
+
+/**
+ * The most values one `IN (…)` list of {@link Database.inList} may hold: SQLite allows 32 766 parameters a statement
+ * (since 3.32), PostgreSQL 65 535; this leaves room for the statement's other parameters. Long lists are better split
+ * far below it with {@link inListChunks}.
+ */
+export const IN_LIST_MAX = 30_000;
+
+/** Splits `values` into lists of at most `size` values each, for one {@link Database.inList} statement apiece. */
+export function inListChunks<T>(values: readonly T[], size: number): T[][] {
+  if (!Number.isInteger(size) || size < 1 || size > IN_LIST_MAX)
+    throw new RangeError(`inListChunks: size must be a whole number from 1 to ${IN_LIST_MAX}, got ${size}`);
+  const out: T[][] = [];
+  for (let at = 0; at < values.length; at += size) out.push(values.slice(at, at + size));
+  return out;
+}
+
 /** Rows per statement of {@link Database.insertRows} on PostgreSQL. */
 const INSERT_PAGE = 10_000;
 
@@ -97,6 +124,34 @@ export class Database {
   async releaseErased(): Promise<void> {
     if (this.pg) return;
     await this.mutex.run(() => this.dataSource.query('PRAGMA wal_checkpoint(TRUNCATE)'));
+  }
+
+  /**
+   * The locking clause to end a `SELECT` with, so that the rows it reads stay this transaction's until it ends:
+   * `FOR UPDATE` (with `OF alias` and `SKIP LOCKED` as asked) on PostgreSQL; nothing on SQLite, where the write
+   * transaction ({@link write}) holds the file's write lock from its first statement, so no other writer runs.
+   */
+  lockRows(lock: RowLock = {}): string {
+    if (!this.pg) return '';
+    return ` FOR UPDATE${lock.of ? ` OF ${lock.of}` : ''}${lock.skipLocked ? ' SKIP LOCKED' : ''}`;
+  }
+
+  /** Reads a boolean column of a raw query (SQLite keeps booleans as 0 and 1; as parameters, TypeORM binds them so). */
+  bool(value: DbBool): boolean {
+    return value === true || value === 1;
+  }
+
+  /**
+   * The placeholders of an `IN (…)` list of `count` values whose parameters start at position `from`
+   * (`inList(3, 2)` is `$2, $3, $4`). Both databases reject an empty list, so `count` must be at least 1; callers
+   * `count` is at most {@link IN_LIST_MAX}.
+   */
+  inList(count: number, from = 1): string {
+    if (!Number.isInteger(count) || count < 1 || count > IN_LIST_MAX)
+      throw new RangeError(`inList: count must be a whole number from 1 to ${IN_LIST_MAX}, got ${count}`);
+    if (!Number.isInteger(from) || from < 1)
+      throw new RangeError(`inList: from must be a whole number from 1, got ${from}`);
+    return Array.from({ length: count }, (_, i) => `$${i + from}`).join(', ');
   }
 
   /** A query parameter for a timestamp, in the form the database compares correctly. */
@@ -191,6 +246,11 @@ export class Database {
       this.statements.set(sql, statement);
     }
     for (const r of rows) statement.run(...r);
+  }
+
+  /** Whether the database answers a trivial statement (the readiness check bounds how long it may take). */
+  async ping(): Promise<void> {
+    await this.dataSource.query('SELECT 1');
   }
 
   async close(): Promise<void> {

@@ -1,4 +1,12 @@
-export { Database, type DbInt, type InsertColumn } from './database.js';
+export {
+  Database,
+  IN_LIST_MAX,
+  inListChunks,
+  type DbBool,
+  type DbInt,
+  type InsertColumn,
+  type RowLock,
+} from './database.js';
 export { DatabaseModule } from './database.module.js';
 export { DeskDirectory, DESK_CACHE_MS, type DeskEntry } from './desk-directory.service.js';
 export { createDataSource, openDatabase, entitySchemas, MIGRATIONS } from './data-source.js';

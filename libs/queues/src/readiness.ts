@@ -29,7 +29,7 @@ export async function checkDependencies(
   jobs: JobQueueService,
 ): Promise<{ database: boolean; redis: boolean }> {
   const [database, redis] = await Promise.all([
-    answersInTime(db.query(null, 'SELECT 1')),
+    answersInTime(db.ping()),
     answersInTime(jobs.ping().then((ok) => (ok ? Promise.resolve() : Promise.reject(new Error('no PONG'))))),
   ]);
   return { database, redis };
