@@ -1,3 +1,4 @@
 export { DesksModule } from './desks.module.js';
 export { DesksService, validateSeedTerms, validateRetention, type DeskView } from './desks.service.js';
 export { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
+export { deskOr404 } from './desk-lookup.js';
