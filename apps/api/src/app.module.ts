@@ -16,6 +16,8 @@ import { VerdictsModule } from '#verdicts';
 import { VocabularyModule } from '#vocabulary';
 import { AuditController } from './audit.controller.js';
 import { HealthController } from './health.controller.js';
+import { ReadinessService } from './readiness.service.js';
+import { MetricsRepository } from './metrics/metrics.repository.js';
 import { ServiceMetrics } from './metrics/service-metrics.js';
 
 /** The HTTP application: every route of the API. It registers no queue processors. */
@@ -42,7 +44,7 @@ export class ApiModule {
         RetentionModule,
       ],
       controllers: [HealthController, AuditController],
-      providers: [ServiceMetrics],
+      providers: [ServiceMetrics, MetricsRepository, ReadinessService],
     };
   }
 }

@@ -2,17 +2,13 @@ import { Controller, Get, HttpCode, Inject, ServiceUnavailableException } from '
 import { ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, ApiErrors, type Answer } from '#api-docs';
 import { Public } from '#auth';
-import { Database } from '#database';
-import { checkDependencies, JobQueueService } from '#queues';
 import { HealthAnswer, ReadyAnswer } from './api.responses.js';
+import { ReadinessService } from './readiness.service.js';
 
 @ApiTags('health')
 @Controller()
 export class HealthController {
-  constructor(
-    @Inject(Database) private readonly db: Database,
-    @Inject(JobQueueService) private readonly jobs: JobQueueService,
-  ) {}
+  constructor(@Inject(ReadinessService) private readonly readiness: ReadinessService) {}
 
   /** The process is up. */
   @Public()
@@ -32,8 +28,8 @@ export class HealthController {
   @ApiAnswer(ReadyAnswer)
   @ApiErrors({ 503: 'the database or Redis does not answer; the body says which' })
   async ready(): Promise<Answer<typeof ReadyAnswer>> {
-    const { database, redis } = await checkDependencies(this.db, this.jobs);
+    const { database, redis, dialect } = await this.readiness.check();
     if (!database || !redis) throw new ServiceUnavailableException({ status: 'not ready', database, redis });
-    return { status: 'ready', database: true, redis: true, dialect: this.db.dialect };
+    return { status: 'ready', database: true, redis: true, dialect };
   }
 }

@@ -1,6 +1,6 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
-import { Database } from '#database';
+import { AuditRepository, type AuditEvent, type AuditPageQuery } from './audit.repository.js';
 
 /** Who did something: a signed-in user, or an operator command (id null). */
 export interface AuditActor {
@@ -24,24 +24,24 @@ export interface AuditRecord {
  */
 @Injectable()
 export class AuditService {
-  constructor(@Inject(Database) private readonly db: Database) {}
+  constructor(@Inject(AuditRepository) private readonly events: AuditRepository) {}
 
   async record(m: EntityManager, actor: AuditActor, rec: AuditRecord): Promise<void> {
-    // Raw SQL: this runs inside every verdict's transaction, and TypeORM's insert builder costs more than the row.
-    await this.db.query(
-      m,
-      'INSERT INTO audit_events (at, actor_id, actor_name, action, entity_type, entity_id, desk_id, before, after) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)',
-      [
-        this.db.time(new Date()),
-        actor.id,
-        actor.name,
-        rec.action,
-        rec.entityType,
-        String(rec.entityId),
-        rec.deskId ?? null,
-        rec.before ? JSON.stringify(rec.before) : null,
-        rec.after ? JSON.stringify(rec.after) : null,
-      ],
-    );
+    await this.events.append(m, {
+      at: new Date(),
+      actorId: actor.id,
+      actorName: actor.name,
+      action: rec.action,
+      entityType: rec.entityType,
+      entityId: String(rec.entityId),
+      deskId: rec.deskId ?? null,
+      before: rec.before ?? null,
+      after: rec.after ?? null,
+    });
+  }
+
+  /** A page of the trail, newest first (see {@link AuditPageQuery}). */
+  page(q: AuditPageQuery): Promise<AuditEvent[]> {
+    return this.events.page(q);
   }
 }

@@ -1,2 +1,3 @@
 export { AuditService, type AuditActor, type AuditRecord } from './audit.service.js';
+export type { AuditEvent, AuditPageQuery } from './audit.repository.js';
 export { AuditModule } from './audit.module.js';

@@ -2,9 +2,9 @@ import { Inject, Injectable } from '@nestjs/common';
 import type { Redis } from 'ioredis';
 import { Counter, Gauge, Histogram, collectDefaultMetrics, Registry } from 'prom-client';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, DeskEntity, type DbInt } from '#database';
 import { PredictionsService } from '#models';
 import { JobQueueService, QUEUES, readJobFigures, REDIS } from '#queues';
+import { MetricsRepository } from './metrics.repository.js';
 
 /** The BullMQ states a queue's jobs are counted in. */
 const JOB_STATES = ['waiting', 'prioritized', 'active', 'delayed', 'waiting-children', 'completed', 'failed'] as const;
@@ -22,7 +22,7 @@ export class ServiceMetrics {
 
   constructor(
     @Inject(APP_CONFIG) private readonly config: AppConfig,
-    @Inject(Database) private readonly db: Database,
+    @Inject(MetricsRepository) private readonly deskFigures: MetricsRepository,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(REDIS) private readonly redis: Redis,
@@ -83,15 +83,8 @@ export class ServiceMetrics {
       registers,
       async collect() {
         this.reset();
-        const rows = await db.query<{ desk_id: DbInt; published_at: unknown }>(
-          null,
-          `SELECT d.id AS desk_id, mv.published_at FROM desks d
-           JOIN model_versions mv ON mv.desk_id = d.id AND mv.version = d.current_model_version`,
-        );
-        for (const r of rows) {
-          const at = db.parseTime(r.published_at);
-          if (at) this.set({ desk: String(r.desk_id) }, (Date.now() - at.getTime()) / 1000);
-        }
+        for (const { deskId, publishedAt } of await deskFigures.currentVersionsPublished())
+          if (publishedAt) this.set({ desk: String(deskId) }, (Date.now() - publishedAt.getTime()) / 1000);
       },
     });
     new Gauge({
@@ -101,11 +94,7 @@ export class ServiceMetrics {
       registers,
       async collect() {
         this.reset();
-        const rows = await db.query<{ desk_id: DbInt; state: string; n: DbInt }>(
-          null,
-          'SELECT desk_id, state, COUNT(*) AS n FROM items GROUP BY desk_id, state',
-        );
-        for (const r of rows) this.set({ desk: String(r.desk_id), state: r.state }, Number(r.n));
+        for (const r of await deskFigures.itemsByState()) this.set({ desk: String(r.deskId), state: r.state }, r.items);
       },
     });
     new Gauge({
@@ -115,7 +104,7 @@ export class ServiceMetrics {
       registers,
       async collect() {
         this.reset();
-        for (const desk of await db.manager.find(DeskEntity, { order: { id: 'ASC' } })) {
+        for (const desk of await deskFigures.desks()) {
           const { alert } = await predictions.coverage(desk);
           this.set({ desk: String(desk.id) }, alert.raised ? 1 : 0);
         }
