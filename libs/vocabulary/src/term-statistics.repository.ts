@@ -1,6 +1,6 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
-import { Database, type DbInt } from '#database';
+import { CategoryEntity, Database, DeskEntity, type DbInt } from '#database';
 import type { KeywordDays, LabelledDraw } from './keyword-days.js';
 
 export interface StoredTermStatistics {
@@ -33,6 +33,14 @@ interface StatisticsRow {
 @Injectable()
 export class TermStatisticsRepository {
   constructor(@Inject(Database) private readonly db: Database) {}
+
+  /** The desk and its categories in desk order, read afresh (a count must see the seed terms as they are now); null when there is no such desk. */
+  async desk(deskId: number): Promise<{ desk: DeskEntity; categories: CategoryEntity[] } | null> {
+    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
+    if (!desk) return null;
+    const categories = await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } });
+    return { desk, categories };
+  }
 
   /** Highest item id of the desk (0 when it has none). */
   async itemWatermark(deskId: number): Promise<number> {

@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto';
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { CategoryEntity, Database, DeskEntity } from '#database';
 import {
   CooccurrenceCounter,
   createPhraseJoiner,
@@ -55,7 +54,6 @@ export class TermStatisticsService {
   private readonly logger = new Logger('TermStatistics');
 
   constructor(
-    @Inject(Database) private readonly db: Database,
     @Inject(TermStatisticsRepository) private readonly repository: TermStatisticsRepository,
     @Inject(DeskFeaturesService) private readonly features: DeskFeaturesService,
     @Inject(ModelStore) private readonly models: ModelStore,
@@ -63,9 +61,9 @@ export class TermStatisticsService {
 
   async run(deskId: number): Promise<Record<string, number> | null> {
     const started = performance.now();
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) return null;
-    const categories = await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } });
+    const found = await this.repository.desk(deskId);
+    if (!found) return null;
+    const { desk, categories } = found;
     const featurizer = this.features.featurizer();
     const seedKeys = [
       ...new Set(
