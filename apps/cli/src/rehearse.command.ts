@@ -1,4 +1,4 @@
-import { defineCommand, runEntry, type CliIo } from './cli-command.js';
+import { defineCommand, runEntry, UsageError, type CliIo } from './cli-command.js';
 import type { LabelledFile } from './rehearse/read-labelled-file.js';
 import { REHEARSE_OPTIONS, rehearseFlags } from './rehearse/rehearse-flags.js';
 
@@ -31,13 +31,16 @@ export const rehearse = defineCommand({
     'held-out rows, how many verdicts the model needed, and the answer in one sentence. With --seeds it runs once ' +
     'per seed and prints medians and ranges. The file is read like an import (same formats, row rules and ' +
     'messages); rejected rows are listed on stderr and left out, and a warning says when the input or the budget ' +
-    'is too small for the requested target.',
+    'is too small for the requested target. With --watch it also measures screening as a desk watching those ' +
+    'categories would: at each point and at the end, per watched category, the recall and reading load on the ' +
+    'open items and how many of its items the cleared pile really holds against the estimate and 95% interval a ' +
+    'desk would state; with --seed-terms, the keyword baseline beside it.',
   options: REHEARSE_OPTIONS,
   async run({ values }, io) {
     const flags = rehearseFlags(values);
     // Loaded here so that `--help` does not load the learning core and the import parser.
     const { prepareRehearsal, runRehearsal } = await import('#learning');
-    const { formatRehearsal, formatSeeds, formatTransfer, progressBar } =
+    const { formatRehearsal, formatScreening, formatSeeds, formatTransfer, progressBar } =
       await import('./rehearse/format-rehearsal.js');
     const { checkUsable, InputError, readLabelledFile } = await import('./rehearse/read-labelled-file.js');
     try {
@@ -45,6 +48,13 @@ export const rehearse = defineCommand({
       const input = await readLabelledFile(flags.input, flags.labelField, flags.format);
       reportInput(input, io);
       checkUsable(input, flags.input, flags.labelField);
+      const classes = [...new Set(input.items.map((item) => item.label))].sort();
+      const unknown = flags.watch.filter((c) => !classes.includes(c));
+      if (unknown.length > 0)
+        throw new UsageError(
+          `--watch: ${unknown.join(', ')} ${unknown.length > 1 ? 'are not categories' : 'is not a category'} of ${flags.input} (its categories: ${classes.join(', ')})`,
+        );
+      const seedTerms = flags.seedTerms === undefined ? undefined : await readSeedTerms(flags.seedTerms, classes);
       const { createFeaturizer, summarizeSeeds, tuneRehearsalC } = await import('#learning');
       // Hashed counts do not depend on the seed: computed once for every run (with the model's featuriser, if any).
       const featurizer = createFeaturizer(startFrom?.featurizer);
@@ -73,6 +83,8 @@ export const rehearse = defineCommand({
           testShare: flags.testShare,
           seed,
           compareRandom: flags.compareRandom,
+          ...(flags.watch.length > 0 ? { watch: flags.watch, screenShare: flags.screenShare } : {}),
+          ...(seedTerms ? { seedTerms } : {}),
           ...(startFrom ? { startFrom } : {}),
           ...(tuned === null ? {} : { training: { c: tuned.c } }),
           onProgress: flags.json
@@ -103,6 +115,7 @@ export const rehearse = defineCommand({
       } else {
         io.stdout.write(
           (flags.multiSeed ? formatSeeds(results, summary, tuning) : formatRehearsal(results[0], summary, tuning[0])) +
+            formatScreening(results) +
             formatTransfer(results),
         );
       }
@@ -133,6 +146,38 @@ async function readModelFile(path: string) {
   } catch (e) {
     throw new InputError(`--start-from ${path}: ${(e as Error).message}`);
   }
+}
+
+/**
+ * Reads `--seed-terms`: a JSON object {category: [terms]}, checked by the desk settings' rule (`checkSeedTerms`)
+ * against the file's categories. An unreadable file, malformed JSON or a term the desk would refuse is an input
+ * error (exit 1), naming the file and every problem.
+ */
+async function readSeedTerms(path: string, categories: string[]): Promise<Record<string, string[]>> {
+  const { readFile } = await import('node:fs/promises');
+  const { checkSeedTerms } = await import('#learning');
+  const { InputError } = await import('./rehearse/read-labelled-file.js');
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (e) {
+    throw new InputError(`--seed-terms ${path}: cannot read it (${(e as Error).message})`);
+  }
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (e) {
+    throw new InputError(`--seed-terms ${path}: not JSON (${(e as Error).message})`);
+  }
+  if (json === null || typeof json !== 'object' || Array.isArray(json))
+    throw new InputError(`--seed-terms ${path}: expected a JSON object {"category": ["term", …]}`);
+  const { seedTerms, problems } = checkSeedTerms(json, categories);
+  if (problems.length > 0)
+    throw new InputError(
+      `--seed-terms ${path}: ${problems.join('; ')} (the file's categories: ${categories.join(', ')})`,
+    );
+  if (Object.keys(seedTerms).length === 0) throw new InputError(`--seed-terms ${path}: holds no term`);
+  return seedTerms;
 }
 
 /** Runs `rehearse` with its arguments (the command line and the tests). */

@@ -16,7 +16,7 @@ import {
 } from '#database';
 import { JOBS, JobQueueService } from '#queues';
 import { ModelTransferService, PredictionsService, type CalibrationStatus, type PreparedTransfer } from '#models';
-import { parseSeedTerm } from '#learning';
+import { checkSeedTerms } from '#learning';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
 
 /** A desk with its categories in display order: what the API returns. */
@@ -46,40 +46,14 @@ export interface DeskView {
 }
 
 const RESERVED_CATEGORY_NAMES = ['abstain'];
-const MAX_TERMS = 200;
 
 /** Checks seed terms against the desk's categories; returns them cleaned (trimmed, de-duplicated). */
 export function validateSeedTerms(seedTerms: unknown, categories: string[]): Record<string, string[]> {
-  if (seedTerms === undefined || seedTerms === null) return {};
-  if (typeof seedTerms !== 'object' || Array.isArray(seedTerms))
+  if (seedTerms !== undefined && seedTerms !== null && (typeof seedTerms !== 'object' || Array.isArray(seedTerms)))
     throw new BadRequestException('seedTerms: expected an object mapping category names to lists of terms');
-  const out: Record<string, string[]> = {};
-  const problems: string[] = [];
-  for (const [category, terms] of Object.entries(seedTerms as Record<string, unknown>)) {
-    if (!categories.includes(category)) {
-      problems.push(`seedTerms.${category}: not a category of this desk`);
-      continue;
-    }
-    if (!Array.isArray(terms) || terms.some((t) => typeof t !== 'string')) {
-      problems.push(`seedTerms.${category}: expected a list of strings`);
-      continue;
-    }
-    const clean = [...new Set((terms as string[]).map((t) => t.trim()).filter((t) => t.length > 0))];
-    if (clean.length > MAX_TERMS)
-      problems.push(`seedTerms.${category}: at most ${MAX_TERMS} terms (got ${clean.length})`);
-    const long = clean.find((t) => t.length > 100);
-    if (long)
-      problems.push(
-        `seedTerms.${category}: a term is longer than 100 characters (${JSON.stringify(long.slice(0, 20))}…)`,
-      );
-    for (const term of clean) {
-      const { problem } = parseSeedTerm(term);
-      if (problem !== undefined) problems.push(`seedTerms.${category}: ${problem}`);
-    }
-    if (clean.length > 0) out[category] = clean;
-  }
-  if (problems.length) throw new BadRequestException(problems);
-  return out;
+  const checked = checkSeedTerms(seedTerms, categories);
+  if (checked.problems.length) throw new BadRequestException(checked.problems);
+  return checked.seedTerms;
 }
 
 /** Shares above one by more than rounding: the random draws and the review lane cannot take more than every lease. */

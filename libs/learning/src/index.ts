@@ -3,7 +3,14 @@
  * split-conformal prediction sets, intervals and quality metrics. Pure
  * TypeScript: no framework, no database, no I/O.
  */
-export { compileSeedTerms, MIN_WORD_ENDING_STEM, parseSeedTerm } from './text/seed-terms.js';
+export {
+  checkSeedTerms,
+  compileSeedTerms,
+  MAX_SEED_TERM_LENGTH,
+  MAX_SEED_TERMS,
+  MIN_WORD_ENDING_STEM,
+  parseSeedTerm,
+} from './text/seed-terms.js';
 export type { ParsedSeedTerm, SeedMatch, SeedTermMatcher } from './text/seed-terms.js';
 
 export { murmur3String, murmur3x86_32 } from './hashing/murmur3.js';
@@ -112,6 +119,8 @@ export type {
   RehearsalResult,
   TransferCurve,
 } from './rehearsal/rehearsal.js';
+export { screeningFigures } from './rehearsal/rehearsal-screening.js';
+export type { ScreeningFigures, WatchedCategoryFigures } from './rehearsal/rehearsal-screening.js';
 export { summarizeSeeds } from './rehearsal/multi-seed.js';
 export type { MultiSeedSummary, Spread } from './rehearsal/multi-seed.js';
 

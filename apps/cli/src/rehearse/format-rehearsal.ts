@@ -1,4 +1,4 @@
-import type { MultiSeedSummary, RehearsalResult, Spread, TuneCResult } from '#learning';
+import type { MultiSeedSummary, RehearsalResult, ScreeningFigures, Spread, TuneCResult } from '#learning';
 
 const pct = (x: number): string => `${(100 * x).toFixed(1)}%`;
 
@@ -75,6 +75,108 @@ export function formatRehearsal(result: RehearsalResult, summary?: MultiSeedSumm
   lines.push(
     `timings: featurise ${result.timings.featurizeMs.toFixed(0)} ms, train ${result.timings.trainMsMean.toFixed(0)} ms a model, score ${result.timings.scoreMsMean.toFixed(0)} ms a pass`,
   );
+  return lines.join('\n') + '\n';
+}
+
+const count = (x: number | null): string => (x === null ? '–' : x < 10 ? String(+x.toFixed(1)) : String(Math.round(x)));
+const share = (x: number | null): string => (x === null ? '–' : pct(x));
+
+/** What the cleared-pile columns and lines mean, in one line. */
+export const SCREENING_EXPLANATION =
+  'flagged: open items whose set holds a watched category; cleared: the others. recall: share of the category’s ' +
+  'open items flagged; load: share of the open items whose set holds it; cleared: its items the cleared pile ' +
+  'really holds, beside the estimate a desk states (95% interval, from the quarter of the random verdicts held out ' +
+  'of its threshold and the model’s probabilities over the pile); keywords: flagging every item that matches a seed term.';
+
+function estimateText(f: ScreeningFigures['perCategory'][string]): string {
+  const e = f.clearedEstimate;
+  return `${count(e.estimate)} [${count(e.lower)}–${count(e.upper)}]`;
+}
+
+/** One line per watched category of the screening at a point (the end of a run). */
+function screeningLines(figures: ScreeningFigures, prefix: string): string[] {
+  const lines: string[] = [];
+  for (const [c, f] of Object.entries(figures.perCategory)) {
+    const e = f.clearedEstimate;
+    const how =
+      e.method === 'ppi++'
+        ? `prediction-powered, from ${e.randomVerdicts} held-out random verdicts in the pile`
+        : e.method === 'clopper-pearson'
+          ? `Clopper–Pearson from ${e.randomVerdicts} held-out random verdicts in the pile alone`
+          : e.method === 'none'
+            ? 'no held-out random verdict in the pile: bounds 0 and the pile'
+            : 'the pile is empty';
+    const keywords = f.keywordBaseline
+      ? `; keyword baseline: recall ${share(f.keywordBaseline.recall)}, load ${pct(f.keywordBaseline.load)}`
+      : '';
+    lines.push(
+      `${prefix}${c}: recall ${share(f.recall)} of its ${f.open} open items, load ${pct(f.load)}; the ${figures.cleared} cleared items hold ${f.cleared}, estimated ${estimateText(f)} (${how}): ${f.inInterval ? 'inside' : 'outside'} the interval${keywords}`,
+    );
+  }
+  return lines;
+}
+
+/**
+ * `rehearse --watch`: for one run, a table of the screening at each curve point and the figures at the end; for
+ * several seeds, the figures at the end of each and how many intervals held the true count.
+ */
+export function formatScreening(results: readonly RehearsalResult[]): string {
+  const first = results[0];
+  if (results.length === 0 || !first.screening) return '';
+  const watched = Object.keys(first.screening.perCategory);
+  const keywords = first.screening.keywordBaseline !== undefined;
+  const lines: string[] = [''];
+  if (results.length === 1) {
+    lines.push('screening of the watched categories on the open items, at each point:');
+    const header = [
+      'labels',
+      'open',
+      'flagged',
+      'load',
+      ...watched.flatMap((c) => [
+        `recall ${c}`,
+        `load ${c}`,
+        `cleared ${c}`,
+        `estimate ${c} [95%]`,
+        ...(keywords ? [`keywords recall ${c}`] : []),
+      ]),
+      ...(keywords ? ['keywords load'] : []),
+    ];
+    const rows = first.curve.map((p) => {
+      const s = p.screening!;
+      return [
+        String(p.labels),
+        String(s.open),
+        String(s.flagged),
+        pct(s.load),
+        ...watched.flatMap((c) => {
+          const f = s.perCategory[c];
+          return [
+            share(f.recall),
+            pct(f.load),
+            String(f.cleared),
+            estimateText(f),
+            ...(keywords ? [share(f.keywordBaseline?.recall ?? null)] : []),
+          ];
+        }),
+        ...(keywords ? [pct(s.keywordBaseline!.load)] : []),
+      ];
+    });
+    const widths = header.map((h, j) => Math.max(h.length, ...rows.map((r) => r[j].length)));
+    const fmt = (cells: string[]): string => cells.map((c, j) => c.padStart(widths[j])).join('  ');
+    lines.push(fmt(header));
+    for (const r of rows) lines.push(fmt(r));
+    lines.push(`at the end (${first.curve.at(-1)!.labels} verdicts):`);
+    lines.push(...screeningLines(first.screening, '  '));
+  } else {
+    lines.push('screening of the watched categories at the end of each run:');
+    for (const r of results) if (r.screening) lines.push(...screeningLines(r.screening, `  seed ${r.seed}, `));
+    for (const c of watched) {
+      const held = results.filter((r) => r.screening?.perCategory[c]?.inInterval).length;
+      lines.push(`  ${c}: the interval held the cleared pile's true count in ${held} of ${results.length} runs`);
+    }
+  }
+  lines.push(`screening: ${SCREENING_EXPLANATION}`);
   return lines.join('\n') + '\n';
 }
 

@@ -135,7 +135,20 @@ describe('rehearse command', () => {
   it('describes every option in --help', async () => {
     const c = capture();
     expect(await rehearseCommand(['--help'], c.io)).toBe(0);
-    for (const option of ['input', 'target', 'strategy', 'seed', 'seeds', 'tune', 'folds', 'compare-random', 'json'])
+    for (const option of [
+      'input',
+      'target',
+      'strategy',
+      'seed',
+      'seeds',
+      'tune',
+      'folds',
+      'compare-random',
+      'watch',
+      'screen-share',
+      'seed-terms',
+      'json',
+    ])
       expect(c.out()).toMatch(new RegExp(`--${option}\\b`));
   });
 
@@ -263,5 +276,72 @@ describe('rehearse command', () => {
     const n = capture();
     expect(await rehearseCommand(['--input', join(dir, 'nope.jsonl')], n.io)).toBe(1);
     expect(n.err()).toMatch(/cannot read/);
+  });
+
+  describe('--watch and --seed-terms', () => {
+    const seedFile = join(dir, 'seed-terms.json');
+    writeFileSync(seedFile, JSON.stringify({ food: ['soup', 'bake*'] }));
+    const watchArgs = [...base, '--watch', 'food', '--random-share', '0.5'];
+
+    it('prints the screening of the watched category at each point and at the end', async () => {
+      const c = capture();
+      expect(await rehearseCommand([...watchArgs, '--seed-terms', seedFile], c.io)).toBe(0);
+      const out = c.out();
+      expect(out).toMatch(/screening of the watched categories on the open items, at each point:/);
+      expect(out).toMatch(
+        /recall food +load food +cleared food +estimate food \[95%\] +keywords recall food +keywords load/,
+      );
+      expect(out).toMatch(
+        /at the end \(80 verdicts\):\n {2}food: recall [\d.]+% of its \d+ open items, load [\d.]+%; the \d+ cleared items hold \d+, estimated .* the interval; keyword baseline: recall [\d.]+%, load [\d.]+%/,
+      );
+    });
+
+    it('gives each point its screening with --json, consistent with the open items', async () => {
+      const c = capture();
+      expect(await rehearseCommand([...watchArgs, '--json'], c.io)).toBe(0);
+      const result = JSON.parse(c.out()) as RehearsalResult;
+      expect(result.calibration).toBe('per-category');
+      for (const p of result.curve) {
+        const s = p.screening!;
+        expect(s.open).toBe(p.open.items);
+        expect(s.flagged + s.cleared).toBe(s.open);
+        expect(Object.keys(s.perCategory)).toEqual(['food']);
+        const f = s.perCategory.food;
+        expect(f.keywordBaseline).toBeUndefined();
+        expect(f.cleared).toBe(Math.round(f.open * (1 - (f.recall ?? 1))));
+        expect(f.clearedEstimate.lower).toBeLessThanOrEqual(f.clearedEstimate.upper);
+        expect(f.inInterval).toBe(f.clearedEstimate.lower <= f.cleared && f.cleared <= f.clearedEstimate.upper);
+      }
+      expect(result.screening).toEqual(result.curve.at(-1)!.screening);
+    });
+
+    it('refuses an unknown category, a marginal desk and a bad seed-terms file, each with its reason', async () => {
+      const usage: Array<[string[], RegExp]> = [
+        [['--watch', 'drink'], /--watch: drink is not a category of .* \(its categories: food, sport, weather\)/],
+        [['--watch', 'food,,sport'], /--watch "food,,sport": expected category names separated by commas/],
+        [['--watch', 'food', '--calibration', 'marginal'], /--watch needs --calibration per-category/],
+        [['--seed-terms', seedFile], /--seed-terms needs --watch/],
+        [['--watch', 'food', '--screen-share', '0.9'], /may not add up to more than 1/],
+      ];
+      for (const [extra, message] of usage) {
+        const c = capture();
+        expect(await rehearseCommand([...base, ...extra], c.io)).toBe(2);
+        expect(c.err()).toMatch(message);
+      }
+      const malformed = join(dir, 'malformed.json');
+      writeFileSync(malformed, '{"food": ["soup",');
+      const unknown = join(dir, 'unknown.json');
+      writeFileSync(unknown, JSON.stringify({ drink: ['tea'], food: 'soup' }));
+      const input: Array<[string, RegExp]> = [
+        [join(dir, 'missing.json'), /--seed-terms .*missing\.json: cannot read it/],
+        [malformed, /--seed-terms .*malformed\.json: not JSON/],
+        [unknown, /seedTerms\.drink: not a category of this desk; seedTerms\.food: expected a list of strings/],
+      ];
+      for (const [file, message] of input) {
+        const c = capture();
+        expect(await rehearseCommand([...base, '--watch', 'food', '--seed-terms', file], c.io)).toBe(1);
+        expect(c.err()).toMatch(message);
+      }
+    });
   });
 });

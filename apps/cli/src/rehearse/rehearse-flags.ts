@@ -32,8 +32,8 @@ export const REHEARSE_OPTIONS = {
     type: 'string',
     value: 'MODE',
     choices: CALIBRATIONS,
-    defaultText: 'marginal',
-    description: 'one threshold over the pool, or one per category',
+    defaultText: 'marginal; per-category with --watch',
+    description: 'one threshold over the pool, or one per category (--watch needs per-category)',
   },
   score: { type: 'string', value: 'SCORE', choices: SCORES, defaultText: 'lac', description: 'nonconformity score' },
   strategy: {
@@ -91,6 +91,24 @@ export const REHEARSE_OPTIONS = {
     description:
       'also run the loop started from a model file (GET /api/desks/:deskId/models/:version/model.json), as a desk created with startFrom is, and print the verdicts the start saves to reach 95% of the full model’s macro-F1',
   },
+  watch: {
+    type: 'string',
+    value: 'LIST',
+    description:
+      'watched categories, comma-separated (`threat` or `threat,harassment`): the queue serves the review lane as a desk does, and each point adds, per category, the recall and reading load on the open items and the true count in the cleared pile against the estimate a desk states (prediction-powered, 95% interval)',
+  },
+  'screen-share': {
+    type: 'string',
+    value: 'P',
+    defaultText: '0.5 with --watch (at most 1 minus --random-share)',
+    description: 'share of the leases that serve the review lane (flagged items, most likely first), 0 to 1',
+  },
+  'seed-terms': {
+    type: 'string',
+    value: 'FILE.json',
+    description:
+      'seed terms as a desk takes them, a JSON object {"category": ["term", …]}: with --watch, adds the keyword baseline (flag every item that matches a term) with its recall and reading load',
+  },
   json: { type: 'boolean', description: 'print the figures as one JSON object instead of a table' },
 } as const;
 
@@ -117,6 +135,12 @@ export interface RehearseFlags {
   compareRandom: boolean;
   /** A model file to start a second run from (`--start-from`). */
   startFrom: string | undefined;
+  /** Watched categories (`--watch`), as given; checked against the file's categories once it is read. */
+  watch: string[];
+  /** Share of the review lane (0 without --watch). */
+  screenShare: number;
+  /** The seed-terms file (`--seed-terms`). */
+  seedTerms: string | undefined;
   json: boolean;
 }
 
@@ -145,6 +169,16 @@ export function parseSeeds(raw: string): number[] {
   return seeds;
 }
 
+/** Reads `--watch`: comma-separated category names, each once. */
+export function parseWatch(raw: string): string[] {
+  const names = raw.split(',').map((c) => c.trim());
+  if (names.some((c) => c === ''))
+    throw new UsageError(`--watch ${JSON.stringify(raw)}: expected category names separated by commas`);
+  const repeated = names.find((c, i) => names.indexOf(c) !== i);
+  if (repeated !== undefined) throw new UsageError(`--watch names ${repeated} twice`);
+  return names;
+}
+
 /** Checks the parsed options and applies the defaults; throws UsageError naming the option. */
 export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): RehearseFlags {
   const fraction = { min: 0, max: 1, exclusiveMin: true, exclusiveMax: true };
@@ -154,7 +188,8 @@ export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): Rehea
     format: values.format as RehearseFlags['format'],
     labelField: values['label-field'] ?? 'label',
     target: numberOption('target', values.target, 0.9, fraction),
-    calibration: (values.calibration ?? 'marginal') as RehearseFlags['calibration'],
+    calibration: (values.calibration ??
+      (values.watch === undefined ? 'marginal' : 'per-category')) as RehearseFlags['calibration'],
     score: (values.score ?? 'lac') as RehearseFlags['score'],
     strategy: (values.strategy ?? 'entropy') as RehearseFlags['strategy'],
     randomShare: numberOption('random-share', values['random-share'], 0.2, { min: 0, max: 1 }),
@@ -169,6 +204,9 @@ export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): Rehea
     folds: numberOption('folds', values.folds, 5, { integer: true, min: 2 }),
     compareRandom: values['compare-random'] === true,
     startFrom: values['start-from'],
+    watch: values.watch === undefined ? [] : parseWatch(values.watch),
+    screenShare: 0,
+    seedTerms: values['seed-terms'],
     json: values.json === true,
   };
   if (flags.input === '') throw new UsageError('--input must name a file');
@@ -179,5 +217,25 @@ export function rehearseFlags(values: CliValues<typeof REHEARSE_OPTIONS>): Rehea
   flags.seeds = values.seeds === undefined ? [flags.seed] : parseSeeds(values.seeds);
   if (flags.budget < flags.start)
     throw new UsageError(`--budget (${flags.budget}) must be at least --start (${flags.start})`);
+  if (flags.watch.length === 0) {
+    if (values['screen-share'] !== undefined)
+      throw new UsageError('--screen-share needs --watch (the review lane serves flagged items)');
+    if (flags.seedTerms !== undefined)
+      throw new UsageError('--seed-terms needs --watch (the keyword baseline is measured on the watched categories)');
+  } else {
+    if (flags.calibration !== 'per-category')
+      throw new UsageError(
+        '--watch needs --calibration per-category: marginal calibration promises coverage over the pool as a whole, not per category, so it cannot clear items with a stated miss rate',
+      );
+    flags.screenShare = numberOption('screen-share', values['screen-share'], Math.min(0.5, 1 - flags.randomShare), {
+      min: 0,
+      max: 1,
+    });
+    if (flags.randomShare + flags.screenShare > 1 + 1e-9)
+      throw new UsageError(
+        `--random-share (${flags.randomShare}) and --screen-share (${flags.screenShare}) may not add up to more than 1`,
+      );
+  }
+  if (flags.seedTerms === '') throw new UsageError('--seed-terms must name a file');
   return flags;
 }

@@ -10,7 +10,7 @@ import {
   type CalibrationMode,
   type NonconformityScore,
 } from '../conformal/conformal-calibration.js';
-import { predictionSet } from '../conformal/prediction-set.js';
+import { predictionSet, type PredictionSetOptions } from '../conformal/prediction-set.js';
 import { calibrationSizeNeeded } from '../conformal/conformal-quantile.js';
 import { accuracy } from '../metrics/accuracy.js';
 import { macroF1 } from '../metrics/macro-f1.js';
@@ -29,6 +29,9 @@ import {
   type DrawSource,
   type SamplingStrategy,
 } from '../sampling/sampling-policy.js';
+import { inEstimationFold } from '../screening/estimation-fold.js';
+import { compileSeedTerms } from '../text/seed-terms.js';
+import { screeningFigures, type ScreeningFigures } from './rehearsal-screening.js';
 
 export interface RehearsalOptions {
   /** Target coverage 1 − α. */
@@ -40,8 +43,14 @@ export interface RehearsalOptions {
   randomShare: number;
   /** Share of the review lane (default 0); it serves only when `watch` names a category. */
   screenShare?: number;
-  /** Watched categories (default none): the review lane serves items whose set holds one. */
+  /**
+   * Watched categories (default none): the review lane serves items whose set holds one, their thresholds leave
+   * out the estimation fold (as a desk's do), and every curve point measures the screening (see
+   * {@link screeningFigures}). Needs per-category calibration.
+   */
   watch?: readonly string[];
+  /** Seed terms (category → terms) for the keyword baseline of the screening figures; needs `watch`. */
+  seedTerms?: Record<string, string[]>;
   /** Uniform random verdicts before the first model (they train it). */
   start: number;
   batch: number;
@@ -100,6 +109,8 @@ export interface CurvePoint {
    * population a desk shows sets on. The primary coverage figure.
    */
   open: CoverageFigures;
+  /** With watched categories: flagged and cleared open items, and what the cleared pile holds against its estimate. */
+  screening?: ScreeningFigures;
 }
 
 export interface RehearsalCurve {
@@ -123,6 +134,8 @@ export interface RehearsalResult extends RehearsalCurve {
   warnings: string[];
   full: { accuracy: number; macroF1: number };
   random?: RehearsalCurve;
+  /** With watched categories: the screening at the last curve point. */
+  screening?: ScreeningFigures;
   /** The loop started from another desk's model (with `startFrom`). */
   startFrom?: TransferCurve;
   timings: { featurizeMs: number; trainMsMean: number; scoreMsMean: number };
@@ -165,6 +178,8 @@ export interface RehearsalData {
   hashBits: number;
   /** Hashed term counts of every item (tf-idf under another idf table needs them). */
   counts: readonly SparseVector[];
+  /** The texts (seed terms are matched on them). */
+  texts: readonly string[];
   featurizeMs: number;
 }
 
@@ -181,7 +196,8 @@ function checkOptions(o: RehearsalOptions): void {
   }
   if (!(o.randomShare >= 0 && o.randomShare <= 1)) fail('randomShare', o.randomShare, 'must be in [0, 1]');
   const screenShare = o.screenShare ?? 0;
-  if (!(screenShare >= 0 && screenShare <= 1 - o.randomShare))
+  // A hair of slack: 0.8 + 0.2 leave 1 − 0.8 = 0.19999999999999996 for the lane in floating point.
+  if (!(screenShare >= 0 && screenShare <= 1 - o.randomShare + 1e-9))
     fail('screenShare', screenShare, 'must be in [0, 1 − randomShare]');
   if (!Number.isInteger(o.start) || o.start < 1) fail('start', o.start, 'must be a positive integer');
   if (!Number.isInteger(o.batch) || o.batch < 1) fail('batch', o.batch, 'must be a positive integer');
@@ -189,6 +205,29 @@ function checkOptions(o: RehearsalOptions): void {
     fail('budget', o.budget, `must be an integer ≥ start (${o.start})`);
   if (!(o.testShare > 0 && o.testShare < 1)) fail('testShare', o.testShare, 'must be in (0, 1)');
   if (!Number.isInteger(o.seed)) fail('seed', o.seed, 'must be an integer');
+  if ((o.watch?.length ?? 0) > 0 && o.calibration !== 'per-category')
+    fail('calibration', o.calibration, 'must be per-category with watched categories (marginal promises no category)');
+  if (o.seedTerms !== undefined && (o.watch?.length ?? 0) === 0) fail('seedTerms', 'given', 'need watched categories');
+}
+
+/** Category indices of the watched categories; an unknown one is refused. */
+function watchedOf(data: RehearsalData, options: RehearsalOptions): number[] {
+  return (options.watch ?? []).map((c) => {
+    const i = data.classes.indexOf(c);
+    if (i < 0) throw new RangeError(`watch: ${c} is not a category of the data (${data.classes.join(', ')})`);
+    return i;
+  });
+}
+
+/** The sets' options: a desk's, whose watched categories' thresholds leave out the estimation fold. */
+function setOptionsOf(data: RehearsalData, options: RehearsalOptions): PredictionSetOptions {
+  const watched = watchedOf(data, options);
+  return {
+    alpha: 1 - options.target,
+    score: options.score,
+    mode: options.calibration,
+    ...(watched.length > 0 ? { holdOut: watched } : {}),
+  };
 }
 
 /**
@@ -235,6 +274,7 @@ export function prepareRehearsal(
     test,
     hashBits: featurizer.hashBits,
     counts,
+    texts: items.map((i) => i.text),
     featurizeMs: performance.now() - started,
   };
 }
@@ -271,7 +311,7 @@ function coverageOn(
   options: RehearsalOptions,
   each?: (row: number, p: Float64Array, set: number[], call: string) => void,
 ): CoverageFigures {
-  const alpha = 1 - options.target;
+  const setOptions = setOptionsOf(data, options);
   const k = data.classes.length;
   let covered = 0;
   let setSizes = 0;
@@ -280,7 +320,7 @@ function coverageOn(
   for (const i of rows) {
     const p = probabilities.get(i)!;
     const y = data.labels[i];
-    const set = predictionSet(p, calibration, { alpha, score: options.score, mode: options.calibration });
+    const set = predictionSet(p, calibration, setOptions);
     const hit = set.categories.includes(y) ? 1 : 0;
     covered += hit;
     catCovered[y] += hit;
@@ -307,6 +347,7 @@ function measure(
   probabilities: Map<number, Float64Array>,
   calibration: ConformalCalibration,
   options: RehearsalOptions,
+  seedMatch: ((row: number) => boolean) | undefined,
 ): CurvePoint {
   const k = data.classes.length;
   const truth: number[] = [];
@@ -322,6 +363,7 @@ function measure(
     if (call === 'unfamiliar') unfamiliar++;
   });
   const open = coverageOn(data, openRows, probabilities, calibration, options);
+  const watched = watchedOf(data, options);
   const needed = calibrationSizeNeeded(0, 1 - options.target);
   const calibrationPerCategory: Record<string, number> = {};
   data.classes.forEach((c) => (calibrationPerCategory[c] = 0));
@@ -345,6 +387,38 @@ function measure(
     unfamiliarShare: unfamiliar / n,
     perCategoryCoverage: holdOut.perCategoryCoverage,
     open,
+    ...(watched.length > 0
+      ? {
+          screening: screeningFigures(
+            data.classes,
+            data.labels,
+            watched,
+            { open: openRows, calibration: calibrationRows },
+            probabilities,
+            calibration,
+            setOptionsOf(data, options),
+            seedMatch,
+          ),
+        }
+      : {}),
+  };
+}
+
+/**
+ * Whether each item matches a seed term (any category's, as the desk's keyword baseline flags), computed once per
+ * item on demand; undefined without seed terms.
+ */
+function seedMatcherOf(data: RehearsalData, options: RehearsalOptions): ((row: number) => boolean) | undefined {
+  if (options.seedTerms === undefined) return undefined;
+  const matcher = compileSeedTerms(options.seedTerms);
+  const known = new Map<number, boolean>();
+  return (row) => {
+    let hit = known.get(row);
+    if (hit === undefined) {
+      hit = matcher.count(data.texts[row]) > 0;
+      known.set(row, hit);
+    }
+    return hit;
   };
 }
 
@@ -388,6 +462,9 @@ function runCurve(
   progress: () => void,
   transfer: Transfer | null = null,
 ): CurvePoint[] {
+  const seedMatch = seedMatcherOf(data, options);
+  // A desk marks the estimation fold among its random verdicts; watched categories' thresholds leave it out.
+  const watching = (options.watch?.length ?? 0) > 0;
   const budget = Math.min(options.budget, data.pool.length);
   // A desk started from a transferred model has a model at once: no cold start.
   const trainRows = transfer === null ? coldStart(data, options.start, budget) : [];
@@ -422,8 +499,9 @@ function runCurve(
       data.classes,
       calibrationRows.map((i) => probabilities.get(i)!),
       calibrationRows.map((i) => data.labels[i]),
+      watching ? { heldOut: calibrationRows.map((i) => inEstimationFold(i)) } : {},
     );
-    curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, calibration, options));
+    curve.push(measure(data, trainRows, calibrationRows, openRows, probabilities, calibration, options, seedMatch));
     progress();
     const labels = trainRows.length + calibrationRows.length;
     if (labels >= budget) break;
@@ -468,9 +546,9 @@ function simulatedDesk(
     size: number,
   ) => Array<{ row: number; draw: string }>;
 } {
-  const watched = (options.watch ?? []).map((c) => data.classes.indexOf(c)).filter((c) => c >= 0);
+  const watched = watchedOf(data, options);
   const shares = { randomShare: options.randomShare, screenShare: options.screenShare ?? 0 };
-  const setOptions = { alpha: 1 - options.target, score: options.score, mode: options.calibration };
+  const setOptions = setOptionsOf(data, options);
   // The desk's random keys, given once to every pool item independently of its content (as at import).
   const randKey = new Map(data.pool.map((i) => [i, rng.next()]));
   let previous: number | null = null;
@@ -627,6 +705,7 @@ export function rehearsalWarnings(data: RehearsalData, options: RehearsalOptions
  */
 export function runRehearsal(data: RehearsalData, options: RehearsalOptions): RehearsalResult {
   checkOptions(options);
+  watchedOf(data, options);
   const timing: Timing = { trainMs: [], scoreMs: [] };
   const perCurve = pointsOf(data, options);
   const transferred = options.startFrom === undefined ? null : transferOf(data, options.startFrom);
@@ -693,6 +772,7 @@ export function runRehearsal(data: RehearsalData, options: RehearsalOptions): Re
     c: 'c' in fullModel.training ? fullModel.training.c : (options.training?.c ?? DEFAULT_C),
     warnings: rehearsalWarnings(data, options),
     ...cold,
+    ...(cold.curve.at(-1)?.screening ? { screening: cold.curve.at(-1)!.screening } : {}),
     full,
     ...(random ? { random } : {}),
     ...(startFrom ? { startFrom } : {}),

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compileSeedTerms, parseSeedTerm } from './seed-terms.js';
+import { checkSeedTerms, compileSeedTerms, parseSeedTerm } from './seed-terms.js';
 
 function slices(text: string, matcher = compileSeedTerms({ x: ['cafe'] })) {
   return matcher.match(text).map((m) => text.slice(m.start, m.end));
@@ -112,5 +112,28 @@ describe('compileSeedTerms', () => {
     expect(() => compileSeedTerms(null as unknown as Record<string, string[]>)).toThrow(TypeError);
     expect(() => compileSeedTerms({ a: 'x' as unknown as string[] })).toThrow(/seedTerms\["a"\]/);
     expect(() => compileSeedTerms({ a: ['x'] }).match(3 as unknown as string)).toThrow(/text must be a string/);
+  });
+});
+
+describe('checkSeedTerms', () => {
+  it('cleans terms and names every problem with its category', () => {
+    expect(checkSeedTerms({ threat: ['  hurt you ', 'hurt you', ''], ok: [] }, ['threat', 'ok'])).toEqual({
+      seedTerms: { threat: ['hurt you'] },
+      problems: [],
+    });
+    expect(checkSeedTerms(undefined, ['a'])).toEqual({ seedTerms: {}, problems: [] });
+    const { problems } = checkSeedTerms({ menace: ['x'], threat: 'hurt', ok: ['k*', 'y'.repeat(101)] }, [
+      'threat',
+      'ok',
+    ]);
+    expect(problems).toEqual([
+      'seedTerms.menace: not a category of this desk',
+      'seedTerms.threat: expected a list of strings',
+      `seedTerms.ok: a term is longer than 100 characters ("${'y'.repeat(20)}"…)`,
+      'seedTerms.ok: "k*" ends in * after a single character; give at least 2 characters before *',
+    ]);
+    expect(checkSeedTerms(['hurt'], ['threat']).problems).toEqual([
+      'seedTerms: expected an object mapping category names to lists of terms',
+    ]);
   });
 });

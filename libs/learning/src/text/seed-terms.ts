@@ -208,3 +208,53 @@ export function compileSeedTerms(seedTerms: Record<string, string[]>): SeedTermM
     size: table.size + stems.size,
   };
 }
+
+/** Most terms one category may have. */
+export const MAX_SEED_TERMS = 200;
+/** Longest seed term, in characters. */
+export const MAX_SEED_TERM_LENGTH = 100;
+
+/**
+ * Checks seed terms as a desk receives them (JSON: category → list of
+ * terms) against its categories, and returns them cleaned (trimmed, blanks
+ * and repeats dropped, categories without a term left out) with every
+ * problem found, each naming its category. The one rule for the desk
+ * settings and for `rehearse --seed-terms`.
+ */
+export function checkSeedTerms(
+  seedTerms: unknown,
+  categories: readonly string[],
+): { seedTerms: Record<string, string[]>; problems: string[] } {
+  const out: Record<string, string[]> = {};
+  if (seedTerms === undefined || seedTerms === null) return { seedTerms: out, problems: [] };
+  if (typeof seedTerms !== 'object' || Array.isArray(seedTerms))
+    return {
+      seedTerms: out,
+      problems: ['seedTerms: expected an object mapping category names to lists of terms'],
+    };
+  const problems: string[] = [];
+  for (const [category, terms] of Object.entries(seedTerms as Record<string, unknown>)) {
+    if (!categories.includes(category)) {
+      problems.push(`seedTerms.${category}: not a category of this desk`);
+      continue;
+    }
+    if (!Array.isArray(terms) || terms.some((t) => typeof t !== 'string')) {
+      problems.push(`seedTerms.${category}: expected a list of strings`);
+      continue;
+    }
+    const clean = [...new Set((terms as string[]).map((t) => t.trim()).filter((t) => t.length > 0))];
+    if (clean.length > MAX_SEED_TERMS)
+      problems.push(`seedTerms.${category}: at most ${MAX_SEED_TERMS} terms (got ${clean.length})`);
+    const long = clean.find((t) => t.length > MAX_SEED_TERM_LENGTH);
+    if (long)
+      problems.push(
+        `seedTerms.${category}: a term is longer than ${MAX_SEED_TERM_LENGTH} characters (${JSON.stringify(long.slice(0, 20))}…)`,
+      );
+    for (const term of clean) {
+      const { problem } = parseSeedTerm(term);
+      if (problem !== undefined) problems.push(`seedTerms.${category}: ${problem}`);
+    }
+    if (clean.length > 0) out[category] = clean;
+  }
+  return { seedTerms: out, problems };
+}
