@@ -1,9 +1,9 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database, DeskEntity, ModelVersionEntity, type DbInt, type VerdictSetSummary } from '#database';
+import type { DeskEntity, VerdictSetSummary } from '#database';
 import { ModelStore, PrevalenceService } from '#models';
 import { AgreementService } from '#verdicts';
 import { activityFigures } from './figures/activity-figures.js';
-import { alertEpisodes, coverageFigure, type RandomCheck } from './figures/coverage-figures.js';
+import { alertEpisodes, coverageFigure } from './figures/coverage-figures.js';
 import { poolFigures } from './figures/pool-figures.js';
 import { prevalenceSection } from './figures/prevalence-figures.js';
 import { SettingsHistory } from './figures/settings-history.js';
@@ -15,6 +15,7 @@ import type {
   ReportFigures,
   VerdictCounts,
 } from './report-figures.js';
+import { ReportsRepository } from './reports.repository.js';
 
 /** Why a report cannot be made (yet): the version is missing or not published. */
 export class ReportNotPossible extends Error {}
@@ -31,7 +32,7 @@ type Settings = ReportFigures['settings'];
 @Injectable()
 export class ReportData {
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ReportsRepository) private readonly reports: ReportsRepository,
     @Inject(ModelStore) private readonly store: ModelStore,
     @Inject(AgreementService) private readonly agreement: AgreementService,
     @Inject(PrevalenceService) private readonly prevalenceService: PrevalenceService,
@@ -48,8 +49,8 @@ export class ReportData {
     keptPool: PoolSection | null = null,
     keptPrevalence: PrevalenceSection | null = null,
   ): Promise<ReportFigures> {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
+    const desk = await this.reports.desk(deskId);
+    const row = await this.reports.version(deskId, version);
     if (!desk || !row) throw new ReportNotPossible(`desk ${deskId} has no model version ${version}`);
     if (row.state !== 'published' || !row.publishedAt)
       throw new ReportNotPossible(`version ${version} of desk ${deskId} is ${row.state}, not published`);
@@ -57,13 +58,10 @@ export class ReportData {
     if (!model) throw new ReportNotPossible(`version ${version} of desk ${deskId} has no stored model`);
     const categories = model.categories;
     const to = row.publishedAt;
-    const parent =
-      row.parentVersion === null
-        ? null
-        : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: row.parentVersion });
+    const parent = row.parentVersion === null ? null : await this.reports.version(deskId, row.parentVersion);
     const from = parent?.publishedAt ?? desk.createdAt;
     // A desk started from another desk's version keeps that origin on its first version.
-    const first = version === 1 ? row : await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version: 1 });
+    const first = version === 1 ? row : await this.reports.version(deskId, 1);
     const origin = first?.model?.origin;
     const history = await this.settingsHistory(desk);
     const inForce = history.at(to);
@@ -75,7 +73,7 @@ export class ReportData {
       randomShare: Number(inForce.randomShare),
       secondOpinionShare: Number(inForce.secondOpinionShare),
     };
-    const checks = await this.randomChecks(deskId, to);
+    const checks = await this.reports.randomChecks(deskId, to);
     const inPeriod = checks.filter((c) => c.at.getTime() > from.getTime());
     const pool = (await this.poolFigures(deskId, version, model.calibration, settings)) ?? keptPool;
     return {
@@ -121,7 +119,7 @@ export class ReportData {
       quality: quality(row.metrics),
       learningCurve: await this.learningCurve(deskId, version),
       agreement: await this.agreement.forDesk(deskId, to),
-      activity: activityFigures(await this.activity(deskId, from, to)),
+      activity: activityFigures(await this.reports.periodVerdicts(deskId, from, to)),
       alerts: alertEpisodes(checks, from, (t) => Number(history.at(t).coverageTarget)),
       settingsChanges: history
         .between(from, to)
@@ -143,17 +141,6 @@ export class ReportData {
   }
 
   private async settingsHistory(desk: DeskEntity): Promise<SettingsHistory> {
-    const rows = await this.db.query<{
-      at: unknown;
-      actor_name: string;
-      action: string;
-      before: string | null;
-      after: string | null;
-    }>(
-      null,
-      `SELECT at, actor_name, action, before, after FROM audit_events WHERE desk_id = $1 AND entity_type = 'desk' AND action = 'desk.update' ORDER BY id`,
-      [desk.id],
-    );
     const current = {
       name: desk.name,
       coverageTarget: desk.coverageTarget,
@@ -163,38 +150,7 @@ export class ReportData {
       randomShare: desk.randomShare,
       secondOpinionShare: desk.secondOpinionShare,
     };
-    return new SettingsHistory(
-      current,
-      rows.map((r) => ({
-        at: this.db.parseTime(r.at)!,
-        actor: r.actor_name,
-        action: r.action,
-        before: r.before ? (JSON.parse(r.before) as Record<string, unknown>) : null,
-        after: r.after ? (JSON.parse(r.after) as Record<string, unknown>) : null,
-      })),
-    );
-  }
-
-  /** Every random check up to `to`, oldest first, as it stood at `to`: the verdict's category against the set shown with it. */
-  private async randomChecks(deskId: number, to: Date): Promise<Array<RandomCheck & { version: number }>> {
-    const rows = await this.db.query<{
-      created_at: unknown;
-      category: string;
-      shown_set: string;
-      model_version: DbInt;
-    }>(
-      null,
-      `SELECT v.created_at, c.name AS category, v.shown_set, v.model_version FROM verdicts v JOIN categories c ON c.id = v.category_id
-       WHERE v.desk_id = $1 AND v.draw = 'random' AND v.model_version IS NOT NULL AND v.shown_set IS NOT NULL
-         AND v.created_at <= $2 AND (v.undone_at IS NULL OR v.undone_at > $2) ORDER BY v.id`,
-      [deskId, this.db.time(to)],
-    );
-    return rows.map((r) => ({
-      at: this.db.parseTime(r.created_at)!,
-      category: r.category,
-      covered: (JSON.parse(r.shown_set) as string[]).includes(r.category),
-      version: Number(r.model_version),
-    }));
+    return new SettingsHistory(current, await this.reports.settingsChanges(desk.id));
   }
 
   /** Pool figures from this version's stored predictions; null when they are gone. One statement, so a concurrent clean-up cannot leave half. */
@@ -204,25 +160,13 @@ export class ReportData {
     calibration: Parameters<typeof poolFigures>[1],
     s: Settings,
   ): Promise<PoolSection | null> {
-    const rows = await this.db.query<{ probabilities: string }>(
-      null,
-      'SELECT probabilities FROM predictions WHERE desk_id = $1 AND model_version = $2 ORDER BY item_id',
-      [deskId, version],
-    );
-    if (rows.length === 0) return null;
-    return poolFigures(
-      rows.map((r) => JSON.parse(r.probabilities) as number[]),
-      calibration,
-      { target: s.coverageTarget, mode: s.calibration, score: s.score },
-    );
+    const probabilities = await this.reports.probabilities(deskId, version);
+    if (probabilities.length === 0) return null;
+    return poolFigures(probabilities, calibration, { target: s.coverageTarget, mode: s.calibration, score: s.score });
   }
 
   private async learningCurve(deskId: number, upTo: number): Promise<LearningPoint[]> {
-    const rows = await this.db.manager.find(ModelVersionEntity, {
-      where: { deskId, state: 'published' },
-      order: { version: 'ASC' },
-      select: { id: true, version: true, publishedAt: true, metrics: true, calibration: true },
-    });
+    const rows = await this.reports.learningCurve(deskId);
     return rows
       .filter((r) => r.version <= upTo && r.publishedAt)
       .map((r) => ({
@@ -232,21 +176,6 @@ export class ReportData {
         macroF1: typeof r.metrics?.macroF1 === 'number' ? r.metrics.macroF1 : null,
         accuracy: typeof r.metrics?.accuracy === 'number' ? r.metrics.accuracy : null,
       }));
-  }
-
-  /** Verdicts of the period (after `from`, up to `to`) as they stood at its end: undone later still count, undone within it do not. */
-  private async activity(deskId: number, from: Date, to: Date) {
-    const rows = await this.db.query<{ name: string; category_id: DbInt | null; elapsed_ms: DbInt | null }>(
-      null,
-      `SELECT u.name, v.category_id, v.elapsed_ms FROM verdicts v JOIN users u ON u.id = v.reviewer_id
-       WHERE v.desk_id = $1 AND v.created_at > $2 AND v.created_at <= $3 AND (v.undone_at IS NULL OR v.undone_at > $3) ORDER BY v.id`,
-      [deskId, this.db.time(from), this.db.time(to)],
-    );
-    return rows.map((r) => ({
-      reviewer: r.name,
-      abstained: r.category_id === null,
-      elapsedMs: r.elapsed_ms === null ? null : Number(r.elapsed_ms),
-    }));
   }
 }
 

@@ -13,9 +13,11 @@ import { ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiErrors, ApiTextAnswer, type Answer } from '#api-docs';
 import { Roles, OnDesk } from '#auth';
-import { Database, DeskEntity, ModelReportEntity, ModelVersionEntity } from '#database';
+import type { ModelReportEntity } from '#database';
+import { deskOr404 } from '#desks';
 import { JOBS, JobQueueService, jobOptions } from '#queues';
 import { ReportAnswer, ReportListAnswer } from './report.responses.js';
+import { ReportsRepository } from './reports.repository.js';
 
 const READERS = ['supervisor', 'auditor'] as const;
 
@@ -33,7 +35,7 @@ const versionPipe = new ParseIntPipe({
 @Controller('api/desks/:deskId')
 export class ReportsController {
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ReportsRepository) private readonly reports: ReportsRepository,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
   ) {}
 
@@ -44,15 +46,8 @@ export class ReportsController {
   @ApiAnswer(ReportListAnswer)
   async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ReportListAnswer>> {
     await this.desk(deskId);
-    const versions = await this.db.manager.find(ModelVersionEntity, {
-      where: { deskId, state: 'published' },
-      order: { version: 'DESC' },
-      select: { id: true, version: true, publishedAt: true },
-    });
-    const reports = await this.db.manager.find(ModelReportEntity, {
-      where: { deskId },
-      select: { id: true, version: true, state: true, generatedAt: true, figuresSha256: true, failure: true },
-    });
+    const versions = await this.reports.publishedVersions(deskId);
+    const reports = await this.reports.reportStates(deskId);
     const byVersion = new Map(reports.map((r) => [r.version, r]));
     return {
       reports: versions.map((v) => {
@@ -105,20 +100,15 @@ export class ReportsController {
     return report.html!;
   }
 
-  private async desk(deskId: number): Promise<DeskEntity> {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
-    return desk;
+  private async desk(deskId: number): Promise<void> {
+    deskOr404(deskId, await this.reports.desk(deskId));
   }
 
   /** The ready report, or a 404 that says why there is none: no such version, not published, still being written, or failed. */
   private async ready(deskId: number, version: number): Promise<ModelReportEntity> {
     if (version < 1) throw new BadRequestException('version: expected a whole number from 1');
     await this.desk(deskId);
-    const v = await this.db.manager.findOne(ModelVersionEntity, {
-      where: { deskId, version },
-      select: { id: true, state: true },
-    });
+    const v = await this.reports.versionState(deskId, version);
     if (!v) throw new NotFoundException(`desk ${deskId} has no model version ${version}`);
     if (v.state !== 'published') {
       throw new NotFoundException(
@@ -127,7 +117,7 @@ export class ReportsController {
           : `model version ${version} was never published (${v.state}), so it has no report`,
       );
     }
-    const report = await this.db.manager.findOneBy(ModelReportEntity, { deskId, version });
+    const report = await this.reports.report(deskId, version);
     if (report?.state === 'ready') return report;
     if (report?.state === 'writing')
       throw new NotFoundException({
