@@ -4,11 +4,12 @@ import { ErasureService } from './erasure.service.js';
 import { ErasuresController } from './erasures.controller.js';
 import { RetentionClock } from './retention-clock.js';
 import { RetentionController } from './retention.controller.js';
+import { RetentionRepository } from './retention.repository.js';
 import { RetentionService } from './retention.service.js';
 import { SubjectController } from './subject.controller.js';
 import { SubjectService } from './subject.service.js';
 
-const services = [ErasureService, RetentionService, RetentionClock];
+const services = [RetentionRepository, ErasureService, RetentionService, RetentionClock];
 
 /** Erasure and retention without HTTP: the worker's daily run and the `cribra retention` command (database only). */
 @Module({ imports: [DeskFeaturesModule], providers: services, exports: services })

@@ -1,9 +1,11 @@
-import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import type { AuditActor } from '#audit';
-import { CategoryEntity, Database, DeskEntity, retentionOf, type DbInt, type RetentionSettings } from '#database';
+import { Database, inListChunks, retentionOf, type RetentionSettings } from '#database';
+import { deskOr404 } from '#desks';
 import { ERASURE_BATCH, ErasureService } from './erasure.service.js';
 import { RetentionClock } from './retention-clock.js';
+import { RetentionRepository } from './retention.repository.js';
 
 const DAY_MS = 24 * 3600 * 1000;
 
@@ -27,8 +29,6 @@ export interface RetentionRun {
 /** Why an item is due: never decided, or decided with this label (null: none). */
 type Due = { open: true } | { open: false; label: string | null };
 
-const placeholders = (n: number, from = 1) => Array.from({ length: n }, (_, i) => `$${i + from}`).join(', ');
-
 /**
  * Applies the desks' retention periods: an item never decided goes `openAfterDays` after its import; a decided item
  * goes its label's period (`categories`), else `decidedAfterDays`, after its last decision (its latest live verdict or
@@ -40,6 +40,7 @@ const placeholders = (n: number, from = 1) => Array.from({ length: n }, (_, i) =
 export class RetentionService {
   constructor(
     @Inject(Database) private readonly db: Database,
+    @Inject(RetentionRepository) private readonly repository: RetentionRepository,
     @Inject(ErasureService) private readonly erasure: ErasureService,
     @Inject(RetentionClock) private readonly clock: RetentionClock,
   ) {}
@@ -49,10 +50,7 @@ export class RetentionService {
     actor: AuditActor,
     opts: { deskId?: number; dryRun?: boolean; now?: Date } = {},
   ): Promise<RetentionRun[]> {
-    const desks =
-      opts.deskId === undefined
-        ? (await this.db.manager.find(DeskEntity, { order: { id: 'ASC' } })).map((d) => d.id)
-        : [opts.deskId];
+    const desks = opts.deskId === undefined ? await this.repository.deskIds() : [opts.deskId];
     const out: RetentionRun[] = [];
     for (const deskId of desks) out.push(await this.run(actor, deskId, opts));
     return out;
@@ -60,11 +58,9 @@ export class RetentionService {
 
   /** One desk's run at `now` (the clock's time by default); a dry run only counts. */
   async run(actor: AuditActor, deskId: number, opts: { dryRun?: boolean; now?: Date } = {}): Promise<RetentionRun> {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    const { desk, categories } = deskOr404(deskId, await this.repository.desk(deskId));
     const now = opts.now ?? this.clock.now();
     const retention = retentionOf(desk.retention);
-    const categories = await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } });
     const result: RetentionRun = {
       deskId,
       dryRun: opts.dryRun === true,
@@ -84,20 +80,14 @@ export class RetentionService {
       }
     };
     const candidates = await this.candidates(deskId, retention, now);
-    for (let i = 0; i < candidates.length; i += ERASURE_BATCH) {
-      const batch = candidates.slice(i, i + ERASURE_BATCH);
+    for (const batch of inListChunks(candidates, ERASURE_BATCH)) {
       if (result.dryRun) {
         count((await this.due(null, deskId, retention, now, batch)).values());
         continue;
       }
       await this.db.write(async (m) => {
         // Lock first, then judge: a verdict that commits before the lock is seen, one after waits for the erasure.
-        if (this.db.pg)
-          await this.db.query(
-            m,
-            `SELECT id FROM items WHERE id IN (${placeholders(batch.length)}) ORDER BY id FOR UPDATE`,
-            batch,
-          );
+        await this.repository.lockItems(m, batch);
         const due = await this.due(m, deskId, retention, now, batch);
         if (due.size === 0) return;
         const counts = await this.erasure.eraseIn(m, deskId, [...due.keys()], { by: 'retention', now });
@@ -122,16 +112,13 @@ export class RetentionService {
   private async candidates(deskId: number, r: RetentionSettings, now: Date): Promise<number[]> {
     const decided = [r.decidedAfterDays, ...Object.values(r.categories)].filter((d): d is number => d !== null);
     const ids: number[] = [];
-    const older = async (days: number, state: string) => {
-      const rows = await this.db.query<{ id: DbInt }>(
-        null,
-        `SELECT id FROM items WHERE desk_id = $1 AND imported_at < $2 AND erased_at IS NULL AND ${state} ORDER BY id`,
-        [deskId, this.db.time(new Date(now.getTime() - days * DAY_MS))],
+    const older = async (days: number, decidedItems: boolean) => {
+      ids.push(
+        ...(await this.repository.importedBefore(deskId, new Date(now.getTime() - days * DAY_MS), decidedItems)),
       );
-      ids.push(...rows.map((x) => Number(x.id)));
     };
-    if (r.openAfterDays !== null) await older(r.openAfterDays, `state <> 'decided'`);
-    if (decided.length) await older(Math.min(...decided), `state = 'decided'`);
+    if (r.openAfterDays !== null) await older(r.openAfterDays, false);
+    if (decided.length) await older(Math.min(...decided), true);
     return [...new Set(ids)].sort((a, b) => a - b);
   }
 
@@ -145,37 +132,18 @@ export class RetentionService {
   ): Promise<Map<number, Due>> {
     const out = new Map<number, Due>();
     if (ids.length === 0) return out;
-    const list = placeholders(ids.length, 2);
-    const items = await this.db.query<{ id: DbInt; state: string; imported_at: unknown }>(
-      m,
-      `SELECT id, state, imported_at FROM items WHERE desk_id = $1 AND erased_at IS NULL AND id IN (${list})`,
-      [deskId, ...ids],
-    );
+    const items = await this.repository.liveItems(m, deskId, ids);
     const cutoff = (days: number) => now.getTime() - days * DAY_MS;
     const decided: number[] = [];
     for (const it of items) {
-      const id = Number(it.id);
       if (it.state !== 'decided') {
-        if (r.openAfterDays !== null && this.db.parseTime(it.imported_at)!.getTime() < cutoff(r.openAfterDays))
-          out.set(id, { open: true });
-      } else decided.push(id);
+        if (r.openAfterDays !== null && it.importedAt.getTime() < cutoff(r.openAfterDays))
+          out.set(it.id, { open: true });
+      } else decided.push(it.id);
     }
     if (decided.length === 0) return out;
     const labels = await this.erasure.labels(m, decided);
-    const last = new Map<number, number>();
-    const dl = placeholders(decided.length);
-    for (const table of ['verdicts', 'settlements']) {
-      const extra = table === 'verdicts' ? ' AND undone_at IS NULL' : '';
-      const rows = await this.db.query<{ item_id: DbInt; at: unknown }>(
-        m,
-        `SELECT item_id, MAX(created_at) AS at FROM ${table} WHERE item_id IN (${dl})${extra} GROUP BY item_id`,
-        decided,
-      );
-      for (const row of rows) {
-        const t = this.db.parseTime(row.at)!.getTime();
-        last.set(Number(row.item_id), Math.max(last.get(Number(row.item_id)) ?? 0, t));
-      }
-    }
+    const last = await this.repository.lastDecisions(m, decided);
     for (const id of decided) {
       const label = labels.get(id) ?? null;
       const days = (label !== null ? r.categories[label] : undefined) ?? r.decidedAfterDays;
