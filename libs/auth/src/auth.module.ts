@@ -8,6 +8,7 @@ import { SignInService } from './sign-in.service.js';
 import { MembersController } from './members/members.controller.js';
 import { MembershipModule } from './members/membership.module.js';
 import { PreferencesController } from './preferences/preferences.controller.js';
+import { PreferencesRepository } from './preferences/preferences.repository.js';
 import { PreferencesService } from './preferences/preferences.service.js';
 
 /** Accounts, sign-in and the global guard; the HTTP app imports it. */
@@ -16,6 +17,7 @@ import { PreferencesService } from './preferences/preferences.service.js';
   controllers: [AuthController, UsersController, MembersController, PreferencesController],
   providers: [
     AuthService,
+    PreferencesRepository,
     PreferencesService,
     SignInLimiter,
     SignInService,

@@ -1,8 +1,8 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { IsNull } from 'typeorm';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { CredentialEntity, Database, ROLES, UserEntity, type DbInt, type Role } from '#database';
+import { Database, ROLES, type Role, type UserEntity } from '#database';
 import { AuditService, type AuditActor } from '#audit';
+import { AuthRepository } from './auth.repository.js';
 import type { Principal } from './principal.js';
 import { passwordProblem } from './passwords/password-policy.js';
 import { hashPassword, newSecret, secretHash, verifyPassword } from './secrets.js';
@@ -34,12 +34,15 @@ function dummyHash(): Promise<string> {
 @Injectable()
 export class AuthService {
   private readonly cache = new Map<string, { principal: Principal | null; until: number; userId: number | null }>();
+  private readonly accounts: AuthRepository;
 
   constructor(
     @Inject(Database) private readonly db: Database,
     @Inject(AuditService) private readonly audit: AuditService,
     @Inject(APP_CONFIG) private readonly config: AppConfig,
-  ) {}
+  ) {
+    this.accounts = new AuthRepository(db);
+  }
 
   async createUser(
     actor: AuditActor,
@@ -52,29 +55,17 @@ export class AuthService {
     if (problem) throw new AuthError(problem);
     const passwordHash = input.password !== undefined ? await hashPassword(input.password) : null;
     return this.db.write(async (m) => {
-      if (await m.findOneBy(UserEntity, { name }))
+      if (await this.accounts.userByName(m, name))
         throw new AuthConflict(`a user named ${JSON.stringify(name)} exists already`);
-      const user = await m.save(
-        UserEntity,
-        m.create(UserEntity, {
-          name,
-          role: input.role,
-          passwordHash,
-          disabled: false,
-          isSystem: false,
-          createdAt: new Date(),
-        }),
-      );
+      const user = await this.accounts.createUser(m, { name, role: input.role, passwordHash, createdAt: new Date() });
       const token = newSecret('token');
-      await m.insert(CredentialEntity, {
+      await this.accounts.insertCredential(m, {
         userId: user.id,
         kind: 'token',
         secretHash: secretHash(token),
         label: 'first token',
         createdAt: new Date(),
         expiresAt: new Date(Date.now() + this.config.tokenDays * DAY_MS),
-        revokedAt: null,
-        lastUsedAt: null,
       });
       await this.audit.record(m, actor, {
         action: 'user.create',
@@ -88,7 +79,7 @@ export class AuthService {
 
   async listUsers(): Promise<UserEntity[]> {
     // System accounts (the archive's) are nobody's to manage: they hold imported labels and never sign in.
-    return this.db.manager.find(UserEntity, { where: { isSystem: false }, order: { id: 'ASC' } });
+    return this.accounts.people();
   }
 
   /**
@@ -102,7 +93,7 @@ export class AuthService {
   ): Promise<UserEntity> {
     const passwordHash = change.password !== undefined ? await this.newPasswordHash(id, change.password) : undefined;
     return this.db.write(async (m) => {
-      const user = await m.findOneBy(UserEntity, { id });
+      const user = await this.accounts.userById(m, id);
       if (!user || user.isSystem) throw new AuthNotFound(`no user ${id}`);
       const before = { role: user.role, disabled: user.disabled };
       if (change.role !== undefined) user.role = change.role;
@@ -110,23 +101,20 @@ export class AuthService {
       if (passwordHash !== undefined) user.passwordHash = passwordHash;
       const stillAdmin = user.role === 'admin' && !user.disabled;
       if (before.role === 'admin' && !before.disabled && !stillAdmin) {
-        const others = await m.countBy(UserEntity, { role: 'admin', disabled: false });
+        const others = await this.accounts.enabledAdmins(m);
         // `others` still counts this user: the update is not written yet.
         if (others <= 1)
           throw new AuthConflict(
             `${user.name} is the last enabled admin: make another account admin before demoting or disabling this one`,
           );
       }
-      await m.update(
-        UserEntity,
-        { id },
-        { role: user.role, disabled: user.disabled, ...(passwordHash ? { passwordHash } : {}) },
-      );
+      await this.accounts.updateUser(m, id, {
+        role: user.role,
+        disabled: user.disabled,
+        ...(passwordHash ? { passwordHash } : {}),
+      });
       const revoke = change.disabled === true || passwordHash !== undefined;
-      const revoked = revoke
-        ? ((await m.update(CredentialEntity, { userId: id, revokedAt: IsNull() }, { revokedAt: new Date() }))
-            .affected ?? 0)
-        : 0;
+      const revoked = revoke ? await this.accounts.revokeAllOf(m, id, new Date()) : 0;
       this.forgetUser(id);
       await this.audit.record(m, actor, {
         action: 'user.update',
@@ -145,7 +133,7 @@ export class AuthService {
   }
 
   private async newPasswordHash(userId: number, password: string): Promise<string> {
-    const user = await this.db.manager.findOneBy(UserEntity, { id: userId });
+    const user = await this.accounts.userById(null, userId);
     const problem = passwordProblem(password, { userName: user?.name });
     if (problem) throw new AuthError(problem);
     return hashPassword(password);
@@ -162,7 +150,7 @@ export class AuthService {
     | { user: UserEntity; userId: number; reason: null }
     | { user: null; userId: number | null; reason: 'unknown name' | 'disabled' | 'no password' | 'wrong password' }
   > {
-    const user = await this.db.manager.findOneBy(UserEntity, { name });
+    const user = await this.accounts.userByName(null, name);
     const usable = user && !user.disabled && user.passwordHash !== null ? user : null;
     const ok = await verifyPassword(password, usable ? usable.passwordHash! : await dummyHash());
     if (usable && ok) return { user: usable, userId: usable.id, reason: null };
@@ -200,15 +188,13 @@ export class AuthService {
     const secret = newSecret('session');
     const expiresAt = new Date(Date.now() + this.config.sessionHours * 3600_000);
     await this.db.write(async (m) => {
-      await m.insert(CredentialEntity, {
+      await this.accounts.insertCredential(m, {
         userId: user.id,
         kind: 'session',
         secretHash: secretHash(secret),
         label: null,
         createdAt: new Date(),
         expiresAt,
-        revokedAt: null,
-        lastUsedAt: null,
       });
       await this.audit.record(
         m,
@@ -227,11 +213,11 @@ export class AuthService {
   /** Ends the session or revokes the token that authenticated the request; audited. */
   async logout(secret: string): Promise<void> {
     await this.db.write(async (m) => {
-      const cred = await m.findOneBy(CredentialEntity, { secretHash: secretHash(secret) });
+      const cred = await this.accounts.credentialBySecretHash(m, secretHash(secret));
       if (!cred || cred.revokedAt) return;
-      await m.update(CredentialEntity, { id: cred.id }, { revokedAt: new Date() });
+      await this.accounts.revoke(m, cred.id, new Date());
       this.cache.delete(cred.secretHash);
-      const user = await m.findOneBy(UserEntity, { id: cred.userId });
+      const user = await this.accounts.userById(m, cred.userId);
       await this.audit.record(
         m,
         { id: cred.userId, name: user?.name ?? '?' },
@@ -255,44 +241,23 @@ export class AuthService {
     const now = Date.now();
     const hit = this.cache.get(hash);
     if (hit && hit.until > now) return hit.principal;
-    const row = await this.db.queryOne<{
-      id: DbInt;
-      name: string;
-      role: Role;
-      disabled: boolean | number;
-      credential_id: DbInt;
-      kind: 'token' | 'session';
-      expires_at: unknown;
-      revoked_at: unknown;
-      last_used_at: unknown;
-    }>(
-      null,
-      'SELECT u.id, u.name, u.role, u.disabled, c.id AS credential_id, c.kind, c.expires_at, c.revoked_at, c.last_used_at FROM credentials c JOIN users u ON u.id = c.user_id WHERE c.secret_hash = $1',
-      [hash],
-    );
-    const expires = row ? this.db.parseTime(row.expires_at) : null;
-    const valid =
-      row &&
-      row.revoked_at === null &&
-      !(row.disabled === true || row.disabled === 1) &&
-      !(expires && expires.getTime() <= now);
+    const row = await this.accounts.credentialOwner(hash);
+    const valid = row && !row.revoked && !row.disabled && !(row.expiresAt && row.expiresAt.getTime() <= now);
     const principal: Principal | null = valid
-      ? { id: Number(row.id), name: row.name, role: row.role, via: row.kind }
+      ? { id: row.userId, name: row.name, role: row.role, via: row.kind }
       : null;
     if (this.cache.size > 10_000) this.cache.clear();
     this.cache.set(hash, { principal, until: now + AUTH_CACHE_MS, userId: principal?.id ?? null });
     if (principal) {
-      const last = this.db.parseTime(row!.last_used_at);
-      if (!last || now - last.getTime() > LAST_USED_EVERY_MS) this.touch(Number(row!.credential_id), new Date(now));
+      const last = row!.lastUsedAt;
+      if (!last || now - last.getTime() > LAST_USED_EVERY_MS) this.touch(row!.credentialId, new Date(now));
     }
     return principal;
   }
 
   /** Records when a credential was last used, at most every {@link LAST_USED_EVERY_MS}; off the request's path. */
   private touch(credentialId: number, at: Date): void {
-    void this.db
-      .write((m) => m.update(CredentialEntity, { id: credentialId }, { lastUsedAt: at }))
-      .catch(() => undefined);
+    void this.accounts.touch(credentialId, at).catch(() => undefined);
   }
 
   private forgetUser(userId: number): void {
@@ -313,17 +278,14 @@ export class AuthService {
     const expiresAt = options.never ? null : new Date(Date.now() + (options.days ?? this.config.tokenDays) * DAY_MS);
     const name = options.name ?? null;
     return this.db.write(async (m) => {
-      const r = await m.insert(CredentialEntity, {
+      const id = await this.accounts.insertCredential(m, {
         userId: principal.id,
         kind: 'token',
         secretHash: secretHash(token),
         label: name,
         createdAt: new Date(),
         expiresAt,
-        revokedAt: null,
-        lastUsedAt: null,
       });
-      const id = Number(r.identifiers[0]?.id);
       await this.audit.record(m, principal, {
         action: 'token.create',
         entityType: 'credential',
@@ -345,10 +307,7 @@ export class AuthService {
       expired: boolean;
     }>
   > {
-    const rows = await this.db.manager.find(CredentialEntity, {
-      where: { userId: principal.id, kind: 'token', revokedAt: IsNull() },
-      order: { id: 'DESC' },
-    });
+    const rows = await this.accounts.liveTokens(principal.id);
     const now = Date.now();
     return rows.map((r) => ({
       id: r.id,
@@ -363,14 +322,9 @@ export class AuthService {
   /** Revokes one of the user's own tokens; {@link AuthNotFound} for another's, an unknown or a revoked one. */
   async revokeToken(principal: Principal, id: number): Promise<void> {
     await this.db.write(async (m) => {
-      const cred = await m.findOneBy(CredentialEntity, {
-        id,
-        userId: principal.id,
-        kind: 'token',
-        revokedAt: IsNull(),
-      });
+      const cred = await this.accounts.liveToken(m, principal.id, id);
       if (!cred) throw new AuthNotFound(`you have no live token ${id}`);
-      await m.update(CredentialEntity, { id }, { revokedAt: new Date() });
+      await this.accounts.revoke(m, id, new Date());
       this.cache.delete(cred.secretHash);
       await this.audit.record(m, principal, {
         action: 'token.revoke',

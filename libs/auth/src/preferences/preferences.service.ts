@@ -1,6 +1,6 @@
 import { Inject, Injectable } from '@nestjs/common';
-import { Database } from '#database';
 import type { Principal } from '../principal.js';
+import { PreferencesRepository } from './preferences.repository.js';
 
 /** One account's own screen preferences; the same on every browser it signs in from. */
 export interface Preferences {
@@ -17,29 +17,18 @@ export const BREAK_MINUTES_MAX = 480;
 /** Reads and replaces the signed-in account's preferences (`user_preferences`, one JSON row per account). */
 @Injectable()
 export class PreferencesService {
-  constructor(@Inject(Database) private readonly db: Database) {}
+  constructor(@Inject(PreferencesRepository) private readonly stored: PreferencesRepository) {}
 
   async get(user: Principal): Promise<Preferences> {
-    const row = await this.db.queryOne<{ preferences: string }>(
-      null,
-      'SELECT preferences FROM user_preferences WHERE user_id = $1',
-      [user.id],
-    );
-    if (!row) return { ...DEFAULT_PREFERENCES };
+    const saved = await this.stored.get(user.id);
+    if (!saved) return { ...DEFAULT_PREFERENCES };
     // Members added later read their default until the account saves again.
-    return { ...DEFAULT_PREFERENCES, ...pick(JSON.parse(row.preferences) as Partial<Preferences>) };
+    return { ...DEFAULT_PREFERENCES, ...pick(saved) };
   }
 
   async put(user: Principal, preferences: Preferences): Promise<Preferences> {
     const clean = { ...DEFAULT_PREFERENCES, ...pick(preferences) };
-    await this.db.write(async (m) => {
-      await this.db.query(
-        m,
-        `INSERT INTO user_preferences (user_id, preferences, updated_at) VALUES ($1, $2, $3)
-         ON CONFLICT (user_id) DO UPDATE SET preferences = excluded.preferences, updated_at = excluded.updated_at`,
-        [user.id, JSON.stringify(clean), this.db.time(new Date())],
-      );
-    });
+    await this.stored.put(user.id, clean, new Date());
     return clean;
   }
 }
