@@ -33,6 +33,7 @@ import { Erasure1766700000000 } from './migrations/1766700000000-erasure.js';
 import { Retention1766700000001 } from './migrations/1766700000001-retention.js';
 import { LabelledArchives1766800000000 } from './migrations/1766800000000-labelled-archives.js';
 import { QueueComfort1766810000000 } from './migrations/1766810000000-queue-comfort.js';
+import { ScreeningMarker1766820000000 } from './migrations/1766820000000-screening-marker.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -73,6 +74,7 @@ export const MIGRATIONS = [
   Retention1766700000001,
   LabelledArchives1766800000000,
   QueueComfort1766810000000,
+  ScreeningMarker1766820000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */
