@@ -87,7 +87,8 @@ describe.each(DATABASE_KINDS)(
         await page.locator('details.wellbeing summary').click();
         await page.getByLabel('Blur each text until I reveal it').check();
         await page.locator('.item-shield.blurred').waitFor();
-        await expect(s.call(desk.rev, 'GET', '/api/me/preferences').then((r) => r.body.blurText)).resolves.toBe(true);
+        // The screen blurs at once; the saving request may still be on its way.
+        await expect.poll(async () => (await s.call(desk.rev, 'GET', '/api/me/preferences')).body.blurText).toBe(true);
         // `r` reveals, whatever has the focus (here the check box just clicked), and blurs again.
         await page.keyboard.press('r');
         await page.locator('.item-shield:not(.blurred)').waitFor();
