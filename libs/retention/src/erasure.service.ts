@@ -119,7 +119,7 @@ export class ErasureService {
   /** The desk's erasures, newest first. */
   async list(deskId: number): Promise<ErasureView[]> {
     deskOr404(deskId, await this.directory.get(deskId));
-    return (await this.repository.erasures(deskId)).map(({ outcome, ...e }) => ({ ...e, deskId, ...outcome }));
+    return (await this.repository.erasures(deskId)).map(({ id, outcome, ...e }) => ({ id, deskId, ...e, ...outcome }));
   }
 
   /**
