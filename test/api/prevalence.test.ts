@@ -1,35 +1,18 @@
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Prevalence } from '#models';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { answerFromLabels, importRows, type Answered } from '../support/labelled-desk.js';
+import {
+  answerFromLabels,
+  importRows,
+  screeningDesk,
+  SCREENING_CATEGORIES,
+  type Answered,
+} from '../support/labelled-desk.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
 
-const CATEGORIES = ['threat', 'harassment', 'ok'];
-
-interface Share {
-  share: number | null;
-  lower: number;
-  upper: number;
-  method: string;
-  randomVerdicts: number;
-}
-interface Answer {
-  modelVersion: number | null;
-  period: string;
-  by: string;
-  categories: string[];
-  method: string;
-  approximation: string;
-  undated: number;
-  periods: Array<{
-    start: string;
-    items: number;
-    randomVerdicts: number;
-    decided: number;
-    perCategory: Record<string, Share>;
-  }>;
-}
+const CATEGORIES = SCREENING_CATEGORIES;
 
 /** Posted times spread over January and February 2026 (UTC), one every few hours, fixed by the item's number. */
 const postedAt = (i: number) => new Date(Date.UTC(2026, 0, 1) + i * 5 * 3600_000);
@@ -46,18 +29,7 @@ describe.each(DATABASE_KINDS)('prevalence over time on %s', (kind) => {
     sup = await s.user('sup', 'supervisor');
     await s.user('aud', 'auditor');
     const reviewers = [await s.user('rev0', 'reviewer'), await s.user('rev1', 'reviewer')];
-    const d = await s.call(sup, 'POST', '/api/desks', {
-      name: 'prevalence',
-      categories: CATEGORIES,
-      seedTerms: { threat: ['hurt'], harassment: ['idiot'] },
-      secondOpinionShare: 0,
-      randomShare: 0.6,
-      retrainEvery: 40,
-      retrainAfterSeconds: 2,
-    });
-    expect(d.status).toBe(201);
-    deskId = d.body.id;
-    await s.enrol(deskId);
+    deskId = await screeningDesk(s, sup, 'prevalence');
     // One item without a posted time: left out of by=posted, counted by=imported.
     const rows: Array<Record<string, unknown>> = pool.map((p, i) => ({
       text: p.text,
@@ -74,7 +46,7 @@ describe.each(DATABASE_KINDS)('prevalence over time on %s', (kind) => {
   afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('gives each month’s share of each category with an interval that holds the true share', async () => {
-    const r = await s.call<Answer>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=month&by=posted`);
+    const r = await s.call<Prevalence>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=month&by=posted`);
     expect(r.status).toBe(200);
     const p = r.body;
     expect(p.modelVersion).not.toBeNull();
@@ -117,17 +89,18 @@ describe.each(DATABASE_KINDS)('prevalence over time on %s', (kind) => {
   });
 
   it('groups by week (Monday) or import day, exports CSV, and refuses unknown periods', async () => {
-    const weeks = (await s.call<Answer>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=week`)).body;
+    const weeks = (await s.call<Prevalence>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=week`)).body;
     expect(weeks.periods.every((x) => new Date(`${x.start}T00:00:00Z`).getUTCDay() === 1)).toBe(true);
     expect(weeks.periods[0].start).toBe('2025-12-29');
-    const imported = (await s.call<Answer>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=day&by=imported`)).body;
+    const imported = (await s.call<Prevalence>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=day&by=imported`))
+      .body;
     expect(imported.undated).toBe(0);
     expect(imported.periods.reduce((a, x) => a + x.items, 0)).toBe(pool.length);
 
     const csv = await s.call(s.tokens.aud, 'GET', `/api/desks/${deskId}/prevalence.csv?period=month&raw=1`);
     expect(csv.status).toBe(200);
     const rows = parse<Record<string, string>>(csv.body as string, { columns: true });
-    const month = (await s.call<Answer>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=month`)).body;
+    const month = (await s.call<Prevalence>(sup, 'GET', `/api/desks/${deskId}/prevalence?period=month`)).body;
     expect(rows).toHaveLength(month.periods.length * CATEGORIES.length);
     const feb = month.periods[1].perCategory.threat;
     const row = rows.find((x) => x.period_start === '2026-02-01' && x.category === 'threat')!;

@@ -1,11 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SCREENING_CACHE_BYTES, ScreeningCache } from '#models';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { answerFromLabels, importRows } from '../support/labelled-desk.js';
+import { answerFromLabels, importRows, screeningDesk } from '../support/labelled-desk.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
 
-const CATEGORIES = ['threat', 'harassment', 'ok'];
 const READS = ['/screening', '/prevalence?period=week', '/prevalence?period=day&by=imported'];
 
 /**
@@ -57,20 +56,7 @@ describe.each(DATABASE_KINDS)('the screening cache on %s', (kind) => {
     s = await startStack(kind);
     sup = await s.user('sup', 'supervisor');
     rev = await s.user('rev0', 'reviewer');
-    const d = await s.call(sup, 'POST', '/api/desks', {
-      name: 'cache',
-      categories: CATEGORIES,
-      seedTerms: { threat: ['hurt'], harassment: ['idiot'] },
-      watch: ['threat'],
-      coverageTargets: { threat: 0.8 },
-      secondOpinionShare: 0,
-      randomShare: 0.6,
-      retrainEvery: 40,
-      retrainAfterSeconds: 2,
-    });
-    expect(d.status).toBe(201);
-    deskId = d.body.id;
-    await s.enrol(deskId);
+    deskId = await screeningDesk(s, sup, 'cache', { watch: ['threat'], coverageTargets: { threat: 0.8 } });
     await importRows(
       s,
       sup,

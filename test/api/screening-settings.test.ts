@@ -1,11 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { trainingConditionalRank } from '#learning';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { answerFromLabels, importRows } from '../support/labelled-desk.js';
+import { answerFromLabels, importRows, screeningDesk, SCREENING_CATEGORIES } from '../support/labelled-desk.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
 
-const CATEGORIES = ['threat', 'harassment', 'ok'];
+const CATEGORIES = SCREENING_CATEGORIES;
 
 interface StoredScores {
   perCategory: { lac: number[][] };
@@ -30,18 +30,9 @@ describe.each(DATABASE_KINDS)('screening settings on %s', (kind) => {
     s = await startStack(kind);
     sup = await s.user('sup', 'supervisor');
     const reviewers = [await s.user('rev0', 'reviewer'), await s.user('rev1', 'reviewer')];
-    const d = await s.call(sup, 'POST', '/api/desks', {
-      name: 'screening settings',
-      categories: CATEGORIES,
+    deskId = await screeningDesk(s, sup, 'screening settings', {
       seedTerms: { threat: ['hurt', 'find you'], harassment: ['idiot'] },
-      secondOpinionShare: 0,
-      randomShare: 0.6,
-      retrainEvery: 40,
-      retrainAfterSeconds: 2,
     });
-    expect(d.status).toBe(201);
-    deskId = d.body.id;
-    await s.enrol(deskId);
     const pool = syntheticPool(1500, 11);
     await importRows(
       s,

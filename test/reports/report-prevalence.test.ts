@@ -1,49 +1,14 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Prevalence } from '#models';
+import type { PrevalenceSection } from '#reports';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { answerFromLabels, importRows } from '../support/labelled-desk.js';
+import { answerFromLabels, importRows, screeningDesk, SCREENING_CATEGORIES } from '../support/labelled-desk.js';
 import { startStack, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
 
-const CATEGORIES = ['threat', 'harassment', 'ok'];
+const CATEGORIES = SCREENING_CATEGORIES;
 /** Report figures are rounded to 6 decimal places. */
 const ROUNDED = 5e-7 + 1e-12;
-
-interface Share {
-  share: number | null;
-  lower: number;
-  upper: number;
-  method: string;
-  randomVerdicts: number;
-}
-interface ApiPrevalence {
-  modelVersion: number | null;
-  method: string;
-  approximation: string;
-  undated: number;
-  periods: Array<{
-    start: string;
-    items: number;
-    randomVerdicts: number;
-    decided: number;
-    perCategory: Record<string, Share>;
-  }>;
-}
-interface ReportPrevalence {
-  asOf: string;
-  modelVersion: number | null;
-  period: string;
-  by: string;
-  method: string;
-  approximation: string;
-  undated: number;
-  periods: Array<{
-    start: string;
-    items: number;
-    randomVerdicts: number;
-    decided: number;
-    perCategory: Array<Share & { category: string }>;
-  }>;
-}
 
 /** Posted times over five weeks of 2026 (UTC), one every three hours, fixed by the item's number. */
 const postedAt = (i: number) => new Date(Date.UTC(2026, 0, 5) + i * 3 * 3600_000);
@@ -61,18 +26,7 @@ describe.each(DATABASE_KINDS)('the prevalence in the oversight report on %s', (k
     sup = await s.user('sup', 'supervisor');
     aud = await s.user('aud', 'auditor');
     const reviewers = [await s.user('rev0', 'reviewer'), await s.user('rev1', 'reviewer')];
-    const d = await s.call(sup, 'POST', '/api/desks', {
-      name: 'report prevalence',
-      categories: CATEGORIES,
-      seedTerms: { threat: ['hurt'], harassment: ['idiot'] },
-      secondOpinionShare: 0,
-      randomShare: 0.6,
-      retrainEvery: 40,
-      retrainAfterSeconds: 2,
-    });
-    expect(d.status).toBe(201);
-    deskId = d.body.id;
-    await s.enrol(deskId);
+    deskId = await screeningDesk(s, sup, 'report prevalence');
     // The first item has no posted time: left out of the weekly figures, and counted as such.
     await importRows(
       s,
@@ -96,7 +50,7 @@ describe.each(DATABASE_KINDS)('the prevalence in the oversight report on %s', (k
   afterAll(async () => (s as Stack | undefined)?.stop());
 
   it('states, for the current version, the weekly prevalence that /prevalence gives, with intervals, methods and random verdicts', async () => {
-    const report = await s.call<{ prevalence: ReportPrevalence | null }>(
+    const report = await s.call<{ prevalence: PrevalenceSection | null }>(
       aud,
       'GET',
       `/api/desks/${deskId}/models/${version}/report.json`,
@@ -105,7 +59,7 @@ describe.each(DATABASE_KINDS)('the prevalence in the oversight report on %s', (k
     const r = report.body.prevalence!;
     expect(r).not.toBeNull();
     expect(r).toMatchObject({ modelVersion: version, period: 'week', by: 'posted', undated: 1 });
-    const api = (await s.call<ApiPrevalence>(aud, 'GET', `/api/desks/${deskId}/prevalence?period=week&by=posted`)).body;
+    const api = (await s.call<Prevalence>(aud, 'GET', `/api/desks/${deskId}/prevalence?period=week&by=posted`)).body;
     expect(r.method).toBe(api.method);
     expect(r.approximation).toBe(api.approximation);
     expect(r.periods.map((x) => x.start)).toEqual(api.periods.map((x) => x.start));
@@ -159,7 +113,7 @@ describe.each(DATABASE_KINDS)('the prevalence in the oversight report on %s', (k
     expect(res.status).toBe(200);
     const page = await res.text();
     const json = (
-      await s.call<{ prevalence: ReportPrevalence }>(aud, 'GET', `/api/desks/${deskId}/models/${version}/report.json`)
+      await s.call<{ prevalence: PrevalenceSection }>(aud, 'GET', `/api/desks/${deskId}/models/${version}/report.json`)
     ).body.prevalence;
     expect(page).toContain('<h2>Prevalence by week</h2>');
     expect(page).toContain('class="chart prevalence"');
@@ -178,7 +132,7 @@ describe.each(DATABASE_KINDS)('the prevalence in the oversight report on %s', (k
     expect(list.length).toBeGreaterThan(1);
     for (const r of list.filter((x) => x.status === 'ready')) {
       const f = (await s.call(aud, 'GET', `/api/desks/${deskId}/models/${r.version}/report.json`)).body as {
-        prevalence: ReportPrevalence | null;
+        prevalence: PrevalenceSection | null;
       };
       if (f.prevalence !== null) expect(f.prevalence.modelVersion).toBe(r.version);
     }

@@ -66,3 +66,32 @@ export async function answerFromLabels(
   );
   return answered;
 }
+
+/** The categories of the screening and prevalence tests' desks. */
+export const SCREENING_CATEGORIES = ['threat', 'harassment', 'ok'];
+
+/**
+ * A desk of {@link SCREENING_CATEGORIES} for the screening and prevalence tests, with the caller enrolled: first draws
+ * only, three in five leases uniformly random (many verdicts that calibrate and estimate), a retrain every 40 verdicts
+ * or 2 s after the first new one. `settings` adds to or overrides these.
+ */
+export async function screeningDesk(
+  s: Stack,
+  token: string,
+  name: string,
+  settings: Record<string, unknown> = {},
+): Promise<number> {
+  const d = await s.call(token, 'POST', '/api/desks', {
+    name,
+    categories: SCREENING_CATEGORIES,
+    seedTerms: { threat: ['hurt'], harassment: ['idiot'] },
+    secondOpinionShare: 0,
+    randomShare: 0.6,
+    retrainEvery: 40,
+    retrainAfterSeconds: 2,
+    ...settings,
+  });
+  expect(d.status).toBe(201);
+  await s.enrol(d.body.id);
+  return d.body.id as number;
+}
