@@ -17,21 +17,12 @@ import {
   trainLogisticModel,
   type RehearsalResult,
 } from '#learning';
+import { memoryIo } from '../../apps/cli/src/cli-command.js';
 import { rehearseCommand } from '../../apps/cli/src/rehearse.command.js';
 import { loadSpamAssassin, SPAM_ASSASSIN_CATEGORIES } from '../../bench/spam-assassin.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'rehearse-start-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function capture() {
-  let out = '';
-  let err = '';
-  return {
-    io: { stdout: { write: (s: string) => ((out += s), true) }, stderr: { write: (s: string) => ((err += s), true) } },
-    out: () => out,
-    err: () => err,
-  };
-}
 
 describe('rehearse --start-from on SpamAssassin', () => {
   const corpus = shuffleInPlace(loadSpamAssassin(), createRng(15));
@@ -68,7 +59,7 @@ describe('rehearse --start-from on SpamAssassin', () => {
     );
     const args = ['--input', poolFile, '--start', '20', '--batch', '40', '--budget', '320', '--seed', '3'];
 
-    const json = capture();
+    const json = memoryIo();
     expect(await rehearseCommand([...args, '--start-from', modelFile, '--json'], json.io)).toBe(0);
     const result = JSON.parse(json.out()) as RehearsalResult;
     const t = result.startFrom!;
@@ -86,7 +77,7 @@ describe('rehearse --start-from on SpamAssassin', () => {
     expect(withStart!).toBeLessThanOrEqual(without!);
     expect(t.verdictsSaved['0.95']).toBe(without! - withStart!);
 
-    const text = capture();
+    const text = memoryIo();
     expect(await rehearseCommand([...args, '--start-from', modelFile], text.io)).toBe(0);
     expect(text.out()).toContain('started from version 3 of desk mail archive (id 7)');
     expect(text.out()).toContain(`with the start ${withStart} verdicts, without ${without} verdicts`);
@@ -104,7 +95,7 @@ describe('rehearse --start-from on SpamAssassin', () => {
   it('refuses a file that is not a model file, naming it (exit 1)', async () => {
     const bad = join(dir, 'not-a-model.json');
     writeFileSync(bad, JSON.stringify({ type: 'cribra.idf-table' }));
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand(['--input', poolFile, '--start-from', bad], c.io)).toBe(1);
     expect(c.err()).toContain(`--start-from ${bad}: not a model file`);
   });

@@ -8,21 +8,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { createRng, shuffleInPlace, type RehearsalResult } from '#learning';
+import { memoryIo } from '../../apps/cli/src/cli-command.js';
 import { rehearseCommand } from '../../apps/cli/src/rehearse.command.js';
 import { loadSpamAssassin } from '../../bench/spam-assassin.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'rehearse-watch-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function capture() {
-  let out = '';
-  let err = '';
-  return {
-    io: { stdout: { write: (s: string) => ((out += s), true) }, stderr: { write: (s: string) => ((err += s), true) } },
-    out: () => out,
-    err: () => err,
-  };
-}
 
 describe('rehearse --watch on SpamAssassin', () => {
   // 1 500 messages keep the run short; the three categories in their corpus shares (about a third spam).
@@ -53,7 +44,7 @@ describe('rehearse --watch on SpamAssassin', () => {
       '--seed',
       '4',
     ];
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand([...args, ...run, '--json'], c.io)).toBe(0);
     const result = JSON.parse(c.out()) as RehearsalResult;
     expect(result.calibration).toBe('per-category');

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
   commandHelp,
   defineCommand,
+  memoryIo,
   numberOption,
   parseCommandArgs,
   runEntry,
@@ -10,16 +11,6 @@ import {
   type CliEntry,
 } from './cli-command.js';
 import { allCommands } from './commands.js';
-
-function capture() {
-  let out = '';
-  let err = '';
-  return {
-    io: { stdout: { write: (s: string) => (out += s) }, stderr: { write: (s: string) => (err += s) } },
-    out: () => out,
-    err: () => err,
-  };
-}
 
 function leaves(entry: CliEntry): CliCommand[] {
   return entry.kind === 'command' ? [entry] : entry.commands.flatMap(leaves);
@@ -60,7 +51,7 @@ describe('the command-line parser', () => {
   });
 
   it('answers a usage error with the message and the usage line on stderr, exit 2', async () => {
-    const c = capture();
+    const c = memoryIo();
     expect(await runEntry(sample, ['--colour', 'red'], c.io)).toBe(2);
     expect(c.err()).toContain('sample: --name is required');
     expect(c.err()).toContain('usage: cribra sample --name NAME [--colour COLOUR] [--tag TAG] [--loud]');
@@ -68,7 +59,7 @@ describe('the command-line parser', () => {
   });
 
   it('prints help on stdout with every option described, exit 0, even when required options are missing', async () => {
-    const c = capture();
+    const c = memoryIo();
     expect(await runEntry(sample, ['--help'], c.io)).toBe(0);
     expect(c.out()).toMatch(/--colour COLOUR +a colour \(one of red, blue\)/);
     expect(c.out()).toMatch(/-l, --loud +shout/);
@@ -95,7 +86,7 @@ describe('every cribra command', () => {
     const commands = leaves(top);
     expect(commands.map((c) => c.name)).toEqual(expect.arrayContaining(['start', 'user add', 'migrate', 'rehearse']));
     for (const command of commands) {
-      const c = capture();
+      const c = memoryIo();
       expect(await runEntry(top, [...command.name.split(' '), '--help'], c.io), command.name).toBe(0);
       expect(c.out()).toBe(commandHelp(command));
       expect(command.summary.length, command.name).toBeGreaterThan(10);
@@ -106,7 +97,7 @@ describe('every cribra command', () => {
         expect(flat, `${command.name} --${name}`).toContain(option.description);
       }
     }
-    const c = capture();
+    const c = memoryIo();
     expect(await runEntry(top, ['--help'], c.io)).toBe(0);
     for (const entry of top.commands) expect(c.out().replace(/\s+/g, ' ')).toContain(entry.summary);
   });

@@ -38,6 +38,17 @@ export interface CliIo {
   stderr: { write(chunk: string): unknown };
 }
 
+/** A {@link CliIo} that keeps what a command writes, for tests and for callers that run a command in-process. */
+export function memoryIo(): { io: CliIo; out: () => string; err: () => string } {
+  let out = '';
+  let err = '';
+  return {
+    io: { stdout: { write: (s: string) => ((out += s), true) }, stderr: { write: (s: string) => ((err += s), true) } },
+    out: () => out,
+    err: () => err,
+  };
+}
+
 /** A positional argument a command takes. */
 export interface CliPositional {
   readonly name: string;

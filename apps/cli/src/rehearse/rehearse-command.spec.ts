@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { createRng, type RehearsalResult } from '#learning';
+import { memoryIo } from '../cli-command.js';
 import { rehearseCommand } from '../rehearse.command.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'rehearse-'));
@@ -29,20 +30,6 @@ function generate(path: string, n: number, seed: number): void {
   writeFileSync(path, lines.join('\n') + '\n');
 }
 
-function capture(): {
-  io: { stdout: { write(s: string): boolean }; stderr: { write(s: string): boolean } };
-  out: () => string;
-  err: () => string;
-} {
-  let out = '';
-  let err = '';
-  return {
-    io: { stdout: { write: (s: string) => ((out += s), true) }, stderr: { write: (s: string) => ((err += s), true) } },
-    out: () => out,
-    err: () => err,
-  };
-}
-
 describe('rehearse command', () => {
   const file = join(dir, 'posts.jsonl');
   generate(file, 400, 1);
@@ -62,7 +49,7 @@ describe('rehearse command', () => {
   ];
 
   it('prints one JSON object with the curve, the full model and labels to reach', async () => {
-    const c = capture();
+    const c = memoryIo();
     const code = await rehearseCommand([...base, '--json', '--compare-random', '--calibration', 'per-category'], c.io);
     // 80 verdicts, a fifth of them random after the 10 start ones: about 1 calibration verdict for the rare food
     // class, where per-category coverage 0.9 needs ⌈1/0.1⌉ − 1 = 9 of each.
@@ -108,7 +95,7 @@ describe('rehearse command', () => {
   });
 
   it('runs several seeds with --seeds, tunes C by cross-validation with --tune, and prints medians and ranges', async () => {
-    const c = capture();
+    const c = memoryIo();
     const args = [...base.slice(0, -2), '--seeds', '1-2,5', '--tune', '--folds', '2'];
     expect(await rehearseCommand([...args, '--json'], c.io)).toBe(0);
     const out = JSON.parse(c.out()) as {
@@ -125,7 +112,7 @@ describe('rehearse command', () => {
       expect(t.scores.map((s) => s.c)).toEqual([0.1, 0.3, 1, 3, 10, 30]);
       expect(out.runs[i].c).toBe(t.c);
     }
-    const table = capture();
+    const table = memoryIo();
     expect(await rehearseCommand([...base.slice(0, -2), '--seeds', '1,2'], table.io)).toBe(0);
     expect(table.out()).toMatch(/median \(lowest–highest\) over the seeds/);
     expect(table.out()).toMatch(/coverage of food: open /);
@@ -133,7 +120,7 @@ describe('rehearse command', () => {
   });
 
   it('describes every option in --help', async () => {
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand(['--help'], c.io)).toBe(0);
     for (const option of [
       'input',
@@ -153,8 +140,8 @@ describe('rehearse command', () => {
   });
 
   it('is reproducible for a seed', async () => {
-    const a = capture();
-    const b = capture();
+    const a = memoryIo();
+    const b = memoryIo();
     await rehearseCommand([...base, '--json'], a.io);
     await rehearseCommand([...base, '--json'], b.io);
     const strip = (s: string) => {
@@ -166,7 +153,7 @@ describe('rehearse command', () => {
   });
 
   it('prints a table and a progress bar without --json', async () => {
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand([...base, '--score', 'aps'], c.io)).toBe(0);
     expect(c.out()).toMatch(/macro-F1/);
     expect(c.out()).toMatch(/full pool model: accuracy/);
@@ -186,7 +173,7 @@ describe('rehearse command', () => {
         '{"text":"RAIN and  wind 0","topic":"weather"}',
       ].join('\n') + '\n',
     );
-    const c = capture();
+    const c = memoryIo();
     const code = await rehearseCommand(
       ['--input', mixed, '--label-field', 'topic', '--start', '4', '--batch', '2', '--budget', '8', '--json'],
       c.io,
@@ -213,18 +200,18 @@ describe('rehearse command', () => {
       [csv, 'csv'],
       [json, 'json'],
     ]) {
-      const c = capture();
+      const c = memoryIo();
       expect(await rehearseCommand(['--input', file, ...args], c.io), c.err()).toBe(0);
       expect(JSON.parse(c.out()).input).toEqual({ format, rows: 40, used: 40, rejected: 0, duplicates: 0 });
     }
     const unknown = join(dir, 'posts.txt');
     writeFileSync(unknown, 'text\n');
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand(['--input', unknown], c.io)).toBe(2);
     expect(c.err()).toMatch(/add --format ndjson, csv or json/);
     const broken = join(dir, 'broken.json');
     writeFileSync(broken, '{"text": "not an array"}');
-    const b = capture();
+    const b = memoryIo();
     expect(await rehearseCommand(['--input', broken], b.io)).toBe(1);
     expect(b.err()).toMatch(/broken\.json: .*array/);
   });
@@ -232,16 +219,16 @@ describe('rehearse command', () => {
   it('says so when no row has a label or all have one class', async () => {
     const missing = join(dir, 'missing.jsonl');
     writeFileSync(missing, '{"text":"a"}\n{"text":"b"}\n');
-    const c1 = capture();
+    const c1 = memoryIo();
     expect(await rehearseCommand(['--input', missing, '--label-field', 'topic'], c1.io)).toBe(1);
     expect(c1.err()).toMatch(/row 2: missing label 'topic'/);
     expect(c1.err()).toMatch(/holds no usable rows \(2 read, 2 rejected\)/);
     const one = join(dir, 'one.jsonl');
     writeFileSync(one, '{"text":"a","topic":"x"}\n{"text":"b","topic":"x"}\n');
-    const c2 = capture();
+    const c2 = memoryIo();
     expect(await rehearseCommand(['--input', one, '--label-field', 'topic'], c2.io)).toBe(1);
     expect(c2.err()).toMatch(/only one class \("x"\)/);
-    const field = capture();
+    const field = memoryIo();
     expect(await rehearseCommand(['--input', one, '--label-field', 'text'], field.io)).toBe(2);
     expect(field.err()).toMatch(/names an item field/);
   });
@@ -263,17 +250,17 @@ describe('rehearse command', () => {
     ];
     const minimal = ['--input', file, '--start', '10'];
     for (const [extra, message] of cases) {
-      const c = capture();
+      const c = memoryIo();
       expect(await rehearseCommand([...minimal, ...extra], c.io)).toBe(2);
       expect(c.err()).toMatch(message);
     }
-    const twice = capture();
+    const twice = memoryIo();
     expect(await rehearseCommand([...base, '--seed', '4'], twice.io)).toBe(2);
     expect(twice.err()).toMatch(/--seed is given 2 times/);
-    const c = capture();
+    const c = memoryIo();
     expect(await rehearseCommand(['--json'], c.io)).toBe(2);
     expect(c.err()).toMatch(/--input is required/);
-    const n = capture();
+    const n = memoryIo();
     expect(await rehearseCommand(['--input', join(dir, 'nope.jsonl')], n.io)).toBe(1);
     expect(n.err()).toMatch(/cannot read/);
   });
@@ -284,7 +271,7 @@ describe('rehearse command', () => {
     const watchArgs = [...base, '--watch', 'food', '--random-share', '0.5'];
 
     it('prints the screening of the watched category at each point and at the end', async () => {
-      const c = capture();
+      const c = memoryIo();
       expect(await rehearseCommand([...watchArgs, '--seed-terms', seedFile], c.io)).toBe(0);
       const out = c.out();
       expect(out).toMatch(/screening of the watched categories on the open items, at each point:/);
@@ -297,7 +284,7 @@ describe('rehearse command', () => {
     });
 
     it('gives each point its screening with --json, consistent with the open items', async () => {
-      const c = capture();
+      const c = memoryIo();
       expect(await rehearseCommand([...watchArgs, '--json'], c.io)).toBe(0);
       const result = JSON.parse(c.out()) as RehearsalResult;
       expect(result.calibration).toBe('per-category');
@@ -324,7 +311,7 @@ describe('rehearse command', () => {
         [['--watch', 'food', '--screen-share', '0.9'], /may not add up to more than 1/],
       ];
       for (const [extra, message] of usage) {
-        const c = capture();
+        const c = memoryIo();
         expect(await rehearseCommand([...base, ...extra], c.io)).toBe(2);
         expect(c.err()).toMatch(message);
       }
@@ -338,7 +325,7 @@ describe('rehearse command', () => {
         [unknown, /seedTerms\.drink: not a category of this desk; seedTerms\.food: expected a list of strings/],
       ];
       for (const [file, message] of input) {
-        const c = capture();
+        const c = memoryIo();
         expect(await rehearseCommand([...base, '--watch', 'food', '--seed-terms', file], c.io)).toBe(1);
         expect(c.err()).toMatch(message);
       }
