@@ -100,6 +100,41 @@ describe.each(DATABASE_KINDS)('the dialect seam on %s', (kind) => {
     }
   });
 
+  it('takes the weaker no-key lock: a second locker waits, a row that refers to the locked one goes in', async () => {
+    expect(db.lockRows({ noKey: true })).toBe(kind === 'postgres' ? ' FOR NO KEY UPDATE' : '');
+    if (kind === 'sqlite') return; // the write transaction is the lock (above)
+    await db.query(null, 'CREATE TABLE seam_parent (id integer PRIMARY KEY)');
+    await db.query(
+      null,
+      'CREATE TABLE seam_child (id integer PRIMARY KEY, parent_id integer NOT NULL REFERENCES seam_parent (id))',
+    );
+    await db.query(null, 'INSERT INTO seam_parent (id) VALUES (1)');
+    let release!: () => void;
+    const held = new Promise<void>((r) => (release = r));
+    let locked!: () => void;
+    const taken = new Promise<void>((r) => (locked = r));
+    const first = db.write(async (m) => {
+      await db.query(m, `SELECT id FROM seam_parent WHERE id = 1${db.lockRows({ noKey: true })}`);
+      locked();
+      await held;
+    });
+    await taken;
+    // A child row goes in while the parent is locked: its foreign-key check takes only a key-share lock.
+    await db.write((m) => db.query(m, 'INSERT INTO seam_child (id, parent_id) VALUES (1, 1)'));
+    // A second no-key locker waits for the first.
+    let secondLocked = false;
+    const second = db.write(async (m) => {
+      await db.query(m, `SELECT id FROM seam_parent WHERE id = 1${db.lockRows({ noKey: true })}`);
+      secondLocked = true;
+    });
+    await new Promise((r) => setTimeout(r, 200));
+    expect(secondLocked).toBe(false);
+    release();
+    await first;
+    await second;
+    expect(secondLocked).toBe(true);
+  });
+
   it('inserts rows in bulk, skipping those that collide', async () => {
     await db.query(
       null,

@@ -25,6 +25,11 @@ export interface RowLock {
   of?: string;
   /** Leave rows another transaction holds out of the answer instead of waiting for them. */
   skipLocked?: boolean;
+  /**
+   * PostgreSQL's weaker `FOR NO KEY UPDATE`: it still serialises the transactions that take it, but does not hold up
+   * inserts of rows that refer to the locked one (their foreign-key checks take `FOR KEY SHARE`).
+   */
+  noKey?: boolean;
 }
 
 /**
@@ -133,7 +138,7 @@ export class Database {
    */
   lockRows(lock: RowLock = {}): string {
     if (!this.pg) return '';
-    return ` FOR UPDATE${lock.of ? ` OF ${lock.of}` : ''}${lock.skipLocked ? ' SKIP LOCKED' : ''}`;
+    return ` FOR ${lock.noKey ? 'NO KEY ' : ''}UPDATE${lock.of ? ` OF ${lock.of}` : ''}${lock.skipLocked ? ' SKIP LOCKED' : ''}`;
   }
 
   /** Reads a boolean column of a raw query (SQLite keeps booleans as 0 and 1; as parameters, TypeORM binds them so). */

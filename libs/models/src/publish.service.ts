@@ -1,11 +1,13 @@
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { Database } from '#database';
+import { Database, type DbInt } from '#database';
 import { JOBS, JobQueueService, type PublishVersionPayload } from '#queues';
 
 /**
  * Makes a fully scored version current, in one transaction: every scored
  * item takes its new priority and the desk switches version. Reviewers
- * never see a half-scored pool; a superseded version is discarded.
+ * never see a half-scored pool; a superseded version is discarded, and so is
+ * one older than the version already current (two may score at once: see
+ * versionsToSupersede).
  */
 @Injectable()
 export class PublishService {
@@ -19,13 +21,27 @@ export class PublishService {
   async run(p: PublishVersionPayload): Promise<{ published: boolean; reason?: string }> {
     const started = Date.now();
     const result = await this.db.write(async (m) => {
-      const lock = this.db.pg ? ' FOR UPDATE' : '';
+      // The desk row first: the lock a version takes to change state (TrainingService takes it too).
+      const desk = await this.db.queryOne<{ current: DbInt | null }>(
+        m,
+        `SELECT current_model_version AS current FROM desks WHERE id = $1${this.db.lockRows({ noKey: true })}`,
+        [p.deskId],
+      );
       const v = await this.db.queryOne<{ state: string; timings: string }>(
         m,
-        `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${lock}`,
+        `SELECT state, timings FROM model_versions WHERE desk_id = $1 AND version = $2${this.db.lockRows()}`,
         [p.deskId, p.version],
       );
       if (!v || v.state !== 'scoring') return { published: false, reason: `version is ${v?.state ?? 'gone'}` };
+      // A newer version was published while this one scored (both may score at once): this one is stale.
+      const current = desk?.current == null ? null : Number(desk.current);
+      if (current !== null && current > p.version) {
+        await this.db.query(m, `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version = $2`, [
+          p.deskId,
+          p.version,
+        ]);
+        return { published: false, reason: `version ${current} is newer and current` };
+      }
       // Fresh statistics on the rows the chunks just wrote, so the planner joins them by hash rather than row by row.
       // Only the join columns: statistics of the probabilities text would cost time and guide nothing.
       if (this.db.pg) await this.db.query(m, 'ANALYZE predictions (desk_id, model_version, item_id)');
@@ -43,6 +59,12 @@ export class PublishService {
         m,
         `UPDATE model_versions SET state = 'published', published_at = $1, timings = $2 WHERE desk_id = $3 AND version = $4`,
         [this.db.time(new Date()), JSON.stringify(timings), p.deskId, p.version],
+      );
+      // Older versions still on their way would only be refused when they finish: they stop now.
+      await this.db.query(
+        m,
+        `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version < $2 AND state IN ('training', 'scoring')`,
+        [p.deskId, p.version],
       );
       return { published: true };
     });

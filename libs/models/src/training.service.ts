@@ -31,6 +31,7 @@ import { JobQueueService, type RetrainDeskPayload } from '#queues';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-scheduler.service.js';
 import { enqueueScoring } from './scoring-flow.js';
+import { versionsToSupersede, type VersionOnItsWay } from './supersede.js';
 import { trainInThread } from './training-protocol.js';
 
 /** Items per scoring chunk: each chunk is its own job, taken by any worker process. */
@@ -246,7 +247,17 @@ export class TrainingService {
       calibrateMs: tDone - tCal,
       scoringStartedAt: Date.now(),
     };
-    await this.db.write(async (m) => {
+    const stopped = await this.db.write(async (m) => {
+      // The desk row is the lock every version of the desk takes to change state (training ends, publishing), so the
+      // versions on their way are read and stopped consistently.
+      await this.db.query(m, `SELECT id FROM desks WHERE id = $1${this.db.lockRows({ noKey: true })}`, [deskId]);
+      const onTheirWay = await this.db.query<{ version: DbInt; state: VersionOnItsWay['state'] }>(
+        m,
+        `SELECT version, state FROM model_versions WHERE desk_id = $1 AND state IN ('training', 'scoring')`,
+        [deskId],
+      );
+      // A newer version published while this one trained: it stopped this one, which stays stopped.
+      if (!onTheirWay.some((v) => Number(v.version) === version)) return true;
       await m.update(
         ModelVersionEntity,
         { jobKey },
@@ -258,13 +269,23 @@ export class TrainingService {
           timings: timings,
         },
       );
-      // A newer version supersedes older ones still on their way: they stop and are discarded.
-      await this.db.query(
-        m,
-        `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version < $2 AND state IN ('training', 'scoring')`,
-        [deskId, version],
+      // Older versions still on their way stop, except the oldest one scoring (versionsToSupersede says why).
+      const stop = versionsToSupersede(
+        version,
+        onTheirWay.map((v) => ({ version: Number(v.version), state: v.state })),
       );
+      if (stop.length > 0)
+        await this.db.query(
+          m,
+          `UPDATE model_versions SET state = 'superseded' WHERE desk_id = $1 AND version IN (${this.db.inList(stop.length, 2)})`,
+          [deskId, ...stop],
+        );
+      return false;
     });
+    if (stopped) {
+      this.logger.log(`desk ${deskId} v${version}: a newer version was published while it trained; stopped`);
+      return { version, reason: 'superseded while training' };
+    }
     await this.startScoring(deskId, version, chunkSize);
     this.logger.log(
       `desk ${deskId} v${version}: trained on ${train.length}, calibrated on ${calib.length} in ${Math.round(tDone - t0)} ms`,
