@@ -35,7 +35,7 @@ describe.each(DATABASE_KINDS)('the change marker on %s', (kind) => {
       await ds.query('SET enable_seqscan = off');
       const [{ 'QUERY PLAN': plan }] = await ds.query<Array<{ 'QUERY PLAN': unknown }>>(
         `EXPLAIN (FORMAT JSON) ${CHANGE_MARKER_SQL}`,
-        [1],
+        [1, 1],
       );
       const scans: Array<{ type: string; index?: string }> = [];
       const walk = (node: PlanNode): void => {
@@ -46,8 +46,8 @@ describe.each(DATABASE_KINDS)('the change marker on %s', (kind) => {
       expect(scans).toEqual([{ type: 'Index Only Scan', index: 'ix_items_marker' }]);
     } else {
       const plan = await ds.query<Array<{ detail: string }>>(
-        `EXPLAIN QUERY PLAN ${CHANGE_MARKER_SQL.replace(/\$1/g, '?')}`,
-        [1, 1, 1],
+        `EXPLAIN QUERY PLAN ${CHANGE_MARKER_SQL.replace(/\$[12]/g, '?')}`,
+        [1, 1, 1, 1],
       );
       const items = plan.map((r) => r.detail).filter((d) => /\bitems\b/.test(d));
       expect(items).toEqual([expect.stringMatching(/USING COVERING INDEX ix_items_marker/)]);

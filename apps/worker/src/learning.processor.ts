@@ -10,6 +10,7 @@ import {
   type PublishVersionPayload,
   type RetrainDeskPayload,
   type ScoreChunkPayload,
+  type ScoreNewItemsPayload,
   type SweepDesksPayload,
 } from '#queues';
 
@@ -33,6 +34,19 @@ export class ScoreChunkProcessor implements JobHandler<'score-chunk'> {
 
   handle(job: Job<ScoreChunkPayload>): Promise<unknown> {
     return this.scoring.run(job.data);
+  }
+}
+
+@Injectable()
+export class ScoreNewItemsProcessor implements JobHandler<'score-new-items'> {
+  readonly jobName = JOBS.scoreNewItems;
+  constructor(
+    @Inject(ScoringService) private readonly scoring: ScoringService,
+    @Inject(APP_CONFIG) private readonly config: AppConfig,
+  ) {}
+
+  handle(job: Job<ScoreNewItemsPayload>): Promise<unknown> {
+    return this.scoring.scoreNew(job.data.deskId, this.config.scoringChunkSize);
   }
 }
 

@@ -23,6 +23,7 @@ import {
   PublishVersionProcessor,
   RetrainDeskProcessor,
   ScoreChunkProcessor,
+  ScoreNewItemsProcessor,
   SweepDesksProcessor,
 } from './learning.processor.js';
 import { SimulateReviewerProcessor } from './simulation.processor.js';
@@ -148,6 +149,7 @@ export const PROCESSORS = [
   ReseedDeskProcessor,
   RetrainDeskProcessor,
   ScoreChunkProcessor,
+  ScoreNewItemsProcessor,
   PublishVersionProcessor,
   SweepDesksProcessor,
   SimulateReviewerProcessor,

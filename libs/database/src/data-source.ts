@@ -34,6 +34,7 @@ import { Retention1766700000001 } from './migrations/1766700000001-retention.js'
 import { LabelledArchives1766800000000 } from './migrations/1766800000000-labelled-archives.js';
 import { QueueComfort1766810000000 } from './migrations/1766810000000-queue-comfort.js';
 import { ScreeningMarker1766820000000 } from './migrations/1766820000000-screening-marker.js';
+import { MarkerScored1766830000000 } from './migrations/1766830000000-marker-scored.js';
 
 /** Every entity, listed explicitly. */
 export function entitySchemas(dialect: Dialect) {
@@ -75,6 +76,7 @@ export const MIGRATIONS = [
   LabelledArchives1766800000000,
   QueueComfort1766810000000,
   ScreeningMarker1766820000000,
+  MarkerScored1766830000000,
 ];
 
 /** Builds (does not connect) the TypeORM data source for a database configuration. */

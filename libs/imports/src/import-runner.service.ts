@@ -187,7 +187,11 @@ export class ImportRunner {
     // Fresh planner statistics: without them the queue's lease queries can choose a full sort of the pool
     // (autovacuum may be off or late; SQLite has no automatic statistics at all).
     await this.db.query(null, 'ANALYZE items');
-    // New items need scoring: with a model, that is a retrain request.
+    // New items need scoring: with a model, the current version scores them at once; new verdicts may also bring a
+    // retrain (and a desk started from another desk's model retrains on its imports).
+    await this.jobs
+      .add(JOBS.scoreNewItems, { deskId: imp.deskId, cause: `import-${importId}` })
+      .catch((e: unknown) => this.logger.warn(`scoring request after import failed: ${(e as Error).message}`));
     await this.retrain
       .check(imp.deskId, 'import')
       .catch((e: unknown) => this.logger.warn(`retrain request after import failed: ${(e as Error).message}`));

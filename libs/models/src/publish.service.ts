@@ -82,7 +82,11 @@ export class PublishService {
         ),
       );
     }
-    if (result.published) this.logger.log(`desk ${p.deskId}: version ${p.version} is current`);
+    if (result.published) {
+      this.logger.log(`desk ${p.deskId}: version ${p.version} is current`);
+      // Items imported while this version scored were not in its chunks: it scores them now.
+      await this.jobs.add(JOBS.scoreNewItems, { deskId: p.deskId, cause: `v${p.version}` });
+    }
     // The oversight report of the version now current; also on a retry after the switch, in case that enqueue was lost.
     if (result.published || result.reason === 'version is published')
       await this.jobs.add(JOBS.writeReport, { deskId: p.deskId, version: p.version });

@@ -9,6 +9,7 @@ export {
   type ReseedDeskPayload,
   type RetrainDeskPayload,
   type ScoreChunkPayload,
+  type ScoreNewItemsPayload,
   type PublishVersionPayload,
   type SweepDesksPayload,
   type SimulateReviewerPayload,

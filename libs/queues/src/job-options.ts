@@ -50,6 +50,16 @@ export function jobOptions<N extends JobName>(name: N, payload: JobPayloads[N]):
         failParentOnFailure: true,
       };
     }
+    case JOBS.scoreNewItems: {
+      // One job per cause (an import, a publication): a later import is a new job, a retry the same one.
+      const p = payload as JobPayloads['score-new-items'];
+      return {
+        ...vanish,
+        jobId: `score-new-${p.deskId}-${p.cause}`,
+        attempts: 5,
+        backoff: { type: 'exponential', delay: 1000 },
+      };
+    }
     case JOBS.publishVersion: {
       const p = payload as JobPayloads['publish-version'];
       return {

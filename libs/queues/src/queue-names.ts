@@ -29,6 +29,8 @@ export const JOBS = {
   scoreChunk: 'score-chunk',
   /** Make a fully scored version current (the parent of its score-chunk jobs). */
   publishVersion: 'publish-version',
+  /** Score a desk's open items that its current version has not scored (imported since), under that version. */
+  scoreNewItems: 'score-new-items',
   /** Find desks whose newest verdicts no version has learned from (e.g. taken while Redis was down). */
   sweepDesks: 'sweep-desks',
   /** Run the simulated reviewer on a demo desk until a given time or until stopped. */
@@ -50,6 +52,12 @@ export interface ImportFilePayload {
 
 export interface ReseedDeskPayload {
   deskId: number;
+}
+
+export interface ScoreNewItemsPayload {
+  deskId: number;
+  /** What asked for it (an import's id, or the version just published): part of the job id. */
+  cause: string;
 }
 
 export interface RetrainDeskPayload {
@@ -107,6 +115,7 @@ export const JOB_QUEUE: Record<JobName, QueueName> = {
   [JOBS.retrainDesk]: QUEUES.learning,
   [JOBS.publishVersion]: QUEUES.learning,
   [JOBS.scoreChunk]: QUEUES.scoring,
+  [JOBS.scoreNewItems]: QUEUES.scoring,
   [JOBS.simulateReviewer]: QUEUES.simulation,
   [JOBS.writeReport]: QUEUES.reports,
   [JOBS.countTerms]: QUEUES.maintenance,
@@ -119,6 +128,7 @@ export interface JobPayloads {
   [JOBS.reseedDesk]: ReseedDeskPayload;
   [JOBS.retrainDesk]: RetrainDeskPayload;
   [JOBS.scoreChunk]: ScoreChunkPayload;
+  [JOBS.scoreNewItems]: ScoreNewItemsPayload;
   [JOBS.publishVersion]: PublishVersionPayload;
   [JOBS.sweepDesks]: SweepDesksPayload;
   [JOBS.simulateReviewer]: SimulateReviewerPayload;

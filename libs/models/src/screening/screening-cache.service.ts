@@ -4,6 +4,9 @@ import type { LoadedModel } from '../model-store.service.js';
 import { PredictionsService } from '../predictions.service.js';
 import { ScreeningRepository, type DecidedAt, type PeriodBasis, type RandomLabel } from './screening.repository.js';
 
+/** A version's predictions grew after they were read: items imported after it were scored under it since. */
+class ScoredSince extends Error {}
+
 /**
  * The open pool of a desk as both screening reads need it, under one
  * version and one state of the database (its change marker).
@@ -43,7 +46,7 @@ export interface PoolSnapshot {
   };
 }
 
-/** What one version scored, read once: immutable once published. */
+/** What one version scored, read once, and again only when it has scored items imported after it. */
 interface VersionEntry {
   key: string;
   model: LoadedModel;
@@ -108,13 +111,26 @@ export class ScreeningCache {
   /** The desk's open pool under its current version, as of now. */
   async snapshot(desk: DeskEntity): Promise<PoolSnapshot> {
     // The marker first: a snapshot built after it is at least as new as it, never older.
-    const { marker, open, seedMatches } = await this.repo.changeMarker(desk.id);
+    const { marker, open, seedMatches } = await this.repo.changeMarker(desk.id, desk.currentModelVersion);
     const model = await this.predictions.current(desk);
-    const version = model ? await this.version(desk, model) : null;
+    let version = model ? await this.version(desk, model) : null;
     if (version?.pool?.marker === marker) return this.touch(desk.id, version).pool!.snapshot;
-    const snapshot = await this.once(`${desk.id}:${model?.version ?? '-'}:${marker}`, () =>
-      this.build(desk, model, version, open, seedMatches),
-    );
+    let snapshot: PoolSnapshot;
+    try {
+      snapshot = await this.once(`${desk.id}:${model?.version ?? '-'}:${marker}`, () =>
+        this.build(desk, model, version, open, seedMatches),
+      );
+    } catch (e) {
+      if (!(e instanceof ScoredSince) || !model) throw e;
+      // The version has scored items imported after it since its predictions were read (ScoringService.scoreNew):
+      // read them again, once.
+      if (this.entries.get(desk.id)?.key === `${desk.id}:${model.version}`) this.entries.delete(desk.id);
+      const fresh = await this.version(desk, model);
+      version = fresh;
+      snapshot = await this.once(`${desk.id}:${model.version}:${marker}:again`, () =>
+        this.build(desk, model, fresh, open, seedMatches),
+      );
+    }
     if (version) {
       const bytes = poolBytes(snapshot);
       version.pool = { marker, snapshot, bytes };
@@ -181,7 +197,7 @@ export class ScreeningCache {
           // Both lists are in id order: walk the version's ids forward.
           while (cursor < version.ids.length && version.ids[cursor] < o.id) cursor++;
           if (version.ids[cursor] !== o.id)
-            throw new Error(`item ${o.id} has a prediction of version ${version.model.version} not read before`);
+            throw new ScoredSince(`item ${o.id} has a prediction of version ${version.model.version} not read before`);
           rows.push(cursor);
         } else {
           unscoredPosted.push(o.postedAt);

@@ -41,10 +41,11 @@ export interface DecidedAt {
  * The change marker's one statement (see {@link ScreeningRepository.changeMarker}). Every column it reads of
  * `items` is in the index `ix_items_marker`, so that it counts from the index alone.
  */
-export const CHANGE_MARKER_SQL = `SELECT it.n AS items, it.max_id AS item_max, it.open, it.seeded, it.erased,
+export const CHANGE_MARKER_SQL = `SELECT it.n AS items, it.max_id AS item_max, it.open, it.seeded, it.erased, it.scored,
          v.n AS verdicts, v.undone, v.max_id AS verdict_max, s.n AS settlements, s.max_id AS settlement_max
   FROM (SELECT COUNT(*) AS n, MAX(id) AS max_id, SUM(CASE WHEN state <> 'decided' THEN 1 ELSE 0 END) AS open,
                SUM(CASE WHEN state <> 'decided' AND seed_hits > 0 THEN 1 ELSE 0 END) AS seeded,
+               SUM(CASE WHEN state <> 'decided' AND priority_model_version = $2 THEN 1 ELSE 0 END) AS scored,
                COUNT(erased_at) AS erased FROM items WHERE desk_id = $1) it,
        (SELECT COUNT(*) AS n, COUNT(undone_at) AS undone, MAX(id) AS max_id FROM verdicts WHERE desk_id = $1) v,
        (SELECT COUNT(*) AS n, MAX(id) AS max_id FROM settlements WHERE desk_id = $1) s`;
@@ -92,14 +93,29 @@ export class ScreeningRepository {
    * its items, verdicts and settlements, open and erased items. Every change
    * that decides, reopens, erases, imports or relabels an item changes one of
    * them (verdicts and settlements are only added; an undo sets `undone_at`
-   * once; an erasure sets `erased_at` once), so an unchanged marker means the
+   * once; an erasure sets `erased_at` once); the open items the current
+   * `version` has scored grow when it scores items imported after it
+   * (ScoringService.scoreNew). So an unchanged marker means the
    * open pool and the labels are as they were. The open count and its seed
    * matches come with it.
    */
-  async changeMarker(deskId: number): Promise<{ marker: string; open: number; seedMatches: number }> {
-    const [r] = await this.db.query<Record<string, DbInt | null>>(null, CHANGE_MARKER_SQL, [deskId]);
+  async changeMarker(
+    deskId: number,
+    version: number | null,
+  ): Promise<{ marker: string; open: number; seedMatches: number }> {
+    const [r] = await this.db.query<Record<string, DbInt | null>>(null, CHANGE_MARKER_SQL, [deskId, version ?? 0]);
     const n = (x: DbInt | null | undefined) => Number(x ?? 0);
-    const keys = ['items', 'item_max', 'open', 'seeded', 'erased', 'verdicts', 'undone', 'verdict_max'] as const;
+    const keys = [
+      'items',
+      'item_max',
+      'open',
+      'seeded',
+      'erased',
+      'scored',
+      'verdicts',
+      'undone',
+      'verdict_max',
+    ] as const;
     const marker = [...keys, 'settlements', 'settlement_max'].map((k) => n(r[k])).join(':');
     return { marker, open: n(r.open), seedMatches: n(r.seeded) };
   }
