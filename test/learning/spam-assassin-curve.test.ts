@@ -12,6 +12,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { prepareRehearsal, runRehearsal, type RehearsalResult } from '#learning';
 import { CATEGORIES, loadCorpus } from './spam-assassin-shared.js';
 
+const BUDGET = 600;
+
 describe('SpamAssassin: learning curve (seed 1)', () => {
   let result: RehearsalResult;
 
@@ -26,7 +28,7 @@ describe('SpamAssassin: learning curve (seed 1)', () => {
       randomShare: 0.2,
       start: 20,
       batch: 20,
-      budget: 600,
+      budget: BUDGET,
       testShare: 0.2,
       seed: 1,
       compareRandom: true,
@@ -43,26 +45,22 @@ describe('SpamAssassin: learning curve (seed 1)', () => {
   });
 
   it('reaches 95 % of the full macro-F1 with at most half the verdicts random sampling needs', () => {
-    // Margin was chosen over entropy on seeds 1–3 (labels to reach 0.95 of
-    // full, uncertainty vs random: margin 180/520, 211/391, 120/260 = 0.44 of
-    // random's verdicts over the three; entropy 380/520, 171/391, 160/260 =
-    // 0.61). On fresh seeds it does not hold up: seed 4 100/240, seed 5
-    // 449/309, seed 6 408/348 (random sampling got there first on 5 and 6);
-    // over seeds 1–6 margin needed 0.71 of random's verdicts. So the "half
-    // the verdicts" target is met on seed 1, checked here as a regression
-    // check of this configuration, and on seeds 1–3 on average, but not in
-    // general.
+    // Margin was chosen over entropy on seeds 1–3 with the earlier, underfit classifier. With the converged solver the
+    // full-pool model is better (macro-F1 0.917 on seed 1), so 95 % of it is harder to reach: on seed 1 margin needs
+    // 280 verdicts and random sampling does not get there within the budget of 600. Earlier runs on other seeds did
+    // not always hold the "half" (random got there first on some), so this is a regression check of this
+    // configuration on seed 1, not a general claim; the rehearsal's --seeds option measures the spread.
     const uncertainty = result.labelsToReach['0.95'];
     const random = result.random!.labelsToReach['0.95'];
     expect(uncertainty).not.toBeNull();
-    // If random sampling never gets there within the budget, uncertainty's
-    // reaching it is enough.
-    if (random !== null) expect(uncertainty!).toBeLessThanOrEqual(random / 2);
+    // Random sampling not there within the budget means it needs more than the budget: half of that is more than half
+    // the budget, so uncertainty must have got there within half the budget.
+    expect(uncertainty!).toBeLessThanOrEqual((random ?? BUDGET) / 2);
   });
 
   it('keeps calibration verdicts out of training and follows the budget', () => {
     for (const r of [result.curve, result.random!.curve]) {
-      expect(r.at(-1)!.labels).toBe(600);
+      expect(r.at(-1)!.labels).toBe(BUDGET);
       for (const p of r) expect(p.trainLabels + p.calibrationLabels).toBe(p.labels);
       // About a fifth of the post-start verdicts calibrate (random share 0.2).
       const last = r.at(-1)!;
