@@ -180,7 +180,7 @@ export const GLOSSARY: readonly GlossaryTerm[] = [
     id: 'flagged',
     term: 'flagged / cleared',
     meaning:
-      "Under the current version, an open item is flagged when its prediction set holds a watched category, cleared when it holds none. At most α of a watched category's items are cleared, in expectation over the random draws.",
+      'Under the current version, an open item is flagged when its prediction set holds a watched category, cleared when it holds none. Of all the items of a watched category the desk has held, at least 1 − α are decided by a reviewer or flagged, in expectation over the random draws; among the open items alone the share can be lower, because the review lane takes the likeliest ones first.',
   },
   { id: 'screen', term: 'screen (draw)', meaning: 'A flagged item served for review, highest probability first.' },
   { id: 'urgent', term: 'urgent', meaning: "A reviewer's escalation of one item, acknowledged by a supervisor." },

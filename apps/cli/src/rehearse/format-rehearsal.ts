@@ -83,8 +83,9 @@ const share = (x: number | null): string => (x === null ? '–' : pct(x));
 
 /** What the cleared-pile columns and lines mean, in one line. */
 export const SCREENING_EXPLANATION =
-  'flagged: open items whose set holds a watched category; cleared: the others. recall: share of the category’s ' +
-  'open items flagged; load: share of the open items whose set holds it; cleared: its items the cleared pile ' +
+  'flagged: open items whose set holds a watched category; cleared: the others. caught: share of the category’s ' +
+  'items (decided and open) that reviewers decided or the sets flag, the promise a desk states; recall: share of its ' +
+  'open items flagged, lower when the review lane has taken the likeliest ones; load: share of the open items whose set holds it; cleared: its items the cleared pile ' +
   'really holds, beside the estimate a desk states (95% interval, from the quarter of the random verdicts held out ' +
   'of its threshold and the model’s probabilities over the pile); keywords: flagging every item that matches a seed term.';
 
@@ -110,7 +111,7 @@ function screeningLines(figures: ScreeningFigures, prefix: string): string[] {
       ? `; keyword baseline: recall ${share(f.keywordBaseline.recall)}, load ${pct(f.keywordBaseline.load)}`
       : '';
     lines.push(
-      `${prefix}${c}: recall ${share(f.recall)} of its ${f.open} open items, load ${pct(f.load)}; the ${figures.cleared} cleared items hold ${f.cleared}, estimated ${estimateText(f)} (${how}): ${f.inInterval ? 'inside' : 'outside'} the interval${keywords}`,
+      `${prefix}${c}: caught ${share(f.caught)} of its ${f.decided + f.open} items (${f.decided} decided), recall ${share(f.recall)} of its ${f.open} open items, load ${pct(f.load)}; the ${figures.cleared} cleared items hold ${f.cleared}, estimated ${estimateText(f)} (${how}): ${f.inInterval ? 'inside' : 'outside'} the interval${keywords}`,
     );
   }
   return lines;
@@ -134,6 +135,7 @@ export function formatScreening(results: readonly RehearsalResult[]): string {
       'flagged',
       'load',
       ...watched.flatMap((c) => [
+        `caught ${c}`,
         `recall ${c}`,
         `load ${c}`,
         `cleared ${c}`,
@@ -152,6 +154,7 @@ export function formatScreening(results: readonly RehearsalResult[]): string {
         ...watched.flatMap((c) => {
           const f = s.perCategory[c];
           return [
+            share(f.caught),
             share(f.recall),
             pct(f.load),
             String(f.cleared),

@@ -276,10 +276,10 @@ describe('rehearse command', () => {
       const out = c.out();
       expect(out).toMatch(/screening of the watched categories on the open items, at each point:/);
       expect(out).toMatch(
-        /recall food +load food +cleared food +estimate food \[95%\] +keywords recall food +keywords load/,
+        /caught food +recall food +load food +cleared food +estimate food \[95%\] +keywords recall food +keywords load/,
       );
       expect(out).toMatch(
-        /at the end \(80 verdicts\):\n {2}food: recall [\d.]+% of its \d+ open items, load [\d.]+%; the \d+ cleared items hold \d+, estimated .* the interval; keyword baseline: recall [\d.]+%, load [\d.]+%/,
+        /at the end \(80 verdicts\):\n {2}food: caught [\d.]+% of its \d+ items \(\d+ decided\), recall [\d.]+% of its \d+ open items, load [\d.]+%; the \d+ cleared items hold \d+, estimated .* the interval; keyword baseline: recall [\d.]+%, load [\d.]+%/,
       );
     });
 

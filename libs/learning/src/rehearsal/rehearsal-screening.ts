@@ -10,6 +10,14 @@ export interface WatchedCategoryFigures {
   open: number;
   /** Share of the category's open items that are flagged (their set holds a watched category); null without any. */
   recall: number | null;
+  /**
+   * Share of the category's items in the pool (the decided and the open) that reviewers decided or the sets flag:
+   * the promise a desk states, which holds with the review lane on (the lane takes flagged items only, so it never
+   * lowers the number left open and unflagged); `recall` on the open items alone can fall below the target.
+   */
+  caught: number | null;
+  /** Items of the category decided so far (by any draw). */
+  decided: number;
   /** Open items whose set holds the category. */
   flagged: number;
   /** Share of the open items whose set holds the category: its reading load. */
@@ -57,14 +65,15 @@ export interface ScreeningFigures {
  * {@link estimatePopulationCount}), its recall and its reading load; and,
  * with seed-term matches, what flagging every matching item would do.
  *
- * @param rows open items (indices into `labels`), calibration items (the random verdicts)
+ * @param rows open items (indices into `labels`), calibration items (the random verdicts), every decided item (the
+ *   calibration items among them)
  * @param seedMatch per item index, whether it matches a seed term (omit without seed terms)
  */
 export function screeningFigures(
   classes: readonly string[],
   labels: Int32Array,
   watched: readonly number[],
-  rows: { open: readonly number[]; calibration: readonly number[] },
+  rows: { open: readonly number[]; calibration: readonly number[]; decided: readonly number[] },
   probabilities: ReadonlyMap<number, Float64Array>,
   calibration: ConformalCalibration,
   setOptions: PredictionSetOptions,
@@ -97,6 +106,7 @@ export function screeningFigures(
       if (!isFlaggedRow) addScore(pile[j], p[c]);
     });
   }
+  const decided = watched.map((c) => rows.decided.filter((row) => labels[row] === c).length);
   const open = rows.open.length;
   const share = (x: number, of: number): number | null => (of > 0 ? x / of : null);
   // As the service does: the random verdicts held out of the watched thresholds whose items the sets clear.
@@ -112,6 +122,8 @@ export function screeningFigures(
     perCategory[classes[c]] = {
       open: ofCategory[j],
       recall: share(caught[j], ofCategory[j]),
+      caught: share(decided[j] + caught[j], decided[j] + ofCategory[j]),
+      decided: decided[j],
       flagged: holding[j],
       load: open > 0 ? holding[j] / open : 0,
       cleared,

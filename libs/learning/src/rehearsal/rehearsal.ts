@@ -393,7 +393,7 @@ function measure(
             data.classes,
             data.labels,
             watched,
-            { open: openRows, calibration: calibrationRows },
+            { open: openRows, calibration: calibrationRows, decided: [...trainRows, ...calibrationRows] },
             probabilities,
             calibration,
             setOptionsOf(data, options),

@@ -69,7 +69,10 @@ export function guaranteeSentence(category: string, c: Omit<CategoryScreening, '
       : `with a probability of at least ${pct(c.confidence)} over the random draws`;
   if (c.needMore > 0)
     return `No item is cleared of ${category} yet: a ${pct(c.target)} promise${c.confidence === null ? '' : ` held ${over}`} needs ${c.needMore} more random verdicts of ${category} (it has ${c.calibrationCount}), so every item counts as possibly ${category} until then.`;
-  const promise = `At least ${pct(c.target)} of the open items that are ${category} are flagged, ${over} (threshold from ${c.calibrationCount} random verdicts of ${category}).`;
+  // The lane and the uncertain draws take items out of the open pool by their scores, so the open items left are
+  // not exchangeable with the random draws the threshold came from; the promise that holds counts every item of the
+  // category the desk has held (see the README's "What the promise covers" and the lane simulation in #learning).
+  const promise = `At least ${pct(c.target)} of the ${category} items this desk has held are decided by a reviewer or flagged now, ${over} (threshold from ${c.calibrationCount} random verdicts of ${category}); among the open items alone the share can be lower, because the review lane takes the likeliest ones first.`;
   const m = c.clearedExpectedMisses;
   if (cleared === 0) return `${promise} No item is cleared.`;
   if (m.method === 'none')
