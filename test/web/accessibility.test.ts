@@ -84,7 +84,9 @@ async function chartContrastFindings(page: Page): Promise<string[]> {
     for (const el of Array.from(document.querySelectorAll(selector))) {
       if (el.getClientRects().length === 0) continue;
       const style = getComputedStyle(el);
-      const paint = rgb(el.tagName === 'polyline' || el.tagName === 'line' ? style.stroke : style.fill);
+      // Lines are their stroke; a point or bar is its fill, or its ring when it has one (the hollow points).
+      const ringed = el.tagName === 'circle' && style.stroke !== 'none';
+      const paint = rgb(el.tagName === 'polyline' || el.tagName === 'line' || ringed ? style.stroke : style.fill);
       if (!paint) continue;
       const a = luminance(paint);
       const b = luminance(background(el));

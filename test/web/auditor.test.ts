@@ -59,6 +59,16 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     const models = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/models`)).body;
     await expect(table.locator('tbody tr').count()).resolves.toBe(models.models.length);
     await expect(writeControls(page)).resolves.toEqual([]);
+    // A version measured on fewer than 30 calibration verdicts is marked "too few", the others are not; the first
+    // versions of this desk, trained on its first verdicts, have only a handful.
+    const few = (m: { metrics: { n: number } | null }) => m.metrics !== null && m.metrics.n < 30;
+    expect(models.models.some(few)).toBe(true);
+    for (const m of models.models as { version: number; metrics: { n: number } | null }[]) {
+      const row = table
+        .locator('tbody tr')
+        .filter({ has: page.getByRole('link', { name: `v${m.version}`, exact: true }) });
+      await expect(row.locator('.too-few').count()).resolves.toBe(few(m) ? 1 : 0);
+    }
 
     // Each published version's oversight report is listed once written.
     const current = models.currentModelVersion as number;
@@ -90,6 +100,11 @@ describe.each(DATABASE_KINDS)('the auditor screens on %s', (kind) => {
     await page.getByRole('heading', { name: 'Promised and realized coverage' }).waitFor();
     // Counts behind the version, as the API has them.
     const detail = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/models/${current}`)).body;
+    // Accuracy comes with its Wilson interval, and the heading says when the set is too small.
+    await expect(page.locator('dl.figures').first().innerText()).resolves.toMatch(
+      /95 % interval 0\.\d\d to [01]\.\d\d/,
+    );
+    await expect(page.locator('h2 .too-few').count()).resolves.toBe(detail.metrics.n < 30 ? 1 : 0);
     const rows = await page.locator('table.data tbody tr').allInnerTexts();
     expect(rows[0]).toMatch(
       new RegExp(`^threat\\s+${detail.training.counts.threat}\\s+${detail.calibration.counts.threat}`),

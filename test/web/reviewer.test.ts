@@ -35,7 +35,11 @@ describe.each(DATABASE_KINDS)('the reviewer screen on %s', (kind) => {
     await expect(page.locator('.call .call-word').textContent()).resolves.toMatch(
       /^. (Sure|Ambiguous|Unfamiliar|One category left)/,
     );
-    await expect(page.locator('table.probabilities tr').count()).resolves.toBe(3);
+    await expect(page.locator('table.probabilities tbody tr').count()).resolves.toBe(3);
+    // The bars come with their reading: what the probabilities are and are not.
+    await expect(page.locator('table.probabilities tfoot').innerText()).resolves.toMatch(
+      /^Probabilities: the model’s leaning, .* is not how often the model is right/,
+    );
     // The bars follow the keys' order; each category outside the set says why it is ruled out.
     const rowNames = (await page.locator('table.probabilities th').allInnerTexts()).map((t) => t.split(' ')[0]);
     expect(rowNames).toEqual(['threat', 'harassment', 'ok']);

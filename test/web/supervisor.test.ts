@@ -1,3 +1,4 @@
+import { keywordPrecisionReading, keywordRecallReading } from '../../apps/web/src/readings.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_KINDS } from '../support/databases.js';
 import { openBrowser, screenshot, signIn, type Browser } from '../support/browser.js';
@@ -203,6 +204,13 @@ describe.each(DATABASE_KINDS)('the supervisor screens on %s', (kind) => {
     } else {
       const threat = section.getByRole('row').filter({ has: page.getByRole('rowheader', { name: 'threat' }) });
       await expect(threat.innerText()).resolves.toContain(String(kc.total.perCategory.threat.matches));
+      // Each share has its reading beside it, and says when it rests on fewer than 30 random draws.
+      const { precision, recall } = kc.total.perCategory.threat;
+      await expect(threat.innerText()).resolves.toContain(keywordPrecisionReading(precision.estimate));
+      await expect(threat.innerText()).resolves.toContain(keywordRecallReading(recall.estimate));
+      await expect(threat.locator('.too-few').count()).resolves.toBe(
+        (precision.n < 30 ? 1 : 0) + (recall.n < 30 ? 1 : 0),
+      );
     }
     expect(b.foreign).toEqual([]);
   });

@@ -62,6 +62,13 @@ describe('the walkthrough on the Mossbank Commons demo', () => {
     );
     await page.getByText(/Serving model version/).waitFor({ timeout: 10_000 });
     await page.locator('polyline').first().waitFor();
+    // The button sits low on the page; the picture shows the counts and the learning curve instead.
+    await page.evaluate(() => {
+      const heading = Array.from(document.querySelectorAll('h2')).find(
+        (h) => h.textContent === 'Verdicts per category',
+      );
+      heading?.scrollIntoView({ block: 'start' });
+    });
     await screenshot(page, '2-supervisor-overview');
   });
 

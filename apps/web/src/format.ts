@@ -1,3 +1,4 @@
+import { wilsonInterval } from '../../../libs/learning/src/intervals/binomial-intervals';
 /** Number and time formatting shared by the screens. */
 export const pct = (x: number | null | undefined, digits = 0): string =>
   x === null || x === undefined || Number.isNaN(x) ? '–' : `${(x * 100).toFixed(digits)} %`;
@@ -31,4 +32,15 @@ export function isoWhen(iso: string | null | undefined): string {
 export function clock(ms: number): string {
   const s = Math.max(0, Math.round(ms / 1000));
   return `${Math.floor(s / 60)}:${String(s % 60).padStart(2, '0')}`;
+}
+
+/**
+ * Below this many items a figure is too rough to read alone: the screens give its interval where one exists and mark
+ * it "too few" otherwise (30 is the trade's usual floor for a share, common practice, no source).
+ */
+export const TOO_FEW = 30;
+
+/** Wilson's 95 % interval for a share measured on n items (the library's, Wilson 1927), or null for n = 0. */
+export function shareInterval(share: number, n: number): { lower: number; upper: number } | null {
+  return n > 0 ? wilsonInterval(Math.round(share * n), n) : null;
 }

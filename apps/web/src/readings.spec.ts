@@ -1,5 +1,24 @@
 import { describe, expect, it } from 'vitest';
-import { alphaReading, kappaBand, kappaReading, logLossReading } from './readings';
+import {
+  alphaReading,
+  kappaBand,
+  kappaReading,
+  keywordPrecisionReading,
+  keywordRecallReading,
+  logLossReading,
+} from './readings';
+
+describe('the readings of a keyword list against the random draws', () => {
+  it('says how far the count runs high or low, in tenths', () => {
+    expect(keywordPrecisionReading(0.62)).toBe('about 4 in 10 matches are something else: the count runs high');
+    expect(keywordPrecisionReading(0.97)).toBe('nearly every match is of the category');
+    expect(keywordPrecisionReading(0.02)).toBe('almost all matches are something else: the count runs high');
+    expect(keywordRecallReading(0.5)).toBe('the words miss about 5 in 10 of the category’s items: the count runs low');
+    expect(keywordRecallReading(0.96)).toBe('the words catch nearly all of the category');
+    expect(keywordPrecisionReading(null)).toBe('no random draw matches yet');
+    expect(keywordRecallReading(undefined)).toBe('no random draw of the category yet');
+  });
+});
 
 describe('the plain readings of the agreement figures', () => {
   // Bands of Landis & Koch (1977), Biometrics 33(1):159–174, p. 165: <0.00 poor, 0.00–0.20 slight, 0.21–0.40 fair,

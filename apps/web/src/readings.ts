@@ -118,6 +118,33 @@ export function meanSetSizeReading(size: number | null | undefined): string {
   return `on average ${size.toFixed(2)} categories per set; 1 means every call sure, more means more for people to decide`;
 }
 
+/** The probability bars on the queue screen in one sentence. */
+export const PROBABILITIES_READING =
+  'the model’s leaning, learnt from this desk’s verdicts; it ranks the categories but is not how often the model is ' +
+  'right; “in set”: kept by the prediction set at the coverage target';
+
+/** “About n in 10”, for shares read aloud (0 and 10 said in words). */
+function inTen(share: number): string {
+  const n = Math.round(share * 10);
+  return n === 0 ? 'almost none' : n === 10 ? 'almost all' : `about ${n} in 10`;
+}
+
+/** A keyword list's precision on the random draws in one sentence. */
+export function keywordPrecisionReading(precision: number | null | undefined): string {
+  if (precision === null || precision === undefined || Number.isNaN(precision)) return 'no random draw matches yet';
+  return precision >= 0.95
+    ? 'nearly every match is of the category'
+    : `${inTen(1 - precision)} matches are something else: the count runs high`;
+}
+
+/** A keyword list's recall on the random draws in one sentence. */
+export function keywordRecallReading(recall: number | null | undefined): string {
+  if (recall === null || recall === undefined || Number.isNaN(recall)) return 'no random draw of the category yet';
+  return recall >= 0.95
+    ? 'the words catch nearly all of the category'
+    : `the words miss ${inTen(1 - recall)} of the category’s items: the count runs low`;
+}
+
 /** One term of the glossary page. */
 export interface GlossaryTerm {
   id: string;

@@ -1,5 +1,7 @@
 import type { Desk, Prediction } from '../api';
 import { pct } from '../format';
+import { PROBABILITIES_READING } from '../readings';
+import { Reading } from './reading';
 
 /** What the call needs to know of the desk: its categories' targets and the calibration mode. */
 export type CallSettings = Pick<Desk, 'coverageTarget' | 'coverageTargets' | 'calibration'>;
@@ -132,6 +134,13 @@ export function Probabilities({ prediction, order }: { prediction: Prediction; o
           </tr>
         ))}
       </tbody>
+      <tfoot>
+        <tr>
+          <td colSpan={3}>
+            <Reading text={`Probabilities: ${PROBABILITIES_READING}.`} />
+          </td>
+        </tr>
+      </tfoot>
     </table>
   );
 }

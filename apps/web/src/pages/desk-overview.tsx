@@ -14,10 +14,11 @@ import {
 import { useData, useInterval, type PageProps } from '../app';
 import { BarChart, LineChart, niceTicks } from '../components/charts';
 import { CoverageAlert } from '../components/coverage-alert';
-import { count, num, when } from '../format';
+import { count, num, TOO_FEW, when } from '../format';
 import { TableBox } from '../components/table-box';
 import { Reading } from '../components/reading';
-import { macroF1Reading } from '../readings';
+import { keywordPrecisionReading, keywordRecallReading, macroF1Reading } from '../readings';
+import { TooFew } from '../components/too-few';
 
 /** The supervisor's desk: progress, the learning curve, the coverage alert, exports, and the simulated reviewer. */
 export function DeskOverview({ params }: PageProps) {
@@ -32,9 +33,16 @@ export function DeskOverview({ params }: PageProps) {
     reloadCoverage();
   }, 5000);
 
-  const published = (models?.models ?? [])
+  const measured = (models?.models ?? [])
     .filter((m) => m.state === 'published' && m.metrics)
     .sort((a, b) => a.version - b.version);
+  // Versions measured on too few calibration verdicts are drawn apart (hollow, dashed): macro-F1 on a handful of
+  // items is mostly noise.
+  const published = measured;
+  const isRough = (m: (typeof measured)[number]) => m.metrics!.n < TOO_FEW;
+  const rough = measured.filter(isRough);
+  const f1Of = (m: (typeof measured)[number]) =>
+    `v${m.version} ${num(m.metrics!.macroF1)}${isRough(m) ? ' (too few)' : ''}`;
   const maxVersion = Math.max(1, ...published.map((m) => m.version));
 
   return (
@@ -109,10 +117,10 @@ export function DeskOverview({ params }: PageProps) {
         )}
         <section>
           <h2>Learning curve</h2>
-          {published.length === 0 && <p class="muted">The curve starts with the first published model version.</p>}
+          {measured.length === 0 && <p class="muted">The curve starts with the first published model version.</p>}
           {published.length > 0 && (
             <LineChart
-              summary={`Macro-F1 on the calibration set by model version: ${published.map((m) => `v${m.version} ${num(m.metrics!.macroF1)}`).join(', ')}.`}
+              summary={`Macro-F1 on the calibration set by model version: ${published.map(f1Of).join(', ')}.`}
               xLabel="model version"
               yLabel="macro-F1 on calibration set"
               x={[published.length > 1 ? published[0].version : 0, maxVersion]}
@@ -125,18 +133,43 @@ export function DeskOverview({ params }: PageProps) {
               yTicks={[0, 0.25, 0.5, 0.75, 1]}
               yFormat={(v) => v.toFixed(2)}
               series={[
-                {
-                  name: 'macro-F1 (calibration verdicts)',
-                  className: 's-f1',
-                  points: published.map((m) => [m.version, m.metrics!.macroF1]),
-                },
+                ...(rough.length > 0
+                  ? [
+                      {
+                        name: `too few: on fewer than ${TOO_FEW} calibration verdicts (rough)`,
+                        className: 's-rough',
+                        // The rough run joins the first sound version, so the line reads as one history.
+                        points: measured
+                          .filter((m, i) => isRough(m) || (i > 0 && isRough(measured[i - 1])))
+                          .map((m): [number, number] => [m.version, m.metrics!.macroF1]),
+                      },
+                    ]
+                  : []),
+                ...(rough.length < published.length
+                  ? [
+                      {
+                        name: `macro-F1 on ${TOO_FEW} or more calibration verdicts`,
+                        className: 's-f1',
+                        points: published
+                          .filter((m) => !isRough(m))
+                          .map((m): [number, number] => [m.version, m.metrics!.macroF1]),
+                      },
+                    ]
+                  : []),
               ]}
             />
+          )}
+          {rough.length > 0 && (
+            <p class="muted rough-versions">
+              {rough.length === 1 ? `Version ${rough[0].version} was` : `${rough.length} versions were`} measured on
+              fewer than {TOO_FEW} calibration verdicts (drawn hollow and dashed): too few to compare, a handful more
+              verdicts can move them a long way.
+            </p>
           )}
           {published.length > 0 && (
             <p>
               <Reading
-                text={`Macro-F1 of version ${published[published.length - 1].version}: ${num(published[published.length - 1].metrics!.macroF1)}, ${macroF1Reading(published[published.length - 1].metrics!.macroF1)}.`}
+                text={`Macro-F1 of version ${published[published.length - 1].version}: ${num(published[published.length - 1].metrics!.macroF1)}, ${macroF1Reading(published[published.length - 1].metrics!.macroF1)}${isRough(published[published.length - 1]) ? ` (on ${published[published.length - 1].metrics!.n} calibration verdicts: too few to read much into)` : ''}.`}
               />
             </p>
           )}
@@ -390,8 +423,16 @@ function KeywordCountsChart({ deskId }: { deskId: string }) {
                   <tr key={c}>
                     <th scope="row">{c}</th>
                     <td>{count(kc.total.perCategory[c].matches)}</td>
-                    <td>{share(kc.total.perCategory[c].precision)}</td>
-                    <td>{share(kc.total.perCategory[c].recall)}</td>
+                    <td>
+                      {share(kc.total.perCategory[c].precision)}{' '}
+                      <TooFew n={kc.total.perCategory[c].precision.n} of="random draws that match" />{' '}
+                      <Reading text={keywordPrecisionReading(kc.total.perCategory[c].precision.estimate)} />
+                    </td>
+                    <td>
+                      {share(kc.total.perCategory[c].recall)}{' '}
+                      <TooFew n={kc.total.perCategory[c].recall.n} of="random draws of the category" />{' '}
+                      <Reading text={keywordRecallReading(kc.total.perCategory[c].recall.estimate)} />
+                    </td>
                   </tr>
                 ))}
               </tbody>

@@ -3,6 +3,7 @@ import { get, post, type Agreement, type Desk, type Disagreement, type Disagreem
 import { useData, type PageProps } from '../app';
 import { num, when } from '../format';
 import { TableBox } from '../components/table-box';
+import { TooFew } from '../components/too-few';
 import { Reading } from '../components/reading';
 import { alphaReading, kappaReading } from '../readings';
 
@@ -57,7 +58,8 @@ export function DisagreementsPage({ role, params }: PageProps) {
                 <div>
                   <dt>Fleiss' kappa</dt>
                   <dd>
-                    {num(agreement.fleiss.kappa, 3)} <Reading text={kappaReading(agreement.fleiss.kappa)} />
+                    {num(agreement.fleiss.kappa, 3)} <Reading text={kappaReading(agreement.fleiss.kappa)} />{' '}
+                    <TooFew n={agreement.items} of="items with two or more verdicts" />
                   </dd>
                 </div>
                 <div>
@@ -84,7 +86,9 @@ export function DisagreementsPage({ role, params }: PageProps) {
                           <td>{c.category}</td>
                           <td class="num">{c.verdicts}</td>
                           <td class="num">{num(c.fleissKappa, 3)}</td>
-                          <td>{kappaReading(c.fleissKappa)}</td>
+                          <td>
+                            {kappaReading(c.fleissKappa)} <TooFew n={c.verdicts} of="verdicts" />
+                          </td>
                         </tr>
                       ))}
                     </tbody>
@@ -107,7 +111,9 @@ export function DisagreementsPage({ role, params }: PageProps) {
                           <td>{c.reviewers.join(' and ')}</td>
                           <td class="num">{c.items}</td>
                           <td class="num">{num(c.kappa, 3)}</td>
-                          <td>{kappaReading(c.kappa)}</td>
+                          <td>
+                            {kappaReading(c.kappa)} <TooFew n={c.items} of="shared items" />
+                          </td>
                         </tr>
                       ))}
                     </tbody>

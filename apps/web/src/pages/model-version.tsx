@@ -1,7 +1,8 @@
 import type { Coverage, CoveragePreview, Desk, ModelVersion } from '../api';
 import { useData, type PageProps } from '../app';
 import { BarChart, IntervalChart, LineChart } from '../components/charts';
-import { count, num, pct, when } from '../format';
+import { count, num, pct, shareInterval, TOO_FEW, when } from '../format';
+import { TooFew } from '../components/too-few';
 import { TableBox } from '../components/table-box';
 import { Reading } from '../components/reading';
 import {
@@ -157,12 +158,32 @@ export function ModelVersionPage({ params }: PageProps) {
           </section>
           {m.metrics && (
             <section>
-              <h2>Quality on the calibration set (n = {m.metrics.n})</h2>
+              <h2>
+                Quality on the calibration set (n = {m.metrics.n}) <TooFew n={m.metrics.n} of="calibration verdicts" />
+              </h2>
+              {m.metrics.n < TOO_FEW && (
+                <p class="muted too-few-note">
+                  Fewer than {TOO_FEW} calibration verdicts: these figures can move a long way with a handful more. Read
+                  accuracy through its interval; the others have none here and are rough.
+                </p>
+              )}
               <dl class="figures">
                 <div>
                   <dt>Accuracy</dt>
                   <dd>
-                    {num(m.metrics.accuracy, 3)} <Reading text={accuracyReading(m.metrics.accuracy)} />
+                    {num(m.metrics.accuracy, 3)}
+                    {(() => {
+                      const ci = shareInterval(m.metrics.accuracy, m.metrics.n);
+                      return (
+                        ci && (
+                          <span class="interval">
+                            {' '}
+                            (95 % interval {num(ci.lower, 2)} to {num(ci.upper, 2)})
+                          </span>
+                        )
+                      );
+                    })()}{' '}
+                    <Reading text={accuracyReading(m.metrics.accuracy)} />
                   </dd>
                 </div>
                 <div>

@@ -1,6 +1,7 @@
 import type { ModelList, ReportList } from '../api';
 import { useData, type PageProps } from '../app';
-import { count, num, when } from '../format';
+import { count, num, TOO_FEW, when } from '../format';
+import { TooFew } from '../components/too-few';
 import { TableBox } from '../components/table-box';
 import { accuracyReading, brierReading, eceReading, logLossReading, macroF1Reading } from '../readings';
 
@@ -57,7 +58,10 @@ export function ModelsPage({ params }: PageProps) {
                   <td>{m.state}</td>
                   <td>{when(m.publishedAt)}</td>
                   <td class="num">{count(sum(m.trainingCounts))}</td>
-                  <td class="num">{count(sum(m.calibrationCounts))}</td>
+                  <td class="num">
+                    {count(sum(m.calibrationCounts))}
+                    {m.metrics && <TooFew n={m.metrics.n} of="calibration verdicts" />}
+                  </td>
                   <td class="num">{num(m.metrics?.accuracy, 3)}</td>
                   <td class="num">{num(m.metrics?.macroF1, 3)}</td>
                   <td class="num">{num(m.metrics?.logLoss, 3)}</td>
@@ -72,6 +76,12 @@ export function ModelsPage({ params }: PageProps) {
           </table>
         </TableBox>
       )}
+      {data && data.models.some((m) => m.metrics && m.metrics.n < TOO_FEW) && (
+        <p class="muted">
+          A version marked “too few” was measured on fewer than {TOO_FEW} calibration verdicts: its figures can move a
+          long way with a handful more, so read them as rough. Its page gives accuracy with its 95 % interval.
+        </p>
+      )}
       {data && data.models.length > 0 && <MetricReadings data={data} />}
     </section>
   );
@@ -85,7 +95,9 @@ function MetricReadings({ data }: { data: ModelList }) {
   const k = Object.keys(m.calibrationCounts).length;
   return (
     <section class="metric-readings">
-      <h2>How to read the figures (version {m.version})</h2>
+      <h2>
+        How to read the figures (version {m.version}) <TooFew n={m.metrics.n} of="calibration verdicts" />
+      </h2>
       <dl class="readings">
         <div>
           <dt>Accuracy {num(m.metrics.accuracy, 3)}</dt>
