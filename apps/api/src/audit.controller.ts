@@ -3,8 +3,7 @@ import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
 import { AuditService } from '#audit';
 import { AuthError, CurrentUser, MembershipService, Roles, type Principal } from '#auth';
-import { ROLES, type MemberRole } from '#database';
-import { deskOr404 } from '#desks';
+import { deskOr404, type MemberRole, ROLES } from '#database';
 import { AuditListAnswer } from './api.responses.js';
 
 /** The desk roles that read a desk's audit events. */

@@ -1,8 +1,7 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { Job } from 'bullmq';
 import { APP_CONFIG, type AppConfig } from '#config';
-import { Database, type DbInt } from '#database';
-import { PublishService, RetrainScheduler, ScoringService, TrainingService } from '#models';
+import { ModelVersionsRepository, PublishService, RetrainScheduler, ScoringService, TrainingService } from '#models';
 import {
   JOBS,
   JobQueueService,
@@ -70,24 +69,16 @@ export class PublishVersionProcessor implements JobHandler<'publish-version'> {
 export class SweepDesksProcessor implements JobHandler<'sweep-desks'> {
   readonly jobName = JOBS.sweepDesks;
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ModelVersionsRepository) private readonly repository: ModelVersionsRepository,
     @Inject(RetrainScheduler) private readonly retrain: RetrainScheduler,
     @Inject(JobQueueService) private readonly jobs: JobQueueService,
   ) {}
 
   async handle(_job: Job<SweepDesksPayload>): Promise<unknown> {
     // A report job still queued has the same id, so asking again is a no-op.
-    const unreported = await this.db.query<{ desk_id: DbInt; version: DbInt }>(
-      null,
-      `SELECT m.desk_id, m.version FROM model_versions m WHERE m.state = 'published' AND NOT EXISTS (SELECT 1 FROM model_reports r WHERE r.desk_id = m.desk_id AND r.version = m.version) ORDER BY m.desk_id, m.version`,
-    );
-    for (const r of unreported)
-      await this.jobs.add(JOBS.writeReport, { deskId: Number(r.desk_id), version: Number(r.version) });
-    const behind = await this.db.query<{ id: DbInt }>(
-      null,
-      `SELECT d.id FROM desks d WHERE EXISTS (SELECT 1 FROM verdicts v WHERE v.desk_id = d.id AND v.id > COALESCE((SELECT MAX(m.verdict_watermark) FROM model_versions m WHERE m.desk_id = d.id AND m.state IN ('training', 'scoring', 'published')), 0))`,
-    );
-    for (const d of behind) await this.retrain.check(Number(d.id), 'sweep');
+    const { unreported, behind } = await this.repository.backlog();
+    for (const r of unreported) await this.jobs.add(JOBS.writeReport, { deskId: r.deskId, version: r.version });
+    for (const deskId of behind) await this.retrain.check(deskId, 'sweep');
     return { desks: behind.length, reports: unreported.length };
   }
 }

@@ -58,3 +58,4 @@ export { ModelReportEntity, REPORT_STATES, type ReportState } from './entities/m
 export { EscalationEntity } from './entities/escalation.entity.js';
 export { ErasureEntity, type ErasureAsked, type ErasureOutcome } from './entities/erasure.entity.js';
 export { withMigrationLock, MIGRATION_LOCK_KEY, MIGRATION_WAIT_MESSAGE } from './migration-lock.js';
+export { deskOr404 } from './desk-lookup.js';

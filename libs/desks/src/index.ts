@@ -1,4 +1,3 @@
 export { DesksModule } from './desks.module.js';
 export { DesksService, validateSeedTerms, validateRetention, type DeskView } from './desks.service.js';
 export { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
-export { deskOr404 } from './desk-lookup.js';

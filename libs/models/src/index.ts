@@ -1,6 +1,7 @@
 export { ModelsModule, ModelsCoreModule, ModelsWorkModule, DeskFeaturesModule } from './models.module.js';
 export { DeskFeaturesService } from './desk-features.service.js';
 export { ModelStore, type LoadedModel } from './model-store.service.js';
+export { ModelVersionsRepository } from './model-versions.repository.js';
 export { PredictionsService, type CalibrationStatus } from './predictions.service.js';
 export { RetrainScheduler, FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-scheduler.service.js';
 export { TrainingService, PAUSE_HOOK, DEFAULT_CHUNK_SIZE, qualityFigures, type PauseHook } from './training.service.js';

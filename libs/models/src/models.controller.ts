@@ -13,7 +13,7 @@ import type { Response } from 'express';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiAnswer, type Answer } from '#api-docs';
 import { Roles, OnDesk } from '#auth';
-import { Database, DeskDirectory, DeskEntity, ModelVersionEntity, TRIAGE_CALLS, type DbInt } from '#database';
+import { DeskDirectory, type DeskEntity, deskOr404, type ModelVersionEntity, TRIAGE_CALLS } from '#database';
 import {
   CoverageAnswer,
   CoveragePreviewAnswer,
@@ -24,6 +24,7 @@ import {
   type QualityFigures,
 } from './model.responses.js';
 import { ModelStore } from './model-store.service.js';
+import { ModelVersionsRepository } from './model-versions.repository.js';
 import { PredictionsService } from './predictions.service.js';
 import { ScreeningAnswer } from './screening/screening.responses.js';
 import { ScreeningService } from './screening/screening.service.js';
@@ -37,7 +38,7 @@ const READERS = ['supervisor', 'auditor'] as const;
 @Controller('api/desks/:deskId')
 export class ModelsController {
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ModelVersionsRepository) private readonly repository: ModelVersionsRepository,
     @Inject(DeskDirectory) private readonly directory: DeskDirectory,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
     @Inject(ModelStore) private readonly store: ModelStore,
@@ -61,9 +62,7 @@ export class ModelsController {
 
   /** Read fresh (not through the directory's short cache): these pages must show the version that is current now. */
   private async desk(deskId: number): Promise<DeskEntity> {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
-    return desk;
+    return deskOr404(deskId, await this.repository.desk(deskId));
   }
 
   /** Model versions, newest first: counts, quality figures, timings, parent. */
@@ -73,25 +72,7 @@ export class ModelsController {
   @ApiAnswer(ModelListAnswer)
   async list(@Param('deskId', ParseIntPipe) deskId: number): Promise<Answer<typeof ModelListAnswer>> {
     const desk = await this.desk(deskId);
-    const rows = await this.db.manager.find(ModelVersionEntity, {
-      where: { deskId },
-      order: { version: 'DESC' },
-      select: {
-        id: true,
-        deskId: true,
-        version: true,
-        parentVersion: true,
-        state: true,
-        verdictWatermark: true,
-        training: true,
-        calibration: true,
-        metrics: true,
-        timings: true,
-        failure: true,
-        createdAt: true,
-        publishedAt: true,
-      },
-    });
+    const rows = await this.repository.versions(deskId);
     return {
       currentModelVersion: desk.currentModelVersion,
       models: rows.map((r) => this.summary(r)),
@@ -107,7 +88,7 @@ export class ModelsController {
     @Param('version', ParseIntPipe) version: number,
   ): Promise<Answer<typeof ModelVersionAnswer>> {
     const desk = await this.desk(deskId);
-    const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
+    const row = await this.repository.version(deskId, version);
     if (!row) throw new NotFoundException(`desk ${deskId} has no model version ${version}`);
     const loaded = row.model ? await this.store.load(deskId, version) : null;
     return {
@@ -224,18 +205,14 @@ export class ModelsController {
     let from = Number(after ?? cursor ?? 0);
     // Sets depend on the current target, so filtering happens here, page by page of stored probabilities.
     outer: for (;;) {
-      const rows = await this.db.query<{ item_id: DbInt; probabilities: string }>(
-        null,
-        `SELECT p.item_id, p.probabilities FROM predictions p JOIN items i ON i.id = p.item_id WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT 1000`,
-        [deskId, model.version, from],
-      );
+      const rows = await this.repository.openPredictions(deskId, model.version, from, 1000);
       for (const r of rows) {
         const pred = this.predictions.show(desk, model, JSON.parse(r.probabilities) as number[]);
-        from = Number(r.item_id);
+        from = r.itemId;
         if (call !== undefined && pred.call !== call) continue;
         if (category !== undefined && !pred.set.includes(category)) continue;
         if (lane !== undefined && pred.set.some((c) => desk.watch.includes(c)) !== (lane === 'flagged')) continue;
-        found.push({ itemId: Number(r.item_id), prediction: pred });
+        found.push({ itemId: r.itemId, prediction: pred });
         if (found.length === want) {
           next = from;
           break outer;
@@ -243,20 +220,13 @@ export class ModelsController {
       }
       if (rows.length < 1000) break;
     }
-    const texts = found.length
-      ? await this.db.query<{ id: DbInt; text: string; external_id: string | null; source: string | null }>(
-          null,
-          `SELECT id, text, external_id, source FROM items WHERE id IN (${found.map((_, i) => `$${i + 1}`).join(', ')})`,
-          found.map((f) => f.itemId),
-        )
-      : [];
-    const byId = new Map(texts.map((t) => [Number(t.id), t]));
+    const byId = await this.repository.itemsShown(found.map((f) => f.itemId));
     return {
       modelVersion: model.version,
       items: found.map((f) => ({
         id: f.itemId,
         text: byId.get(f.itemId)?.text,
-        externalId: byId.get(f.itemId)?.external_id ?? null,
+        externalId: byId.get(f.itemId)?.externalId ?? null,
         source: byId.get(f.itemId)?.source ?? null,
         prediction: f.prediction,
       })),

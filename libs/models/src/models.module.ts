@@ -2,6 +2,7 @@ import { Module, type DynamicModule } from '@nestjs/common';
 import { DeskFeaturesService } from './desk-features.service.js';
 import { ModelStore } from './model-store.service.js';
 import { ModelsController } from './models.controller.js';
+import { ModelVersionsRepository } from './model-versions.repository.js';
 import { PredictionsExportController } from './predictions-export.controller.js';
 import { PredictionsService } from './predictions.service.js';
 import { PublishService } from './publish.service.js';
@@ -23,6 +24,7 @@ export class DeskFeaturesModule {}
 // The screening cache and the prevalence are shared: the API serves them, the worker's reports state the prevalence.
 const shared = [
   ModelStore,
+  ModelVersionsRepository,
   PredictionsService,
   RetrainScheduler,
   ScreenLaneService,

@@ -1,21 +1,14 @@
-import { Controller, Get, Inject, Logger, NotFoundException, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
+import { Controller, Get, Inject, Logger, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import { ApiTextAnswer } from '#api-docs';
 import type { Response } from 'express';
 import { Roles, OnDesk } from '#auth';
-import { Database, DeskEntity, type DbInt } from '#database';
+import { deskOr404 } from '#database';
 import { csvLine, csvRequest, streamText, UTF8_BOM } from '#exports';
+import { ModelVersionsRepository } from './model-versions.repository.js';
 import { PredictionsService } from './predictions.service.js';
 
 const PAGE = 2000;
-
-interface Row {
-  item_id: DbInt;
-  probabilities: string;
-  external_id: string | null;
-  source: string | null;
-  text: string;
-}
 
 /**
  * Predictions of the current version for every open item, as CSV or NDJSON,
@@ -27,7 +20,7 @@ export class PredictionsExportController {
   private readonly logger = new Logger('PredictionsExport');
 
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ModelVersionsRepository) private readonly repository: ModelVersionsRepository,
     @Inject(PredictionsService) private readonly predictions: PredictionsService,
   ) {}
 
@@ -100,26 +93,20 @@ export class PredictionsExportController {
   }
 
   private async rows(deskId: number) {
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    const desk = deskOr404(deskId, await this.repository.desk(deskId));
     const model = await this.predictions.current(desk);
     const categories = model?.categories ?? [];
-    const db = this.db;
+    const repository = this.repository;
     const predictions = this.predictions;
     async function* rows() {
       if (!model) return;
       for (let after = 0; ;) {
-        const page = await db.query<Row>(
-          null,
-          `SELECT p.item_id, p.probabilities, i.external_id, i.source, i.text FROM predictions p JOIN items i ON i.id = p.item_id
-           WHERE p.desk_id = $1 AND p.model_version = $2 AND i.state <> 'decided' AND p.item_id > $3 ORDER BY p.item_id LIMIT ${PAGE}`,
-          [deskId, model.version, after],
-        );
+        const page = await repository.openPredictionsShown(deskId, model.version, after, PAGE);
         for (const r of page) {
-          const shown = predictions.show(desk!, model, JSON.parse(r.probabilities) as number[]);
+          const shown = predictions.show(desk, model, JSON.parse(r.probabilities) as number[]);
           yield {
-            itemId: Number(r.item_id),
-            externalId: r.external_id,
+            itemId: r.itemId,
+            externalId: r.externalId,
             source: r.source,
             modelVersion: model.version,
             call: shown.call,
@@ -129,7 +116,7 @@ export class PredictionsExportController {
           };
         }
         if (page.length < PAGE) return;
-        after = Number(page[page.length - 1].item_id);
+        after = page[page.length - 1].itemId;
       }
     }
     return { desk, categories, rows: rows() };

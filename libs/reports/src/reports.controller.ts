@@ -14,7 +14,7 @@ import type { Response } from 'express';
 import { ApiAnswer, ApiErrors, ApiTextAnswer, type Answer } from '#api-docs';
 import { Roles, OnDesk } from '#auth';
 import type { ModelReportEntity } from '#database';
-import { deskOr404 } from '#desks';
+import { deskOr404 } from '#database';
 import { JOBS, JobQueueService, jobOptions } from '#queues';
 import { ReportAnswer, ReportListAnswer } from './report.responses.js';
 import { ReportsRepository } from './reports.repository.js';

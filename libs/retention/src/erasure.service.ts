@@ -9,7 +9,7 @@ import {
   type ErasureAsked,
   type ErasureOutcome,
 } from '#database';
-import { deskOr404 } from '#desks';
+import { deskOr404 } from '#database';
 import { DeskFeaturesService } from '#models';
 import { RetentionRepository, type SubjectColumn } from './retention.repository.js';
 import { newErasureSalt, subjectHash } from './subject-hash.js';

@@ -1,8 +1,7 @@
 import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import type { AuditActor } from '#audit';
-import { Database, inListChunks, retentionOf, type RetentionSettings } from '#database';
-import { deskOr404 } from '#desks';
+import { Database, deskOr404, inListChunks, retentionOf, type RetentionSettings } from '#database';
 import { ERASURE_BATCH, ErasureService } from './erasure.service.js';
 import { RetentionClock } from './retention-clock.js';
 import { RetentionRepository } from './retention.repository.js';

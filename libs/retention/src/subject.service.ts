@@ -1,7 +1,6 @@
 import { BadRequestException, Inject, Injectable } from '@nestjs/common';
 import { AuditService, type AuditActor } from '#audit';
-import { Database, DeskDirectory, type ErasedBy } from '#database';
-import { deskOr404 } from '#desks';
+import { Database, DeskDirectory, deskOr404, type ErasedBy } from '#database';
 import { ModelStore } from '#models';
 import { ErasureService } from './erasure.service.js';
 import { RetentionRepository } from './retention.repository.js';

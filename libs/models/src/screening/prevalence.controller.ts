@@ -1,20 +1,11 @@
-import {
-  BadRequestException,
-  Controller,
-  Get,
-  Inject,
-  NotFoundException,
-  Param,
-  ParseIntPipe,
-  Query,
-  Res,
-} from '@nestjs/common';
+import { BadRequestException, Controller, Get, Inject, Param, ParseIntPipe, Query, Res } from '@nestjs/common';
 import { ApiQuery, ApiTags } from '@nestjs/swagger';
 import type { Response } from 'express';
 import { ApiAnswer, ApiTextAnswer, type Answer } from '#api-docs';
 import { OnDesk, Roles } from '#auth';
-import { CategoryEntity, Database, DeskEntity } from '#database';
+import { deskOr404 } from '#database';
 import { csvLine, csvRequest, UTF8_BOM } from '#exports';
+import { ModelVersionsRepository } from '../model-versions.repository.js';
 import { PrevalenceAnswer } from './prevalence.responses.js';
 import { PERIOD_BASES, PERIODS, PrevalenceService, type Period, type Prevalence } from './prevalence.service.js';
 import type { PeriodBasis } from './screening.repository.js';
@@ -38,7 +29,7 @@ const byQuery = ApiQuery({
 @Controller('api/desks/:deskId')
 export class PrevalenceController {
   constructor(
-    @Inject(Database) private readonly db: Database,
+    @Inject(ModelVersionsRepository) private readonly repository: ModelVersionsRepository,
     @Inject(PrevalenceService) private readonly prevalenceService: PrevalenceService,
   ) {}
 
@@ -135,14 +126,7 @@ export class PrevalenceController {
   private async figures(deskId: number, period?: string, by?: string): Promise<Prevalence> {
     const p = choice<Period>('period', period, PERIODS, 'week');
     const b = choice<PeriodBasis>('by', by, PERIOD_BASES, 'posted');
-    const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
-    const cats = await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } });
-    return this.prevalenceService.prevalence(
-      desk,
-      cats.map((c) => c.name),
-      p,
-      b,
-    );
+    const desk = deskOr404(deskId, await this.repository.desk(deskId));
+    return this.prevalenceService.prevalence(desk, await this.repository.categoryNames(deskId), p, b);
   }
 }
