@@ -10,7 +10,7 @@ import { AuthService, bearerOf, readCookie, SESSION_COOKIE } from '#auth';
 import { ApiModule } from './app.module.js';
 import { JsonBodyInterceptor } from './json-body.js';
 import { mountMetrics } from './metrics/metrics-endpoint.js';
-import { RedisUnavailableFilter } from './redis-unavailable.filter.js';
+import { ErrorAnswerFilter } from './error-answer.filter.js';
 import { StrictValidationPipe } from './strict-validation.pipe.js';
 import { webScreens } from './web-screens.js';
 
@@ -44,7 +44,7 @@ export async function createHttpApp(config: AppConfig): Promise<INestApplication
   // Bodies are read after the guard (see JsonBodyInterceptor) and checked for unknown properties before validation walks them.
   app.useGlobalInterceptors(new JsonBodyInterceptor(app.get(Reflector)));
   app.useGlobalPipes(new StrictValidationPipe());
-  app.useGlobalFilters(new RedisUnavailableFilter(app.getHttpAdapter()));
+  app.useGlobalFilters(new ErrorAnswerFilter(app.getHttpAdapter()));
   app.enableShutdownHooks();
   const doc = buildOpenApiDocument(app, API_VERSION);
   // The document is for signed-in users only; Nest's guard does not cover these routes, so check here. Mounted on

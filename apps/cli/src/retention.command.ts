@@ -1,5 +1,6 @@
 import { loadConfigOrExit } from '#config';
 import { defineCommand, defineGroup, numberOption } from './cli-command.js';
+import { NotFound } from '#errors';
 
 /** `retention run`: applies the retention periods now, as the daily job does; prints one JSON line. */
 export const retentionRunCommand = defineCommand({
@@ -20,7 +21,7 @@ export const retentionRunCommand = defineCommand({
     const config = loadConfigOrExit();
     // Loaded here so that `--help` does not start Nest.
     await import('reflect-metadata');
-    const { Module, NotFoundException } = await import('@nestjs/common');
+    const { Module } = await import('@nestjs/common');
     const { NestFactory } = await import('@nestjs/core');
     const { AuditModule } = await import('#audit');
     const { ConfigModule } = await import('#config');
@@ -34,7 +35,7 @@ export const retentionRunCommand = defineCommand({
       io.stdout.write(`${JSON.stringify({ dryRun, desks: runs })}\n`);
       return 0;
     } catch (e) {
-      if (e instanceof NotFoundException) {
+      if (e instanceof NotFound) {
         io.stderr.write(`${e.message}\n`);
         return 1;
       }

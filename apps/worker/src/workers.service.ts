@@ -1,6 +1,7 @@
 import { hostname } from 'node:os';
 import { Inject, Injectable, Logger, type OnApplicationBootstrap, type OnApplicationShutdown } from '@nestjs/common';
 import { UnrecoverableError, Worker, type Job } from 'bullmq';
+import { isDomainError } from '#errors';
 import type { Redis } from 'ioredis';
 import type { Logger as Pino } from 'pino';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -85,7 +86,9 @@ export class WorkersService implements OnApplicationBootstrap, OnApplicationShut
           const handler = this.table.get(job.name as JobName);
           if (!handler || JOB_QUEUE[job.name as JobName] !== queue)
             throw new UnrecoverableError(`no handler for job ${job.name} on queue ${queue}`);
-          return handler.handle(job as never);
+          return handler.handle(job as never).catch((e: unknown) => {
+            throw retryOrGiveUp(e);
+          });
         },
         {
           name: `${hostname()}:${process.pid}`,
@@ -158,3 +161,15 @@ export const PROCESSORS = [
   ApplyRetentionProcessor,
   NotifyUrgentProcessor,
 ];
+
+/**
+ * The worker's one rule on a failed job: a domain error (`#errors`: bad input, something gone, a clash with the
+ * state of things) would fail the same way again, so the job gives up at once; anything else (a lost connection, a
+ * lock timeout, a crash) is retried up to the job's attempts.
+ */
+export function retryOrGiveUp(e: unknown): unknown {
+  if (!isDomainError(e)) return e;
+  const final = new UnrecoverableError(e.message);
+  final.stack = e.stack;
+  return final;
+}

@@ -1,4 +1,4 @@
-import { NotFoundException } from '@nestjs/common';
+import { NotFound } from '#errors';
 
 /**
  * The one rule for a desk that is not there: `found` (whatever the caller looked the desk up as: its directory entry,
@@ -6,6 +6,6 @@ import { NotFoundException } from '@nestjs/common';
  * answered the same way, so that its existence is not given away.
  */
 export function deskOr404<T>(deskId: number | string, found: T | null | undefined): T {
-  if (found === null || found === undefined) throw new NotFoundException(`no desk ${deskId}`);
+  if (found === null || found === undefined) throw new NotFound(`no desk ${deskId}`);
   return found;
 }

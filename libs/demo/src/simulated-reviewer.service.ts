@@ -1,5 +1,4 @@
-import { ConflictException, Inject, Injectable, Logger, type OnModuleDestroy } from '@nestjs/common';
-import { UnrecoverableError } from 'bullmq';
+import { Inject, Injectable, Logger, type OnModuleDestroy } from '@nestjs/common';
 import type { Redis } from 'ioredis';
 import { AuthError, AuthService, type Principal } from '#auth';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -12,6 +11,7 @@ import { DemoDeskService } from './demo-desk.service.js';
 import { readingPauseMs, simulatedAnswer } from './pool/index.js';
 import type { SimulationOutcome } from './simulation.service.js';
 import { simulationStopKey } from './stop-signal.js';
+import { Conflict } from '#errors';
 
 /** The account the simulated reviewer works under: a reviewer without a password, made on first use. */
 export const SIMULATED_REVIEWER = 'simulated-reviewer';
@@ -69,7 +69,8 @@ export class SimulatedReviewerService implements OnModuleDestroy {
   ): Promise<SimulationOutcome> {
     const { deskId, until } = payload;
     const availability = await this.demoDesks.availability(deskId);
-    if (!availability.available) throw new UnrecoverableError(availability.reason);
+    if (!availability.available)
+      throw new Conflict(availability.reason ?? 'this desk cannot have a simulated reviewer');
     const categories = (await this.directory.get(deskId))!.categories.map((c) => c.name);
     const reviewer = await this.account();
     // Seeded by the run: its pauses, mistakes and abstentions can be replayed.
@@ -89,7 +90,7 @@ export class SimulatedReviewerService implements OnModuleDestroy {
       const truth = this.demoDesks.truth(grant.item.externalId);
       if (truth === null) {
         await this.leases.giveBack(reviewer, grant.lease.id);
-        throw new UnrecoverableError(`item ${grant.item.id} is not a generated demo post`);
+        throw new Conflict(`item ${grant.item.id} is not a generated demo post`);
       }
       const pause = readingPauseMs(rng);
       await sleep(pause);
@@ -116,7 +117,7 @@ export class SimulatedReviewerService implements OnModuleDestroy {
         );
       } catch (e) {
         // The lease ran out and someone else took the item: as for a person, the answer is simply not recorded.
-        if (e instanceof ConflictException) continue;
+        if (e instanceof Conflict) continue;
         throw e;
       }
       verdicts++;
@@ -140,7 +141,7 @@ export class SimulatedReviewerService implements OnModuleDestroy {
       }
     }
     if (!user || user.role !== 'reviewer' || user.disabled)
-      throw new UnrecoverableError(`the account ${SIMULATED_REVIEWER} exists but is not an active reviewer`);
+      throw new Conflict(`the account ${SIMULATED_REVIEWER} exists but is not an active reviewer`);
     return { id: user.id, name: user.name, role: 'reviewer', via: 'token' };
   }
 }

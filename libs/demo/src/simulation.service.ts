@@ -1,4 +1,4 @@
-import { ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { AuditService, type AuditActor } from '#audit';
@@ -7,6 +7,7 @@ import { Database, DeskDirectory } from '#database';
 import { jobOptions, JobQueueService, JOBS, REDIS, type SimulateReviewerPayload } from '#queues';
 import { DemoDeskService } from './demo-desk.service.js';
 import { simulationStopKey, STOP_SIGNAL_SECONDS } from './stop-signal.js';
+import { Conflict, NotFound } from '#errors';
 
 export type SimulationState = 'idle' | 'running' | 'finished' | 'stopped';
 
@@ -70,12 +71,11 @@ export class SimulationService {
   async start(actor: AuditActor, deskId: number, minutes: number): Promise<SimulationRun> {
     await this.mustExist(deskId);
     const availability = await this.demoDesks.availability(deskId);
-    if (!availability.available) throw new ConflictException(availability.reason);
+    if (!availability.available)
+      throw new Conflict(availability.reason ?? 'this desk cannot have a simulated reviewer');
     const current = await this.run(deskId);
     if (current.state === 'running') {
-      throw new ConflictException({
-        statusCode: 409,
-        message: `a simulated reviewer is already working on this desk, until ${current.until}`,
+      throw new Conflict(`a simulated reviewer is already working on this desk, until ${current.until}`, {
         ...current,
       });
     }
@@ -152,6 +152,6 @@ export class SimulationService {
   }
 
   private async mustExist(deskId: number): Promise<void> {
-    if (!(await this.directory.get(deskId))) throw new NotFoundException(`no desk ${deskId}`);
+    if (!(await this.directory.get(deskId))) throw new NotFound(`no desk ${deskId}`);
   }
 }

@@ -1,4 +1,4 @@
-import { BadRequestException, ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { In, type EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import { APP_CONFIG, type AppConfig } from '#config';
@@ -18,6 +18,7 @@ import { JOBS, JobQueueService } from '#queues';
 import { ModelTransferService, PredictionsService, type CalibrationStatus, type PreparedTransfer } from '#models';
 import { checkSeedTerms } from '#learning';
 import type { CreateDeskDto, UpdateDeskDto } from './desk.dto.js';
+import { Conflict, InvalidInput, NotFound } from '#errors';
 
 /** A desk with its categories in display order: what the API returns. */
 export interface DeskView {
@@ -50,9 +51,9 @@ const RESERVED_CATEGORY_NAMES = ['abstain'];
 /** Checks seed terms against the desk's categories; returns them cleaned (trimmed, de-duplicated). */
 export function validateSeedTerms(seedTerms: unknown, categories: string[]): Record<string, string[]> {
   if (seedTerms !== undefined && seedTerms !== null && (typeof seedTerms !== 'object' || Array.isArray(seedTerms)))
-    throw new BadRequestException('seedTerms: expected an object mapping category names to lists of terms');
+    throw new InvalidInput('seedTerms: expected an object mapping category names to lists of terms');
   const checked = checkSeedTerms(seedTerms, categories);
-  if (checked.problems.length) throw new BadRequestException(checked.problems);
+  if (checked.problems.length) throw new InvalidInput(checked.problems);
   return checked.seedTerms;
 }
 
@@ -62,7 +63,7 @@ const SHARE_SLACK = 1e-9;
 /** Refuses a random share and a review-lane share that add up to more than every lease. */
 export function checkShares(randomShare: number, screenShare: number): void {
   if (randomShare + screenShare > 1 + SHARE_SLACK)
-    throw new BadRequestException([
+    throw new InvalidInput([
       `screenShare: randomShare + screenShare may not exceed 1 (got ${randomShare} + ${screenShare}); lower one of them`,
     ]);
 }
@@ -101,7 +102,7 @@ export function validateScreening(
     );
   if (calibration === 'marginal' && Object.keys(targets).length > 0)
     problems.push('coverageTargets: a target per category needs calibration "per-category"');
-  if (problems.length) throw new BadRequestException(problems);
+  if (problems.length) throw new InvalidInput(problems);
   return { watch: categories.filter((c) => list.includes(c)), coverageTargets: targets };
 }
 
@@ -116,7 +117,7 @@ export function validateRetention(
   categories: string[],
 ): RetentionSettings {
   if (typeof change !== 'object' || change === null || Array.isArray(change))
-    throw new BadRequestException(['retention: expected an object with decidedAfterDays, categories, openAfterDays']);
+    throw new InvalidInput(['retention: expected an object with decidedAfterDays, categories, openAfterDays']);
   const problems: string[] = [];
   const days = (field: string, v: unknown): v is number | null => {
     if (v === null || (Number.isInteger(v) && (v as number) >= 1 && (v as number) <= RETENTION_DAYS_MAX)) return true;
@@ -147,19 +148,17 @@ export function validateRetention(
       out.categories = Object.fromEntries(categories.filter((c) => c in map).map((c) => [c, map[c]]));
     } else problems.push(`retention.${k}: unknown; expected decidedAfterDays, categories or openAfterDays`);
   }
-  if (problems.length) throw new BadRequestException(problems);
+  if (problems.length) throw new InvalidInput(problems);
   return out;
 }
 
 function checkCategoryNames(names: string[]): void {
   const reserved = names.filter((n) => RESERVED_CATEGORY_NAMES.includes(n.toLowerCase()));
   if (reserved.length)
-    throw new BadRequestException([
-      `categories: ${JSON.stringify(reserved[0])} is reserved (abstaining is always possible)`,
-    ]);
+    throw new InvalidInput([`categories: ${JSON.stringify(reserved[0])} is reserved (abstaining is always possible)`]);
   const folded = names.map((n) => n.normalize('NFKC').toLowerCase());
   if (new Set(folded).size !== folded.length)
-    throw new BadRequestException(['categories: two names differ only by case or form']);
+    throw new InvalidInput(['categories: two names differ only by case or form']);
 }
 
 @Injectable()
@@ -200,7 +199,7 @@ export class DesksService {
       : null;
     const deskId = await this.db.write(async (m) => {
       if (await m.findOneBy(DeskEntity, { name: dto.name }))
-        throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
+        throw new Conflict(`a desk named ${JSON.stringify(dto.name)} exists already`);
       const now = new Date();
       const desk = await m.save(
         DeskEntity,
@@ -311,7 +310,7 @@ export class DesksService {
             Number(settled?.n ?? 0) ? `${Number(settled!.n)} settlement(s)` : '',
           ].filter(Boolean);
           if (uses.length)
-            throw new ConflictException(
+            throw new Conflict(
               `category ${JSON.stringify(c.name)} is used by ${uses.join(' and ')}: categories can be added, but one in use cannot be removed or renamed`,
             );
         }
@@ -327,7 +326,7 @@ export class DesksService {
             [deskId],
           );
           if (Number(used?.n ?? 0) > 0)
-            throw new ConflictException(
+            throw new Conflict(
               `categories: the order cannot change once the desk has verdicts, because the number keys of the queue follow it (key 1 is ${JSON.stringify(before.categories[0].name)}); keep the order and add new categories at the end`,
             );
         }
@@ -345,7 +344,7 @@ export class DesksService {
       }
       if (dto.name !== undefined && dto.name !== desk.name) {
         const clash = await m.findOneBy(DeskEntity, { name: dto.name });
-        if (clash) throw new ConflictException(`a desk named ${JSON.stringify(dto.name)} exists already`);
+        if (clash) throw new Conflict(`a desk named ${JSON.stringify(dto.name)} exists already`);
         desk.name = dto.name;
       }
       if (dto.seedTerms !== undefined) {
@@ -419,7 +418,7 @@ export class DesksService {
 
   private async viewIn(m: EntityManager, deskId: number): Promise<DeskView> {
     const desk = await m.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    if (!desk) throw new NotFound(`no desk ${deskId}`);
     const cats = await m.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } });
     return toView(desk, cats);
   }

@@ -1,5 +1,5 @@
-import { BadRequestException } from '@nestjs/common';
 import { RAW, SPREADSHEET_SAFE, type CsvOptions } from './csv.js';
+import { InvalidInput } from '#errors';
 
 /** How a CSV download was asked for: `?raw=1` for values exactly as stored, `?bom=1` for a leading byte order mark. */
 export interface CsvRequest {
@@ -11,7 +11,7 @@ function flag(name: string, value: unknown): boolean {
   if (value === undefined || value === '') return false;
   if (value === '1' || value === 'true') return true;
   if (value === '0' || value === 'false') return false;
-  throw new BadRequestException(`${name}: expected 1 or 0 (true or false), got ${JSON.stringify(value)}`);
+  throw new InvalidInput(`${name}: expected 1 or 0 (true or false), got ${JSON.stringify(value)}`);
 }
 
 /** Reads `raw` and `bom` from a CSV route's query; 400 for anything but 1/0/true/false, given at most once. */

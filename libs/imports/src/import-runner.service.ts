@@ -1,6 +1,5 @@
 import { createReadStream, existsSync, rmSync } from 'node:fs';
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { UnrecoverableError } from 'bullmq';
 import type { EntityManager } from 'typeorm';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService } from '#audit';
@@ -20,6 +19,7 @@ import { ImportFileError, parseImport, type ImportRecord, type RejectedRow } fro
 import { uploadPath } from './imports.service.js';
 import { ArchiveAccountTaken, ensureArchiveAccount } from './archive-account.js';
 import { takeLabel } from './label-options.js';
+import { Conflict, Gone, InvalidInput, NotFound } from '#errors';
 
 /** What a batch's labelled rows need: the archive account, the desk's categories by name, the import's draw. */
 interface LabelContext {
@@ -75,14 +75,14 @@ export class ImportRunner {
     reportProgress: (rowsRead: number) => Promise<void> = () => Promise.resolve(),
   ): Promise<ImportEntity> {
     const imp = await this.db.manager.findOneBy(ImportEntity, { id: importId });
-    if (!imp) throw new UnrecoverableError(`no import ${importId}`);
+    if (!imp) throw new NotFound(`no import ${importId}`);
     if (imp.state === 'done' || imp.state === 'failed') return imp;
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: imp.deskId });
-    if (!desk) throw new UnrecoverableError(`desk ${imp.deskId} of import ${importId} is gone`);
+    if (!desk) throw new Gone(`desk ${imp.deskId} of import ${importId} is gone`);
     const path = uploadPath(this.config, importId);
     if (!existsSync(path)) {
       await this.fail(importId, 'the uploaded file is missing from the data folder');
-      throw new UnrecoverableError(`upload of import ${importId} is missing`);
+      throw new Gone(`upload of import ${importId} is missing`);
     }
     await this.db.write((m) =>
       m.update(
@@ -96,7 +96,7 @@ export class ImportRunner {
       if (!(e instanceof ArchiveAccountTaken)) throw e;
       await this.fail(importId, `${e.message}; nothing was imported`);
       this.discard(path);
-      throw new UnrecoverableError(e.message);
+      throw new Conflict(e.message);
     });
     const resumeAfter = imp.rowsCommitted;
     const open = () =>
@@ -115,7 +115,7 @@ export class ImportRunner {
         if (!(e instanceof ImportFileError)) throw e;
         await this.fail(importId, `row ${e.row}: ${e.message}; nothing was imported`);
         this.discard(path);
-        throw new UnrecoverableError(e.message);
+        throw new InvalidInput(e.message);
       }
     }
     let records: LabelledRecord[] = [];
@@ -179,7 +179,7 @@ export class ImportRunner {
             (kept ? `rows 1 to ${kept} were imported before it and stay` : 'nothing was imported'),
         );
         this.discard(path);
-        throw new UnrecoverableError(e.message);
+        throw new InvalidInput(e.message);
       }
       throw e;
     }

@@ -2,14 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { mkdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Readable } from 'node:stream';
-import {
-  BadRequestException,
-  ConflictException,
-  Inject,
-  Injectable,
-  NotFoundException,
-  UnsupportedMediaTypeException,
-} from '@nestjs/common';
+import { Inject, Injectable, UnsupportedMediaTypeException } from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService, type AuditActor } from '#audit';
 import { In } from 'typeorm';
@@ -24,6 +17,7 @@ import {
   type LabelOptionsInput,
 } from './label-options.js';
 import { receiveUpload, UploadError } from './upload.js';
+import { Conflict, InvalidInput, NotFound } from '#errors';
 
 /** The one sentence an uploader states to import labels as random draws (recorded in the audit trail). */
 export const UNIFORM_SAMPLE_STATEMENT =
@@ -74,13 +68,12 @@ export class ImportsService {
     req: Readable & { headers: Record<string, string | string[] | undefined> },
     labelQuery: LabelOptionsInput = {},
   ): Promise<{ importId: string }> {
-    if (!(await this.db.manager.findOneBy(DeskEntity, { id: deskId })))
-      throw new NotFoundException(`no desk ${deskId}`);
+    if (!(await this.db.manager.findOneBy(DeskEntity, { id: deskId }))) throw new NotFound(`no desk ${deskId}`);
     // Options in the query are checked before a byte is stored; a form's fields can only be read with the file.
     try {
       resolveLabelOptions(labelQuery);
     } catch (e) {
-      if (e instanceof LabelOptionsError) throw new BadRequestException(e.message);
+      if (e instanceof LabelOptionsError) throw new InvalidInput(e.message);
       throw e;
     }
     const id = randomUUID();
@@ -167,9 +160,9 @@ export class ImportsService {
         await this.db.write((m) =>
           m.update(ImportEntity, { id }, { state: 'failed', failure: message, finishedAt: new Date() }),
         );
-      if (e instanceof ArchiveAccountTaken) throw new ConflictException(e.message);
+      if (e instanceof ArchiveAccountTaken) throw new Conflict(e.message);
       if (e instanceof UploadError)
-        throw e.status === 415 ? new UnsupportedMediaTypeException(e.message) : new BadRequestException(e.message);
+        throw e.status === 415 ? new UnsupportedMediaTypeException(e.message) : new InvalidInput(e.message);
       throw e;
     }
   }
@@ -204,7 +197,7 @@ export class ImportsService {
 
   async get(importId: string): Promise<ImportView> {
     const imp = await this.db.manager.findOneBy(ImportEntity, { id: importId });
-    if (!imp) throw new NotFoundException(`no import ${importId}`);
+    if (!imp) throw new NotFound(`no import ${importId}`);
     return toView(imp, await this.userNames([imp]));
   }
 

@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto';
-import { ForbiddenException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
@@ -17,6 +17,7 @@ import {
 import { avoidNearDuplicate, drawKindOf, drawPlan, NEAR_DUPLICATE_CANDIDATES, type DrawSource } from '#learning';
 import { PredictionsService, ScreenLaneService } from '#models';
 import { HighlightService, type Highlight } from './highlight.service.js';
+import { NotAllowed, NotFound } from '#errors';
 
 export interface LeaseGrant {
   lease: { id: string; expiresAt: Date };
@@ -76,7 +77,7 @@ export class LeasesService {
   /** Leases the next item of a desk to a reviewer; null when nothing is left to serve. */
   async lease(reviewer: Principal, deskId: number, attempt = 0): Promise<LeaseGrant | null> {
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     const { desk } = entry;
     // The sampling policy (see the learning core's sampling-policy): one uniform number chooses the kind of
     // draw, and each kind's sources are tried in order until one has an item.
@@ -466,8 +467,8 @@ export class LeasesService {
   async giveBack(reviewer: Principal, leaseId: string, options: { skip?: boolean } = {}): Promise<void> {
     await this.db.write(async (m) => {
       const lease = await m.findOneBy(LeaseEntity, { id: leaseId });
-      if (!lease) throw new NotFoundException(`no lease ${leaseId}`);
-      if (lease.reviewerId !== reviewer.id) throw new ForbiddenException('this lease belongs to another reviewer');
+      if (!lease) throw new NotFound(`no lease ${leaseId}`);
+      if (lease.reviewerId !== reviewer.id) throw new NotAllowed('this lease belongs to another reviewer');
       const now = new Date();
       if (options.skip && lease.closedReason !== 'verdict') {
         const until = new Date(now.getTime() + this.config.sessionHours * 3_600_000);

@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto';
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { UnrecoverableError } from 'bullmq';
 import {
   CategoryEntity,
   Database,
@@ -33,6 +32,7 @@ import { FIRST_MODEL_MIN_PER_CATEGORY } from './retrain-scheduler.service.js';
 import { enqueueScoring } from './scoring-flow.js';
 import { versionsToSupersede, type VersionOnItsWay } from './supersede.js';
 import { trainInThread } from './training-protocol.js';
+import { NotFound } from '#errors';
 
 /** Items per scoring chunk: each chunk is its own job, taken by any worker process. */
 export const DEFAULT_CHUNK_SIZE = 5000;
@@ -72,7 +72,7 @@ export class TrainingService {
     const { deskId, base } = payload;
     const jobKey = `retrain-${deskId}-${base}`;
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new UnrecoverableError(`no desk ${deskId}`);
+    if (!desk) throw new NotFound(`no desk ${deskId}`);
     const categories = (
       await this.db.manager.find(CategoryEntity, { where: { deskId }, order: { position: 'ASC' } })
     ).map((c) => c.name);

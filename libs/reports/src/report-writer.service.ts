@@ -1,12 +1,12 @@
 import { createHash } from 'node:crypto';
 import { Inject, Injectable, Logger } from '@nestjs/common';
-import { UnrecoverableError } from 'bullmq';
 import type { WriteReportPayload } from '#queues';
 import { canonicalJson } from './canonical-json.js';
 import { renderReport } from './html/render-report.js';
 import { ReportData, ReportNotPossible } from './report-data.service.js';
 import type { ReportFigures } from './report-figures.js';
 import { ReportsRepository } from './reports.repository.js';
+import { Conflict } from '#errors';
 
 /**
  * Writes the oversight report of a published version: its figures as
@@ -28,9 +28,7 @@ export class ReportWriter {
     // A version that is missing or not published will not become reportable by retrying.
     const v = await this.reports.versionState(p.deskId, p.version);
     if (v?.state !== 'published')
-      throw new UnrecoverableError(
-        `desk ${p.deskId} has no published model version ${p.version} (${v?.state ?? 'none'})`,
-      );
+      throw new Conflict(`desk ${p.deskId} has no published model version ${p.version} (${v?.state ?? 'none'})`);
     const existing = await this.reports.report(p.deskId, p.version);
     if (!existing) await this.reports.startWriting(p.deskId, p.version, null);
     else if (existing.state === 'failed') await this.reports.startWriting(p.deskId, p.version, existing.id);
@@ -40,7 +38,7 @@ export class ReportWriter {
       figures = await this.data.figures(p.deskId, p.version, kept?.pool ?? null, kept?.prevalence ?? null);
     } catch (e) {
       await this.fail(p, e);
-      if (e instanceof ReportNotPossible) throw new UnrecoverableError(e.message);
+      if (e instanceof ReportNotPossible) throw new Conflict(e.message);
       throw e;
     }
     const json = canonicalJson(figures);

@@ -1,4 +1,4 @@
-import { BadRequestException, Inject, Injectable } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import {
@@ -13,6 +13,7 @@ import { deskOr404 } from '#database';
 import { DeskFeaturesService } from '#models';
 import { RetentionRepository, type SubjectColumn } from './retention.repository.js';
 import { newErasureSalt, subjectHash } from './subject-hash.js';
+import { InvalidInput } from '#errors';
 
 /** Items erased per transaction by {@link ErasureService.eraseInBatches}: each batch commits with its own record. */
 export const ERASURE_BATCH = 500;
@@ -73,7 +74,7 @@ export class ErasureService {
     const sources = [...new Set(req.sources ?? [])];
     const itemIds = [...new Set(req.itemIds ?? [])];
     if (externalIds.length + sources.length + itemIds.length === 0)
-      throw new BadRequestException('give at least one of: externalIds, sources, itemIds (non-empty lists)');
+      throw new InvalidInput('give at least one of: externalIds, sources, itemIds (non-empty lists)');
     const asked: ErasureAsked = {
       externalIds: externalIds.length,
       sources: sources.length,
@@ -84,7 +85,7 @@ export class ErasureService {
         const here = await this.repository.itemsOfDesk(m, deskId, itemIds);
         const missing = itemIds.filter((id) => !here.has(id));
         if (missing.length)
-          throw new BadRequestException(
+          throw new InvalidInput(
             `itemIds: ${missing.length} are not items of desk ${deskId} (${missing.slice(0, 20).join(', ')}${missing.length > 20 ? ', …' : ''}); nothing was erased`,
           );
       }

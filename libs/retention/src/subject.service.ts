@@ -1,10 +1,11 @@
-import { BadRequestException, Inject, Injectable } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { AuditService, type AuditActor } from '#audit';
 import { Database, DeskDirectory, deskOr404, type ErasedBy } from '#database';
 import { ModelStore } from '#models';
 import { ErasureService } from './erasure.service.js';
 import { RetentionRepository } from './retention.repository.js';
 import { subjectHash } from './subject-hash.js';
+import { InvalidInput } from '#errors';
 
 /** Who the export is about: one external id, or one source. */
 export type SubjectSelector = { externalId: string } | { source: string };
@@ -66,10 +67,10 @@ export class SubjectService {
   /** Checks the query: exactly one of externalId and source, non-empty, at most 200 characters. */
   static selector(externalId: string | undefined, source: string | undefined): SubjectSelector {
     if ((externalId === undefined) === (source === undefined))
-      throw new BadRequestException('give exactly one of: externalId, source');
+      throw new InvalidInput('give exactly one of: externalId, source');
     const [name, value] = externalId !== undefined ? ['externalId', externalId] : ['source', source!];
     if (value.length === 0 || value.length > 200)
-      throw new BadRequestException(`${name}: 1 to 200 characters, got ${value.length}`);
+      throw new InvalidInput(`${name}: 1 to 200 characters, got ${value.length}`);
     return externalId !== undefined ? { externalId } : { source: source! };
   }
 

@@ -1,5 +1,6 @@
-import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskEntity } from '#database';
+import { NotFound } from '#errors';
 
 export interface DeskProgress {
   deskId: number;
@@ -25,7 +26,7 @@ export class ProgressService {
 
   async progress(deskId: number, withReviewers: boolean): Promise<DeskProgress> {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    if (!desk) throw new NotFound(`no desk ${deskId}`);
     const q = <T>(sql: string, params: unknown[]) => this.db.query<T>(null, sql, params);
     const now = this.db.time(new Date());
     const [states, cats, draws, undone, active] = await Promise.all([

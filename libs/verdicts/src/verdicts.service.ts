@@ -1,12 +1,4 @@
-import {
-  BadRequestException,
-  ConflictException,
-  ForbiddenException,
-  Inject,
-  Injectable,
-  Logger,
-  NotFoundException,
-} from '@nestjs/common';
+import { Inject, Injectable, Logger } from '@nestjs/common';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
@@ -26,21 +18,22 @@ import { RetrainScheduler } from '#models';
 import type { CreateVerdictDto } from './verdict.dto.js';
 import type { TrailFilter } from './trail/trail.service.js';
 import { EscalationsService } from './escalation/escalations.service.js';
+import { Conflict, InvalidInput, NotAllowed, NotFound } from '#errors';
 
 /** The trimmed reason of an urgent verdict, or null for a verdict that is not urgent; refuses what does not fit. */
 export function checkUrgent(dto: Pick<CreateVerdictDto, 'urgent' | 'urgentReason'>): string | null {
   const reason = dto.urgentReason?.trim();
   if (dto.urgent !== true) {
     if (dto.urgentReason !== undefined)
-      throw new BadRequestException('urgentReason: only with urgent: true (the reason of an escalation)');
+      throw new InvalidInput('urgentReason: only with urgent: true (the reason of an escalation)');
     return null;
   }
   if (reason === undefined || reason === '')
-    throw new BadRequestException(
+    throw new InvalidInput(
       `urgentReason: required with urgent: true, a few words (1 to ${URGENT_REASON_MAX} characters) saying why`,
     );
   if (reason.length > URGENT_REASON_MAX)
-    throw new BadRequestException(
+    throw new InvalidInput(
       `urgentReason: at most ${URGENT_REASON_MAX} characters (got ${reason.length}); say why in a few words and use the note for more`,
     );
   return reason;
@@ -142,16 +135,16 @@ export class VerdictsService {
   ): Promise<{ verdict: VerdictView; replayed: boolean }> {
     const simulated = options.simulated === true;
     if ((dto.category === undefined) === (dto.abstain === undefined)) {
-      throw new BadRequestException('give exactly one of: category (a category name of the desk), or abstain: true');
+      throw new InvalidInput('give exactly one of: category (a category name of the desk), or abstain: true');
     }
     const urgentReason = checkUrgent(dto);
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     let categoryId: number | null = null;
     if (dto.category !== undefined) {
       const cat = entry.categories.find((c) => c.name === dto.category);
       if (!cat)
-        throw new BadRequestException(
+        throw new InvalidInput(
           `unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`,
         );
       categoryId = cat.id;
@@ -173,7 +166,7 @@ export class VerdictsService {
         );
         if (row && row.existing_id !== null) {
           if (Number(row.existing_item) !== dto.itemId)
-            throw new ConflictException(
+            throw new Conflict(
               `clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${row.existing_item}`,
             );
           return { replayOf: Number(row.existing_id) };
@@ -185,25 +178,24 @@ export class VerdictsService {
             [reviewer.id, dto.clientId],
           );
           if (other)
-            throw new ConflictException(
+            throw new Conflict(
               `clientId ${JSON.stringify(dto.clientId)} was already used for a verdict on item ${other.item_id}`,
             );
-          throw new NotFoundException(`no lease ${dto.leaseId}`);
+          throw new NotFound(`no lease ${dto.leaseId}`);
         }
-        if (Number(row.reviewer_id) !== reviewer.id)
-          throw new ForbiddenException('this lease belongs to another reviewer');
+        if (Number(row.reviewer_id) !== reviewer.id) throw new NotAllowed('this lease belongs to another reviewer');
         if (Number(row.desk_id) !== deskId || Number(row.item_id) !== dto.itemId)
-          throw new BadRequestException(
+          throw new InvalidInput(
             `lease ${dto.leaseId} is for item ${row.item_id} of desk ${row.desk_id}, not item ${dto.itemId} of desk ${deskId}`,
           );
         // Erased while the reviewer held it: the item keeps no text to have a verdict about.
         if (row.erased_at !== null)
-          throw new ConflictException(
+          throw new Conflict(
             `item ${dto.itemId} was erased while you held it (erasure on request or retention); your verdict was not recorded`,
           );
         // The reviewer gave the item back: the item may be anyone's now, and this lease no longer covers a verdict.
         if (row.closed_reason === 'returned')
-          throw new ConflictException(
+          throw new Conflict(
             `lease ${dto.leaseId} was handed back; your verdict was not recorded (ask for the item again)`,
           );
         const now = new Date();
@@ -228,7 +220,7 @@ export class VerdictsService {
             [reviewer.id, dto.clientId],
           );
           if (mine && Number(mine.item_id) === dto.itemId) return { replayOf: Number(mine.id) };
-          throw new ConflictException(
+          throw new Conflict(
             heldByOther || (opinionTaken && row.so_state === 'leased')
               ? 'your lease on this item expired and another reviewer holds it now; your verdict was not recorded'
               : 'your lease on this item expired and another reviewer decided it meanwhile; your verdict was not recorded',
@@ -347,7 +339,7 @@ export class VerdictsService {
         );
         if (again && Number(again.item_id) === dto.itemId)
           return { verdict: await this.view(Number(again.id)), replayed: true };
-        throw new ConflictException('you have already given a verdict on this item');
+        throw new Conflict('you have already given a verdict on this item');
       }
       throw e;
     }
@@ -373,19 +365,19 @@ export class VerdictsService {
     const entry = found ? await this.directory.get(Number(found.desk_id)) : null;
     const lease = await this.db.write(async (m) => {
       const v = await m.findOneBy(VerdictEntity, { id: verdictId });
-      if (!v) throw new NotFoundException(`no verdict ${verdictId}`);
-      if (v.reviewerId !== reviewer.id) throw new ForbiddenException('only the author may undo a verdict');
-      if (v.undoneAt) throw new ConflictException('this verdict was already undone');
+      if (!v) throw new NotFound(`no verdict ${verdictId}`);
+      if (v.reviewerId !== reviewer.id) throw new NotAllowed('only the author may undo a verdict');
+      if (v.undoneAt) throw new Conflict('this verdict was already undone');
       const windowMs = this.config.undoWindowSeconds * 1000;
       if (Date.now() - v.createdAt.getTime() > windowMs)
-        throw new ConflictException(`the undo window of ${Math.round(windowMs / 60000)} minutes has passed`);
+        throw new Conflict(`the undo window of ${Math.round(windowMs / 60000)} minutes has passed`);
       const last = await m.findOne(VerdictEntity, {
         where: { reviewerId: reviewer.id },
         order: { createdAt: 'DESC', id: 'DESC' },
       });
-      if (!last || last.id !== v.id) throw new ConflictException('only your last verdict can be undone');
+      if (!last || last.id !== v.id) throw new Conflict('only your last verdict can be undone');
       // Only the archive account gives such verdicts, and it never signs in; this narrows the draw for the lease below.
-      if (v.draw === 'archive') throw new ConflictException('an imported archive label cannot be undone');
+      if (v.draw === 'archive') throw new Conflict('an imported archive label cannot be undone');
       const now = new Date();
       await m.update(VerdictEntity, { id: v.id }, { undoneAt: now });
       const [{ n }] = await this.db.query<{ n: DbInt }>(
@@ -438,7 +430,7 @@ export class VerdictsService {
 
   async view(id: number): Promise<VerdictView> {
     const rows = await this.listWhere(`v.id = $1`, [id], 1);
-    if (!rows[0]) throw new NotFoundException(`no verdict ${id}`);
+    if (!rows[0]) throw new NotFound(`no verdict ${id}`);
     return rows[0];
   }
 

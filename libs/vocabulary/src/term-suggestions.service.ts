@@ -1,4 +1,4 @@
-import { BadRequestException, Inject, Injectable } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { AuditService, type AuditActor } from '#audit';
 import { Database } from '#database';
 import { DesksService, type DeskView } from '#desks';
@@ -8,6 +8,7 @@ import { termLeanings } from './term-leaning.js';
 import { EXAMPLES_PER_WORD, decodeTermStatistics, type TermStatistics } from './term-statistics.codec.js';
 import { TermStatisticsRepository } from './term-statistics.repository.js';
 import { seedTermKey } from './term-statistics.service.js';
+import { InvalidInput } from '#errors';
 
 /** Words held by fewer items are not suggested. */
 export const MIN_SUGGESTION_ITEMS = 3;
@@ -219,7 +220,7 @@ export class TermSuggestionsService {
   private category(desk: DeskView, name: string): { id: number; name: string } {
     const found = desk.categories.find((c) => c.name === name);
     if (!found)
-      throw new BadRequestException(
+      throw new InvalidInput(
         `category: ${JSON.stringify(name)} is not a category of this desk (${desk.categories.map((c) => c.name).join(', ')})`,
       );
     return found;

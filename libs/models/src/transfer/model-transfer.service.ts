@@ -1,4 +1,4 @@
-import { BadRequestException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { Database, DeskEntity, ModelVersionEntity, type ModelOrigin } from '#database';
 import {
@@ -18,6 +18,7 @@ import {
 import { JobQueueService } from '#queues';
 import { enqueueScoring } from '../scoring-flow.js';
 import { DEFAULT_CHUNK_SIZE } from '../training.service.js';
+import { InvalidInput, NotFound } from '#errors';
 
 /** A source version checked and mapped onto a new desk's categories, ready to become its first version. */
 export interface PreparedTransfer {
@@ -43,10 +44,10 @@ export class ModelTransferService {
 
   private async source(deskId: number, version: number, status: 400 | 404) {
     const desk = await this.db.manager.findOneBy(DeskEntity, { id: deskId });
-    if (!desk) throw new NotFoundException(`no desk ${deskId}`);
+    if (!desk) throw new NotFound(`no desk ${deskId}`);
     const row = await this.db.manager.findOneBy(ModelVersionEntity, { deskId, version });
     const fail = (why: string): never => {
-      throw status === 404 ? new NotFoundException(why) : new BadRequestException([`startFrom.version: ${why}`]);
+      throw status === 404 ? new NotFound(why) : new InvalidInput([`startFrom.version: ${why}`]);
     };
     if (!row) {
       const [latest] = await this.db.query<{ v: unknown }>(
@@ -90,7 +91,7 @@ export class ModelTransferService {
     const featurizer = (model.featurizer as FeaturizerOptions | undefined) ?? { hashBits: idf.hashBits };
     const wanted = { hashBits: DEFAULT_HASH_BITS };
     if (!sameFeaturizer(featurizer, wanted))
-      throw new BadRequestException([
+      throw new InvalidInput([
         `startFrom: version ${version} of desk ${deskId} was trained with featuriser settings ${JSON.stringify(featurizerSettings(featurizer))}, and new desks use ${JSON.stringify(featurizerSettings(wanted))}; its weights would be read on other n-grams`,
       ]);
     let mapped: ReturnType<typeof remapCategories>;
@@ -98,7 +99,7 @@ export class ModelTransferService {
       mapped = remapCategories(LogisticModel.fromJSON(model.classifier as LogisticModelJson), categories);
     } catch (e) {
       if (e instanceof RangeError)
-        throw new BadRequestException([
+        throw new InvalidInput([
           `startFrom: the new desk's categories share fewer than two trained categories with version ${version} of desk ${deskId} (${trainedNames(model.classifier as LogisticModelJson).join(', ')})`,
         ]);
       throw e;

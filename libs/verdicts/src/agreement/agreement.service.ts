@@ -1,6 +1,7 @@
-import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskDirectory, type DbInt } from '#database';
 import { alphaBootstrap, cohenKappa, createRng, fleissKappa, krippendorffAlpha } from '#learning';
+import { NotFound } from '#errors';
 
 /** The bootstrap's seed and size are fixed so the same verdicts always give the same figures. */
 export const AGREEMENT_BOOTSTRAP_SEED = 20_260_101;
@@ -81,7 +82,7 @@ export class AgreementService {
    */
   async forDesk(deskId: number, asOf?: Date): Promise<DeskAgreement> {
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     const categories = entry.categories.map((c) => c.name);
     const live = (v: string) =>
       asOf ? `${v}created_at <= $3 AND (${v}undone_at IS NULL OR ${v}undone_at > $3)` : `${v}undone_at IS NULL`;

@@ -1,10 +1,11 @@
-import { ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
 import { APP_CONFIG, type AppConfig } from '#config';
 import { Database, type DbInt } from '#database';
 import { JOBS, JobQueueService, type NotifyUrgentPayload } from '#queues';
+import { Conflict, NotFound } from '#errors';
 
 /** An escalation just written inside a verdict's transaction: what the webhook announces once it commits. */
 export type RaisedEscalation = NotifyUrgentPayload;
@@ -122,9 +123,9 @@ export class EscalationsService {
         `SELECT id, desk_id, acknowledged_at FROM escalations WHERE item_id = $1 ORDER BY id${lock}`,
         [itemId],
       );
-      if (rows.length === 0) throw new NotFoundException(`item ${itemId} was never marked urgent`);
+      if (rows.length === 0) throw new NotFound(`item ${itemId} was never marked urgent`);
       const open = rows.filter((r) => r.acknowledged_at === null).map((r) => Number(r.id));
-      if (open.length === 0) throw new ConflictException(`item ${itemId} is acknowledged already: nothing waits`);
+      if (open.length === 0) throw new Conflict(`item ${itemId} is acknowledged already: nothing waits`);
       const now = new Date();
       await this.db.query(
         m,

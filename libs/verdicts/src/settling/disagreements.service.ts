@@ -1,7 +1,8 @@
-import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskDirectory, type DbInt, type DrawKind } from '#database';
 import { PredictionsService } from '#models';
 import { SettlementsService, type SettlementView } from './settlements.service.js';
+import { NotFound } from '#errors';
 
 /** Why an item is listed. */
 export type DisagreementReason =
@@ -71,7 +72,7 @@ export class DisagreementsService {
     opts: { after?: number; limit: number },
   ): Promise<{ disagreements: Disagreement[]; next: number | null }> {
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     const coverage = await this.predictions.coverage(entry.desk);
     const unhealthy = new Set(
       coverage.byVersion

@@ -1,9 +1,10 @@
-import { BadRequestException, ConflictException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { AuditService } from '#audit';
 import type { Principal } from '#auth';
 import { Database, DeskDirectory, type DbInt } from '#database';
 import { RetrainScheduler } from '#models';
 import type { SettleItemDto } from './settle.dto.js';
+import { Conflict, InvalidInput, NotFound } from '#errors';
 
 /** A supervisor's settled label of an item. */
 export interface SettlementView {
@@ -33,17 +34,17 @@ export class SettlementsService {
 
   async settle(supervisor: Principal, itemId: number, dto: SettleItemDto): Promise<SettlementView> {
     const item = await this.db.queryOne<{ desk_id: DbInt }>(null, 'SELECT desk_id FROM items WHERE id = $1', [itemId]);
-    if (!item) throw new NotFoundException(`no item ${itemId}`);
+    if (!item) throw new NotFound(`no item ${itemId}`);
     const deskId = Number(item.desk_id);
     if (dto.deskId !== undefined && dto.deskId !== deskId)
-      throw new BadRequestException(`item ${itemId} belongs to another desk than desk ${dto.deskId}`);
+      throw new InvalidInput(`item ${itemId} belongs to another desk than desk ${dto.deskId}`);
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     if (dto.category.trim().toLowerCase() === 'abstain')
-      throw new BadRequestException("abstain cannot be a settled label: settle on one of the desk's categories");
+      throw new InvalidInput("abstain cannot be a settled label: settle on one of the desk's categories");
     const category = entry.categories.find((c) => c.name === dto.category);
     if (!category)
-      throw new BadRequestException(
+      throw new InvalidInput(
         `unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`,
       );
     const view = await this.db.write(async (m) => {
@@ -55,8 +56,7 @@ export class SettlementsService {
         'SELECT COUNT(*) AS n FROM verdicts WHERE item_id = $1 AND undone_at IS NULL',
         [itemId],
       );
-      if (Number(live.n) === 0)
-        throw new ConflictException(`item ${itemId} has no live verdict: there is nothing to settle`);
+      if (Number(live.n) === 0) throw new Conflict(`item ${itemId} has no live verdict: there is nothing to settle`);
       const before = await this.db.queryOne<{ id: DbInt; category: string; reason: string }>(
         m,
         'SELECT s.id, c.name AS category, s.reason FROM settlements s JOIN categories c ON c.id = s.category_id WHERE s.item_id = $1 ORDER BY s.id DESC LIMIT 1',

@@ -1,9 +1,10 @@
-import { Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import type { EntityManager } from 'typeorm';
 import { AuditService, type AuditActor } from '#audit';
 import { Database, DeskEntity, type DbInt, type ErasedBy, type TriageCall, type VerdictDrawKind } from '#database';
 import { HighlightService, type Highlight } from '#leases';
 import { ModelStore, PredictionsService } from '#models';
+import { NotFound } from '#errors';
 
 /** One verdict on the item as the item page shows it: who, what, under which version, and why it was served. */
 export interface ItemVerdict {
@@ -178,7 +179,7 @@ export class ItemRecordService {
       `SELECT id, desk_id, external_id, source, text, posted_at, imported_at, state, erased_at, erased_by FROM items WHERE id = $1`,
       [itemId],
     );
-    if (!row) throw new NotFoundException(`no item ${itemId}`);
+    if (!row) throw new NotFound(`no item ${itemId}`);
     return row;
   }
 

@@ -1,7 +1,8 @@
-import { BadRequestException, Inject, Injectable, NotFoundException } from '@nestjs/common';
+import { Inject, Injectable } from '@nestjs/common';
 import { Database, DeskDirectory, UserEntity, type DbInt } from '#database';
 import { parseIsoDateTime } from '#imports';
 import type { TrailRow } from './trail-format.js';
+import { InvalidInput, NotFound } from '#errors';
 
 /** Filters of the decision trail, as given in the query string. */
 export interface TrailQuery {
@@ -20,7 +21,7 @@ export interface TrailQuery {
 export function trailQuery(q: Record<string, unknown>): TrailQuery {
   const s = (key: string) => {
     const v = q[key];
-    if (v !== undefined && typeof v !== 'string') throw new BadRequestException(`${key}: give it at most once`);
+    if (v !== undefined && typeof v !== 'string') throw new InvalidInput(`${key}: give it at most once`);
     return v;
   };
   return {
@@ -69,7 +70,7 @@ export class TrailService {
   /** Checks the filters (400 on bad ones, 404 for an unknown desk) before anything is streamed. */
   async filter(deskId: number, q: TrailQuery): Promise<TrailFilter> {
     const entry = await this.directory.get(deskId);
-    if (!entry) throw new NotFoundException(`no desk ${deskId}`);
+    if (!entry) throw new NotFound(`no desk ${deskId}`);
     const f: TrailFilter = { deskId };
     const problems: string[] = [];
     for (const key of ['from', 'to'] as const) {
@@ -96,7 +97,7 @@ export class TrailService {
     }
     if (q.reviewerMatch !== undefined && q.reviewerMatch.length > 100)
       problems.push(`reviewerMatch: at most 100 characters, got ${q.reviewerMatch.length}`);
-    if (problems.length) throw new BadRequestException(problems);
+    if (problems.length) throw new InvalidInput(problems);
     if (q.reviewerMatch !== undefined && q.reviewerMatch.trim() !== '') {
       // Matched here rather than in SQL: LOWER() folds only ASCII on SQLite, and a desk has few reviewers.
       const part = q.reviewerMatch.trim().toLocaleLowerCase();
