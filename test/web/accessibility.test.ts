@@ -1,16 +1,14 @@
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { SCREENS, type Role } from '../../apps/web/src/routes.js';
-import { openBrowser, signIn, type Browser } from '../support/browser.js';
-import { startStack, type Stack } from '../support/stack.js';
-import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
+import { signIn } from '../support/browser.js';
+import { PASSWORD } from '../support/web-desk.js';
+import { ACCOUNTS, everyScreenDesk, ready } from '../support/every-screen.js';
 
 /** axe-core from node_modules (a development dependency), run inside the page: nothing is fetched. */
 const AXE_SOURCE = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
-
-const ACCOUNTS: Record<Role, string> = { reviewer: 'robin', supervisor: 'sasha', auditor: 'ada', admin: 'root' };
 
 /** The role each screen is checked as: the first of these that may open it, so every screen is visited once. */
 const ORDER: Role[] = ['supervisor', 'auditor', 'reviewer', 'admin'];
@@ -100,43 +98,13 @@ async function chartContrastFindings(page: Page): Promise<string[]> {
   });
 }
 
-async function ready(page: Page): Promise<void> {
-  await page.locator('main h1, main article.item').first().waitFor();
-  await page.waitForLoadState('networkidle', { timeout: 3000 }).catch(() => undefined);
-}
-
 // Colours and structure do not depend on the database: SQLite only, each screen once per colour scheme.
 describe.each(['sqlite'] as const)('axe on every screen, light and dark, wide and narrow, on %s', (kind) => {
-  let s: Stack;
-  let desk: WebDesk;
-  let version: number;
-  let itemId: number;
-  let b: Browser;
-
-  beforeAll(async () => {
-    s = await startStack(kind);
-    desk = await webDesk(s, { pool: 200, verdicts: 60 });
-    await s.user(ACCOUNTS.admin, 'admin', PASSWORD);
-    version = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}`)).body.currentModelVersion as number;
-    itemId = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?limit=1`)).body.verdicts[0]
-      .itemId as number;
-    b = await openBrowser(s.base);
-  }, 180_000);
-  afterAll(async () => {
-    await (b as Browser | undefined)?.close();
-    await (s as Stack | undefined)?.stop();
-  });
-
-  const path = (pattern: string): string =>
-    pattern.replace(/:(\w+)/g, (_, p: string) => {
-      if (p === 'deskId') return String(desk.deskId);
-      if (p === 'version') return String(version);
-      if (p === 'itemId') return String(itemId);
-      throw new Error(`the accessibility test has no value for :${p} in ${pattern}: add one`);
-    });
+  const every = everyScreenDesk(kind, 'accessibility');
 
   for (const scheme of ['light', 'dark'] as const) {
     it(`${scheme}: no serious or critical finding on any screen at 1280×800 or 390×844`, async () => {
+      const { stack: s, browser: b, path } = every;
       const { page } = b;
       await page.setViewportSize({ width: 1280, height: 800 });
       await page.emulateMedia({ colorScheme: scheme });

@@ -1,9 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { deskTabs, SCREENS, type Role } from '../../apps/web/src/routes.js';
-import { openBrowser, signIn, type Browser } from '../support/browser.js';
-import { startStack, type Stack } from '../support/stack.js';
-import { PASSWORD, webDesk, type WebDesk } from '../support/web-desk.js';
+import { signIn } from '../support/browser.js';
+import { PASSWORD } from '../support/web-desk.js';
+import { ACCOUNTS, everyScreenDesk, ready } from '../support/every-screen.js';
 
 /** A phone held upright and a laptop: the two sizes every screen is checked at. */
 const SIZES = [
@@ -13,8 +13,6 @@ const SIZES = [
 
 /** Below this width the desk's sections sit behind the menu button (styles.css). */
 const MENU_BELOW = 760;
-
-const ACCOUNTS: Record<Role, string> = { reviewer: 'robin', supervisor: 'sasha', auditor: 'ada', admin: 'root' };
 
 /** Elements that reach past the right edge of the window, outside any box that scrolls on its own. */
 async function overflowing(page: Page): Promise<{ scrollWidth: number; clientWidth: number; culprits: string[] }> {
@@ -31,12 +29,6 @@ async function overflowing(page: Page): Promise<{ scrollWidth: number; clientWid
   });
 }
 
-/** Waits for a screen's first answer: its heading, or the queue's item. */
-async function ready(page: Page): Promise<void> {
-  await page.locator('main h1, main article.item').first().waitFor();
-  await page.waitForLoadState('networkidle', { timeout: 3000 }).catch(() => undefined);
-}
-
 /** True when the element is shown and lies inside the window from left to right. */
 async function reachable(page: Page, name: string, role: 'link' | 'button'): Promise<boolean> {
   const el = page.getByRole(role, { name, exact: true }).first();
@@ -50,36 +42,11 @@ async function reachable(page: Page, name: string, role: 'link' | 'button'): Pro
 // here (every other browser test runs on both). Checking each screen of each role at two sizes is the suite's
 // longest browser run, so it is not repeated.
 describe.each(['sqlite'] as const)('every screen at phone and laptop size on %s', (kind) => {
-  let s: Stack;
-  let desk: WebDesk;
-  let version: number;
-  let itemId: number;
-  let b: Browser;
-
-  beforeAll(async () => {
-    s = await startStack(kind);
-    desk = await webDesk(s, { pool: 200, verdicts: 60 });
-    await s.user(ACCOUNTS.admin, 'admin', PASSWORD);
-    version = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}`)).body.currentModelVersion as number;
-    itemId = (await s.call(desk.sup, 'GET', `/api/desks/${desk.deskId}/verdicts?limit=1`)).body.verdicts[0]
-      .itemId as number;
-    b = await openBrowser(s.base);
-  }, 180_000);
-  afterAll(async () => {
-    await (b as Browser | undefined)?.close();
-    await (s as Stack | undefined)?.stop();
-  });
-
-  const path = (pattern: string): string =>
-    pattern.replace(/:(\w+)/g, (_, p: string) => {
-      if (p === 'deskId') return String(desk.deskId);
-      if (p === 'version') return String(version);
-      if (p === 'itemId') return String(itemId);
-      throw new Error(`the layout test has no value for :${p} in ${pattern}: add one`);
-    });
+  const every = everyScreenDesk(kind, 'layout');
 
   for (const role of ['reviewer', 'supervisor', 'auditor', 'admin'] as const) {
     it(`${role}: no screen scrolls sideways and the navigation is in reach`, async () => {
+      const { stack: s, browser: b, desk, path } = every;
       const { page } = b;
       await page.setViewportSize({ width: 1280, height: 800 });
       await signIn(page, s.base, ACCOUNTS[role], PASSWORD);
