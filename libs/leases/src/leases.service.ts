@@ -266,7 +266,7 @@ export class LeasesService {
     order: string,
     params: unknown[],
   ): Promise<PickedRow | null> {
-    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const lock = this.db.lockRows({ skipLocked: true });
     const rows = await this.db.query<PickedRow>(
       m,
       `UPDATE items SET state = 'leased', lease_id = $1, leased_until = $2
@@ -332,7 +332,7 @@ export class LeasesService {
     expiresAt: Date,
     now: Date,
   ): Promise<PickedRow | null> {
-    const lock = this.db.pg ? ' FOR UPDATE OF so SKIP LOCKED' : '';
+    const lock = this.db.lockRows({ of: 'so', skipLocked: true });
     const due = await this.db.queryOne<{ item_id: DbInt }>(
       m,
       `UPDATE second_opinions SET state = 'leased', lease_id = $1, leased_until = $2
@@ -368,7 +368,7 @@ export class LeasesService {
     expiresAt: Date,
     notSkipped: string,
   ): Promise<PickedRow | null> {
-    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const lock = this.db.lockRows({ skipLocked: true });
     const candidates = await this.db.query<{ id: number; text: string }>(
       m,
       `SELECT id, text FROM items WHERE desk_id = $1 AND state = 'open'${notSkipped} ORDER BY priority DESC, id DESC LIMIT ${NEAR_DUPLICATE_CANDIDATES}${lock}`,
@@ -410,7 +410,7 @@ export class LeasesService {
     fullOrder: number[],
     skipped: number[],
   ): Promise<PickedRow | null> {
-    const lock = this.db.pg ? ' FOR UPDATE SKIP LOCKED' : '';
+    const lock = this.db.lockRows({ skipLocked: true });
     const decided = new Set<number>();
     const skip = new Set(skipped);
     const order = skip.size ? fullOrder.filter((id) => !skip.has(id)) : fullOrder;

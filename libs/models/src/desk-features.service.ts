@@ -51,7 +51,7 @@ export class DeskFeaturesService {
    */
   async addItems(m: EntityManager, deskId: number, items: ReadonlyArray<{ id: number; text: string }>): Promise<void> {
     if (items.length === 0) return;
-    const lock = this.db.pg ? ' FOR UPDATE' : '';
+    const lock = this.db.lockRows();
     const row = await this.db.queryOne<{ hash_bits: DbInt; df: string }>(
       m,
       `SELECT hash_bits, df FROM desk_features WHERE desk_id = $1${lock}`,
@@ -94,7 +94,7 @@ export class DeskFeaturesService {
     items: ReadonlyArray<{ id: number; text: string }>,
   ): Promise<void> {
     if (items.length === 0) return;
-    const lock = this.db.pg ? ' FOR UPDATE' : '';
+    const lock = this.db.lockRows();
     const row = await this.db.queryOne<{ df: string }>(m, `SELECT df FROM desk_features WHERE desk_id = $1${lock}`, [
       deskId,
     ]);

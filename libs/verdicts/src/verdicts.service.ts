@@ -154,7 +154,7 @@ export class VerdictsService {
     try {
       const result = await this.db.write(async (m) => {
         // One statement: the lease, its item (locked until commit on PostgreSQL), and any verdict already stored under this client id.
-        const lock = this.db.pg ? ' FOR UPDATE OF i' : '';
+        const lock = this.db.lockRows({ of: 'i' });
         const row = await this.db.queryOne<LeaseAndItem>(
           m,
           `SELECT l.desk_id, l.item_id, l.reviewer_id, l.draw, l.prediction, l.closed_at, l.closed_reason, i.state, i.lease_id AS item_lease_id, i.leased_until, i.erased_at,

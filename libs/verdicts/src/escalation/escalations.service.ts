@@ -117,7 +117,7 @@ export class EscalationsService {
     itemId: number,
   ): Promise<{ itemId: number; escalationIds: number[]; acknowledgedBy: string; acknowledgedAt: Date }> {
     return this.db.write(async (m) => {
-      const lock = this.db.pg ? ' FOR UPDATE' : '';
+      const lock = this.db.lockRows();
       const rows = await this.db.query<{ id: DbInt; desk_id: DbInt; acknowledged_at: unknown }>(
         m,
         `SELECT id, desk_id, acknowledged_at FROM escalations WHERE item_id = $1 ORDER BY id${lock}`,

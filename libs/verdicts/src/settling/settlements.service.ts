@@ -48,7 +48,7 @@ export class SettlementsService {
         `unknown category ${JSON.stringify(dto.category)}; this desk has: ${entry.categories.map((c) => c.name).join(', ')}`,
       );
     const view = await this.db.write(async (m) => {
-      const lock = this.db.pg ? ' FOR UPDATE' : '';
+      const lock = this.db.lockRows();
       await this.db.query(m, `SELECT id FROM items WHERE id = $1${lock}`, [itemId]);
       // COUNT(*) answers one row.
       const [live] = await this.db.query<{ n: DbInt }>(
