@@ -32,8 +32,8 @@ export const rehearse = defineCommand({
     'per seed and prints medians and ranges. The file is read like an import (same formats, row rules and ' +
     'messages); rejected rows are listed on stderr and left out, and a warning says when the input or the budget ' +
     'is too small for the requested target. With --watch it also measures screening as a desk watching those ' +
-    'categories would: at each point and at the end, per watched category, the recall and reading load on the ' +
-    'open items and how many of its items the cleared pile really holds against the estimate and 95% interval a ' +
+    'categories would: at each point and at the end, per watched category, the share of its items decided or ' +
+    'flagged (the promise a desk states), the recall and reading load on the open items and how many of its items the cleared pile really holds against the estimate and 95% interval a ' +
     'desk would state; with --seed-terms, the keyword baseline beside it.',
   options: REHEARSE_OPTIONS,
   async run({ values }, io) {

@@ -95,7 +95,7 @@ export const REHEARSE_OPTIONS = {
     type: 'string',
     value: 'LIST',
     description:
-      'watched categories, comma-separated (`threat` or `threat,harassment`): the queue serves the review lane as a desk does, and each point adds, per category, the recall and reading load on the open items and the true count in the cleared pile against the estimate a desk states (prediction-powered, 95% interval)',
+      'watched categories, comma-separated (`threat` or `threat,harassment`): the queue serves the review lane as a desk does, and each point adds, per category, the share of its items decided or flagged (the promise a desk states), the recall and reading load on the open items and the true count in the cleared pile against the estimate a desk states (prediction-powered, 95% interval)',
   },
   'screen-share': {
     type: 'string',
