@@ -30,7 +30,9 @@ function parsePrometheus(text: string): Sample[] {
       }
       continue;
     }
-    const m = /^([a-zA-Z_:][a-zA-Z0-9_:]*)(?:\{(.*)\})? (-?[0-9.e+-]+|NaN|[+-]Inf)$/.exec(line);
+    // Values are read as Go's strconv.ParseFloat reads them, which takes NaN and Inf in any case (prom-client writes
+    // an empty summary's mean as `Nan`); recalled from memory of the Prometheus text format and Go's strconv.
+    const m = /^([a-zA-Z_:][a-zA-Z0-9_:]*)(?:\{(.*)\})? (-?[0-9.e+-]+|nan|[+-]?inf)$/i.exec(line);
     if (!m) throw new Error(`not a Prometheus line: ${line}`);
     const labels: Record<string, string> = {};
     const body = (m[2] as string | undefined) ?? '';
@@ -44,7 +46,8 @@ function parsePrometheus(text: string): Sample[] {
     }
     const family = m[1].replace(/_(bucket|sum|count|total)$/, '');
     expect(typed.has(m[1]) || typed.has(family), `no TYPE for ${m[1]}`).toBe(true);
-    samples.push({ name: m[1], labels, value: Number(m[3]) });
+    const inf = /^([+-]?)inf$/i.exec(m[3]);
+    samples.push({ name: m[1], labels, value: inf ? (inf[1] === '-' ? -Infinity : Infinity) : Number(m[3]) });
   }
   return samples;
 }

@@ -4,7 +4,7 @@ import { Queue } from 'bullmq';
 import { Redis } from 'ioredis';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DATABASE_KINDS } from '../support/databases.js';
-import { exited, spawnApp } from '../support/processes.js';
+import { exited, freePort, spawnApp } from '../support/processes.js';
 import { eventually, startStack, TEST_REDIS_URL, type Stack } from '../support/stack.js';
 import { syntheticPool } from '../support/synthetic.js';
 
@@ -190,8 +190,17 @@ describe.each(DATABASE_KINDS)('worker crashes and several workers on %s', (kind)
 
   it('lets two worker processes share the scoring chunks of one retrain', async () => {
     const before = (await current()).currentModelVersion as number;
-    const a = worker();
-    const b = worker();
+    // Both workers must be taking jobs before the retrain: on a busy machine one may still be starting when the other
+    // has scored every chunk. A worker's /healthz answers 200 once it runs a worker for every queue.
+    const [pa, pb] = [await freePort(), await freePort()];
+    const a = worker({ WORKER_HEALTH_PORT: String(pa) });
+    const b = worker({ WORKER_HEALTH_PORT: String(pb) });
+    for (const port of [pa, pb])
+      await eventually(
+        async () => ((await fetch(`http://127.0.0.1:${port}/healthz`).catch(() => null))?.ok ? true : undefined),
+        60_000,
+        `the worker on health port ${port} taking jobs`,
+      );
     await decide(10);
     await publishedVersion(before + 1);
     const connection = new Redis(TEST_REDIS_URL, { maxRetriesPerRequest: null });
